@@ -1,0 +1,3 @@
+export * from './matrix.js';
+export * from './cholesky.js';
+export * from './qr.js';

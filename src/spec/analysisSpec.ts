@@ -1,0 +1,117 @@
+// The declarative analysis spec: one JSON document drives the CLI, the screens and reports,
+// and is stored with every result so any number can be reproduced.
+import { z } from 'zod';
+
+const contrastName = z.string().min(1).max(120);
+
+export const coefficientContrastSchema = z.object({
+  name: contrastName,
+  coefficients: z.record(z.string(), z.number().finite()),
+  divisor: z.number().finite().refine((d) => d !== 0, 'divisor must not be zero').default(1),
+});
+
+export const factorLevelsContrastSchema = z.object({
+  name: contrastName,
+  factor: z.string().min(1),
+  /** Mean at levels[0] minus mean at levels[1], averaged over the other factors. */
+  levels: z.tuple([z.union([z.string(), z.number()]), z.union([z.string(), z.number()])]),
+});
+
+export const trendContrastSchema = z.object({
+  name: contrastName,
+  trend: z.string().min(1),
+  degree: z.union([z.literal(1), z.literal(2), z.literal(3)]).default(1),
+});
+
+export const controlContrastSchema = z.object({
+  name: contrastName,
+  /** All treated treatments averaged, minus the control. */
+  kind: z.literal('treated-vs-control'),
+});
+
+export const contrastSpecSchema = z.union([
+  coefficientContrastSchema,
+  factorLevelsContrastSchema,
+  trendContrastSchema,
+  controlContrastSchema,
+]);
+export type ContrastSpec = z.infer<typeof contrastSpecSchema>;
+
+export const columnsSchema = z
+  .object({
+    site: z.string().optional(),
+    year: z.string().optional(),
+    trial: z.string().optional(),
+    block: z.string().optional(),
+    treatment: z.string().optional(),
+    response: z.string().optional(),
+    row: z.string().optional(),
+    col: z.string().optional(),
+    design: z.string().optional(),
+    trait: z.string().optional(),
+    plot: z.string().optional(),
+    factors: z.record(z.string(), z.string()).optional(),
+    covariates: z.array(z.string()).optional(),
+    /** Summary-data pooling: one row per trial with an estimate and its standard error. */
+    estimate: z.string().optional(),
+    se: z.string().optional(),
+    df: z.string().optional(),
+  })
+  .strict();
+export type ColumnsSpec = z.infer<typeof columnsSchema>;
+
+export const transformSchema = z.enum(['none', 'log', 'logit', 'arcsine-sqrt', 'sqrt']);
+
+export const oneStageSchema = z
+  .object({
+    random: z.array(z.enum(['trial', 'block', 'treatment:trial'])).default(['trial', 'block', 'treatment:trial']),
+    residual: z.enum(['common', 'per-trial']).default('common'),
+    df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
+    covariates: z.array(z.string()).default([]),
+  })
+  .strict();
+
+export const twoStageSchema = z
+  .object({
+    tau2: z.enum(['reml', 'ml', 'dl', 'pm', 'fixed']).default('reml'),
+    interval: z.enum(['hksj', 'wald']).default('hksj'),
+    /** Keep the HKSJ interval from being narrower than the Wald interval. */
+    hksjFloor: z.boolean().default(false),
+  })
+  .strict();
+
+export const rateResponseSchema = z
+  .object({
+    factor: z.string().min(1),
+    model: z.enum(['linear', 'quadratic', 'linear-plateau', 'quadratic-plateau', 'exponential', 'best']).default('quadratic'),
+    priceRatio: z.number().positive(),
+    at: z.record(z.string(), z.union([z.string(), z.number()])).optional(),
+    profitableWithin: z.number().nonnegative().default(0),
+    bootstrap: z.number().int().nonnegative().default(0),
+    seed: z.number().int().default(1),
+  })
+  .strict();
+
+export const analysisSpecSchema = z
+  .object({
+    trait: z.string().min(1).optional(),
+    columns: columnsSchema.optional(),
+    control: z.string().optional(),
+    transform: transformSchema.default('none'),
+    /** Offset added before a log transform when zeros occur; default rule documented in the engine. */
+    logOffset: z.number().nonnegative().optional(),
+    contrasts: z.array(contrastSpecSchema).default([]),
+    pairwise: z.enum(['none', 'tukey', 'holm']).default('none'),
+    oneStage: oneStageSchema.nullable().optional(),
+    twoStage: twoStageSchema.nullable().optional(),
+    moderators: z.array(z.string()).default([]),
+    threshold: z.number().default(0),
+    confidence: z.number().gt(0.5).lt(1).default(0.95),
+    rateResponse: rateResponseSchema.nullable().optional(),
+    /** Plots to leave out, each with the reason recorded in the result. */
+    exclude: z.array(z.object({ trial: z.string(), plot: z.union([z.string(), z.number()]), reason: z.string().min(1) })).default([]),
+  })
+  .strict();
+
+export type AnalysisSpec = z.infer<typeof analysisSpecSchema>;
+export type AnalysisSpecInput = z.input<typeof analysisSpecSchema>;
