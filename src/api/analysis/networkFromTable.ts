@@ -1,0 +1,30 @@
+// A validated plot table (from a file) seen as the engine's network for one trait.
+import type { NetworkInput, PlotObservation, TrialInput } from '../../engine/types.js';
+import type { ParsedPlotTable } from '../../intake/types.js';
+import { ManyfieldError } from '../result.js';
+
+export function networkFromTable(table: ParsedPlotTable, trait: string): NetworkInput {
+  const traitInfo = table.traits.find((t) => t.name === trait);
+  if (!traitInfo) throw new ManyfieldError('invalid-argument', `trait "${trait}" is not in ${table.file} (traits: ${table.traits.map((t) => t.name).join(', ')})`);
+  const values = new Map<number, number | null>();
+  for (const o of table.observations) if (o.trait === trait) values.set(o.plot, o.value);
+  const plotsByTrial = new Map<string, PlotObservation[]>();
+  table.plots.forEach((p, i) => {
+    if (!values.has(i)) return;
+    let list = plotsByTrial.get(p.trialKey);
+    if (!list) plotsByTrial.set(p.trialKey, (list = []));
+    list.push({ plotId: p.sourceRow, treatment: p.treatment, block: p.block, row: p.row, col: p.col, value: values.get(i) ?? null });
+  });
+  const trials: TrialInput[] = table.trials
+    .filter((t) => plotsByTrial.has(t.key))
+    .map((t) => ({ trial: t.key, site: t.site, year: t.year, design: t.design, plots: plotsByTrial.get(t.key)!, covariates: table.trialCovariates[t.key] ?? {} }));
+  return {
+    trait,
+    traitKind: traitInfo.kind,
+    unit: traitInfo.unit,
+    factors: table.factors,
+    treatments: table.treatments,
+    control: table.control ?? undefined,
+    trials,
+  };
+}

@@ -1,0 +1,47 @@
+// The machine-readable result of one analysis (DESIGN §5). Screens, reports and the CLI all
+// read this one object.
+import type { TrialAnalysis } from '../../engine/trial/analyzeTrial.js';
+import type { PooledResult } from '../../engine/pooling/poolEstimates.js';
+import type { OneStageResult } from '../../engine/onestage/fitOneStage.js';
+import type { RateResponseResult } from '../../engine/rate/analyzeRateResponse.js';
+import type { StageAgreement } from './agreement.js';
+
+export type TrialStageEntry = TrialAnalysis & {
+  readonly trial: string;
+  readonly site: string | null;
+  readonly year: number | null;
+  readonly design: string;
+};
+
+export type PooledEntry = PooledResult & {
+  readonly name: string;
+  readonly meaning: string;
+  /** Trials left out of this contrast's pooling, each with the reason. */
+  readonly leftOut: readonly string[];
+};
+
+/** A trial known only by its per-trial summary (pooling a summary file). */
+export interface SummaryTrialEntry {
+  readonly trial: string;
+  readonly contrasts: readonly { readonly name: string; readonly estimate: number; readonly se: number; readonly df: number | null }[];
+}
+
+export interface Provenance {
+  readonly source: string;
+  readonly dataFingerprint: string;
+  readonly appVersion: string;
+  readonly createdAt: string;
+}
+
+export interface AnalysisReport {
+  readonly provenance: Provenance;
+  readonly trait: string;
+  readonly unit: string | null;
+  readonly trialsAnalysed: number;
+  readonly oneStage: OneStageResult | null;
+  readonly twoStage: { readonly trials: readonly (TrialStageEntry | SummaryTrialEntry)[]; readonly pooled: readonly PooledEntry[] };
+  readonly agreement: readonly StageAgreement[];
+  readonly rateResponse: RateResponseResult | null;
+  readonly warnings: readonly string[];
+  readonly cautions: readonly string[];
+}

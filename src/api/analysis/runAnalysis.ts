@@ -1,0 +1,108 @@
+// One analysis from a spec: trial stage for every trial, two-stage pooling of each contrast,
+// the one-stage mixed model, their agreement, and the rate response. Pure orchestration:
+// the numbers come from src/engine.
+import { resolveContrast, involvedTreatments, type ResolvedContrast } from '../../engine/contrasts/resolve.js';
+import type { NetworkInput, TrialInput } from '../../engine/types.js';
+import { analyzeTrial } from '../../engine/trial/analyzeTrial.js';
+import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
+import { fitOneStage } from '../../engine/onestage/fitOneStage.js';
+import { analyzeRateResponse } from '../../engine/rate/analyzeRateResponse.js';
+import type { AnalysisSpec } from '../../spec/analysisSpec.js';
+import { throwIfCancelled, type CallContext } from '../context.js';
+import { ManyfieldError } from '../result.js';
+import { compareStages } from './agreement.js';
+import { RECOMMENDATION_CAUTIONS } from './cautions.js';
+import { applyExclusions } from './exclusions.js';
+import { transformNetwork } from './transformNetwork.js';
+import type { AnalysisReport, TrialStageEntry, PooledEntry } from './report.js';
+
+export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Omit<AnalysisReport, 'provenance'> {
+  const warnings: string[] = [];
+  const network = applyExclusions(input, spec.exclude, warnings);
+  if (network.trials.length === 0) throw new ManyfieldError('invalid-input', `no trials hold data for trait "${network.trait}"`);
+  const control = spec.control ?? network.control;
+  const contrasts = spec.contrasts.map((c) => {
+    try {
+      return resolveContrast(c, network.treatments, control);
+    } catch (e) {
+      throw new ManyfieldError('invalid-argument', (e as Error).message);
+    }
+  });
+
+  const trials: TrialStageEntry[] = [];
+  network.trials.forEach((trial, i) => {
+    throwIfCancelled(ctx);
+    ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
+    trials.push(analyseOneTrial(trial, network, contrasts, spec));
+  });
+
+  const pooled = spec.twoStage === null ? [] : poolContrasts(trials, contrasts, network, spec, warnings);
+
+  let oneStage: ReturnType<typeof fitOneStage> | null = null;
+  if (spec.oneStage !== null) {
+    throwIfCancelled(ctx);
+    const options = spec.oneStage ?? { random: ['trial', 'block', 'treatment:trial'] as const, residual: 'common' as const, df: 'satterthwaite' as const, covariates: [] };
+    const modelled = transformNetwork(network, spec);
+    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence }, {
+      onProgress: (e) => ctx?.onProgress?.({ stage: 'one-stage', step: `iteration ${e.iteration}`, fraction: null }),
+      signal: ctx?.signal,
+    });
+  }
+
+  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings) : [];
+
+  let rateResponse: ReturnType<typeof analyzeRateResponse> | null = null;
+  if (spec.rateResponse) {
+    throwIfCancelled(ctx);
+    const r = spec.rateResponse;
+    rateResponse = analyzeRateResponse(network, { ...r, confidence: spec.confidence }, {
+      onProgress: (e) => ctx?.onProgress?.({ stage: 'rate-response', step: e.stage, fraction: e.fraction }),
+      signal: ctx?.signal,
+    });
+  }
+
+  return {
+    trait: network.trait,
+    unit: network.unit ?? null,
+    trialsAnalysed: network.trials.length,
+    oneStage,
+    twoStage: { trials, pooled },
+    agreement,
+    rateResponse,
+    warnings,
+    cautions: rateResponse ? RECOMMENDATION_CAUTIONS : [],
+  };
+}
+
+function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec): TrialStageEntry {
+  const result = analyzeTrial(trial, network.treatments, contrasts, {
+    transform: spec.transform,
+    logOffset: spec.logOffset,
+    confidence: spec.confidence,
+    pairwise: spec.pairwise,
+    traitKind: network.traitKind,
+  });
+  return { ...result, trial: trial.trial, site: trial.site ?? null, year: trial.year ?? null, design: trial.design };
+}
+
+function poolContrasts(trials: readonly TrialStageEntry[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[]): PooledEntry[] {
+  const options = spec.twoStage ?? { tau2: 'reml' as const, interval: 'hksj' as const, hksjFloor: false };
+  const covariatesByTrial = new Map(network.trials.map((t) => [t.trial, t.covariates ?? {}]));
+  const yearByTrial = new Map(network.trials.map((t) => [t.trial, t.year ?? null]));
+  return contrasts.map((contrast) => {
+    const items = [];
+    const left: string[] = [];
+    for (const t of trials) {
+      const c = t.contrasts.find((x) => x.name === contrast.name);
+      if (!c || !('estimate' in c) || c.estimate === null || c.se === null || !(c.se > 0)) {
+        left.push(`${t.trial} (${c && 'reason' in c ? c.reason : 'not estimable'})`);
+        continue;
+      }
+      items.push({ trial: t.trial, estimate: c.estimate, se: c.se, df: c.df, year: yearByTrial.get(t.trial) ?? null, covariates: covariatesByTrial.get(t.trial) ?? {} });
+    }
+    if (left.length > 0)
+      warnings.push(`contrast "${contrast.name}": ${left.length} trial(s) left out of the pooling because it is not estimable there: ${left.join('; ')} (needs ${involvedTreatments(contrast).join(', ')})`);
+    const result = poolEstimates(items, { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators });
+    return { name: contrast.name, meaning: contrast.meaning, leftOut: left, ...result };
+  });
+}

@@ -1,0 +1,23 @@
+// Any error from the core becomes a structured ApiError at the boundary.
+import { IntakeError } from '../intake/types.js';
+import { ManyfieldError, type ApiError } from './result.js';
+
+/** Errors from other layers that carry a code of their own (the store's typed errors). */
+interface CodedError {
+  readonly code: string;
+  readonly message: string;
+  readonly details?: unknown;
+}
+
+const KNOWN_CODES = new Set(['invalid-argument', 'invalid-input', 'not-found', 'conflict', 'workspace-refused', 'cancelled', 'engine-failure', 'internal']);
+
+export function toApiError(e: unknown): ApiError {
+  if (e instanceof ManyfieldError) return { code: e.code, message: e.message, details: e.details };
+  if (e instanceof IntakeError) return { code: 'invalid-input', message: e.message, details: { problems: e.problems, truncated: e.truncated } };
+  if (e instanceof Error && typeof (e as Partial<CodedError>).code === 'string' && KNOWN_CODES.has((e as CodedError).code)) {
+    const c = e as unknown as CodedError;
+    return { code: c.code as ApiError['code'], message: c.message, details: c.details };
+  }
+  if (e instanceof Error) return { code: 'internal', message: e.message, details: { name: e.name, stack: e.stack } };
+  return { code: 'internal', message: String(e) };
+}
