@@ -1,0 +1,119 @@
+// One trait in long format, a row per plot, under column names that a mapping reads straight
+// back (the returned mapping does exactly that), so import -> export -> import round-trips.
+import type { LevelValue } from '../engine/types.js';
+import type { ImportMapping } from '../intake/types.js';
+import { levelFromColumns, type StoredLevel } from './levels.js';
+import { findTrait, trialsWithTrait } from './network.js';
+import type { Workspace } from './workspace.js';
+
+export type ExportCell = string | number | null;
+
+export interface ExportedTrait {
+  readonly header: string[];
+  readonly rows: ExportCell[][];
+  /** A mapping that reads these columns back (values are in the stored canonical units). */
+  readonly mapping: ImportMapping;
+}
+
+/** Column names must be distinct: a factor or covariate named like a fixed column gets a suffix. */
+function uniqueName(taken: Set<string>, wanted: string): string {
+  let name = wanted;
+  for (let i = 2; taken.has(name); i++) name = `${wanted}_${i}`;
+  taken.add(name);
+  return name;
+}
+
+export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
+  const db = ws.db;
+  const t = findTrait(ws, trait);
+  const bounds = db.prepare('SELECT lower, upper FROM trait WHERE id = ?').get(t.id) as { lower: number | null; upper: number | null };
+  const trials = trialsWithTrait(ws, t.id);
+  const protocolIds = [...new Set(trials.map((r) => r.protocol_id))];
+
+  const factors = db
+    .prepare(`SELECT DISTINCT name, unit FROM factor WHERE protocol_id IN (${protocolIds.map(() => '?').join(',') || 'NULL'}) ORDER BY position, name`)
+    .all(...protocolIds) as { name: string; unit: string | null }[];
+  const factorNames = [...new Set(factors.map((f) => f.name))];
+  const levels = new Map<number, Map<string, LevelValue>>();
+  for (const r of db
+    .prepare('SELECT l.treatment_id, f.name, l.value_num, l.value_text FROM treatment_level l JOIN factor f ON f.id = l.factor_id')
+    .all() as (StoredLevel & { treatment_id: number; name: string })[]) {
+    const m = levels.get(r.treatment_id) ?? new Map<string, LevelValue>();
+    m.set(r.name, levelFromColumns(r));
+    levels.set(r.treatment_id, m);
+  }
+  const covariateNames = (
+    db
+      .prepare(
+        `SELECT DISTINCT c.name FROM trial_covariate c WHERE c.trial_id IN (SELECT value FROM json_each(?)) ORDER BY c.name`,
+      )
+      .all(JSON.stringify(trials.map((r) => r.id))) as { name: string }[]
+  ).map((r) => r.name);
+  const covariatesOf = db.prepare('SELECT name, value_num, value_text FROM trial_covariate WHERE trial_id = ?');
+
+  const taken = new Set<string>();
+  const fixed = ['site', 'year', 'trial', 'design', 'block', 'row', 'col', 'treatment'].map((n) => uniqueName(taken, n));
+  const factorCols = factorNames.map((n) => uniqueName(taken, n));
+  const covariateCols = covariateNames.map((n) => uniqueName(taken, n));
+  const valueCol = uniqueName(taken, t.name);
+  const header = [...fixed, ...factorCols, ...covariateCols, valueCol];
+
+  const plotsOf = db.prepare(
+    `SELECT p.treatment_id, tm.code, p.block, p.row, p.col, o.value FROM plot p
+     JOIN treatment tm ON tm.id = p.treatment_id
+     JOIN observation o ON o.plot_id = p.id AND o.trait_id = ?
+     WHERE p.trial_id = ? ORDER BY p.id`,
+  );
+  const rows: ExportCell[][] = [];
+  for (const trial of trials) {
+    const cov = new Map((covariatesOf.all(trial.id) as (StoredLevel & { name: string })[]).map((c) => [c.name, levelFromColumns(c)]));
+    const covCells = covariateNames.map((n) => cov.get(n) ?? null);
+    for (const p of plotsOf.all(t.id, trial.id) as { treatment_id: number; code: string; block: string | null; row: number | null; col: number | null; value: number | null }[]) {
+      const lv = levels.get(p.treatment_id);
+      rows.push([
+        trial.site,
+        trial.year,
+        trial.label,
+        trial.design,
+        p.block,
+        p.row,
+        p.col,
+        p.code,
+        ...factorNames.map((f) => lv?.get(f) ?? null),
+        ...covCells,
+        p.value,
+      ]);
+    }
+  }
+
+  const controls = protocolIds.length === 1
+    ? (db.prepare('SELECT name, control_code FROM protocol WHERE id = ?').get(protocolIds[0]) as { name: string; control_code: string | null })
+    : undefined;
+  const factorUnits = Object.fromEntries(factors.filter((f) => f.unit !== null).map((f) => [f.name, f.unit as string]));
+  const mapping: ImportMapping = {
+    columns: {
+      site: fixed[0],
+      year: fixed[1],
+      trial: fixed[2],
+      design: fixed[3],
+      block: fixed[4],
+      row: fixed[5],
+      col: fixed[6],
+      treatment: fixed[7],
+      response: valueCol,
+      ...(factorNames.length ? { factors: Object.fromEntries(factorNames.map((f, i) => [f, factorCols[i]])) } : {}),
+      ...(covariateNames.length ? { covariates: covariateCols } : {}),
+    },
+    trait: {
+      name: t.name,
+      unit: t.unit,
+      kind: t.kind,
+      ...(bounds.lower === null ? {} : { lower: bounds.lower }),
+      ...(bounds.upper === null ? {} : { upper: bounds.upper }),
+    },
+    ...(Object.keys(factorUnits).length ? { factorUnits } : {}),
+    ...(controls?.control_code ? { control: controls.control_code } : {}),
+    ...(controls ? { protocol: controls.name } : {}),
+  };
+  return { header, rows, mapping };
+}

@@ -1,0 +1,172 @@
+// Store a validated plot table as one import batch, all or nothing: one IMMEDIATE transaction,
+// prepared multi-row inserts, integer ids from Maps and explicit plot ids, so no per-row SELECT.
+import type Database from 'better-sqlite3';
+import type { ParsedPlotTable } from '../intake/types.js';
+import { bulkInserter } from './bulkInsert.js';
+import { ImportRefusedError } from './errors.js';
+import { mergeProtocol } from './mergeProtocol.js';
+import { mergeSites, mergeTraits } from './mergeReference.js';
+import { checkTableConsistency } from './tableConsistency.js';
+import type { Workspace } from './workspace.js';
+
+export interface ImportOptions {
+  /** Replace the batch previously imported from a file with the same SHA-256. */
+  readonly replace?: boolean;
+  /** Rows written so far (plots + observations) out of the total; called every few thousand rows. */
+  readonly onProgress?: (done: number, total: number) => void;
+  readonly now?: () => Date;
+}
+
+export interface BatchCounts {
+  readonly batchId: number;
+  readonly trials: number;
+  readonly plots: number;
+  readonly observations: number;
+}
+
+export interface ImportSummary extends BatchCounts {
+  readonly fileName: string;
+  readonly sha256: string;
+  readonly rowsRead: number;
+  readonly rowsStored: number;
+  readonly newSites: number;
+  readonly newTreatments: number;
+  /** The batch removed by --replace, or null. */
+  readonly replaced: BatchCounts | null;
+}
+
+const PROGRESS_EVERY = 16384;
+
+function batchCounts(db: Database.Database, batchId: number): BatchCounts {
+  const row = db
+    .prepare(
+      `SELECT (SELECT COUNT(*) FROM trial WHERE import_batch_id = @b) AS trials,
+              (SELECT COUNT(*) FROM plot p JOIN trial t ON t.id = p.trial_id WHERE t.import_batch_id = @b) AS plots,
+              (SELECT COUNT(*) FROM observation o JOIN plot p ON p.id = o.plot_id JOIN trial t ON t.id = p.trial_id
+                 WHERE t.import_batch_id = @b) AS observations`,
+    )
+    .get({ b: batchId }) as Omit<BatchCounts, 'batchId'>;
+  return { batchId, ...row };
+}
+
+/** Handle an earlier import of the same file: refuse, or delete it (cascading) when replacing. */
+function settleDuplicate(db: Database.Database, table: ParsedPlotTable, replace: boolean): BatchCounts | null {
+  const earlier = db.prepare('SELECT id, file_name, created_at FROM import_batch WHERE sha256 = ?').get(table.sha256) as
+    | { id: number; file_name: string; created_at: string }
+    | undefined;
+  if (!earlier) return null;
+  if (!replace) {
+    throw new ImportRefusedError(
+      'duplicate-file',
+      `this file (SHA-256 ${table.sha256.slice(0, 12)}…) was already imported as "${earlier.file_name}" on ${earlier.created_at}; nothing was changed — import with --replace to replace that batch`,
+      { batchId: earlier.id, fileName: earlier.file_name },
+    );
+  }
+  const counts = batchCounts(db, earlier.id);
+  db.prepare('DELETE FROM import_batch WHERE id = ?').run(earlier.id);
+  return counts;
+}
+
+interface ExistingTrials {
+  readonly keys: Map<string, string>; // "siteId|year|key" -> file name of its batch
+  readonly labels: Set<string>;
+}
+
+function existingTrials(db: Database.Database): ExistingTrials {
+  const rows = db
+    .prepare('SELECT t.site_id, t.year, t.key, t.label, b.file_name FROM trial t LEFT JOIN import_batch b ON b.id = t.import_batch_id')
+    .all() as { site_id: number; year: number; key: string; label: string; file_name: string | null }[];
+  return {
+    keys: new Map(rows.map((r) => [`${r.site_id}|${r.year}|${r.key}`, r.file_name ?? 'the workspace (not from a file)'])),
+    labels: new Set(rows.map((r) => r.label)),
+  };
+}
+
+/** The trial's key if no other trial uses it as its name, else the key qualified by site and year. */
+function uniqueLabel(labels: Set<string>, key: string, site: string, year: number): string {
+  let label = key;
+  if (labels.has(label)) label = `${key} (${site} ${year})`;
+  for (let i = 2; labels.has(label); i++) label = `${key} (${site} ${year}) #${i}`;
+  labels.add(label);
+  return label;
+}
+
+export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options: ImportOptions = {}): ImportSummary {
+  checkTableConsistency(table);
+  const db = ws.db;
+  const now = options.now ?? (() => new Date());
+  const total = table.plots.length + table.observations.length;
+  const progress = options.onProgress;
+
+  const run = db.transaction((): ImportSummary => {
+    const replaced = settleDuplicate(db, table, options.replace ?? false);
+    const protocol = mergeProtocol(db, table);
+    const traitIds = mergeTraits(db, table.traits);
+    const sites = mergeSites(db, table.trials.map((t) => t.site));
+
+    const batchId = Number(
+      db
+        .prepare('INSERT INTO import_batch (file_name, sha256, rows_read, rows_stored, created_at, mapping_json) VALUES (?, ?, ?, ?, ?, ?)')
+        .run(table.file, table.sha256, table.rowsRead, table.observations.length, now().toISOString(), JSON.stringify(table.mapping)).lastInsertRowid,
+    );
+
+    const existing = existingTrials(db);
+    const insertTrial = db.prepare(
+      'INSERT INTO trial (site_id, year, crop, design, protocol_id, import_batch_id, key, label) VALUES (?, ?, ?, ?, ?, ?, ?, ?)',
+    );
+    const insertCovariate = db.prepare('INSERT INTO trial_covariate (trial_id, name, value_num, value_text) VALUES (?, ?, ?, ?)');
+    const trialIds = new Map<string, number>();
+    for (const t of table.trials) {
+      const siteId = sites.ids.get(t.site)!;
+      const clash = existing.keys.get(`${siteId}|${t.year}|${t.key}`);
+      if (clash !== undefined) {
+        throw new ImportRefusedError(
+          'trial-exists',
+          `trial "${t.key}" at site "${t.site}" in ${t.year} is already in the workspace (imported from "${clash}"); nothing was changed — re-import that file with --replace to update it, or remove the trial from this file`,
+          { trial: t.key, site: t.site, year: t.year, from: clash },
+        );
+      }
+      const label = uniqueLabel(existing.labels, t.key, t.site, t.year);
+      const id = Number(insertTrial.run(siteId, t.year, table.mapping.crop ?? null, t.design, protocol.protocolId, batchId, t.key, label).lastInsertRowid);
+      trialIds.set(t.key, id);
+      for (const [name, value] of Object.entries(table.trialCovariates[t.key] ?? {})) {
+        insertCovariate.run(id, name, typeof value === 'number' ? value : null, typeof value === 'string' ? value : null);
+      }
+    }
+
+    // Plot ids are assigned here, so observations can name their plot without a lookup; the
+    // IMMEDIATE lock guarantees nobody else takes ids meanwhile.
+    const firstPlotId = ((db.prepare('SELECT COALESCE(MAX(id), 0) AS m FROM plot').get() as { m: number }).m) + 1;
+    const plots = bulkInserter(db, 'plot', ['id', 'trial_id', 'treatment_id', 'block', 'row', 'col', 'source_row']);
+    let done = 0;
+    for (let i = 0; i < table.plots.length; i++) {
+      const p = table.plots[i];
+      plots.add(firstPlotId + i, trialIds.get(p.trialKey), protocol.treatmentIds.get(p.treatment), p.block, p.row, p.col, p.sourceRow);
+      if (progress && ++done % PROGRESS_EVERY === 0) progress(done, total);
+    }
+    plots.flush();
+
+    const observations = bulkInserter(db, 'observation', ['plot_id', 'trait_id', 'value']);
+    for (const o of table.observations) {
+      observations.add(firstPlotId + o.plot, traitIds.get(o.trait), o.value);
+      if (progress && ++done % PROGRESS_EVERY === 0) progress(done, total);
+    }
+    observations.flush();
+    progress?.(total, total);
+
+    return {
+      batchId,
+      fileName: table.file,
+      sha256: table.sha256,
+      rowsRead: table.rowsRead,
+      rowsStored: table.observations.length,
+      trials: table.trials.length,
+      plots: table.plots.length,
+      observations: table.observations.length,
+      newSites: sites.added,
+      newTreatments: protocol.newTreatments,
+      replaced,
+    };
+  });
+  return run.immediate();
+}
