@@ -1,0 +1,56 @@
+// Adjusted treatment means — each at the average of the block (or row and column) effects,
+// equal weight per level — with standard errors, intervals and their full covariance.
+import { tQuantile } from '../stats/distributions.js';
+import type { DesignModel } from './modelMatrix.js';
+import { adjustedMeanVector } from './modelMatrix.js';
+import { estimate, isEstimable, unscaledCross, type LinearFit } from './linearFit.js';
+
+export interface MeanVectors {
+  /** Protocol treatment codes in order. */
+  readonly codes: readonly string[];
+  /** Coefficient vector of each treatment's adjusted mean; null when the treatment has no plots. */
+  readonly vectors: readonly (Float64Array | null)[];
+  readonly estimable: readonly boolean[];
+}
+
+export function meanVectors(model: DesignModel, fit: LinearFit, codes: readonly string[]): MeanVectors {
+  const levels = model.terms[model.treatmentTerm].levels;
+  const vectors = codes.map((c) => {
+    const level = levels.indexOf(c);
+    return level < 0 ? null : adjustedMeanVector(model, level);
+  });
+  return { codes, vectors, estimable: vectors.map((v) => v !== null && isEstimable(fit, v)) };
+}
+
+export interface RawMean {
+  readonly estimate: number;
+  readonly se: number;
+  readonly lower: number;
+  readonly upper: number;
+}
+
+/** Estimate, SE and t-interval of each estimable mean (NaN otherwise). */
+export function rawMeans(mv: MeanVectors, fit: LinearFit, confidence: number): RawMean[] {
+  const tq = fit.residualDf > 0 ? tQuantile(1 - (1 - confidence) / 2, fit.residualDf) : NaN;
+  return mv.vectors.map((v, i) => {
+    if (!v || !mv.estimable[i]) return { estimate: NaN, se: NaN, lower: NaN, upper: NaN };
+    const est = estimate(fit, v);
+    const se = Math.sqrt(fit.sigma2 * unscaledCross(fit, v, v));
+    return { estimate: est, se, lower: est - tq * se, upper: est + tq * se };
+  });
+}
+
+/** sigma² L (X'X)^- L' over the estimable means; NaN where either mean is not estimable. */
+export function meansCovariance(mv: MeanVectors, fit: LinearFit): number[][] {
+  const k = mv.codes.length;
+  const out = Array.from({ length: k }, () => new Array<number>(k).fill(NaN));
+  for (let i = 0; i < k; i++)
+    for (let j = i; j < k; j++) {
+      const a = mv.vectors[i];
+      const b = mv.vectors[j];
+      if (!a || !b || !mv.estimable[i] || !mv.estimable[j]) continue;
+      // Computed once per pair so the matrix is exactly symmetric.
+      out[i][j] = out[j][i] = fit.sigma2 * unscaledCross(fit, a, b);
+    }
+  return out;
+}

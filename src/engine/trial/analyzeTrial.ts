@@ -1,0 +1,136 @@
+// Stage 1 for one trial: the design's linear model fitted by QR, the sequential ANOVA,
+// adjusted treatment means with their covariance, the requested contrasts, optional
+// pairwise comparisons and the diagnostics — one plain-JSON result.
+import type { TrialInput, TreatmentInfo } from '../types.js';
+import type { ResolvedContrast } from '../contrasts/resolve.js';
+import type { AdjustedMean, TrialAnalysis, TrialAnalysisOptions, TrialFlag, PlotDiagnostic, AliasedColumn } from './types.js';
+import { splitPlots } from './usablePlots.js';
+import { makeTransform } from './transform.js';
+import { buildDesignModel } from './modelMatrix.js';
+import { fitLinear } from './linearFit.js';
+import { meanVectors, rawMeans, meansCovariance } from './adjustedMeans.js';
+import { estimateContrast } from './contrastEstimates.js';
+import { pairDifferences, pairwiseComparisons } from './pairwise.js';
+import { sequentialAnova, leastSignificantDifference } from './sequentialAnova.js';
+import { residualDiagnostics } from './residualDiagnostics.js';
+import { brownForsythe } from './brownForsythe.js';
+import { spatialCheck } from './spatialCheck.js';
+import { buildFlags } from './flags.js';
+import { TrialInputError } from './errors.js';
+import { num } from './jsonSafe.js';
+
+export { TrialInputError } from './errors.js';
+export type * from './types.js';
+
+/** Studentised residuals beyond this (in absolute value) are flagged as possible outliers. */
+export const OUTLIER_THRESHOLD = 3.5;
+
+export function analyzeTrial(
+  trial: TrialInput,
+  treatments: readonly TreatmentInfo[],
+  contrasts: readonly ResolvedContrast[],
+  options: TrialAnalysisOptions,
+): TrialAnalysis {
+  if (!(options.confidence > 0 && options.confidence < 1)) throw new TrialInputError(trial.trial, `confidence must be between 0 and 1; got ${options.confidence}`);
+  const split = splitPlots(trial, treatments);
+  const plots = split.used;
+  if (plots.length === 0) throw new TrialInputError(trial.trial, 'no plot has a value to analyse');
+  const transform = makeTransform(options.transform, plots.map((p) => p.value), trial.trial, options.logOffset);
+  const y = Float64Array.from(plots, (p) => transform.forward(p.value));
+  const codes = treatments.map((t) => t.code);
+
+  const model = buildDesignModel(trial.design, plots, codes);
+  const fit = fitLinear(model.x, y);
+  const mv = meanVectors(model, fit, codes);
+  const raw = rawMeans(mv, fit, options.confidence);
+  const cov = meansCovariance(mv, fit);
+  const pairs = pairDifferences(mv, fit);
+  const lsd = leastSignificantDifference(pairs.map((p) => p.se), fit.residualDf);
+  const anova = sequentialAnova(model, fit, y, lsd, options.transform !== 'none');
+
+  const counts = new Map<string, number>();
+  for (const p of plots) counts.set(p.treatment, (counts.get(p.treatment) ?? 0) + 1);
+  const transformed = options.transform !== 'none';
+  const means: AdjustedMean[] = codes.map((code, i) => ({
+    treatment: code,
+    estimable: mv.estimable[i],
+    estimate: num(raw[i].estimate),
+    se: num(raw[i].se),
+    lower: num(raw[i].lower),
+    upper: num(raw[i].upper),
+    n: counts.get(code) ?? 0,
+    backTransformed:
+      transformed && mv.estimable[i]
+        ? { estimate: num(transform.back(raw[i].estimate)), lower: num(transform.back(raw[i].lower)), upper: num(transform.back(raw[i].upper)) }
+        : null,
+  }));
+
+  const contrastResults = contrasts.map((c) => estimateContrast(c, mv, fit, options.confidence, options.transform, treatments));
+  const estimableCount = mv.estimable.filter(Boolean).length;
+  const pairwise = options.pairwise === 'none' ? null : pairwiseComparisons(options.pairwise, pairs, estimableCount, fit.residualDf, options.confidence, options.transform === 'log');
+
+  const rd = residualDiagnostics(fit);
+  const plotDiagnostics: PlotDiagnostic[] = plots.map((p, i) => ({
+    plotId: p.plotId ?? null,
+    treatment: p.treatment,
+    block: p.block,
+    row: p.row,
+    col: p.col,
+    value: y[i],
+    fitted: fit.fitted[i],
+    residual: fit.residuals[i],
+    standardized: num(rd.standardized[i]),
+    studentized: num(rd.studentized[i]),
+    leverage: rd.leverage[i],
+    cooksDistance: num(rd.cooks[i]),
+    normalScore: num(rd.normalScores[i]),
+  }));
+  const bf = brownForsythe(fit.residuals, plots.map((p) => p.treatment));
+  const spatial = spatialCheck(trial.design, plots, model.x, y, fit);
+  const cooksThreshold = 4 / plots.length;
+
+  const aliased: AliasedColumn[] = fit.qr.pivot.slice(fit.qr.rank).map((j) => ({ term: model.terms[model.assign[j]].name, level: model.columnLevels[j] }));
+  const flags: TrialFlag[] = [
+    ...transform.flags,
+    ...buildFlags({
+      plots: plotDiagnostics,
+      outlierThreshold: OUTLIER_THRESHOLD,
+      cooksThreshold,
+      brownForsythe: bf,
+      spatial,
+      aliased,
+      missing: split.missing.length,
+      excluded: split.excluded.length,
+      absent: codes.filter((c) => !counts.has(c)),
+      residualDf: fit.residualDf,
+    }),
+  ];
+
+  return {
+    trial: trial.trial,
+    transform: transform.record,
+    model: {
+      design: trial.design,
+      terms: model.terms,
+      n: plots.length,
+      parameters: model.x.cols,
+      rank: fit.qr.rank,
+      residualDf: fit.residualDf,
+      sigma: num(Math.sqrt(fit.sigma2)),
+      coefficients: model.columnLevels.map((level, j) => ({
+        column: j === 0 ? level : `${model.terms[model.assign[j]].name}:${level}`,
+        estimate: num(fit.coefficients[j]),
+      })),
+    },
+    anova,
+    means,
+    meansCovariance: { treatments: codes, matrix: cov.map((r) => r.map(num)) },
+    contrasts: contrastResults,
+    pairwise,
+    diagnostics: { plots: plotDiagnostics, outlierThreshold: OUTLIER_THRESHOLD, cooksThreshold: num(cooksThreshold), brownForsythe: bf, spatial },
+    flags,
+    excluded: split.excluded,
+    missing: split.missing,
+    aliased,
+  };
+}

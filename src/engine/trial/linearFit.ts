@@ -1,0 +1,130 @@
+// Least squares by rank-revealing QR: coefficients (aliased ones NaN), residuals, the
+// orthogonal effects Q'y used by the sequential ANOVA, leverages, and a basis of the null
+// space of X that decides whether a linear function of the coefficients is estimable.
+import type { Matrix } from '../linalg/matrix.js';
+import { qrFactor, qrCoefficients, qtMultiply, qMultiply, unscaledCovariance, type QrFactor } from '../linalg/qr.js';
+
+export interface LinearFit {
+  readonly qr: QrFactor;
+  /** Original column order; aliased columns NaN. */
+  readonly coefficients: Float64Array;
+  readonly fitted: Float64Array;
+  readonly residuals: Float64Array;
+  /** Q'y: the first `rank` entries belong to the pivoted columns, the rest to the residual. */
+  readonly effects: Float64Array;
+  readonly rss: number;
+  readonly residualDf: number;
+  /** Residual variance estimate (NaN when there are no residual df). */
+  readonly sigma2: number;
+  /** (X'X)^- with zeros for aliased columns, original order. */
+  readonly unscaled: Matrix;
+  /** Null-space basis of X, one p-vector per aliased column. */
+  readonly nullSpace: readonly Float64Array[];
+}
+
+/** Relative tolerance of the estimability test l'N = 0. */
+const ESTIMABLE_TOLERANCE = 1e-7;
+
+export function fitLinear(x: Matrix, y: ArrayLike<number>): LinearFit {
+  const qr = qrFactor(x);
+  const coefficients = qrCoefficients(qr, y);
+  const effects = qtMultiply(qr, y);
+  const n = x.rows;
+  const fitted = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    for (let j = 0; j < x.cols; j++) if (!Number.isNaN(coefficients[j])) s += x.data[i * x.cols + j] * coefficients[j];
+    fitted[i] = s;
+  }
+  const residuals = new Float64Array(n);
+  let rss = 0;
+  for (let i = 0; i < n; i++) {
+    residuals[i] = y[i] - fitted[i];
+    rss += residuals[i] ** 2;
+  }
+  const residualDf = n - qr.rank;
+  return {
+    qr,
+    coefficients,
+    fitted,
+    residuals,
+    effects,
+    rss,
+    residualDf,
+    sigma2: residualDf > 0 ? rss / residualDf : NaN,
+    unscaled: unscaledCovariance(qr),
+    nullSpace: nullSpaceBasis(qr),
+  };
+}
+
+/** For each aliased column a: N[a] = 1 and the estimable columns solve R11 z = -R12[:, a]. */
+function nullSpaceBasis(f: QrFactor): Float64Array[] {
+  const { rank, p } = f;
+  const r = f.qr.data;
+  const out: Float64Array[] = [];
+  for (let a = rank; a < p; a++) {
+    const z = new Float64Array(rank);
+    for (let i = rank - 1; i >= 0; i--) {
+      let s = -r[i * p + a];
+      for (let j = i + 1; j < rank; j++) s -= r[i * p + j] * z[j];
+      z[i] = s / r[i * p + i];
+    }
+    const v = new Float64Array(p);
+    v[f.pivot[a]] = 1;
+    for (let i = 0; i < rank; i++) v[f.pivot[i]] = z[i];
+    out.push(v);
+  }
+  return out;
+}
+
+/** l'b is estimable when l is orthogonal to the null space of X. */
+export function isEstimable(fit: LinearFit, l: ArrayLike<number>): boolean {
+  let lNorm = 0;
+  for (let i = 0; i < l.length; i++) lNorm += l[i] * l[i];
+  lNorm = Math.sqrt(lNorm);
+  for (const v of fit.nullSpace) {
+    let s = 0;
+    let vNorm = 0;
+    for (let i = 0; i < l.length; i++) {
+      s += l[i] * v[i];
+      vNorm += v[i] * v[i];
+    }
+    if (Math.abs(s) > ESTIMABLE_TOLERANCE * lNorm * Math.sqrt(vNorm)) return false;
+  }
+  return true;
+}
+
+/** l'b using the non-aliased coefficients (valid when l is estimable). */
+export function estimate(fit: LinearFit, l: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < l.length; i++) if (l[i] !== 0 && !Number.isNaN(fit.coefficients[i])) s += l[i] * fit.coefficients[i];
+  return s;
+}
+
+/** l' (X'X)^- m, unscaled by sigma². */
+export function unscaledCross(fit: LinearFit, l: ArrayLike<number>, m: ArrayLike<number>): number {
+  const p = fit.unscaled.cols;
+  const u = fit.unscaled.data;
+  let s = 0;
+  for (let i = 0; i < p; i++) {
+    if (l[i] === 0) continue;
+    let r = 0;
+    for (let j = 0; j < p; j++) r += u[i * p + j] * m[j];
+    s += l[i] * r;
+  }
+  return s;
+}
+
+/** Diagonal of the hat matrix: squared row norms of the first `rank` columns of Q. */
+export function leverages(fit: LinearFit): Float64Array {
+  const { n, rank } = fit.qr;
+  const h = new Float64Array(n);
+  const e = new Float64Array(n);
+  for (let k = 0; k < rank; k++) {
+    e.fill(0);
+    e[k] = 1;
+    const q = qMultiply(fit.qr, e);
+    for (let i = 0; i < n; i++) h[i] += q[i] * q[i];
+  }
+  return h;
+}
