@@ -1,0 +1,31 @@
+// A short plain-text account of a pooled result, for the CLI, logs and report captions.
+// Every line names what the number is; nothing here computes anything new.
+import type { PooledResult } from './types.js';
+
+function f(x: number | null | undefined, digits = 4): string {
+  return x === null || x === undefined ? 'n/a' : Number(x.toPrecision(digits)).toString();
+}
+
+function pct(x: number | null): string {
+  return x === null ? 'n/a' : `${(100 * x).toFixed(1)}%`;
+}
+
+export function summarisePooled(r: PooledResult, name = 'effect'): string {
+  const lines = [
+    `${name}: pooled over ${r.k} trial(s)`,
+    `  mean ${f(r.estimate)} (SE ${f(r.se)}), interval ${f(r.lower)} to ${f(r.upper)}, p = ${f(r.p, 3)}${r.df === null ? '' : `, t on ${r.df} df`}`,
+    `  tau² ${f(r.tau2)} (interval ${f(r.tau2Lower)} to ${f(r.tau2Upper)}), tau ${f(r.tau)}${r.tau2AtBoundary ? ', at the zero boundary' : ''}`,
+    `  Q ${f(r.Q)} on ${r.Qdf ?? 'n/a'} df (p = ${f(r.Qp, 3)}); I² from Q ${pct(r.I2)}, I² from tau² ${pct(r.I2FromTau2)}; H² from Q ${f(r.H2)}`,
+    `  new site: prediction interval ${f(r.predictionLower)} to ${f(r.predictionUpper)}; P(effect > 0) ${pct(r.probPositive)}; P(effect > threshold) ${pct(r.probAboveThreshold)}`,
+    `  tau²: ${r.method.tau2}`,
+    `  interval: ${r.method.interval}`,
+  ];
+  if (r.metaRegression) {
+    const m = r.metaRegression;
+    lines.push(`  meta-regression on ${m.moderators.join(', ')} (${m.k} trials): residual tau² ${f(m.tau2)}, share explained ${pct(m.R2)}`);
+    for (const c of m.coefficients) lines.push(`    ${c.term}: ${f(c.estimate)} (SE ${f(c.se)}), ${m.statistic} = ${f(c.statistic, 3)}, p = ${f(c.p, 3)}`);
+    if (m.omnibus) lines.push(`    all moderators: ${m.omnibus.kind} = ${f(m.omnibus.statistic)} on ${m.omnibus.df1}${m.omnibus.df2 === null ? '' : `, ${m.omnibus.df2}`} df, p = ${f(m.omnibus.p, 3)}`);
+  }
+  for (const n of r.notes) lines.push(`  note: ${n}`);
+  return lines.join('\n');
+}

@@ -1,0 +1,123 @@
+// Between-trial variance tau² by DerSimonian–Laird (moments), Paule–Mandel (generalised Q
+// equal to its df), ML and REML (Fisher scoring with step-halving on the log-likelihood,
+// tau² kept >= 0 and a zero-boundary estimate reported as such), or fixed at zero.
+import { Matrix } from '../linalg/matrix.js';
+import { weightedFit, projectionP, WeightedFit } from './weightedFit.js';
+import { decreasingRootFromZero } from './rootFinding.js';
+import type { Tau2Method } from './types.js';
+
+export interface Tau2Estimate {
+  readonly tau2: number;
+  readonly converged: boolean;
+  readonly iterations: number;
+  readonly atBoundary: boolean;
+  readonly fit: WeightedFit;
+}
+
+export function estimateTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, method: Tau2Method): Tau2Estimate {
+  const fe = weightedFit(y, v, x, 0);
+  const dfResidual = x.rows - fe.rank;
+  if (method === 'fixed' || dfResidual <= 0) return boundary(y, v, x, 0, 0, method === 'fixed' ? false : true);
+  if (method === 'dl') {
+    const t = dlTau2(x, fe, dfResidual);
+    return { tau2: t, converged: true, iterations: 0, atBoundary: t === 0, fit: t === 0 ? fe : weightedFit(y, v, x, t) };
+  }
+  if (method === 'pm') {
+    if (fe.weightedRss <= dfResidual) return boundary(y, v, x, 0, 0, true);
+    const start = Math.max(dlTau2(x, fe, dfResidual), 1e-8);
+    const root = decreasingRootFromZero((t) => weightedFit(y, v, x, t).weightedRss - dfResidual, start);
+    if (root === null) throw new Error('Paule–Mandel: generalised Q did not fall to its df (estimates far too dispersed for their SEs)');
+    return { tau2: root, converged: true, iterations: 0, atBoundary: false, fit: weightedFit(y, v, x, root) };
+  }
+  return likelihoodTau2(y, v, x, method === 'reml', dlTau2(x, fe, dfResidual));
+}
+
+function boundary(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, tau2: number, iterations: number, atBoundary: boolean): Tau2Estimate {
+  return { tau2, converged: true, iterations, atBoundary, fit: weightedFit(y, v, x, tau2) };
+}
+
+/** DerSimonian–Laird, generalised to a design X: (Q_FE - (k - p)) / (tr W - tr((X'WX)^- X'W²X)). */
+export function dlTau2(x: Matrix, fe: WeightedFit, dfResidual: number): number {
+  const k = x.rows;
+  const p = x.cols;
+  let trW = 0;
+  for (let i = 0; i < k; i++) trW += fe.weights[i];
+  // tr(C X'W²X) = sum_i w_i² x_i' C x_i
+  let trCorr = 0;
+  for (let i = 0; i < k; i++) {
+    let q = 0;
+    for (let a = 0; a < p; a++)
+      for (let b = 0; b < p; b++) q += x.data[i * p + a] * fe.covariance.data[a * p + b] * x.data[i * p + b];
+    trCorr += fe.weights[i] * fe.weights[i] * q;
+  }
+  const denom = trW - trCorr;
+  return Math.max(0, (fe.weightedRss - dfResidual) / denom);
+}
+
+/** Log-likelihood (ML) or restricted log-likelihood (REML) in tau², constants dropped. */
+export function logLikTau2(v: ArrayLike<number>, fit: WeightedFit, reml: boolean): number {
+  let s = 0;
+  for (let i = 0; i < v.length; i++) s += Math.log(v[i] + fit.tau2);
+  return -0.5 * (s + fit.weightedRss + (reml ? fit.logDetXtWX : 0));
+}
+
+interface ScoreInfo {
+  score: number;
+  information: number;
+}
+
+function scoreAndInformation(x: Matrix, fit: WeightedFit, reml: boolean): ScoreInfo {
+  const k = x.rows;
+  const w = fit.weights;
+  let wr2 = 0; // y'PPy = sum w² r² since Py = W r
+  for (let i = 0; i < k; i++) wr2 += w[i] * w[i] * fit.residuals[i] * fit.residuals[i];
+  if (!reml) {
+    let sw = 0;
+    let sw2 = 0;
+    for (let i = 0; i < k; i++) {
+      sw += w[i];
+      sw2 += w[i] * w[i];
+    }
+    return { score: 0.5 * (wr2 - sw), information: 0.5 * sw2 };
+  }
+  const pm = projectionP(x, fit);
+  let trP = 0;
+  let trPP = 0;
+  for (let i = 0; i < k; i++) {
+    trP += pm.data[i * k + i];
+    for (let j = 0; j < k; j++) trPP += pm.data[i * k + j] * pm.data[j * k + i];
+  }
+  return { score: 0.5 * (wr2 - trP), information: 0.5 * trPP };
+}
+
+function likelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate {
+  let fit = weightedFit(y, v, x, start);
+  let ll = logLikTau2(v, fit, reml);
+  const maxIterations = 500;
+  for (let it = 1; it <= maxIterations; it++) {
+    const { score, information } = scoreAndInformation(x, fit, reml);
+    if (fit.tau2 === 0 && score <= 0) return { tau2: 0, converged: true, iterations: it, atBoundary: true, fit };
+    let step = score / information;
+    let candidate = fit;
+    let candidateLl = -Infinity;
+    let accepted = false;
+    for (let halving = 0; halving < 60; halving++) {
+      const t = Math.max(0, fit.tau2 + step);
+      candidate = weightedFit(y, v, x, t);
+      candidateLl = logLikTau2(v, candidate, reml);
+      if (candidateLl >= ll - 1e-12 * Math.abs(ll)) {
+        accepted = true;
+        break;
+      }
+      step /= 2;
+    }
+    const change = Math.abs(candidate.tau2 - fit.tau2);
+    if (!accepted) return { tau2: fit.tau2, converged: change < 1e-10, iterations: it, atBoundary: fit.tau2 === 0, fit };
+    fit = candidate;
+    ll = candidateLl;
+    if (change <= 1e-13 * Math.max(1, fit.tau2) || (fit.tau2 > 0 && change <= 1e-12 * fit.tau2)) {
+      return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit };
+    }
+  }
+  return { tau2: fit.tau2, converged: false, iterations: maxIterations, atBoundary: fit.tau2 === 0, fit };
+}

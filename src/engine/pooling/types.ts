@@ -1,0 +1,176 @@
+// Public shapes of two-stage pooling. Every number is a plain `number | null` (null where a
+// value cannot be computed, with the reason in `notes`) so that results serialise to JSON.
+
+export type Tau2Method = 'reml' | 'ml' | 'dl' | 'pm' | 'fixed';
+export type IntervalMethod = 'hksj' | 'wald';
+
+export interface PoolingItem {
+  trial: string;
+  estimate: number;
+  se: number;
+  /** Residual df of the trial's estimate; carried through, used only when k = 1. */
+  df?: number | null;
+  year?: number | null;
+  covariates?: Record<string, number | string | null>;
+}
+
+export interface PoolingOptions {
+  tau2: Tau2Method;
+  interval: IntervalMethod;
+  /** Knapp–Hartung scale factor floored at 1, so the interval is never narrower than Wald. */
+  hksjFloor?: boolean;
+  /** Confidence level, e.g. 0.95. */
+  confidence: number;
+  /** Break-even effect for probAboveThreshold. */
+  threshold: number;
+  moderators?: string[];
+}
+
+export interface PoolWeight {
+  trial: string;
+  /** 1 / (se² + tau²). */
+  weight: number;
+  /** Share of the total weight, 0..1. */
+  share: number;
+}
+
+export interface LeaveOneOutRow {
+  trial: string;
+  estimate: number | null;
+  se: number | null;
+  tau2: number | null;
+  lower: number | null;
+  upper: number | null;
+}
+
+export interface InfluenceRow {
+  trial: string;
+  /** Internally standardised residual: (y - mu) / sqrt(se² + tau² - var(mu)). */
+  standardisedResidual: number | null;
+  /** Deleted residual: (y - mu(-i)) / sqrt(se² + tau²(-i) + var(mu(-i))). */
+  studentisedDeletedResidual: number | null;
+  /** (mu - mu(-i))² / var(mu). */
+  cooksDistance: number | null;
+  /** tau²(-i) - tau². */
+  tau2Change: number | null;
+  /** Weight share (the hat value of the intercept-only model). */
+  hat: number | null;
+}
+
+export interface CumulativeRow {
+  trial: string;
+  year: number;
+  k: number;
+  estimate: number | null;
+  se: number | null;
+  tau2: number | null;
+  lower: number | null;
+  upper: number | null;
+}
+
+export interface Sensitivity {
+  leaveOneOut: LeaveOneOutRow[];
+  influence: InfluenceRow[];
+  cumulative: CumulativeRow[];
+  notes: string[];
+}
+
+export interface RegressionCoefficient {
+  /** "intercept", a continuous moderator name, or "moderator=level" for a dummy column. */
+  term: string;
+  estimate: number;
+  se: number;
+  /** t (Knapp–Hartung) or z (Wald) statistic. */
+  statistic: number;
+  p: number;
+  lower: number;
+  upper: number;
+}
+
+export interface SubgroupRow {
+  level: string;
+  k: number;
+  estimate: number | null;
+  se: number | null;
+  lower: number | null;
+  upper: number | null;
+  tau2: number | null;
+}
+
+export interface SubgroupAnalysis {
+  moderator: string;
+  groups: SubgroupRow[];
+  /** Between-group Q on the group estimates with inverse-variance (Wald) weights. */
+  Qbetween: number | null;
+  QbetweenDf: number | null;
+  QbetweenP: number | null;
+  note: string;
+}
+
+export interface MetaRegression {
+  moderators: string[];
+  k: number;
+  /** Trials left out because a moderator value was missing. */
+  excluded: string[];
+  statistic: 't' | 'z';
+  df: number | null;
+  coefficients: RegressionCoefficient[];
+  aliased: string[];
+  tau2: number | null;
+  /** Share of tau² explained: max(0, (tau²_RE - tau²_ME) / tau²_RE); null if tau²_RE = 0. */
+  R2: number | null;
+  /** Residual heterogeneity test with fixed-effect weights. */
+  QE: number | null;
+  QEdf: number | null;
+  QEp: number | null;
+  /** Omnibus test of all moderator coefficients: F (KH) or chi-square (Wald). */
+  omnibus: { statistic: number; df1: number; df2: number | null; p: number; kind: 'F' | 'chisq' } | null;
+  subgroups: SubgroupAnalysis[];
+  notes: string[];
+}
+
+export interface PooledResult {
+  estimate: number | null;
+  se: number | null;
+  lower: number | null;
+  upper: number | null;
+  p: number | null;
+  tau2: number | null;
+  tau: number | null;
+  tau2Lower: number | null;
+  tau2Upper: number | null;
+  /** tau² sits on the zero boundary. */
+  tau2AtBoundary: boolean;
+  Q: number | null;
+  Qdf: number | null;
+  Qp: number | null;
+  /** I² from Q: max(0, (Q - df) / Q). */
+  I2: number | null;
+  /** I² from tau²: tau² / (tau² + s²), s² the typical within-trial variance (Higgins & Thompson 2002). */
+  I2FromTau2: number | null;
+  /** H² from Q: Q / df. */
+  H2: number | null;
+  /** H² from tau²: (tau² + s²) / s². */
+  H2FromTau2: number | null;
+  predictionLower: number | null;
+  predictionUpper: number | null;
+  probPositive: number | null;
+  probAboveThreshold: number | null;
+  k: number;
+  /** df of the interval for the mean (null = normal). */
+  df: number | null;
+  /** Knapp–Hartung scale factor q (before any floor), null for Wald. */
+  hksjScale: number | null;
+  method: {
+    tau2: string;
+    interval: string;
+    prediction: string;
+    probabilities: string;
+    converged: boolean;
+    iterations: number;
+  };
+  weights: PoolWeight[];
+  sensitivity: Sensitivity;
+  metaRegression?: MetaRegression;
+  notes: string[];
+}
