@@ -14,7 +14,8 @@ const KNOWN_CODES = new Set(['invalid-argument', 'invalid-input', 'not-found', '
 export function toApiError(e: unknown): ApiError {
   if (e instanceof ManyfieldError) return { code: e.code, message: e.message, details: e.details };
   if (e instanceof IntakeError) return { code: 'invalid-input', message: e.message, details: { problems: e.problems, truncated: e.truncated } };
-  if (e instanceof Error && typeof (e as Partial<CodedError>).code === 'string' && KNOWN_CODES.has((e as CodedError).code)) {
+  const coded = e as Partial<CodedError> | null;
+  if (e instanceof Error && typeof coded?.code === 'string' && KNOWN_CODES.has(coded.code)) {
     const c = e as unknown as CodedError;
     return { code: c.code as ApiError['code'], message: c.message, details: c.details };
   }

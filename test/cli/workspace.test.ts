@@ -49,7 +49,7 @@ describe('manyfield command on the demo workspace', () => {
     const header = 'site,year,block,trt,rate,timing,y';
     const codes: [string, number | '', string][] = [['CTL', 0, ''], ['A1', 40, 'early'], ['A2', 80, 'early'], ['A4', 160, 'early'], ['B1', 40, 'late'], ['B2', 80, 'late'], ['B4', 160, 'late']];
     const lines = [header];
-    for (let b = 1; b <= 4; b++) for (const [c, r, t] of codes) lines.push(`NEWSITE,2026,${b},${c},${r},${t},${(5 + 0.1 * b + r / 100).toFixed(2)}`);
+    for (let b = 1; b <= 4; b++) for (const [c, r, t] of codes) lines.push(`NEWSITE,2026,${b},${c},${r},${t},${(5 + 0.1 * b + Number(r) / 100).toFixed(2)}`);
     // Row 17 as a spreadsheet numbers it: the header is row 1, so data line 16.
     const cells = lines[16].split(',');
     cells[6] = '"12,4x"';
