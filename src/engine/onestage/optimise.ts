@@ -1,0 +1,170 @@
+// Average-information REML with an EM warm start, step-halving and non-negativity.
+//
+// Each iteration: score g and average information A at theta; components at zero whose score
+// is >= 0 (the criterion would rise if they grew) stay fixed at zero; on the free set take the
+// Newton-type step d = -A^-1 g, project onto theta >= 0 and halve the step until the criterion
+// does not increase. Convergence: the AI Newton decrement g'A^-1 g on the free set falls below
+// DECREMENT_TOL (it estimates twice the remaining fall of -2 logLik), or an accepted step changes
+// the criterion by less than CRITERION_TOL and no parameter by more than PARAMETER_TOL relative.
+import { cholesky, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
+import { criterionOrInfinity, type Evaluation, type ModelFrame } from './remlCriterion.js';
+import { scoreAndInformation, type ScoreAndInformation } from './remlDerivatives.js';
+import { activeParameterTable, type ActiveParameter } from './trialParameters.js';
+import { OneStageCancelledError, type OneStageHooks, type RunRecord } from './types.js';
+
+export const DECREMENT_TOL = 1e-10;
+export const CRITERION_TOL = 1e-12;
+export const PARAMETER_TOL = 1e-10;
+const MAX_ITERATIONS = 200;
+const MAX_HALVINGS = 40;
+const EM_ITERATIONS = 3;
+
+export interface OptimiseOptions {
+  /** Parameters held at zero throughout (reduced models for likelihood-ratio tests). */
+  readonly fixedZero?: readonly number[];
+  readonly emIterations?: number;
+  readonly stage?: string;
+}
+
+export interface OptimiseOutcome {
+  readonly evaluation: Evaluation;
+  readonly score: ScoreAndInformation;
+  readonly atZero: boolean[];
+  readonly run: RunRecord;
+}
+
+export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneStageHooks = {}, opts: OptimiseOptions = {}): OptimiseOutcome {
+  const began = Date.now();
+  const nP = frame.layout.parameters.length;
+  const active = activeParameterTable(frame);
+  const fixed = new Array<boolean>(nP).fill(false);
+  for (const k of opts.fixedZero ?? []) fixed[k] = true;
+  const stage = opts.stage ?? 'reml';
+  let theta = Float64Array.from(start, (v, k) => (fixed[k] ? 0 : v));
+  const path: number[] = [];
+  let ev = mustEvaluate(frame, theta);
+  path.push(ev.criterion);
+  const emIterations = opts.emIterations ?? EM_ITERATIONS;
+  const dims = randomEffectCounts(frame, active);
+  for (let it = 0; it < emIterations; it++) {
+    checkCancelled(hooks);
+    const sc = scoreAndInformation(frame, ev, active);
+    const next = Float64Array.from(theta, (v, k) => (fixed[k] ? 0 : Math.max(0, v - ((v * v) / dims[k]) * sc.gradient[k])));
+    const c = criterionOrInfinity(frame, next);
+    if (!c.evaluation || c.value > ev.criterion) break;
+    theta = next;
+    ev = c.evaluation;
+    path.push(ev.criterion);
+    hooks.onProgress?.({ stage: `${stage}:em`, iteration: it + 1, criterion: ev.criterion });
+  }
+  let halvings = 0;
+  let iterations = 0;
+  let outcome: RunRecord['outcome'] = 'max-iterations';
+  let decrement = NaN;
+  let sc = scoreAndInformation(frame, ev, active);
+  const atZero = new Array<boolean>(nP).fill(false);
+  for (; iterations < MAX_ITERATIONS; iterations++) {
+    checkCancelled(hooks);
+    const free: number[] = [];
+    for (let k = 0; k < nP; k++) {
+      atZero[k] = fixed[k] || (theta[k] <= 0 && sc.gradient[k] >= 0);
+      if (!atZero[k]) free.push(k);
+    }
+    const step = newtonStep(sc, free, nP);
+    decrement = step.decrement;
+    if (decrement < DECREMENT_TOL) {
+      outcome = 'converged';
+      break;
+    }
+    let alpha = 1;
+    let accepted: { theta: Float64Array; ev: Evaluation } | null = null;
+    for (let hv = 0; hv <= MAX_HALVINGS; hv++) {
+      const cand = Float64Array.from(theta);
+      for (const k of free) cand[k] = Math.max(0, theta[k] + alpha * step.direction[k]);
+      const c = criterionOrInfinity(frame, cand);
+      if (c.evaluation && c.value <= ev.criterion + 1e-13 * Math.abs(ev.criterion)) {
+        accepted = { theta: cand, ev: c.evaluation };
+        break;
+      }
+      alpha /= 2;
+      halvings++;
+    }
+    if (!accepted) {
+      outcome = 'stalled';
+      break;
+    }
+    const change = Math.abs(ev.criterion - accepted.ev.criterion);
+    let maxRel = 0;
+    for (let k = 0; k < nP; k++) maxRel = Math.max(maxRel, Math.abs(accepted.theta[k] - theta[k]) / Math.max(Math.abs(theta[k]), 1e-300));
+    theta = accepted.theta;
+    ev = accepted.ev;
+    sc = scoreAndInformation(frame, ev, active);
+    path.push(ev.criterion);
+    hooks.onProgress?.({ stage, iteration: iterations + 1, criterion: ev.criterion });
+    if (change < CRITERION_TOL * Math.max(1, Math.abs(ev.criterion)) && maxRel < PARAMETER_TOL) {
+      iterations++;
+      outcome = 'converged';
+      break;
+    }
+  }
+  for (let k = 0; k < nP; k++) atZero[k] = fixed[k] || theta[k] <= 0;
+  return {
+    evaluation: ev,
+    score: sc,
+    atZero,
+    run: {
+      method: 'average-information REML, EM warm start, projected step-halving',
+      start: Object.fromEntries(frame.layout.parameters.map((p, k) => [p.name, start[k]])),
+      iterations,
+      emIterations,
+      criterionPath: path,
+      stepHalvings: halvings,
+      convergence: `AI Newton decrement g'AI^-1 g < ${DECREMENT_TOL} on the free parameters (components at zero with non-negative score held there), or an accepted step changing -2 logLik by < ${CRITERION_TOL} relative and every parameter by < ${PARAMETER_TOL} relative`,
+      outcome,
+      finalDecrement: decrement,
+      elapsedMs: Date.now() - began,
+    },
+  };
+}
+
+function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number): { direction: Float64Array; decrement: number } {
+  const f = free.length;
+  const direction = new Float64Array(nP);
+  if (f === 0) return { direction, decrement: 0 };
+  const a: Matrix = { rows: f, cols: f, data: new Float64Array(f * f) };
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a.data[i * f + j] = sc.ai[free[i] * nP + free[j]];
+  const g = Float64Array.from(free, (k) => sc.gradient[k]);
+  let x: Float64Array;
+  try {
+    x = cholSolve(cholesky(a), g);
+  } catch (err) {
+    if (!(err instanceof NotPositiveDefiniteError)) throw err;
+    // AI singular along some direction: fall back to a scaled gradient step on the diagonal.
+    x = Float64Array.from(g, (gi, i) => gi / Math.max(a.data[i * f + i], 1e-300));
+  }
+  let decrement = 0;
+  for (let i = 0; i < f; i++) {
+    direction[free[i]] = -x[i];
+    decrement += g[i] * x[i];
+  }
+  return { direction, decrement };
+}
+
+/** Number of random effects (or observations, for a residual) each parameter governs: the EM divisor. */
+function randomEffectCounts(frame: ModelFrame, active: readonly ActiveParameter[][]): Float64Array {
+  const out = new Float64Array(frame.layout.parameters.length);
+  active.forEach((act, i) => {
+    for (const a of act) out[a.index] += a.columns ? a.columns.length : frame.stats.trials[i].n;
+  });
+  return out;
+}
+
+function mustEvaluate(frame: ModelFrame, theta: Float64Array): Evaluation {
+  const c = criterionOrInfinity(frame, theta);
+  if (!c.evaluation) throw new Error('REML criterion is not finite at the start values');
+  return c.evaluation;
+}
+
+function checkCancelled(hooks: OneStageHooks): void {
+  if (hooks.signal?.aborted) throw new OneStageCancelledError();
+}

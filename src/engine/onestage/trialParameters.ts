@@ -1,0 +1,53 @@
+// Which variance parameters act on one trial's block, and on which columns of B.
+import type { ModelFrame } from './remlCriterion.js';
+
+export interface ActiveParameter {
+  readonly index: number;
+  /** Columns Z_k of B for a random term; null for the residual (V_k = I). */
+  readonly columns: Int32Array | null;
+}
+
+export function activeParameters(frame: ModelFrame, trial: number): ActiveParameter[] {
+  const t = frame.stats.trials[trial];
+  const out: ActiveParameter[] = [];
+  frame.layout.termParameter.forEach((k, term) => {
+    if (k < 0) return;
+    const cols: number[] = [];
+    for (let j = 0; j < t.termOfColumn.length; j++) if (t.termOfColumn[j] === term) cols.push(j);
+    if (cols.length > 0) out.push({ index: k, columns: Int32Array.from(cols) });
+  });
+  out.push({ index: frame.layout.residualParameter[trial], columns: null });
+  return out;
+}
+
+/** All trials' active parameters, computed once per fit. */
+export function activeParameterTable(frame: ModelFrame): ActiveParameter[][] {
+  return frame.stats.trials.map((_, i) => activeParameters(frame, i));
+}
+
+/** rho: coordinates in B of r = y - X beta (treatment columns -beta, y column 1). */
+export function residualCoordinates(frame: ModelFrame, trial: number, beta: ArrayLike<number>): Float64Array {
+  const t = frame.stats.trials[trial];
+  const rho = new Float64Array(t.m);
+  for (let a = 0; a < t.treatmentColumns.length; a++) rho[t.treatmentColumns[a]] = -beta[t.treatmentIndex[a]];
+  rho[t.yColumn] = 1;
+  return rho;
+}
+
+/** Local copy C[tg, tg] of the global p x p matrix C for this trial's treatments. */
+export function localBlock(c: Float64Array, p: number, tg: Int32Array): Float64Array {
+  const t = tg.length;
+  const out = new Float64Array(t * t);
+  for (let a = 0; a < t; a++) for (let b = 0; b < t; b++) out[a * t + b] = c[tg[a] * p + tg[b]];
+  return out;
+}
+
+export function symmetricMatVec(a: Float64Array, m: number, x: Float64Array): Float64Array {
+  const y = new Float64Array(m);
+  for (let i = 0; i < m; i++) {
+    let s = 0;
+    for (let j = 0; j < m; j++) s += a[i * m + j] * x[j];
+    y[i] = s;
+  }
+  return y;
+}

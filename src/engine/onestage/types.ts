@@ -1,0 +1,113 @@
+// Public shapes of the one-stage REML fit. Plain values only, so a result can be stored as JSON
+// and sent across a worker or IPC boundary unchanged.
+
+export type RandomTerm = 'trial' | 'block' | 'treatment:trial';
+export const RANDOM_TERMS: readonly RandomTerm[] = ['trial', 'block', 'treatment:trial'];
+
+export interface OneStageOptions {
+  readonly random: readonly RandomTerm[];
+  readonly residual: 'common' | 'per-trial';
+  readonly df: 'satterthwaite' | 'kenward-roger' | 'residual';
+  /** Confidence level of the contrast intervals, e.g. 0.95. */
+  readonly confidence: number;
+  /** Likelihood-ratio test for each random term (one refit per term). Default true. */
+  readonly lrt?: boolean;
+  /** Profile-likelihood intervals for the random-term variances. Default true. */
+  readonly profile?: boolean;
+}
+
+export interface OneStageHooks {
+  readonly onProgress?: (e: { stage: string; iteration: number; criterion: number }) => void;
+  readonly signal?: AbortSignal;
+}
+
+export interface VarianceSummary {
+  trial?: number;
+  block?: number;
+  'treatment:trial'?: number;
+  residual?: number;
+  residualByTrial?: Record<string, number>;
+}
+
+export interface VarianceComponentReport {
+  /** 'trial' | 'block' | 'treatment:trial' | 'residual' | 'residual:<trial>' */
+  name: string;
+  estimate: number;
+  /** From the inverse average-information matrix; null for a component at zero. */
+  se: number | null;
+  atZero: boolean;
+  /** Likelihood-ratio test of the component against zero (random terms only). */
+  lrt: { statistic: number; p: number; reducedLogLik: number } | null;
+  /** Profile-likelihood interval at the fit's confidence level (random terms only). */
+  profileLower: number | null;
+  profileUpper: number | null;
+}
+
+export interface MeanReport {
+  treatment: string;
+  estimate: number;
+  se: number;
+}
+
+export interface ContrastReport {
+  name: string;
+  estimate: number | null;
+  se: number | null;
+  df: number | null;
+  lower: number | null;
+  upper: number | null;
+  p: number | null;
+  /** Which degrees-of-freedom method produced df (and, for Kenward–Roger, the adjusted se). */
+  dfMethod: OneStageOptions['df'];
+  /** Standard error before the Kenward–Roger adjustment (equal to se otherwise). */
+  seUnadjusted: number | null;
+  note?: string;
+}
+
+export interface TrialContrastReport {
+  name: string;
+  /** Shrunken (BLUP) estimate of the contrast in this trial. */
+  blup: number | null;
+  /** The trial's own fixed-effects estimate (blocks and treatments fitted in that trial alone). */
+  raw: number | null;
+  rawSe: number | null;
+  rawDf: number | null;
+}
+
+export interface RunRecord {
+  method: string;
+  start: Record<string, number>;
+  iterations: number;
+  emIterations: number;
+  criterionPath: number[];
+  stepHalvings: number;
+  convergence: string;
+  outcome: 'converged' | 'max-iterations' | 'stalled';
+  finalDecrement: number;
+  elapsedMs: number;
+}
+
+export interface OneStageResult {
+  remlCriterion: number;
+  logLik: number;
+  converged: boolean;
+  iterations: number;
+  variance: VarianceSummary;
+  means: MeanReport[];
+  contrasts: ContrastReport[];
+  varianceComponents: VarianceComponentReport[];
+  trials: { trial: string; contrasts: TrialContrastReport[] }[];
+  nObservations: number;
+  nTrials: number;
+  droppedPlots: number;
+  options: { random: RandomTerm[]; residual: OneStageOptions['residual']; df: OneStageOptions['df']; confidence: number };
+  warnings: string[];
+  run: RunRecord;
+}
+
+export class OneStageCancelledError extends Error {
+  constructor() {
+    super('one-stage fit cancelled');
+    this.name = 'OneStageCancelledError';
+  }
+}
