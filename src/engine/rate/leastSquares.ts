@@ -1,0 +1,41 @@
+// Least squares of y on the trial's offsets (intercept + blocks) plus curve columns, by the
+// shared Householder QR. Every curve fit — closed-form or profiled — goes through here.
+import { zeros } from '../linalg/matrix.js';
+import { qrFactor, qrCoefficients } from '../linalg/qr.js';
+import type { TrialRateData } from './rateData.js';
+
+export interface LinearFit {
+  /** Offsets first (intercept, block columns), then the curve columns; aliased = NaN. */
+  readonly coef: Float64Array;
+  readonly residuals: Float64Array;
+  readonly rss: number;
+  readonly rank: number;
+  /** Index in coef of the first curve column. */
+  readonly curveStart: number;
+}
+
+export function fitWithOffsets(d: TrialRateData, curveCols: readonly Float64Array[]): LinearFit {
+  const n = d.y.length;
+  const q = d.offsetCols;
+  const p = q + curveCols.length;
+  const x = zeros(n, p);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < q; j++) x.data[i * p + j] = d.offsets[i * q + j];
+    for (let j = 0; j < curveCols.length; j++) x.data[i * p + q + j] = curveCols[j][i];
+  }
+  const f = qrFactor(x);
+  const coef = qrCoefficients(f, d.y);
+  const residuals = new Float64Array(n);
+  let rss = 0;
+  for (let i = 0; i < n; i++) {
+    let fit = 0;
+    for (let j = 0; j < p; j++) {
+      const b = coef[j];
+      if (!Number.isNaN(b)) fit += x.data[i * p + j] * b;
+    }
+    const r = d.y[i] - fit;
+    residuals[i] = r;
+    rss += r * r;
+  }
+  return { coef, residuals, rss, rank: f.rank, curveStart: q };
+}
