@@ -22,6 +22,8 @@ export const importMappingSchema = z
     trait: traitMappingSchema.optional(),
     traits: z.array(traitMappingSchema).optional(),
     control: z.string().optional(),
+    /** When given, every treatment code in the file must be one of these. */
+    treatments: z.array(z.string().min(1)).optional(),
     factorUnits: z.record(z.string(), z.string()).optional(),
     /** Crop, used for bushel conversions (standard test weight). */
     crop: z.string().optional(),
@@ -75,6 +77,7 @@ export interface ParsedTrial {
   /** Key unique within the file: the trial column value, or site + year. */
   readonly key: string;
   readonly site: string;
+  /** 0 when the file gives no year (a trial column without a year column). */
   readonly year: number;
   readonly design: TrialDesign;
 }
@@ -85,6 +88,8 @@ export interface ParsedPlot {
   readonly block: string | null;
   readonly row: number | null;
   readonly col: number | null;
+  /** The plot identifier from columns.plot, when the file has one. */
+  readonly plotId?: string | null;
   /** The source row of the plot's first line, for messages. */
   readonly sourceRow: number;
 }

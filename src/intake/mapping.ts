@@ -1,0 +1,101 @@
+// The mapping file: read, check against the schema, then check it makes sense (the columns a
+// plot table needs, known units). Every complaint names the file and the key.
+import { readFileSync } from 'node:fs';
+import { importMappingSchema, IntakeError, type ImportMapping, type IntakeProblem } from './types.js';
+import { toCanonical, UnitError } from './units.js';
+
+function problem(file: string, row: number, column: string | null, value: string | null, rule: string, message: string): IntakeProblem {
+  return { file, row, column, value, rule, message };
+}
+
+function showValue(v: unknown): string | null {
+  if (v === undefined) return null;
+  const text = typeof v === 'string' ? v : JSON.stringify(v);
+  return text.length > 80 ? `${text.slice(0, 77)}...` : text;
+}
+
+function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
+  let v = root;
+  for (const key of path) {
+    if (v === null || typeof v !== 'object') return undefined;
+    v = (v as Record<PropertyKey, unknown>)[key];
+  }
+  return v;
+}
+
+/** 1-based line of a character offset, for JSON syntax errors. */
+function lineOf(text: string, offset: number): number {
+  let line = 1;
+  for (let i = 0; i < offset && i < text.length; i++) if (text.charCodeAt(i) === 10) line++;
+  return line;
+}
+
+export function readMappingFile(path: string): ImportMapping {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8').replace(/^\uFEFF/, '');
+  } catch (e) {
+    throw new IntakeError([problem(path, 0, null, null, 'file-unreadable', `cannot read the mapping file: ${(e as Error).message}`)]);
+  }
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (e) {
+    const message = (e as Error).message;
+    const at = /position (\d+)/.exec(message);
+    const row = at ? lineOf(text, Number(at[1])) : 0;
+    throw new IntakeError([problem(path, row, null, null, 'bad-json', `the mapping file is not valid JSON: ${message}`)]);
+  }
+  return parseMapping(json, path);
+}
+
+/** Validates a mapping object (from a file or built in code); throws IntakeError naming each key. */
+export function parseMapping(json: unknown, file: string): ImportMapping {
+  const parsed = importMappingSchema.safeParse(json);
+  if (!parsed.success) {
+    const problems = parsed.error.issues.flatMap((issue) => {
+      const keys = issue.code === 'unrecognized_keys' ? issue.keys.map((k) => [...issue.path, k]) : [issue.path];
+      return keys.map((path) => {
+        const key = path.map(String).join('.') || '(top level)';
+        const rule = issue.code === 'unrecognized_keys' ? 'mapping-unknown-key' : 'mapping-schema';
+        const message = issue.code === 'unrecognized_keys' ? `unknown key "${key}" in the mapping` : `mapping key "${key}": ${issue.message}`;
+        return problem(file, 0, key, showValue(valueAt(json, path)), rule, message);
+      });
+    });
+    throw new IntakeError(problems);
+  }
+  const problems = checkMapping(parsed.data, file);
+  if (problems.length > 0) throw new IntakeError(problems);
+  return parsed.data;
+}
+
+/** Checks a schema-valid mapping can describe a plot table: required columns named, units known. */
+export function checkMapping(mapping: ImportMapping, file: string): IntakeProblem[] {
+  const out: IntakeProblem[] = [];
+  const c = mapping.columns;
+  const need = (key: string, message: string): void => {
+    out.push(problem(file, 0, key, null, 'mapping-incomplete', message));
+  };
+  if (c.treatment === undefined) need('columns.treatment', 'the mapping must name the treatment column (columns.treatment)');
+  if (c.response === undefined) need('columns.response', 'the mapping must name the response column (columns.response)');
+  if (c.trial === undefined && (c.site === undefined || c.year === undefined)) {
+    need('columns.trial', 'the mapping must name a trial column (columns.trial) or both site and year columns (columns.site, columns.year)');
+  }
+  if (c.trait !== undefined && mapping.trait !== undefined) {
+    out.push(problem(file, 0, 'trait', null, 'mapping-conflict', 'with a trait column (columns.trait) list the traits under "traits", not "trait"'));
+  }
+  const traits = [...(mapping.trait ? [['trait', mapping.trait] as const] : []), ...(mapping.traits ?? []).map((t, i) => [`traits.${i}`, t] as const)];
+  for (const [key, t] of traits) {
+    try {
+      toCanonical(t.unit, mapping.crop);
+    } catch (e) {
+      if (!(e instanceof UnitError)) throw e;
+      const rule = /needs the crop|bushel weight/.test(e.message) ? 'crop-unknown' : 'unknown-unit';
+      out.push(problem(file, 0, rule === 'crop-unknown' ? 'crop' : `${key}.unit`, rule === 'crop-unknown' ? (mapping.crop ?? null) : t.unit, rule, e.message));
+    }
+    if (t.lower !== undefined && t.upper !== undefined && t.lower > t.upper) {
+      out.push(problem(file, 0, `${key}.lower`, String(t.lower), 'mapping-bounds', `trait "${t.name}": lower bound ${t.lower} is above upper bound ${t.upper}`));
+    }
+  }
+  return out;
+}

@@ -1,0 +1,37 @@
+// Collects every problem of a file, up to a limit, so one run tells the user all they must fix.
+import { IntakeError, type IntakeProblem } from './types.js';
+
+export const DEFAULT_MAX_PROBLEMS = 200;
+
+export class ProblemList {
+  readonly items: IntakeProblem[] = [];
+  /** Set once a problem had to be dropped because the list was full. */
+  truncated = false;
+
+  constructor(
+    readonly file: string,
+    readonly max: number = DEFAULT_MAX_PROBLEMS,
+  ) {}
+
+  add(row: number, column: string | null, value: string | null, rule: string, message: string): void {
+    if (this.items.length >= this.max) {
+      this.truncated = true;
+      return;
+    }
+    this.items.push({ file: this.file, row, column, value, rule, message });
+  }
+
+  /** True once the limit is reached: reading further would only find problems we cannot list. */
+  get full(): boolean {
+    return this.items.length >= this.max;
+  }
+
+  throwIfAny(): void {
+    if (this.items.length > 0) throw new IntakeError(this.items, this.truncated);
+  }
+}
+
+/** Throws an IntakeError for one whole-file problem. */
+export function failWith(file: string, rule: string, message: string, column: string | null = null, value: string | null = null): never {
+  throw new IntakeError([{ file, row: 0, column, value, rule, message }]);
+}

@@ -1,0 +1,75 @@
+// Entry points for plot files: read (CSV or XLSX), validate every row, convert units, and
+// return the table the store writes or the engine analyses. All-or-nothing: any problem
+// throws an IntakeError listing every problem found (up to maxProblems).
+import type { AnalysisSpec } from '../spec/analysisSpec.js';
+import { checkMapping } from './mapping.js';
+import { resolveColumns } from './plotColumns.js';
+import { PlotTableBuilder } from './plotTableBuilder.js';
+import { DEFAULT_MAX_PROBLEMS, ProblemList } from './problems.js';
+import { openRowSource } from './rowSource.js';
+import { IntakeError, type ImportMapping, type ParsedPlotTable } from './types.js';
+
+export interface ReadPlotOptions {
+  /** Called now and then with the share of the file read (0..1), and with 1 at the end. */
+  readonly onProgress?: (fraction: number) => void;
+  /** Stop listing problems after this many (default 200); the error then says it was truncated. */
+  readonly maxProblems?: number;
+}
+
+/** Rows between progress reports; the reader also yields to the event loop there. */
+const PROGRESS_EVERY = 1 << 16;
+
+export async function readPlotFile(filePath: string, mapping: ImportMapping, options: ReadPlotOptions = {}): Promise<ParsedPlotTable> {
+  const mappingProblems = checkMapping(mapping, filePath);
+  if (mappingProblems.length > 0) throw new IntakeError(mappingProblems);
+  const problems = new ProblemList(filePath, options.maxProblems ?? DEFAULT_MAX_PROBLEMS);
+  const { source, sha256 } = await openRowSource(filePath, mapping);
+  if (source === null) {
+    problems.add(0, null, null, 'empty-file', 'the file is empty: no header row and no data rows');
+    problems.throwIfAny();
+    throw new Error('unreachable');
+  }
+  const cols = resolveColumns(source.header, source.headerRow, mapping, problems);
+  if (cols === null) {
+    problems.throwIfAny();
+    throw new Error('unreachable');
+  }
+  const builder = new PlotTableBuilder(cols, mapping, source.decimalMode, problems);
+  const cells: string[] = [];
+  let sinceReport = 0;
+  for (;;) {
+    const rowNo = source.next(cells);
+    if (rowNo === 0) break;
+    builder.addRow(cells, rowNo);
+    if (problems.full) {
+      // Further rows could only add problems we are not allowed to list.
+      if (source.next(cells) !== 0) problems.truncated = true;
+      break;
+    }
+    if (++sinceReport === PROGRESS_EVERY) {
+      sinceReport = 0;
+      options.onProgress?.(source.fraction());
+      await new Promise<void>((resolve) => setImmediate(resolve));
+    }
+  }
+  source.finish(problems);
+  const table = builder.finish(filePath, sha256);
+  options.onProgress?.(1);
+  return table;
+}
+
+/**
+ * Reads a plot file for `manyfield analyze --data F --spec S`: the mapping comes from the
+ * spec's columns, the trait keeps its file unit ("as-is").
+ */
+export async function readDataForAnalysis(filePath: string, spec: AnalysisSpec): Promise<{ table: ParsedPlotTable }> {
+  const columns = spec.columns;
+  if (columns === undefined) {
+    throw new IntakeError([{ file: filePath, row: 0, column: 'columns', value: null, rule: 'mapping-incomplete', message: 'the spec must have a "columns" object saying which column of the data file is what' }]);
+  }
+  const mapping: ImportMapping =
+    columns.trait !== undefined
+      ? { columns, control: spec.control }
+      : { columns, trait: { name: spec.trait ?? columns.response ?? 'value', unit: 'as-is' }, control: spec.control };
+  return { table: await readPlotFile(filePath, mapping) };
+}

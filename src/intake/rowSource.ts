@@ -1,0 +1,102 @@
+// One interface over CSV and XLSX: a header and then data rows of cell text, pulled one at a
+// time into a reused array, each with the row number a spreadsheet would show.
+import { readFile } from 'node:fs/promises';
+import { createHash } from 'node:crypto';
+import { CsvRecordReader, detectDelimiter } from './csv.js';
+import type { DecimalMode } from './numbers.js';
+import { failWith, type ProblemList } from './problems.js';
+import { decodeText, looksLikeZip } from './text.js';
+import { readXlsxSheet, type SheetRow } from './xlsx.js';
+
+export interface RowSource {
+  readonly header: readonly string[];
+  /** Row number of the header (1 for CSV; the first non-empty row of a sheet). */
+  readonly headerRow: number;
+  /** How numbers in cells are written. */
+  readonly decimalMode: DecimalMode;
+  /** Fills `out` with the next row's cells and returns its row number; 0 at the end. */
+  next(out: string[]): number;
+  fraction(): number;
+  /** Called once the rows are exhausted: adds structural problems (an unclosed quote). */
+  finish(problems: ProblemList): void;
+}
+
+export interface SourceOptions {
+  readonly delimiter?: string;
+  readonly decimalComma?: boolean;
+  readonly sheet?: string;
+}
+
+export interface LoadedSource {
+  readonly source: RowSource | null; // null: the file has no header row at all
+  readonly sha256: string;
+}
+
+/** Reads a file, hashes it and opens it as CSV or XLSX (by content, then by extension). */
+export async function openRowSource(filePath: string, options: SourceOptions): Promise<LoadedSource> {
+  let bytes: Buffer;
+  try {
+    bytes = await readFile(filePath);
+  } catch (e) {
+    failWith(filePath, 'file-unreadable', `cannot read the file: ${(e as Error).message}`);
+  }
+  const sha256 = createHash('sha256').update(bytes).digest('hex');
+  const isXlsx = looksLikeZip(bytes) || /\.xls[xm]$/i.test(filePath);
+  const source = isXlsx ? openXlsx(filePath, bytes, options) : openCsv(decodeText(bytes), options);
+  return { source, sha256 };
+}
+
+export function openCsv(text: string, options: SourceOptions): RowSource | null {
+  const decimalComma = options.decimalComma === true;
+  const delimiter = options.delimiter ?? detectDelimiter(text, decimalComma);
+  const reader = new CsvRecordReader(text, delimiter);
+  const header: string[] = [];
+  let headerRow = 0;
+  // The header is the first record with any non-empty cell.
+  for (;;) {
+    const r = reader.next(header);
+    if (r === 0) return null;
+    if (header.some((h) => h !== '')) {
+      headerRow = r;
+      break;
+    }
+  }
+  return {
+    header: header.map((h) => h.trim()),
+    headerRow,
+    decimalMode: decimalComma ? 'comma' : 'point',
+    next: (out) => reader.next(out),
+    fraction: () => reader.fraction(),
+    finish(problems) {
+      if (reader.unterminatedQuoteRecord > 0) {
+        problems.add(reader.unterminatedQuoteRecord, null, null, 'unclosed-quote', 'a quoted field opened on this row is never closed, so the rest of the file was read as one cell');
+      }
+    },
+  };
+}
+
+function openXlsx(filePath: string, bytes: Uint8Array, options: SourceOptions): RowSource | null {
+  let rows: SheetRow[];
+  try {
+    rows = readXlsxSheet(bytes, options.sheet).rows;
+  } catch (e) {
+    // Any failure of a damaged workbook is reported as a problem of the file, never a crash.
+    failWith(filePath, 'bad-xlsx', (e as Error).message, null, options.sheet ?? null);
+  }
+  if (rows.length === 0) return null;
+  let k = 1;
+  return {
+    header: rows[0].cells.map((h) => h.trim()),
+    headerRow: rows[0].row,
+    decimalMode: options.decimalComma === true ? 'either' : 'point',
+    next(out) {
+      if (k >= rows.length) return 0;
+      const row = rows[k++];
+      out.length = 0;
+      for (const c of row.cells) out.push(c.trim());
+      return row.row;
+    },
+    fraction: () => (rows.length <= 1 ? 1 : (k - 1) / (rows.length - 1)),
+    finish() {},
+  };
+}
