@@ -41,7 +41,7 @@ function randomContrasts(codes: string[], seed: number): ResolvedContrast[] {
     const c = codes.map(() => Math.floor(u() * 7) - 3);
     const sum = c.reduce((s, v) => s + v, 0);
     c[0] -= sum;
-    if (c.every((v) => v === 0)) c.splice(0, 2, -1, 1);
+    if (c.every((v): boolean => v === 0)) c.splice(0, 2, -1, 1);
     return { name: `c${k}`, kind: 'coefficients', coefficients: Object.fromEntries(codes.map((code, i) => [code, c[i]])), divisor: 1 + Math.floor(u() * 4), meaning: 'random' };
   });
 }
