@@ -22,6 +22,8 @@ const EM_ITERATIONS = 3;
 export interface OptimiseOptions {
   /** Parameters held at zero throughout (reduced models for likelihood-ratio tests). */
   readonly fixedZero?: readonly number[];
+  /** One parameter held at a given value (likelihood profiles). */
+  readonly fixedValue?: { readonly index: number; readonly value: number };
   readonly emIterations?: number;
   readonly stage?: string;
 }
@@ -39,8 +41,13 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   const active = activeParameterTable(frame);
   const fixed = new Array<boolean>(nP).fill(false);
   for (const k of opts.fixedZero ?? []) fixed[k] = true;
+  const held = Float64Array.from(start, () => 0);
+  if (opts.fixedValue) {
+    fixed[opts.fixedValue.index] = true;
+    held[opts.fixedValue.index] = opts.fixedValue.value;
+  }
   const stage = opts.stage ?? 'reml';
-  let theta = Float64Array.from(start, (v, k) => (fixed[k] ? 0 : v));
+  let theta: Float64Array = Float64Array.from(start, (v, k) => (fixed[k] ? held[k] : v));
   const path: number[] = [];
   let ev = mustEvaluate(frame, theta);
   path.push(ev.criterion);
@@ -49,7 +56,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   for (let it = 0; it < emIterations; it++) {
     checkCancelled(hooks);
     const sc = scoreAndInformation(frame, ev, active);
-    const next = Float64Array.from(theta, (v, k) => (fixed[k] ? 0 : Math.max(0, v - ((v * v) / dims[k]) * sc.gradient[k])));
+    const next = Float64Array.from(theta, (v, k) => (fixed[k] ? held[k] : Math.max(0, v - ((v * v) / dims[k]) * sc.gradient[k])));
     const c = criterionOrInfinity(frame, next);
     if (!c.evaluation || c.value > ev.criterion) break;
     theta = next;
@@ -67,8 +74,8 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
     checkCancelled(hooks);
     const free: number[] = [];
     for (let k = 0; k < nP; k++) {
-      atZero[k] = fixed[k] || (theta[k] <= 0 && sc.gradient[k] >= 0);
-      if (!atZero[k]) free.push(k);
+      atZero[k] = theta[k] <= 0 && sc.gradient[k] >= 0;
+      if (!atZero[k] && !fixed[k]) free.push(k);
     }
     const step = newtonStep(sc, free, nP);
     decrement = step.decrement;
@@ -107,7 +114,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
       break;
     }
   }
-  for (let k = 0; k < nP; k++) atZero[k] = fixed[k] || theta[k] <= 0;
+  for (let k = 0; k < nP; k++) atZero[k] = theta[k] <= 0;
   return {
     evaluation: ev,
     score: sc,

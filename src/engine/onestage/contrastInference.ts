@@ -1,0 +1,122 @@
+// Contrasts of the treatment means with denominator degrees of freedom.
+// Satterthwaite as lmerTest defines it: df = 2 (l'Cl)^2 / (g' A g), g_k = d(l'Cl)/dtheta_k =
+// l'C P_k C l, A = 2 O^-1 the asymptotic covariance of the variance parameters from the observed
+// Hessian O of -2 logLik (lmerTest differentiates numerically in its own parametrisation; at an
+// interior optimum the two agree, and a component at zero drops out of both). Kenward–Roger as
+// pbkrtest's vcovAdj/Lb_ddf: W = 2 E^-1 from the expected information, adjusted covariance
+// C + 2 C U C, and the df of Kenward & Roger (1997) for a single contrast (q = 1).
+import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
+import { tQuantile, tTwoSidedP } from '../stats/distributions.js';
+import type { Evaluation } from './remlCriterion.js';
+import type { SecondOrder } from './secondOrder.js';
+
+export function quadraticForm(a: Float64Array, n: number, x: ArrayLike<number>, y: ArrayLike<number> = x): number {
+  let s = 0;
+  for (let i = 0; i < n; i++) {
+    if (x[i] === 0) continue;
+    let r = 0;
+    for (let j = 0; j < n; j++) r += a[i * n + j] * y[j];
+    s += x[i] * r;
+  }
+  return s;
+}
+
+/** Inverse of the principal submatrix on `idx`; null when it is not positive definite. */
+export function subInverse(a: Float64Array, n: number, idx: readonly number[]): Float64Array | null {
+  const f = idx.length;
+  const m: Matrix = { rows: f, cols: f, data: new Float64Array(f * f) };
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) m.data[i * f + j] = a[idx[i] * n + idx[j]];
+  try {
+    return cholInverse(cholesky(m)).data;
+  } catch (err) {
+    if (err instanceof NotPositiveDefiniteError) return null;
+    throw err;
+  }
+}
+
+/** C l: the contrast's direction in coefficient space. */
+function cTimes(ev: Evaluation, p: number, l: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(p);
+  for (let i = 0; i < p; i++) {
+    let s = 0;
+    for (let j = 0; j < p; j++) s += ev.c[i * p + j] * l[j];
+    out[i] = s;
+  }
+  return out;
+}
+
+export function satterthwaiteDf(ev: Evaluation, so: SecondOrder, free: readonly number[], l: ArrayLike<number>): number {
+  const p = ev.beta.length;
+  const nP = so.p.length;
+  const cl = cTimes(ev, p, l);
+  let v = 0;
+  for (let i = 0; i < p; i++) v += l[i] * cl[i];
+  const g = free.map((k) => quadraticForm(so.p[k], p, cl));
+  const oinv = subInverse(so.observed, nP, free);
+  if (!oinv) return NaN;
+  const f = free.length;
+  let gag = 0;
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) gag += g[i] * 2 * oinv[i * f + j] * g[j];
+  return (2 * v * v) / gag;
+}
+
+export interface KenwardRogerPieces {
+  /** W = 2 E^-1 over `index`, the parameters kept. */
+  readonly w: Float64Array;
+  readonly index: readonly number[];
+}
+
+/** pbkrtest keeps every variance parameter; if E is singular, drop the ones at zero. */
+export function kenwardRogerCovariance(so: SecondOrder, atZero: readonly boolean[]): KenwardRogerPieces {
+  const nP = so.p.length;
+  let index = Array.from({ length: nP }, (_, k) => k);
+  let inv = subInverse(so.expected, nP, index);
+  if (!inv) {
+    index = index.filter((k) => !atZero[k]);
+    inv = subInverse(so.expected, nP, index);
+    if (!inv) throw new Error('Kenward–Roger: the expected information of the variance parameters is singular');
+  }
+  return { w: inv.map((x) => 2 * x), index };
+}
+
+/** Full nP x nP W with zeros outside the kept parameters (the shape kenwardRogerU expects). */
+export function expandW(kr: KenwardRogerPieces, nP: number): Float64Array {
+  const w = new Float64Array(nP * nP);
+  const f = kr.index.length;
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) w[kr.index[i] * nP + kr.index[j]] = kr.w[i * f + j];
+  return w;
+}
+
+export function kenwardRogerContrast(ev: Evaluation, so: SecondOrder, kr: KenwardRogerPieces, u: Float64Array, l: ArrayLike<number>): { df: number; variance: number } {
+  const p = ev.beta.length;
+  const cl = cTimes(ev, p, l);
+  let v0 = 0;
+  for (let i = 0; i < p; i++) v0 += l[i] * cl[i];
+  const variance = v0 + 2 * quadraticForm(u, p, cl);
+  const a = kr.index.map((k) => quadraticForm(so.p[k], p, cl) / v0);
+  const f = a.length;
+  let a1 = 0;
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a1 += kr.w[i * f + j] * a[i] * a[j];
+  // For one contrast (q = 1) Theta is rank one, so pbkrtest's A1 and A2 coincide.
+  const a2 = a1;
+  const q = 1;
+  const B = (1 / (2 * q)) * (a1 + 6 * a2);
+  const g = ((q + 1) * a1 - (q + 4) * a2) / ((q + 2) * a2);
+  const c1 = g / (3 * q + 2 * (1 - g));
+  const c2 = (q - g) / (3 * q + 2 * (1 - g));
+  const c3 = (q + 2 - g) / (3 * q + 2 * (1 - g));
+  let V0 = 1 + c1 * B;
+  const V1 = 1 - c2 * B;
+  const V2 = 1 - c3 * B;
+  if (Math.abs(V0) < 1e-10) V0 = 0;
+  const ratio = Math.abs(V1) < 1e-14 ? 0 : (1 - a2 / q) / V1;
+  const rho = (1 / q) * ratio * ratio * (V0 / V2);
+  const df = 4 + (q + 2) / (q * rho - 1);
+  return { df, variance };
+}
+
+export function tInterval(estimate: number, se: number, df: number, confidence: number): { lower: number; upper: number; p: number } {
+  const dfUse = Number.isFinite(df) && df > 0 ? df : Infinity;
+  const half = tQuantile(1 - (1 - confidence) / 2, dfUse) * se;
+  return { lower: estimate - half, upper: estimate + half, p: tTwoSidedP(estimate / se, dfUse) };
+}

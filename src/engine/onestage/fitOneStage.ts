@@ -1,0 +1,152 @@
+// One-stage REML fit of every plot of every trial: fixed treatment means, random terms nested in
+// trial (trial, block within trial, treatment x trial), and a common or per-trial residual.
+// Pipeline: sufficient statistics -> parameter layout -> AI-REML optimisation -> inference.
+import type { NetworkInput } from '../types.js';
+import type { ResolvedContrast } from '../contrasts/resolve.js';
+import { chisqUpper } from '../stats/distributions.js';
+import { buildNetworkStatistics } from './sufficientStatistics.js';
+import { parameterLayout } from './parameters.js';
+import { modelFrame, type ModelFrame } from './remlCriterion.js';
+import { optimiseReml, type OptimiseOutcome } from './optimise.js';
+import { startValues } from './startValues.js';
+import { activeParameterTable } from './trialParameters.js';
+import { secondOrder, kenwardRogerU, type SecondOrder } from './secondOrder.js';
+import { expandW, kenwardRogerContrast, kenwardRogerCovariance, satterthwaiteDf, subInverse, tInterval, quadraticForm } from './contrastInference.js';
+import { trialContrasts, type ContrastVector } from './trialContrasts.js';
+import { profileInterval } from './profile.js';
+import { RANDOM_TERMS } from './types.js';
+import type { ContrastReport, OneStageHooks, OneStageOptions, OneStageResult, VarianceComponentReport, VarianceSummary } from './types.js';
+
+export type { OneStageOptions, OneStageResult, OneStageHooks } from './types.js';
+export { OneStageCancelledError } from './types.js';
+export { OneStageDataError } from './sufficientStatistics.js';
+
+/** Networks up to this many trials get profile-likelihood intervals unless options.profile says otherwise. */
+const PROFILE_DEFAULT_MAX_TRIALS = 300;
+
+export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: OneStageOptions, hooks: OneStageHooks = {}): OneStageResult {
+  const began = Date.now();
+  const random = RANDOM_TERMS.filter((t) => options.random.includes(t));
+  const stats = buildNetworkStatistics(network, random);
+  const layout = parameterLayout(stats, options.residual);
+  const frame = modelFrame(stats, layout);
+  const warnings: string[] = [];
+  const unobserved = network.treatments.map((t) => t.code).filter((c) => !stats.treatments.includes(c));
+  if (unobserved.length > 0) warnings.push(`treatments with no usable plot are left out of the one-stage model: ${unobserved.join(', ')}`);
+
+  const fit = optimiseReml(frame, startValues(frame), hooks, { stage: 'one-stage' });
+  const ev = fit.evaluation;
+  const nP = layout.parameters.length;
+  const p = stats.treatments.length;
+  const free = Array.from({ length: nP }, (_, k) => k).filter((k) => !fit.atZero[k]);
+  if (fit.run.outcome !== 'converged') warnings.push(`one-stage REML did not meet its convergence criterion (${fit.run.outcome} after ${fit.run.iterations} iterations)`);
+
+  const active = activeParameterTable(frame);
+  const needSecond = options.df !== 'residual';
+  const so: SecondOrder | null = needSecond ? secondOrder(frame, ev, fit.score, active) : null;
+
+  const aiInv = subInverse(fit.score.ai, nP, free);
+  const seOf = (k: number): number | null => {
+    const f = free.indexOf(k);
+    return f < 0 || !aiInv ? null : Math.sqrt(2 * aiInv[f * free.length + f]);
+  };
+
+  const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments) }));
+  const contrastReports = contrastInference(frame, fit, so, free, vectors, options, active);
+
+  const lrtOn = options.lrt ?? true;
+  const profileOn = options.profile ?? stats.trials.length <= PROFILE_DEFAULT_MAX_TRIALS;
+  const components: VarianceComponentReport[] = layout.parameters.map((par, k) => {
+    const isTerm = par.kind === 'term';
+    const lrt = isTerm && lrtOn ? likelihoodRatio(frame, fit, k, hooks) : null;
+    const prof = isTerm && profileOn ? profileInterval(frame, fit, k, options.confidence, hooks) : null;
+    return {
+      name: par.name,
+      estimate: ev.theta[k],
+      se: seOf(k),
+      atZero: fit.atZero[k],
+      lrt,
+      profileLower: prof ? prof.lower : null,
+      profileUpper: prof ? prof.upper : null,
+    };
+  });
+
+  const variance: VarianceSummary = {};
+  layout.parameters.forEach((par, k) => {
+    if (par.kind === 'term') variance[par.name as 'trial' | 'block' | 'treatment:trial'] = ev.theta[k];
+    else if (par.trial < 0) variance.residual = ev.theta[k];
+    else (variance.residualByTrial ??= {})[stats.trials[par.trial].trial] = ev.theta[k];
+  });
+
+  const ttParam = layout.termParameter[2];
+  const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]) }));
+  const run = { ...fit.run, elapsedMs: Date.now() - began };
+  return {
+    remlCriterion: ev.criterion,
+    logLik: -ev.criterion / 2,
+    converged: fit.run.outcome === 'converged',
+    iterations: fit.run.iterations,
+    variance,
+    means,
+    contrasts: contrastReports,
+    varianceComponents: components,
+    trials: trialContrasts(frame, ev, vectors, ttParam >= 0 ? ev.theta[ttParam] : 0),
+    nObservations: stats.nObservations,
+    nTrials: stats.trials.length,
+    droppedPlots: stats.droppedPlots,
+    options: { random: [...random], residual: options.residual, df: options.df, confidence: options.confidence },
+    warnings,
+    run,
+  };
+}
+
+function contrastVector(c: ResolvedContrast, treatments: readonly string[]): Float64Array | null {
+  const l = new Float64Array(treatments.length);
+  for (const [code, v] of Object.entries(c.coefficients)) {
+    if (v === 0) continue;
+    const j = treatments.indexOf(code);
+    if (j < 0) return null;
+    l[j] = v / c.divisor;
+  }
+  return l;
+}
+
+function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOrder | null, free: readonly number[], vectors: readonly ContrastVector[], options: OneStageOptions, active: ReturnType<typeof activeParameterTable>): ContrastReport[] {
+  const ev = fit.evaluation;
+  const p = frame.stats.treatments.length;
+  const nP = frame.layout.parameters.length;
+  let kr: { pieces: ReturnType<typeof kenwardRogerCovariance>; u: Float64Array } | null = null;
+  if (options.df === 'kenward-roger' && so) {
+    const pieces = kenwardRogerCovariance(so, fit.atZero);
+    kr = { pieces, u: kenwardRogerU(frame, ev, so, expandW(pieces, nP), active) };
+  }
+  return vectors.map((v): ContrastReport => {
+    const empty = { name: v.name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: options.df, seUnadjusted: null };
+    if (!v.l) return { ...empty, note: 'not estimable: a treatment in the contrast has no usable plot' };
+    let estimate = 0;
+    for (let j = 0; j < p; j++) estimate += v.l[j] * ev.beta[j];
+    const seUnadjusted = Math.sqrt(quadraticForm(ev.c, p, v.l));
+    let se = seUnadjusted;
+    let df: number;
+    if (options.df === 'residual') df = frame.stats.nObservations - p;
+    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, v.l);
+    else {
+      const r = kenwardRogerContrast(ev, so!, kr!.pieces, kr!.u, v.l);
+      df = r.df;
+      se = Math.sqrt(r.variance);
+    }
+    const ci = tInterval(estimate, se, df, options.confidence);
+    return { name: v.name, estimate, se, df, lower: ci.lower, upper: ci.upper, p: ci.p, dfMethod: options.df, seUnadjusted };
+  });
+}
+
+/** Refit without component k; the statistic's null law is the 50:50 mixture of chi2_0 and chi2_1. */
+function likelihoodRatio(frame: ModelFrame, fit: OptimiseOutcome, k: number, hooks: OneStageHooks): { statistic: number; p: number; reducedLogLik: number } {
+  const full = fit.evaluation.criterion;
+  if (fit.atZero[k]) return { statistic: 0, p: 1, reducedLogLik: -full / 2 };
+  const start = Float64Array.from(fit.evaluation.theta);
+  start[k] = 0;
+  const reduced = optimiseReml(frame, start, hooks, { fixedZero: [k], emIterations: 0, stage: `lrt:${frame.layout.parameters[k].name}` });
+  const statistic = Math.max(0, reduced.evaluation.criterion - full);
+  return { statistic, p: statistic > 0 ? 0.5 * chisqUpper(statistic, 1) : 1, reducedLogLik: -reduced.evaluation.criterion / 2 };
+}
