@@ -42,7 +42,9 @@ export function generateRateNetwork(o: GenerateOptions): NetworkInput {
   for (let t = 0; t < o.trials; t++) {
     const design = o.designs ? o.designs[t % o.designs.length] : 'randomised-blocks';
     const curve = o.curves[t % o.curves.length];
-    const blockEff = Array.from({ length: nb }, () => 0.4 * z());
+    // Centred block effects, so the curve's intercept is the mean over blocks.
+    const rawBlock = Array.from({ length: nb }, () => 0.4 * z());
+    const blockEff = rawBlock.map((v) => v - rawBlock.reduce((s, w) => s + w, 0) / nb);
     let plots: PlotObservation[] = [];
     for (let b = 0; b < nb; b++) {
       for (const tr of treatments) {

@@ -2,7 +2,7 @@
 // Gauss-Newton) on data generated at random here. Block offsets enter the nls formula as
 // sum-to-zero coded columns (B %*% bk), the same parameterisation as the engine. nls starts
 // from the engine's estimates moved by 3-8 % (joins by 3 %, staying in their interval between tested rates) and must converge on its own (relative-offset
-// tolerance 1e-7); where it does,
+// tolerance 1e-7, relaxed to 1e-6 or 1e-5 where nls cannot reach it); where it does,
 // parameters must agree within 1e-5 relative and the residual sums of squares within 1e-9.
 import { describe, expect, it } from 'vitest';
 import { analyzeRateResponse } from '../../../src/engine/rate/analyzeRateResponse.js';
@@ -56,9 +56,14 @@ for (i in 1:${network.trials.length}) {
     form <- y ~ a + ${c.rhs}
     dat <- list(y = d$y, rate = d$rate)
   }
-  # nls's relative-offset criterion cannot go far below 1e-7 with its forward-difference
-  # derivatives; at 1e-7 the parameters are within ~1e-7 standard errors of the minimum.
-  fit <- tryCatch(nls(form, data = dat, start = st, control = nls.control(maxiter = 1000, tol = 1e-7, minFactor = 1e-12)), error = function(e) NULL)
+  # nls's relative-offset criterion cannot always go below 1e-7 with its forward-difference
+  # derivatives (the plateau joins); try 1e-7, then 1e-6, then 1e-5 — even at 1e-5 the
+  # parameters sit within ~1e-5 standard errors of the least-squares minimum.
+  fit <- NULL
+  for (tol in c(1e-7, 1e-6, 1e-5)) {
+    fit <- tryCatch(nls(form, data = dat, start = st, control = nls.control(maxiter = 1000, tol = tol, minFactor = 1e-12)), error = function(e) NULL)
+    if (!is.null(fit)) break
+  }
   emit(paste0("conv", i), if (is.null(fit)) 0 else 1)
   if (!is.null(fit)) {
     cf <- coef(fit)
