@@ -2,7 +2,7 @@
 // equal to its df), ML and REML (Fisher scoring with step-halving on the log-likelihood,
 // tau² kept >= 0 and a zero-boundary estimate reported as such), or fixed at zero.
 import { Matrix } from '../linalg/matrix.js';
-import { weightedFit, projectionP, WeightedFit } from './weightedFit.js';
+import { weightedFit, WeightedFit } from './weightedFit.js';
 import { decreasingRootFromZero } from './rootFinding.js';
 import type { Tau2Method } from './types.js';
 
@@ -80,13 +80,44 @@ function scoreAndInformation(x: Matrix, fit: WeightedFit, reml: boolean): ScoreI
     }
     return { score: 0.5 * (wr2 - sw), information: 0.5 * sw2 };
   }
-  const pm = projectionP(x, fit);
-  let trP = 0;
-  let trPP = 0;
+  // tr(P) and tr(PP) for P = W - W X C X'W, C = (X'WX)^-, through p x p products only:
+  // tr(P) = tr W - tr(C A2), tr(PP) = tr W² - 2 tr(C A3) + tr(C A2 C A2), Am = X'W^m X.
+  const p = x.cols;
+  const a2 = new Float64Array(p * p);
+  const a3 = new Float64Array(p * p);
+  let trW = 0;
+  let trW2 = 0;
   for (let i = 0; i < k; i++) {
-    trP += pm.data[i * k + i];
-    for (let j = 0; j < k; j++) trPP += pm.data[i * k + j] * pm.data[j * k + i];
+    const w2 = w[i] * w[i];
+    trW += w[i];
+    trW2 += w2;
+    for (let a = 0; a < p; a++)
+      for (let b = 0; b < p; b++) {
+        const xx = x.data[i * p + a] * x.data[i * p + b];
+        a2[a * p + b] += w2 * xx;
+        a3[a * p + b] += w2 * w[i] * xx;
+      }
   }
+  const c = fit.covariance.data;
+  const ca2 = new Float64Array(p * p);
+  for (let a = 0; a < p; a++)
+    for (let b = 0; b < p; b++) {
+      let sum = 0;
+      for (let m = 0; m < p; m++) sum += c[a * p + m] * a2[m * p + b];
+      ca2[a * p + b] = sum;
+    }
+  let trCA2 = 0;
+  let trCA3 = 0;
+  let trCA2CA2 = 0;
+  for (let a = 0; a < p; a++) {
+    trCA2 += ca2[a * p + a];
+    for (let m = 0; m < p; m++) {
+      trCA3 += c[a * p + m] * a3[m * p + a];
+      trCA2CA2 += ca2[a * p + m] * ca2[m * p + a];
+    }
+  }
+  const trP = trW - trCA2;
+  const trPP = trW2 - 2 * trCA3 + trCA2CA2;
   return { score: 0.5 * (wr2 - trP), information: 0.5 * trPP };
 }
 

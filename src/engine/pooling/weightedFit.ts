@@ -53,27 +53,3 @@ export function weightedFit(y: ArrayLike<number>, v: ArrayLike<number>, x: Matri
   for (let j = 0; j < f.rank; j++) logDetXtWX += 2 * Math.log(Math.abs(f.qr.data[j * p + j]));
   return { tau2, weights, beta, covariance, residuals, weightedRss, logDetXtWX, rank: f.rank, aliased: aliasedColumns(f) };
 }
-
-/** The k x k matrix P = W - W X (X'WX)^- X' W of the restricted likelihood. */
-export function projectionP(x: Matrix, fit: WeightedFit): Matrix {
-  const k = x.rows;
-  const p = x.cols;
-  const w = fit.weights;
-  const c = fit.covariance;
-  // WX C
-  const wxc = zeros(k, p);
-  for (let i = 0; i < k; i++)
-    for (let b = 0; b < p; b++) {
-      let s = 0;
-      for (let a = 0; a < p; a++) s += x.data[i * p + a] * c.data[a * p + b];
-      wxc.data[i * p + b] = w[i] * s;
-    }
-  const out = zeros(k, k);
-  for (let i = 0; i < k; i++)
-    for (let j = 0; j < k; j++) {
-      let s = 0;
-      for (let b = 0; b < p; b++) s += wxc.data[i * p + b] * x.data[j * p + b];
-      out.data[i * k + j] = (i === j ? w[i] : 0) - s * w[j];
-    }
-  return out;
-}
