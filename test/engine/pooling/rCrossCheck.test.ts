@@ -34,7 +34,19 @@ function simulate(seed: number, k: number, tau: number): Dataset {
   return { name: `seed${seed}_k${k}`, items };
 }
 
-const datasets: Dataset[] = [simulate(101, 8, 0.5), simulate(202, 15, 0.3), simulate(303, 30, 0.8)];
+/** SEs spread over four orders of magnitude (1e-3 to 10): a stress test of the tau² solvers. */
+function simulateWideScale(seed: number, k: number, tau: number): Dataset {
+  const d = simulate(seed, k, tau);
+  const u = mulberry32(seed + 1);
+  const z = normalSampler(u);
+  for (const it of d.items) {
+    it.se = 10 ** (-3 + 4 * u());
+    it.estimate = 1 + tau * z() + it.se * z();
+  }
+  return { name: `wide${seed}_k${k}`, items: d.items };
+}
+
+const datasets: Dataset[] = [simulate(101, 8, 0.5), simulate(202, 15, 0.3), simulate(303, 30, 0.8), simulateWideScale(404, 12, 2), simulate(505, 10, 0.02)];
 
 function csvOf(d: Dataset): string {
   return ['id,y,v,ph,soil,year', ...d.items.map((it) => `${it.trial},${it.estimate.toPrecision(17)},${(it.se * it.se).toPrecision(17)},${(it.covariates!.ph as number).toPrecision(17)},${it.covariates!.soil},${it.year}`)].join('\n');
@@ -101,6 +113,11 @@ for (name in strsplit(Sys.getenv("DATASETS"), ",")[[1]]) {
   e("mr_F", sm$fstatistic[1]); e("mr_Fp", pf(sm$fstatistic[1], sm$fstatistic[2], sm$fstatistic[3], lower.tail = FALSE))
   e("mr_QE", sum(w0 * lm.wfit(X, y, w0)$residuals^2))
   e("mr_R2", if (t_reml > 0) max(0, (t_reml - t_mr) / t_reml) else NA)
+  # subgroups by soil: each level pooled by REML on its own, Q between from model-based SEs
+  lv <- sort(unique(d$soil))
+  sg <- sapply(lv, function(g) { idx <- which(d$soil == g); t2 <- if (length(idx) > 1) fit_tau2(y[idx], v[idx], matrix(1, length(idx), 1), TRUE) else 0; ww <- 1 / (v[idx] + t2); c(sum(ww * y[idx]) / sum(ww), 1 / sum(ww), t2) })
+  e("sg_mu", sg[1, ]); e("sg_tau2", sg[3, ])
+  wb <- 1 / sg[2, ]; e("sg_Qb", sum(wb * (sg[1, ] - sum(wb * sg[1, ]) / sum(wb))^2))
   # leave-one-out and cumulative-by-year pools (REML, HKSJ)
   pool_hk <- function(idx) { yy <- y[idx]; vv <- v[idx]; t2 <- fit_tau2(yy, vv, matrix(1, length(yy), 1), TRUE); ww <- 1 / (vv + t2); f <- lm(yy ~ 1, weights = ww); c(coef(f)[1], summary(f)$coefficients[1, 2], t2, confint(f)[1, ]) }
   loo <- sapply(seq_len(k), function(i) pool_hk(setdiff(seq_len(k), i)))
@@ -227,6 +244,19 @@ describe.each(datasets.map((d) => [d.name]))('R cross-check on simulated data %s
     const r2 = r(name, 'mr_R2');
     if (Number.isNaN(r2)) expect(m.R2).toBeNull();
     else close(m.R2, r2, 1e-4, 1e-6);
+  });
+
+  it('subgroups by a categorical moderator: level estimates, level tau² and Q between (1e-6 / 1e-5 relative)', () => {
+    const sg = results.get(name)!.reml_hksj.metaRegression!.subgroups[0];
+    expect(sg.moderator).toBe('soil');
+    const mu = rv(name, 'sg_mu');
+    const t2 = rv(name, 'sg_tau2');
+    sg.groups.forEach((g, j) => {
+      close(g.estimate, mu[j], 1e-6);
+      close(g.tau2, t2[j], 1e-5, 1e-12);
+    });
+    close(sg.Qbetween, r(name, 'sg_Qb'), 1e-5);
+    expect(sg.QbetweenDf).toBe(2);
   });
 
   it('Wald meta-regression SEs equal the KH SEs divided by the lm residual scale', () => {
