@@ -77,7 +77,7 @@ export function brentRoot(f: (x: number) => number, a: number, b: number, option
  * Root of a function decreasing in x on [0, inf) with f(0) > 0: the upper end is
  * doubled until the sign changes. Returns null when no sign change is found below `limit`.
  */
-export function decreasingRootFromZero(f: (x: number) => number, start: number, limit = 1e12): number | null {
+export function decreasingRootFromZero(f: (x: number) => number, start: number, limit = 1e300): number | null {
   let hi = Math.max(start, 1e-8);
   while (f(hi) > 0) {
     hi *= 2;
