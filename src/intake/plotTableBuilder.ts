@@ -18,6 +18,8 @@ interface TraitState {
 
 interface TreatmentState {
   readonly code: string;
+  /** Position in first-seen order; part of numeric plot keys. */
+  readonly id: number;
   readonly firstRow: number;
   /** Raw factor cells of the first row with this code, in columns.factors order. */
   readonly raw: string[];
@@ -36,8 +38,12 @@ interface TrialState {
   hasBlock: boolean;
   rowWithoutBlock: number;
   rowWithoutRowCol: number;
-  readonly plotIndex: Map<string, number>;
-  readonly plotsPerTreatment: Map<string, number>;
+  /** Plot key -> plot index; keys are small integers where possible (cheaper than strings). */
+  readonly plotIndex: Map<number | string, number>;
+  /** Block label -> id, which also shares one string per block among the trial's plots. */
+  readonly blocks: Map<string, { readonly label: string; readonly id: number }>;
+  /** Plots per treatment id. */
+  readonly plotsPerTreatment: number[];
   readonly covariates: (string | null)[];
   readonly covariateRows: number[];
 }
@@ -47,6 +53,16 @@ const NUMBER_HINT: Record<DecimalMode, string> = {
   comma: 'a number written with a decimal comma (e.g. 12,4) is expected, as the mapping sets decimalComma',
   either: 'a number is expected',
 };
+
+/** Two small non-negative integers as one small-integer map key; null when they do not fit. */
+function smallPair(a: number, b: number): number | null {
+  return a >= 0 && b >= 0 && a < 16384 && b < 16384 ? a * 16384 + b : null;
+}
+
+/** Cell `i` of a row; '' when the column is not mapped (-1) or the row is short. */
+function cellAt(f: readonly string[], i: number): string {
+  return i >= 0 && i < f.length ? f[i] : '';
+}
 
 function parseYear(text: string, mode: DecimalMode): number {
   const y = parseDecimal(text, mode);
@@ -62,8 +78,9 @@ export class PlotTableBuilder {
   private readonly trials = new Map<string, TrialState>();
   private readonly plots: ParsedPlot[] = [];
   private readonly observations: ParsedObservation[] = [];
-  /** plot index * 1024 + trait index, for one observation per plot and trait. */
-  private readonly observed = new Set<number>();
+  /** Per plot, a bit per trait already observed (traits 0..29); later traits in observedMore. */
+  private readonly observedMask: number[] = [];
+  private readonly observedMore = new Set<string>();
   private readonly covariateNumeric: boolean[];
   private readonly mappingDesign: TrialDesign | null;
   private lastTrial: TrialState | null = null;
@@ -129,22 +146,20 @@ export class PlotTableBuilder {
         break;
       }
     }
-    const cell = (i: number): string => (i >= 0 && i < n ? f[i] : '');
-
     const trial = this.trialOf(f, rowNo);
-    const treatment = this.treatmentOf(cell(cols.treatment), f, rowNo);
+    const treatment = this.treatmentOf(cellAt(f, cols.treatment), f, rowNo);
 
     // Layout: block, row, column, plot id.
-    const block = cols.block >= 0 ? cell(cols.block) : '';
-    const plotRow = this.layoutNumber(cols.row, cell(cols.row), rowNo);
-    const plotCol = this.layoutNumber(cols.col, cell(cols.col), rowNo);
-    const plotId = cols.plot >= 0 ? cell(cols.plot) : '';
+    const blockText = cellAt(f, cols.block);
+    const plotRow = this.layoutNumber(cols.row, cellAt(f, cols.row), rowNo);
+    const plotCol = this.layoutNumber(cols.col, cellAt(f, cols.col), rowNo);
+    const plotId = cellAt(f, cols.plot);
     if (cols.plot >= 0 && plotId === '') problems.add(rowNo, this.cellName(cols.plot), '', 'missing-value', 'the plot identifier is empty');
 
     // Trait and value.
     let trait: TraitState | undefined;
     if (cols.trait >= 0) {
-      const name = cell(cols.trait);
+      const name = cellAt(f, cols.trait);
       trait = this.traits.get(name);
       if (trait === undefined) {
         if (name === '') problems.add(rowNo, this.cellName(cols.trait), '', 'missing-value', 'the trait name is empty');
@@ -152,16 +167,26 @@ export class PlotTableBuilder {
         else problems.add(rowNo, this.cellName(cols.trait), name, 'unknown-trait', `trait "${name}" is not listed under "traits" in the mapping (listed: ${this.traitList.map((t) => t.trait.name).join(', ')})`);
       }
     } else trait = this.traitList[0];
-    const value = trait === undefined ? null : this.valueOf(cell(cols.response), trait, rowNo);
+    const value = trait === undefined ? null : this.valueOf(cellAt(f, cols.response), trait, rowNo);
 
     if (trial === null || treatment === null || trait === undefined) return;
 
-    if (block !== '') trial.hasBlock = true;
-    else if (trial.rowWithoutBlock === 0) trial.rowWithoutBlock = rowNo;
+    let block = blockText;
+    let blockId = -1;
+    if (blockText !== '') {
+      trial.hasBlock = true;
+      let b = trial.blocks.get(blockText);
+      if (b === undefined) {
+        b = { label: blockText, id: trial.blocks.size };
+        trial.blocks.set(blockText, b);
+      }
+      block = b.label;
+      blockId = b.id;
+    } else if (trial.rowWithoutBlock === 0) trial.rowWithoutBlock = rowNo;
     if ((plotRow === null || plotCol === null) && trial.rowWithoutRowCol === 0) trial.rowWithoutRowCol = rowNo;
 
     // Plot identity: plot id, else row+column, else block+treatment.
-    let key: string | null = null;
+    let key: number | string | null = null;
     let keyColumn = -1;
     if (cols.plot >= 0) {
       if (plotId !== '') {
@@ -169,10 +194,10 @@ export class PlotTableBuilder {
         keyColumn = cols.plot;
       }
     } else if (plotRow !== null && plotCol !== null) {
-      key = `${plotRow}\u0001${plotCol}`;
+      key = smallPair(plotRow, plotCol) ?? `${plotRow}\u0001${plotCol}`;
       keyColumn = cols.row;
-    } else if (block !== '') {
-      key = `${block}\u0000${treatment.code}`;
+    } else if (blockId >= 0) {
+      key = smallPair(blockId, treatment.id) ?? `${block}\u0000${treatment.code}`;
       keyColumn = cols.block;
     }
 
@@ -180,7 +205,7 @@ export class PlotTableBuilder {
     if (plotIndex !== undefined) {
       const existing = this.plots[plotIndex];
       const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block}" and treatment "${treatment.code}"`;
-      if (cols.trait < 0 || this.observed.has(plotIndex * 1024 + trait.index)) {
+      if (cols.trait < 0 || this.wasObserved(plotIndex, trait.index)) {
         problems.add(rowNo, this.cellName(keyColumn), f[keyColumn], 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}`);
         return;
       }
@@ -196,10 +221,24 @@ export class PlotTableBuilder {
       plotIndex = this.plots.length;
       this.plots.push({ trialKey: trial.key, treatment: treatment.code, block: block === '' ? null : block, row: plotRow, col: plotCol, plotId: cols.plot >= 0 ? plotId : null, sourceRow: rowNo });
       if (key !== null) trial.plotIndex.set(key, plotIndex);
-      trial.plotsPerTreatment.set(treatment.code, (trial.plotsPerTreatment.get(treatment.code) ?? 0) + 1);
+      const reps = trial.plotsPerTreatment;
+      while (reps.length <= treatment.id) reps.push(0);
+      reps[treatment.id]++;
     }
-    if (trait.index < 1024) this.observed.add(plotIndex * 1024 + trait.index);
+    if (cols.trait >= 0) this.markObserved(plotIndex, trait.index);
     this.observations.push({ plot: plotIndex, trait: trait.trait.name, value });
+  }
+
+  private wasObserved(plot: number, trait: number): boolean {
+    if (trait < 30) return ((this.observedMask[plot] ?? 0) & (1 << trait)) !== 0;
+    return this.observedMore.has(`${plot}:${trait}`);
+  }
+
+  private markObserved(plot: number, trait: number): void {
+    if (trait < 30) {
+      while (this.observedMask.length <= plot) this.observedMask.push(0);
+      this.observedMask[plot] |= 1 << trait;
+    } else this.observedMore.add(`${plot}:${trait}`);
   }
 
   private trialOf(f: string[], rowNo: number): TrialState | null {
@@ -271,7 +310,8 @@ export class PlotTableBuilder {
       rowWithoutBlock: 0,
       rowWithoutRowCol: 0,
       plotIndex: new Map(),
-      plotsPerTreatment: new Map(),
+      blocks: new Map(),
+      plotsPerTreatment: [],
       covariates: this.cols.covariates.map(() => null),
       covariateRows: this.cols.covariates.map(() => 0),
     };
@@ -328,7 +368,7 @@ export class PlotTableBuilder {
         this.problems.add(rowNo, column, code, 'unknown-treatment', `treatment "${code}" is not among the treatments the mapping lists`);
         return null;
       }
-      t = { code, firstRow: rowNo, raw: factors.map((fc) => (fc.index < f.length ? f[fc.index] : '')) };
+      t = { code, id: this.treatments.size, firstRow: rowNo, raw: factors.map((fc) => (fc.index < f.length ? f[fc.index] : '')) };
       this.treatments.set(code, t);
     } else {
       for (let k = 0; k < factors.length; k++) {
@@ -401,8 +441,8 @@ export class PlotTableBuilder {
         problems.add(t.rowWithoutRowCol, cols.row >= 0 ? this.cellName(cols.row) : null, '', 'missing-row-column', `trial "${t.key}" has a ${design} design, so every plot needs a row and a column`);
       }
       let replicated = false;
-      for (const count of t.plotsPerTreatment.values()) if (count > 1) replicated = true;
-      if (!replicated && t.plotsPerTreatment.size > 0) {
+      for (const count of t.plotsPerTreatment) if (count > 1) replicated = true;
+      if (!replicated && t.plotsPerTreatment.length > 0) {
         problems.add(t.firstRow, treatmentColumn, t.key, 'single-replicate', `trial "${t.key}" has every treatment only once: with a single replicate there is no error term`);
       }
       trials.push({ key: t.key, site: t.site, year: t.year, design });
