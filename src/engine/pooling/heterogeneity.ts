@@ -12,7 +12,7 @@ export interface Heterogeneity {
   typicalVariance: number | null;
 }
 
-/** Q, df and p for the residual heterogeneity of a model with `p` coefficients. */
+/** Cochran's Q about the fixed-effect mean, its df (k - 1) and p, I², H² and the typical within-trial variance. */
 export function cochranQ(y: ArrayLike<number>, v: ArrayLike<number>): Heterogeneity {
   const k = y.length;
   let sw = 0;

@@ -53,6 +53,7 @@ export function fitModel(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, 
       hksjScale = fit.weightedRss / dfResidual;
       scaleUsed = s.hksjFloor ? Math.max(1, hksjScale) : hksjScale;
       df = dfResidual;
+      if (hksjScale < 1 && !s.hksjFloor) notes.push(`HKSJ scale factor q = ${hksjScale.toPrecision(3)} < 1: the interval is narrower than a Wald interval with the same tau² would be; the floor option (max(1, q)) prevents this.`);
     } else {
       notes.push('HKSJ needs k greater than the number of coefficients; normal (Wald) interval used instead.');
     }
