@@ -22,6 +22,14 @@ import { num } from './jsonSafe.js';
 export { TrialInputError } from './errors.js';
 export type * from './types.js';
 
+/** The percentage transforms on a trait not recorded as a percentage deserve a word. */
+function transformSuitability(options: TrialAnalysisOptions): TrialFlag[] {
+  const percentOnly = options.transform === 'logit' || options.transform === 'arcsine-sqrt';
+  if (percentOnly && options.traitKind !== undefined && options.traitKind !== 'percent')
+    return [{ code: 'transform-unsuited', message: `The ${options.transform} transform is meant for percentages (0–100), but this trait is recorded as ${options.traitKind}.` }];
+  return [];
+}
+
 /** Studentised residuals beyond this (in absolute value) are flagged as possible outliers. */
 export const OUTLIER_THRESHOLD = 3.5;
 
@@ -92,6 +100,7 @@ export function analyzeTrial(
   const aliased: AliasedColumn[] = fit.qr.pivot.slice(fit.qr.rank).map((j) => ({ term: model.terms[model.assign[j]].name, level: model.columnLevels[j] }));
   const flags: TrialFlag[] = [
     ...transform.flags,
+    ...transformSuitability(options),
     ...buildFlags({
       plots: plotDiagnostics,
       outlierThreshold: OUTLIER_THRESHOLD,

@@ -29,7 +29,8 @@ export type FlagCode =
   | 'log-offset-applied'
   | 'percent-boundary-adjusted'
   | 'treatment-absent'
-  | 'no-error-df';
+  | 'no-error-df'
+  | 'transform-unsuited';
 
 export interface TrialFlag {
   readonly code: FlagCode;

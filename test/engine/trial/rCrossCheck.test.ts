@@ -63,7 +63,7 @@ analyse <- function(key, design) {
   a <- anova(fit)
   emit(p("anova.df"), a$Df); emit(p("anova.ss"), a[["Sum Sq"]])
   emit(p("anova.f"), a[["F value"]][-nrow(a)]); emit(p("anova.p"), a[["Pr(>F)"]][-nrow(a)])
-  emit(p("sigma"), summary(fit)$sigma)
+  emit(p("sigma"), summary(fit)$sigma); emit(p("cv"), 100 * summary(fit)$sigma / mean(d$y))
   X <- model.matrix(delete.response(terms(fit)), grid)
   L <- t(sapply(lv, function(t) colMeans(X[grid$trt == t, , drop = FALSE])))
   b <- coef(fit); V <- vcov(fit)
@@ -132,6 +132,10 @@ describe('per-trial analysis vs R lm/anova (live, random trials)', () => {
     if (s.result.anova.residual.df !== df[df.length - 1]) throw new Error(`${s.key} residual df`);
     expectClose(s.result.anova.residual.ss, ss[ss.length - 1], REL, 1e-6, `${s.key} residual SS`);
     expectClose(s.result.model.sigma, r.values[`${s.key}.sigma`], REL, 1e-6, `${s.key} sigma`);
+    expectClose(s.result.anova.cv, r.values[`${s.key}.cv`], REL, 1e-6, `${s.key} CV%`);
+    // LSD basis: one common SED only when every pair has the same SE — the orthogonal designs
+    // (the row-column layout here has complete rows but random columns, so its SEDs differ).
+    expect(s.result.anova.lsd5.basis).toBe(['crbal', 'rcbbal', 'lsbal'].includes(s.key) ? 'common' : 'average');
   }));
 
   it('adjusted means, their SEs and full covariance (equal weights over nuisance levels)', each((s) => {

@@ -83,6 +83,8 @@ describe('back-transformed means and ratios (hand-derived)', () => {
     expectClose(res.means[1].backTransformed!.estimate, 80, 1e-11, 1, 'B');
     expectClose(res.means[1].backTransformed!.upper, expit(Math.log(4) + h), 1e-11, 1, 'B upper');
     expect((res.contrasts[0] as EstimableContrast).ratio).toBeNull();
+    const unsuited = analyzeTrial(twoGroups([20, 50, 80], [50, 80, 90]), treatments, [], opts('logit', { traitKind: 'continuous' }));
+    expect(unsuited.flags.some((f) => f.code === 'transform-unsuited')).toBe(true);
   });
 
   it('logit at 0 % / 100 %: proportions compressed (p(n-1) + 1/2)/n, flagged, and the inverse restores the scale', () => {
