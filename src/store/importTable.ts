@@ -6,7 +6,7 @@ import { bulkInserter } from './bulkInsert.js';
 import { ImportRefusedError } from './errors.js';
 import { mergeProtocol } from './mergeProtocol.js';
 import { mergeSites, mergeTraits } from './mergeReference.js';
-import { checkTableConsistency } from './tableConsistency.js';
+import { checkTableConsistency, refuseInconsistent } from './tableConsistency.js';
 import type { Workspace } from './workspace.js';
 
 export interface ImportOptions {
@@ -51,7 +51,7 @@ function batchCounts(db: Database.Database, batchId: number): BatchCounts {
 
 /** Handle an earlier import of the same file: refuse, or delete it (cascading) when replacing. */
 function settleDuplicate(db: Database.Database, table: ParsedPlotTable, replace: boolean): BatchCounts | null {
-  const earlier = db.prepare('SELECT id, file_name, created_at FROM import_batch WHERE sha256 = ?').get(table.sha256) as
+  const earlier = db.prepare('SELECT id, file_name, created_at FROM import_batch WHERE sha256 = ?').get(table.sha256.toLowerCase()) as
     | { id: number; file_name: string; created_at: string }
     | undefined;
   if (!earlier) return null;
@@ -63,8 +63,22 @@ function settleDuplicate(db: Database.Database, table: ParsedPlotTable, replace:
     );
   }
   const counts = batchCounts(db, earlier.id);
-  db.prepare('DELETE FROM import_batch WHERE id = ?').run(earlier.id);
+  deleteBatch(db, earlier.id);
   return counts;
+}
+
+/**
+ * Remove a batch and everything hanging off it. Written out rather than left to ON DELETE
+ * CASCADE because imports run with foreign-key enforcement off (see importParsedTable).
+ * A new table referencing trial or plot must be added here.
+ */
+function deleteBatch(db: Database.Database, batchId: number): void {
+  const trials = 'SELECT id FROM trial WHERE import_batch_id = @b';
+  db.prepare(`DELETE FROM observation WHERE plot_id IN (SELECT id FROM plot WHERE trial_id IN (${trials}))`).run({ b: batchId });
+  db.prepare(`DELETE FROM plot WHERE trial_id IN (${trials})`).run({ b: batchId });
+  db.prepare(`DELETE FROM trial_covariate WHERE trial_id IN (${trials})`).run({ b: batchId });
+  db.prepare('DELETE FROM trial WHERE import_batch_id = @b').run({ b: batchId });
+  db.prepare('DELETE FROM import_batch WHERE id = @b').run({ b: batchId });
 }
 
 interface ExistingTrials {
@@ -107,7 +121,7 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
     const batchId = Number(
       db
         .prepare('INSERT INTO import_batch (file_name, sha256, rows_read, rows_stored, created_at, mapping_json) VALUES (?, ?, ?, ?, ?, ?)')
-        .run(table.file, table.sha256, table.rowsRead, table.observations.length, now().toISOString(), JSON.stringify(table.mapping)).lastInsertRowid,
+        .run(table.file, table.sha256.toLowerCase(), table.rowsRead, table.observations.length, now().toISOString(), JSON.stringify(table.mapping)).lastInsertRowid,
     );
 
     const existing = existingTrials(db);
@@ -138,17 +152,40 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
     // IMMEDIATE lock guarantees nobody else takes ids meanwhile.
     const firstPlotId = ((db.prepare('SELECT COALESCE(MAX(id), 0) AS m FROM plot').get() as { m: number }).m) + 1;
     const plots = bulkInserter(db, 'plot', ['id', 'trial_id', 'treatment_id', 'block', 'row', 'col', 'source_row']);
+    const pv = plots.values;
+    const treatmentIds = protocol.treatmentIds;
     let done = 0;
     for (let i = 0; i < table.plots.length; i++) {
       const p = table.plots[i];
-      plots.add(firstPlotId + i, trialIds.get(p.trialKey), protocol.treatmentIds.get(p.treatment), p.block, p.row, p.col, p.sourceRow);
+      const trialId = trialIds.get(p.trialKey);
+      const treatmentId = treatmentIds.get(p.treatment);
+      if (trialId === undefined || treatmentId === undefined) refuseInconsistent(`row ${p.sourceRow} names ${trialId === undefined ? `trial "${p.trialKey}"` : `treatment "${p.treatment}"`}, which is not in the table's list`);
+      const at = plots.nextRow();
+      pv[at] = firstPlotId + i;
+      pv[at + 1] = trialId;
+      pv[at + 2] = treatmentId;
+      pv[at + 3] = p.block;
+      pv[at + 4] = p.row;
+      pv[at + 5] = p.col;
+      pv[at + 6] = p.sourceRow;
       if (progress && ++done % PROGRESS_EVERY === 0) progress(done, total);
     }
     plots.flush();
 
     const observations = bulkInserter(db, 'observation', ['plot_id', 'trait_id', 'value']);
+    const ov = observations.values;
+    const nPlots = table.plots.length;
     for (const o of table.observations) {
-      observations.add(firstPlotId + o.plot, traitIds.get(o.trait), o.value);
+      const traitId = traitIds.get(o.trait);
+      const plot = o.plot;
+      const value = o.value;
+      if (traitId === undefined || !(plot >= 0 && plot < nPlots && Number.isInteger(plot)) || (value !== null && !Number.isFinite(value))) {
+        refuseInconsistent(`an observation (plot ${plot}, trait "${o.trait}", value ${value}) does not fit the table`);
+      }
+      const at = observations.nextRow();
+      ov[at] = firstPlotId + plot;
+      ov[at + 1] = traitId;
+      ov[at + 2] = value;
       if (progress && ++done % PROGRESS_EVERY === 0) progress(done, total);
     }
     observations.flush();
@@ -168,5 +205,22 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
       replaced,
     };
   });
-  return run.immediate();
+  // Foreign-key enforcement costs more than half the insert time (a parent lookup per row).
+  // Every id written here comes from the Maps built inside this same transaction, so the
+  // references hold by construction; enforcement is back on before anyone else uses the
+  // connection. (The pragma is a no-op inside an open transaction, so a caller's
+  // transaction keeps enforcement.)
+  const relax = !db.inTransaction && db.pragma('foreign_keys', { simple: true }) === 1;
+  if (relax) db.pragma('foreign_keys = OFF');
+  try {
+    return run.immediate();
+  } catch (err) {
+    // Two values of one trait for one plot: the observation key says no.
+    if (err instanceof Error && (err as { code?: string }).code === 'SQLITE_CONSTRAINT_PRIMARYKEY' && /observation/.test(err.message)) {
+      refuseInconsistent('one plot has two values of the same trait');
+    }
+    throw err;
+  } finally {
+    if (relax) db.pragma('foreign_keys = ON');
+  }
 }
