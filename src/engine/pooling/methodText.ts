@@ -3,8 +3,8 @@ import type { CorePool } from './poolCore.js';
 import type { PoolingOptions } from './types.js';
 
 const TAU2_NAMES: Record<PoolingOptions['tau2'], string> = {
-  reml: 'REML (restricted likelihood, Patterson–Thompson), Fisher scoring with step-halving, tau² >= 0',
-  ml: 'maximum likelihood, Fisher scoring with step-halving, tau² >= 0',
+  reml: 'REML (restricted likelihood, Patterson–Thompson): Fisher scoring with step-halving, then the root of the score by bracketing (Brent); tau² >= 0',
+  ml: 'maximum likelihood: Fisher scoring with step-halving, then the root of the score by bracketing (Brent); tau² >= 0',
   dl: 'DerSimonian–Laird method of moments, truncated at zero',
   pm: 'Paule–Mandel (generalised Q equal to k - 1, bracketed root), truncated at zero',
   fixed: 'fixed-effect (common-effect) model: tau² assumed zero',
@@ -12,7 +12,7 @@ const TAU2_NAMES: Record<PoolingOptions['tau2'], string> = {
 
 export function tau2Text(options: PoolingOptions, core: CorePool): string {
   let s = TAU2_NAMES[options.tau2];
-  if (options.tau2 === 'reml' || options.tau2 === 'ml') s += `; ${core.tau2Converged ? 'converged' : 'NOT converged'} after ${core.iterations} iteration(s)`;
+  if (options.tau2 === 'reml' || options.tau2 === 'ml') s += `; ${core.tau2Converged ? 'converged' : 'NOT converged'} after ${core.iterations} scoring iteration(s)`;
   if (core.atBoundary && options.tau2 !== 'fixed') s += '; estimate on the zero boundary (no between-trial variance detected; this is a result, not a failure)';
   return s + '.';
 }

@@ -83,5 +83,5 @@ export function decreasingRootFromZero(f: (x: number) => number, start: number, 
     hi *= 2;
     if (hi > limit) return null;
   }
-  return brentRoot(f, 0, hi, { xTol: 1e-15 * Math.max(1, hi) });
+  return brentRoot(f, 0, hi, { xTol: 1e-14 * hi });
 }

@@ -1,9 +1,10 @@
 // Between-trial variance tau² by DerSimonian–Laird (moments), Paule–Mandel (generalised Q
 // equal to its df), ML and REML (Fisher scoring with step-halving on the log-likelihood,
-// tau² kept >= 0 and a zero-boundary estimate reported as such), or fixed at zero.
+// then a bracketed root of the score; tau² kept >= 0 and a zero-boundary estimate reported
+// as such), or fixed at zero.
 import { Matrix } from '../linalg/matrix.js';
 import { weightedFit, WeightedFit } from './weightedFit.js';
-import { decreasingRootFromZero } from './rootFinding.js';
+import { brentRoot, decreasingRootFromZero } from './rootFinding.js';
 import type { Tau2Method } from './types.js';
 
 export interface Tau2Estimate {
@@ -122,33 +123,76 @@ function scoreAndInformation(x: Matrix, fit: WeightedFit, reml: boolean): ScoreI
 }
 
 function likelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate {
+  const fisher = fisherScoring(y, v, x, reml, start);
+  const score = (t: number) => scoreAndInformation(x, weightedFit(y, v, x, t), reml).score;
+  // Polish: the maximum is a sign change of the score from + to -, found by bracketing and
+  // Brent's method. This fixes the precision (Fisher scoring converges only linearly when
+  // expected and observed information differ) and rescues the rare oscillating case.
+  const t0 = fisher.fit.tau2;
+  const s0 = score(t0);
+  let lo = t0;
+  let hi = t0;
+  if (t0 === 0 && s0 <= 0) return { tau2: 0, converged: true, iterations: fisher.iterations, atBoundary: true, fit: fisher.fit };
+  if (s0 > 0) {
+    let step = Math.max(t0, 1e-6 * meanOf(v));
+    hi = t0 + step;
+    for (let j = 0; score(hi) > 0; j++) {
+      if (j > 2000) return { ...fisher, converged: false };
+      lo = hi;
+      step *= 2;
+      hi = t0 + step;
+    }
+  } else {
+    lo = t0 / 2;
+    for (let j = 0; score(lo) <= 0; j++) {
+      hi = lo;
+      lo = j < 80 ? lo / 2 : 0;
+      if (lo === 0) break;
+    }
+    if (lo === 0 && score(0) <= 0) return boundaryAtZero(y, v, x, fisher.iterations);
+  }
+  const root = lo === hi ? lo : brentRoot(score, lo, hi, { xTol: 1e-14 * hi });
+  const fit = weightedFit(y, v, x, root);
+  // A boundary maximum can beat an interior stationary point only if the likelihood is multimodal.
+  const atZero = weightedFit(y, v, x, 0);
+  if (logLikTau2(v, atZero, reml) > logLikTau2(v, fit, reml)) return { tau2: 0, converged: true, iterations: fisher.iterations, atBoundary: true, fit: atZero };
+  return { tau2: root, converged: true, iterations: fisher.iterations, atBoundary: root === 0, fit };
+}
+
+function boundaryAtZero(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, iterations: number): Tau2Estimate {
+  return { tau2: 0, converged: true, iterations, atBoundary: true, fit: weightedFit(y, v, x, 0) };
+}
+
+function meanOf(v: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < v.length; i++) s += v[i];
+  return s / v.length;
+}
+
+/** Fisher scoring with step-halving on the (restricted) log-likelihood, tau² kept >= 0. */
+function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate {
   let fit = weightedFit(y, v, x, start);
   let ll = logLikTau2(v, fit, reml);
-  const maxIterations = 500;
+  const maxIterations = 50;
+  const scale = meanOf(v);
   for (let it = 1; it <= maxIterations; it++) {
     const { score, information } = scoreAndInformation(x, fit, reml);
     if (fit.tau2 === 0 && score <= 0) return { tau2: 0, converged: true, iterations: it, atBoundary: true, fit };
     let step = score / information;
-    let candidate = fit;
-    let candidateLl = -Infinity;
     let accepted = false;
-    for (let halving = 0; halving < 60; halving++) {
-      const t = Math.max(0, fit.tau2 + step);
-      candidate = weightedFit(y, v, x, t);
+    let candidate = fit;
+    let candidateLl = ll;
+    for (let halving = 0; halving < 60 && !accepted; halving++) {
+      candidate = weightedFit(y, v, x, Math.max(0, fit.tau2 + step));
       candidateLl = logLikTau2(v, candidate, reml);
-      if (candidateLl >= ll - 1e-12 * Math.abs(ll)) {
-        accepted = true;
-        break;
-      }
-      step /= 2;
+      accepted = candidateLl >= ll - 1e-12 * Math.abs(ll);
+      if (!accepted) step /= 2;
     }
+    if (!accepted) return { tau2: fit.tau2, converged: false, iterations: it, atBoundary: fit.tau2 === 0, fit };
     const change = Math.abs(candidate.tau2 - fit.tau2);
-    if (!accepted) return { tau2: fit.tau2, converged: change < 1e-10, iterations: it, atBoundary: fit.tau2 === 0, fit };
     fit = candidate;
     ll = candidateLl;
-    if (change <= 1e-13 * Math.max(1, fit.tau2) || (fit.tau2 > 0 && change <= 1e-12 * fit.tau2)) {
-      return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit };
-    }
+    if (change <= 1e-10 * (fit.tau2 + 1e-6 * scale)) return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit };
   }
   return { tau2: fit.tau2, converged: false, iterations: maxIterations, atBoundary: fit.tau2 === 0, fit };
 }
