@@ -43,13 +43,31 @@ export function formatReport(r: AnalysisReport): string {
     parts.push('\nOne-stage vs two-stage');
     parts.push(textTable(['contrast', 'one-stage', 'two-stage', 'gap (SE)', 'agree'], r.agreement.map((a) => [a.name, num(a.oneStage), num(a.twoStage), num(a.differenceInSe, 2), a.agree === null ? '-' : a.agree ? 'yes' : 'NO'])));
   }
-  const flagged = r.twoStage.trials.filter((t) => 'flags' in t && t.flags.length > 0);
-  if (flagged.length > 0) {
-    parts.push('\nTrial checks');
-    for (const t of flagged) if ('flags' in t) for (const f of t.flags) parts.push(`  ${t.trial}: ${f.message}`);
-  }
+  parts.push(...formatTrialChecks(r));
   if (r.rateResponse) parts.push(`\n${formatRateResponseText(r.rateResponse)}`);
   if (r.warnings.length > 0) parts.push(`\nWarnings\n${r.warnings.map((w) => `  - ${w}`).join('\n')}`);
   if (r.cautions.length > 0) parts.push(`\nCautions\n${r.cautions.map((c) => `  - ${c}`).join('\n')}`);
   return `${parts.join('\n')}\n`;
+}
+
+/**
+ * Trial flags worth reading on a terminal. Cook's distance above 4/n marks several plots in
+ * most trials, so those are counted here and listed in full only in the JSON diagnostics.
+ */
+function formatTrialChecks(r: AnalysisReport): string[] {
+  const lines: string[] = [];
+  let influential = 0;
+  const influentialTrials = new Set<string>();
+  for (const t of r.twoStage.trials) {
+    if (!('flags' in t)) continue;
+    for (const f of t.flags) {
+      if (f.code === 'influential-plot') {
+        influential++;
+        influentialTrials.add(t.trial);
+      } else lines.push(`  ${t.trial}: ${f.message}`);
+    }
+  }
+  if (influential > 0)
+    lines.push(`  ${influential} plots in ${influentialTrials.size} trials have Cook's distance above 4/n (a loose screen; each is listed in the JSON diagnostics).`);
+  return lines.length > 0 ? ['\nTrial checks (nothing is dropped unless you exclude it with a reason)', ...lines] : [];
 }

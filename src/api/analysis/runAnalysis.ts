@@ -29,8 +29,10 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     }
   });
 
+  // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
+  // asks for the one-stage model alone and skips it.
   const trials: TrialStageEntry[] = [];
-  network.trials.forEach((trial, i) => {
+  if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
     trials.push(analyseOneTrial(trial, network, contrasts, spec));
