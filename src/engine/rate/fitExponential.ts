@@ -7,6 +7,8 @@ import type { TrialRateData } from './rateData.js';
 import { fitWithOffsets } from './leastSquares.js';
 import { failedFit, type FitOutcome } from './fitOutcome.js';
 import { profileMinimum } from './profileSearch.js';
+import { EXPONENTIAL_SHAPE, polishSeparable } from './separableCurve.js';
+import { jacobianCovariance, separableStandardErrors } from './standardErrors.js';
 
 const GRID_POINTS = 161;
 
@@ -30,25 +32,31 @@ export function fitExponential(d: TrialRateData): FitOutcome {
     for (let i = 0; i < n; i++) g += fit.residuals[i] * b * d.rate[i] * Math.exp(-c * d.rate[i]);
     return { rss: fit.rss, derivative: -2 * c * g };
   }, grid);
-  const { c, fit } = fitAt(res.theta);
-  const a = fit.coef[0];
-  const b = fit.coef[fit.curveStart];
-  if (Number.isNaN(b)) return failedFit('exponential', n, 'the rise is aliased with the block offsets', res.method);
+  const profiled = fitAt(res.theta);
+  if (Number.isNaN(profiled.fit.coef[profiled.fit.curveStart])) return failedFit('exponential', n, 'the rise is aliased with the block offsets', res.method);
+  const pol = polishSeparable(d, EXPONENTIAL_SHAPE, profiled.fit, profiled.c, res.atBoundary === null);
+  const a = pol.offsetCoef[0];
+  const b = pol.b;
+  const c = pol.theta;
   const note =
     res.atBoundary === 'lower'
       ? 'curvature ran to its lower search limit: the response is effectively a straight line'
       : res.atBoundary === 'upper'
         ? 'curvature ran to its upper search limit: the response is a step between the control and the lowest rate'
-        : null;
+        : pol.lmConverged
+          ? null
+          : `Levenberg–Marquardt polish stopped with relative offset ${pol.relativeOffset.toExponential(2)}`;
+  const cov = jacobianCovariance(pol.jacobian, pol.rss);
   return {
     model: 'exponential',
     curve: { model: 'exponential', params: { intercept: a, rise: b, curvature: c, asymptote: a + b } },
-    rss: fit.rss,
-    parameters: fit.rank + 2,
+    rss: pol.rss,
+    parameters: profiled.fit.rank + 2,
     n,
-    converged: res.atBoundary === null,
-    method: `profiled least squares over log curvature (${res.method})`,
-    evaluations: res.evaluations,
+    converged: res.atBoundary === null && pol.lmConverged,
+    method: `profiled least squares over log curvature (${res.method}), Levenberg–Marquardt polish (${pol.iterations} iterations, relative offset ${pol.relativeOffset.toExponential(1)})`,
+    evaluations: res.evaluations + pol.iterations,
     note,
+    standardErrors: separableStandardErrors(cov, { intercept: [1, 0, 0], rise: [0, 1, 0], curvature: [0, 0, 1], asymptote: [1, 1, 0] }),
   };
 }

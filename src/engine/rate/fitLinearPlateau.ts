@@ -8,6 +8,8 @@
 import type { TrialRateData } from './rateData.js';
 import { fitWithOffsets, type LinearFit } from './leastSquares.js';
 import { failedFit, type FitOutcome } from './fitOutcome.js';
+import { LINEAR_PLATEAU_SHAPE, polishSeparable } from './separableCurve.js';
+import { jacobianCovariance, separableStandardErrors } from './standardErrors.js';
 
 export function fitLinearPlateau(d: TrialRateData): FitOutcome {
   const n = d.y.length;
@@ -47,6 +49,10 @@ export function fitLinearPlateau(d: TrialRateData): FitOutcome {
   const a = fit.coef[0];
   const b = fit.coef[fit.curveStart];
   const noPlateau = x0 >= u[m - 1];
+  // No LM here (the exact search is already the minimum, and the kink defeats derivatives);
+  // the Jacobian at the solution gives Gauss–Newton standard errors as nls reports them.
+  const pol = polishSeparable(d, LINEAR_PLATEAU_SHAPE, fit, x0, false);
+  const cov = noPlateau ? null : jacobianCovariance(pol.jacobian, fit.rss);
   return {
     model: 'linear-plateau',
     curve: { model: 'linear-plateau', params: { intercept: a, slope: b, join: x0, plateau: a + b * x0 } },
@@ -57,5 +63,6 @@ export function fitLinearPlateau(d: TrialRateData): FitOutcome {
     method: 'exact least squares over join intervals',
     evaluations,
     note: noPlateau ? 'join point at the highest tested rate: no plateau within the tested range' : null,
+    standardErrors: separableStandardErrors(cov, { intercept: [1, 0, 0], slope: [0, 1, 0], join: [0, 0, 1], plateau: [1, x0, b] }),
   };
 }

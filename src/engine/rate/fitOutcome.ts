@@ -14,8 +14,10 @@ export interface FitOutcome {
   readonly method: string;
   readonly evaluations: number;
   readonly note: string | null;
+  /** Asymptotic standard errors of the curve parameters (empty when not available). */
+  readonly standardErrors: Readonly<Record<string, number>>;
 }
 
 export function failedFit(model: RateModel, n: number, note: string, method = 'none'): FitOutcome {
-  return { model, curve: null, rss: NaN, parameters: 0, n, converged: false, method, evaluations: 0, note };
+  return { model, curve: null, rss: NaN, parameters: 0, n, converged: false, method, evaluations: 0, note, standardErrors: {} };
 }

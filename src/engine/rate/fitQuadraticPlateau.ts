@@ -7,6 +7,8 @@ import type { TrialRateData } from './rateData.js';
 import { fitWithOffsets } from './leastSquares.js';
 import { failedFit, type FitOutcome } from './fitOutcome.js';
 import { profileMinimum } from './profileSearch.js';
+import { QUADRATIC_PLATEAU_SHAPE, polishSeparable } from './separableCurve.js';
+import { jacobianCovariance, separableStandardErrors } from './standardErrors.js';
 
 const GRID_POINTS = 201;
 
@@ -35,26 +37,37 @@ export function fitQuadraticPlateau(d: TrialRateData): FitOutcome {
     }
     return { rss: fit.rss, derivative: -2 * g };
   }, grid);
-  const x0 = res.theta;
-  const fit = fitAt(x0);
-  const a = fit.coef[0];
-  const b = fit.coef[fit.curveStart];
-  if (Number.isNaN(b)) return failedFit('quadratic-plateau', n, 'the curve is aliased with the block offsets', res.method);
+  const profiled = fitAt(res.theta);
+  if (Number.isNaN(profiled.coef[profiled.curveStart])) return failedFit('quadratic-plateau', n, 'the curve is aliased with the block offsets', res.method);
+  const pol = polishSeparable(d, QUADRATIC_PLATEAU_SHAPE, profiled, res.theta, res.atBoundary === null);
+  const a = pol.offsetCoef[0];
+  const b = pol.b;
+  const x0 = pol.theta;
   const note =
     res.atBoundary === 'upper'
       ? 'join point ran to the highest tested rate: no plateau within the tested range'
       : res.atBoundary === 'lower'
         ? 'join point ran to the lowest tested rate: the whole response happens below it'
-        : null;
+        : pol.lmConverged
+          ? null
+          : `Levenberg–Marquardt polish stopped with relative offset ${pol.relativeOffset.toExponential(2)}`;
+  const cov = jacobianCovariance(pol.jacobian, pol.rss);
   return {
     model: 'quadratic-plateau',
     curve: { model: 'quadratic-plateau', params: { intercept: a, linear: b, quadratic: -b / (2 * x0), join: x0, plateau: a + (b * x0) / 2 } },
-    rss: fit.rss,
-    parameters: fit.rank + 2,
+    rss: pol.rss,
+    parameters: profiled.rank + 2,
     n,
-    converged: res.atBoundary === null,
-    method: `profiled least squares over the join point (${res.method})`,
-    evaluations: res.evaluations,
+    converged: res.atBoundary === null && pol.lmConverged,
+    method: `profiled least squares over the join point (${res.method}), Levenberg–Marquardt polish (${pol.iterations} iterations, relative offset ${pol.relativeOffset.toExponential(1)})`,
+    evaluations: res.evaluations + pol.iterations,
     note,
+    standardErrors: separableStandardErrors(cov, {
+      intercept: [1, 0, 0],
+      linear: [0, 1, 0],
+      join: [0, 0, 1],
+      quadratic: [0, -1 / (2 * x0), b / (2 * x0 * x0)],
+      plateau: [1, x0 / 2, b / 2],
+    }),
   };
 }

@@ -1,6 +1,6 @@
 // Least squares of y on the trial's offsets (intercept + blocks) plus curve columns, by the
 // shared Householder QR. Every curve fit — closed-form or profiled — goes through here.
-import { zeros } from '../linalg/matrix.js';
+import { zeros, type Matrix } from '../linalg/matrix.js';
 import { qrFactor, qrCoefficients } from '../linalg/qr.js';
 import type { TrialRateData } from './rateData.js';
 
@@ -38,4 +38,19 @@ export function fitWithOffsets(d: TrialRateData, curveCols: readonly Float64Arra
     rss += r * r;
   }
   return { coef, residuals, rss, rank: f.rank, curveStart: q };
+}
+
+/** The design [offset columns that were not aliased, curve columns] as a matrix. */
+export function designMatrix(d: TrialRateData, fit: LinearFit, curveCols: readonly Float64Array[]): Matrix {
+  const q = d.offsetCols;
+  const kept: number[] = [];
+  for (let j = 0; j < q; j++) if (!Number.isNaN(fit.coef[j])) kept.push(j);
+  const n = d.y.length;
+  const p = kept.length + curveCols.length;
+  const x = zeros(n, p);
+  for (let i = 0; i < n; i++) {
+    kept.forEach((j, k) => (x.data[i * p + k] = d.offsets[i * q + j]));
+    curveCols.forEach((c, k) => (x.data[i * p + kept.length + k] = c[i]));
+  }
+  return x;
 }

@@ -65,6 +65,8 @@ export interface TrialRateResult {
   readonly model: RateModel | null;
   /** Curve parameters; the intercept is the mean over blocks (sum-to-zero block offsets). */
   readonly params: Record<string, Num>;
+  /** Asymptotic standard errors (s² (J'J)^-1, as R's summary of lm/nls; derived ones by the delta method). */
+  readonly standardErrors: Record<string, Num>;
   /** Economic optimum rate for this trial, capped to its tested range. */
   readonly optimum: Num;
   /** The optimum before capping (closed form), null when it does not exist. */

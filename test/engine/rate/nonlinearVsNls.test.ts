@@ -3,7 +3,8 @@
 // sum-to-zero coded columns (B %*% bk), the same parameterisation as the engine. nls starts
 // from the engine's estimates moved by 3-8 % (joins by 3 %, staying in their interval between tested rates) and must converge on its own (relative-offset
 // tolerance 1e-7, relaxed to 1e-6 or 1e-5 where nls cannot reach it); where it does,
-// parameters must agree within 1e-5 relative and the residual sums of squares within 1e-9.
+// parameters must agree within 1e-5 relative, residual sums of squares within 1e-9 and
+// standard errors (summary.nls) within 1e-4.
 import { describe, expect, it } from 'vitest';
 import { analyzeRateResponse } from '../../../src/engine/rate/analyzeRateResponse.js';
 import type { RateModel } from '../../../src/engine/rate/types.js';
@@ -12,6 +13,9 @@ import { generateRateNetwork, exponentialCurve, linearPlateauCurve, quadraticPla
 
 const PARAM_TOL = 1e-5;
 const RSS_TOL = 1e-9;
+// nls builds its Jacobian by forward differences and stops at its own tolerance, so its
+// standard errors carry ~1e-6 relative noise; 1e-4 leaves room without hiding a real error.
+const SE_TOL = 1e-4;
 
 interface Case {
   readonly model: RateModel;
@@ -69,6 +73,8 @@ for (i in 1:${network.trials.length}) {
     cf <- coef(fit)
     emit(paste0("a", i), cf[["a"]]); emit(paste0("b", i), cf[["b"]]); emit(paste0("th", i), cf[["th"]])
     emit(paste0("rss", i), deviance(fit))
+    se <- summary(fit)$coefficients[, "Std. Error"]
+    emit(paste0("sea", i), se[["a"]]); emit(paste0("seb", i), se[["b"]]); emit(paste0("seth", i), se[["th"]])
   }
 }
 cat("R", as.character(getRversion()), "\\n")
@@ -84,6 +90,9 @@ cat("R", as.character(getRversion()), "\\n")
         expect(relDiff(tr.params[slopeName(c.model)] as number, rVector(run, `b${i + 1}`)[0])).toBeLessThan(PARAM_TOL);
         expect(relDiff(tr.params[c.nonlinear] as number, rVector(run, `th${i + 1}`)[0])).toBeLessThan(PARAM_TOL);
         expect(relDiff(tr.rss as number, rVector(run, `rss${i + 1}`)[0])).toBeLessThan(RSS_TOL);
+        expect(relDiff(tr.standardErrors.intercept as number, rVector(run, `sea${i + 1}`)[0])).toBeLessThan(SE_TOL);
+        expect(relDiff(tr.standardErrors[slopeName(c.model)] as number, rVector(run, `seb${i + 1}`)[0])).toBeLessThan(SE_TOL);
+        expect(relDiff(tr.standardErrors[c.nonlinear] as number, rVector(run, `seth${i + 1}`)[0])).toBeLessThan(SE_TOL);
       });
       // The comparison must actually happen: nls has to converge on most generated trials.
       expect(compared).toBeGreaterThanOrEqual(4);

@@ -1,7 +1,7 @@
 // Per-trial quadratic curves and optima against R's lm (stats package), on rate-trial data
 // generated at random here: y ~ block + rate + I(rate^2) with sum-to-zero block contrasts
 // (so the intercept is the mean over blocks, as the engine reports it).
-// Tolerance: 1e-8 relative on coefficients, optima and AICc.
+// Tolerance: 1e-8 relative on coefficients, their standard errors, optima and AICc.
 import { describe, expect, it } from 'vitest';
 import { analyzeRateResponse } from '../../../src/engine/rate/analyzeRateResponse.js';
 import { runR, rVector, relDiff } from '../../support/rscript.js';
@@ -31,6 +31,8 @@ for (i in seq_along(files)) {
   emit(paste0("b", i), cf[["rate"]])
   emit(paste0("c", i), cf[["I(rate^2)"]])
   emit(paste0("opt", i), (r - cf[["rate"]]) / (2 * cf[["I(rate^2)"]]))
+  se <- summary(fit)$coefficients[, "Std. Error"]
+  emit(paste0("sea", i), se[["(Intercept)"]]); emit(paste0("seb", i), se[["rate"]]); emit(paste0("sec", i), se[["I(rate^2)"]])
   k <- attr(logLik(fit), "df"); n <- nrow(d)
   emit(paste0("aicc", i), AIC(fit) + 2 * k * (k + 1) / (n - k - 1))
 }
@@ -49,6 +51,9 @@ function compareWithLm(timing: string | null) {
     expect(relDiff(tr.params.intercept as number, rVector(run, `a${i + 1}`)[0])).toBeLessThan(TOL);
     expect(relDiff(tr.params.linear as number, rVector(run, `b${i + 1}`)[0])).toBeLessThan(TOL);
     expect(relDiff(tr.params.quadratic as number, rVector(run, `c${i + 1}`)[0])).toBeLessThan(TOL);
+    expect(relDiff(tr.standardErrors.intercept as number, rVector(run, `sea${i + 1}`)[0])).toBeLessThan(TOL);
+    expect(relDiff(tr.standardErrors.linear as number, rVector(run, `seb${i + 1}`)[0])).toBeLessThan(TOL);
+    expect(relDiff(tr.standardErrors.quadratic as number, rVector(run, `sec${i + 1}`)[0])).toBeLessThan(TOL);
     const rOpt = rVector(run, `opt${i + 1}`)[0];
     expect(relDiff(tr.unconstrainedOptimum as number, rOpt)).toBeLessThan(TOL);
     // Capped to the tested range 0..200, with the flag saying so.
@@ -63,7 +68,7 @@ function compareWithLm(timing: string | null) {
 }
 
 describe('per-trial quadratic vs R lm (y ~ block + rate + I(rate^2))', () => {
-  it('at one timing plus the control: coefficients, optimum and AICc within 1e-8 relative', () => {
+  it('at one timing plus the control: coefficients, standard errors, optimum and AICc within 1e-8 relative', () => {
     compareWithLm('early');
   });
   it('averaged over timings (all plots): same agreement', () => {
