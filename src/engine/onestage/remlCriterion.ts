@@ -1,21 +1,44 @@
 // The restricted likelihood for given variance parameters, accumulated trial by trial:
 //   -2 logLik_REML = (N - p) log(2 pi) + sum_i log|V_i| + log|X'V^-1 X| + r'V^-1 r,
 // r = y - X beta_hat (the scale lme4 reports as its REML criterion). X holds the treatment
-// cell means, whose columns are the treatment columns of B in each trial.
+// cell means, whose columns are the treatment columns of B in each trial. Trials of one design
+// pattern share the design block of B'V^-1 B; per trial only B'V^-1 y is computed.
 import { cholesky, cholInverse, cholLogDet, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
 import type { NetworkStatistics } from './sufficientStatistics.js';
 import type { ParameterLayout } from './parameters.js';
-import { evaluateTrialBlock, randomColumnsOf, type TrialBlockState } from './trialBlock.js';
+import { designKey, evaluatePattern, randomColumnsOf, trialFromPattern, type PatternState, type TrialBlockState } from './trialBlock.js';
 
 export interface ModelFrame {
   readonly stats: NetworkStatistics;
   readonly layout: ParameterLayout;
   /** Random columns per trial, computed once. */
   readonly randomColumns: readonly Int32Array[];
+  /** Design pattern of each trial (same design, treatments and residual parameter), one trial per pattern, trials per pattern. */
+  readonly patternOf: Int32Array;
+  readonly patternTrial: readonly number[];
+  readonly patternCount: Int32Array;
+  /** Offset of each trial's (m - 1)-vector in Evaluation.hzy. */
+  readonly offsets: Int32Array;
 }
 
 export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): ModelFrame {
-  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf) };
+  const ids = new Map<string, number>();
+  const patternTrial: number[] = [];
+  const patternOf = Int32Array.from(stats.trials, (t, i) => {
+    const key = `${layout.residualParameter[i]}|${designKey(t)}`;
+    let id = ids.get(key);
+    if (id === undefined) {
+      id = patternTrial.length;
+      ids.set(key, id);
+      patternTrial.push(i);
+    }
+    return id;
+  });
+  const patternCount = new Int32Array(patternTrial.length);
+  for (const q of patternOf) patternCount[q]++;
+  const offsets = new Int32Array(stats.trials.length + 1);
+  stats.trials.forEach((t, i) => (offsets[i + 1] = offsets[i] + t.m - 1));
+  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf), patternOf, patternTrial, patternCount, offsets };
 }
 
 export interface Evaluation {
@@ -25,7 +48,10 @@ export interface Evaluation {
   readonly beta: Float64Array;
   /** (X'V^-1 X)^-1, p x p. */
   readonly c: Float64Array;
-  readonly states: TrialBlockState[];
+  readonly patterns: PatternState[];
+  /** Per trial: the design rows of B'V^-1 y (at frame.offsets[i]) and y'V^-1 y. */
+  readonly hzy: Float64Array;
+  readonly hyy: Float64Array;
   readonly sumLogDetV: number;
   readonly logDetXVX: number;
 }
@@ -42,22 +68,47 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   const xvy = new Float64Array(p);
   let yvy = 0;
   let sumLogDetV = 0;
-  const states: TrialBlockState[] = new Array(stats.trials.length);
-  for (let i = 0; i < stats.trials.length; i++) {
-    const t = stats.trials[i];
-    const s = evaluateTrialBlock(t, frame.randomColumns[i], gTerm, theta[layout.residualParameter[i]]);
-    states[i] = s;
-    sumLogDetV += s.logDetV;
-    const m = t.m;
-    const yc = t.yColumn;
+  const patterns: PatternState[] = frame.patternTrial.map((i) => evaluatePattern(stats.trials[i], frame.randomColumns[i], gTerm, theta[layout.residualParameter[i]]));
+  // X'V^-1 X: the pattern's treatment block times the number of its trials
+  patterns.forEach((pat, q) => {
+    const t = stats.trials[frame.patternTrial[q]];
+    const mz = t.m - 1;
     const tc = t.treatmentColumns;
     const tg = t.treatmentIndex;
-    for (let a = 0; a < tc.length; a++) {
-      const ra = tc[a] * m;
-      xvy[tg[a]] += s.h[ra + yc];
-      for (let b = 0; b < tc.length; b++) xvx[tg[a] * p + tg[b]] += s.h[ra + tc[b]];
+    const count = frame.patternCount[q];
+    for (let a = 0; a < tc.length; a++) for (let b = 0; b < tc.length; b++) xvx[tg[a] * p + tg[b]] += count * pat.hzz[tc[a] * mz + tc[b]];
+    sumLogDetV += count * ((t.n - pat.randomColumns.length) * Math.log(pat.sigma2) + pat.logDetM);
+  });
+  const hzy = new Float64Array(frame.offsets[stats.trials.length]);
+  const hyy = new Float64Array(stats.trials.length);
+  const kry = new Float64Array(frame.randomColumns.reduce((mx, rc) => Math.max(mx, rc.length), 1));
+  for (let i = 0; i < stats.trials.length; i++) {
+    const t = stats.trials[i];
+    const pat = patterns[frame.patternOf[i]];
+    const m = t.m;
+    const mz = m - 1;
+    const K = t.gram;
+    const R = pat.randomColumns;
+    const r = R.length;
+    const o = frame.offsets[i];
+    for (let b = 0; b < r; b++) kry[b] = K[R[b] * m + mz];
+    // H_Zy = (K_Zy - gz K_Ry) / sigma2 ; H_yy = (K_yy - K_yR W K_Ry) / sigma2
+    for (let j = 0; j < mz; j++) {
+      let s = K[j * m + mz];
+      for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * kry[b];
+      hzy[o + j] = s / pat.sigma2;
     }
-    yvy += s.h[yc * m + yc];
+    let q = 0;
+    for (let a = 0; a < r; a++) {
+      let s = 0;
+      for (let b = 0; b < r; b++) s += pat.w[a * r + b] * kry[b];
+      q += kry[a] * s;
+    }
+    hyy[i] = (K[mz * m + mz] - q) / pat.sigma2;
+    yvy += hyy[i];
+    const tc = t.treatmentColumns;
+    const tg = t.treatmentIndex;
+    for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hzy[o + tc[a]];
   }
   const xvxM: Matrix = { rows: p, cols: p, data: xvx };
   const l = cholesky(xvxM);
@@ -67,7 +118,12 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   for (let j = 0; j < p; j++) rvr -= xvy[j] * beta[j];
   const dfResidual = stats.nObservations - p;
   const criterion = dfResidual * Math.log(2 * Math.PI) + sumLogDetV + logDetXVX + rvr;
-  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, states, sumLogDetV, logDetXVX };
+  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, sumLogDetV, logDetXVX };
+}
+
+/** The full block of trial i (B'V^-1 B and friends), for the once-per-fit inference passes. */
+export function blockState(frame: ModelFrame, ev: Evaluation, i: number): TrialBlockState {
+  return trialFromPattern(frame.stats.trials[i], ev.patterns[frame.patternOf[i]]);
 }
 
 /** The criterion, or +Infinity where V is not positive definite (outside the parameter space). */

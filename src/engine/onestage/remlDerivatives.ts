@@ -3,10 +3,12 @@
 //   d/dtheta_k  = tr(P V_k) - y'P V_k P y
 //   AI_kl       = y'P V_k P V_l P y
 // with P = V^-1 - V^-1 X C X'V^-1, C = (X'V^-1 X)^-1, V_k = Z_k Z_k' or I. Everything is a
-// bilinear form on B: P y = V^-1 r, r = B rho.
+// bilinear form on B: P y = V^-1 r, r = B rho with rho = (-beta on the treatment columns, 1 on y).
+// The trace terms depend on the design only, so they are computed once per design pattern;
+// per trial only the vectors h = B'V^-1 r and h2 = B'V^-2 r are formed.
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
-import { ensureH2 } from './trialBlock.js';
-import { localBlock, residualCoordinates, symmetricMatVec, type ActiveParameter } from './trialParameters.js';
+import { ensurePatternH2 } from './trialBlock.js';
+import { localBlock, type ActiveParameter } from './trialParameters.js';
 
 export interface ScoreAndInformation {
   readonly gradient: Float64Array;
@@ -24,61 +26,113 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
   const trace = new Float64Array(nP);
   const quadratic = new Float64Array(nP);
   const ai = new Float64Array(nP * nP);
-  // v_k = X'V^-1 V_k V^-1 r, nP x p
-  const v = new Float64Array(nP * p);
+  const v = new Float64Array(nP * p); // v_k = X'V^-1 V_k V^-1 r
+
+  // design-only trace terms, once per pattern
+  ev.patterns.forEach((pat, q) => {
+    const i0 = frame.patternTrial[q];
+    const t = stats.trials[i0];
+    const mz = t.m - 1;
+    const H = pat.hzz;
+    const tc = t.treatmentColumns;
+    const nt = tc.length;
+    const cl = localBlock(ev.c, p, t.treatmentIndex);
+    const count = frame.patternCount[q];
+    for (const a of active[i0]) {
+      let tr = 0;
+      if (a.columns) {
+        for (const j of a.columns) {
+          tr += H[j * mz + j];
+          let s = 0;
+          for (let x = 0; x < nt; x++) {
+            const hx = H[j * mz + tc[x]];
+            if (hx === 0) continue;
+            let r = 0;
+            for (let y = 0; y < nt; y++) r += cl[x * nt + y] * H[j * mz + tc[y]];
+            s += hx * r;
+          }
+          tr -= s;
+        }
+      } else {
+        const H2 = ensurePatternH2(pat, mz);
+        tr += (t.n - pat.trWK) / pat.sigma2;
+        let s = 0;
+        for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) s += cl[x * nt + y] * H2[tc[y] * mz + tc[x]];
+        tr -= s;
+      }
+      trace[a.index] += count * tr;
+    }
+  });
+
+  const maxM = stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1);
+  const h = new Float64Array(maxM);
+  const h2 = new Float64Array(maxM);
+  const h2y = new Float64Array(maxM);
+  const av = new Float64Array(maxM);
+  const kr = new Float64Array(maxM);
   for (let i = 0; i < stats.trials.length; i++) {
     const t = stats.trials[i];
-    const s = ev.states[i];
+    const pat = ev.patterns[frame.patternOf[i]];
     const m = t.m;
-    const H = s.h;
+    const mz = m - 1;
+    const K = t.gram;
+    const H = pat.hzz;
+    const H2 = ensurePatternH2(pat, mz);
+    const R = pat.randomColumns;
+    const r = R.length;
+    const s2 = pat.sigma2;
     const tc = t.treatmentColumns;
     const tg = t.treatmentIndex;
     const nt = tc.length;
-    const cl = localBlock(ev.c, p, tg);
-    const rho = residualCoordinates(frame, i, ev.beta);
-    const h = symmetricMatVec(H, m, rho);
-    const act = active[i];
-    let h2: Float64Array | null = null;
-    let H2: Float64Array | null = null;
-    for (const a of act) {
-      if (a.columns === null) {
-        H2 = ensureH2(t, s);
-        h2 = symmetricMatVec(H2, m, rho);
-      }
+    const o = frame.offsets[i];
+    const hzy = ev.hzy;
+    // h = H rho: design rows H_Z,T rho_T + H_Zy ; y entry H_yT rho_T + H_yy
+    let hy = ev.hyy[i];
+    for (let j = 0; j < mz; j++) {
+      let s = hzy[o + j];
+      for (let x = 0; x < nt; x++) s -= H[j * mz + tc[x]] * ev.beta[tg[x]];
+      h[j] = s;
     }
+    for (let x = 0; x < nt; x++) hy -= hzy[o + tc[x]] * ev.beta[tg[x]];
+    h[mz] = hy;
+    // H2_Zy = (H_Zy - gz H_Ry) / sigma2 ; H2_yy = (H_yy - K_yR W H_Ry) / sigma2
+    for (let j = 0; j < mz; j++) {
+      let s = hzy[o + j];
+      for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * hzy[o + R[b]];
+      h2y[j] = s / s2;
+    }
+    let h2yy = ev.hyy[i];
+    for (let a = 0; a < r; a++) {
+      let s = 0;
+      for (let b = 0; b < r; b++) s += pat.w[a * r + b] * hzy[o + R[b]];
+      h2yy -= K[mz * m + R[a]] * s;
+    }
+    h2yy /= s2;
+    let h2last = h2yy;
+    for (let j = 0; j < mz; j++) {
+      let s = h2y[j];
+      for (let x = 0; x < nt; x++) s -= H2[j * mz + tc[x]] * ev.beta[tg[x]];
+      h2[j] = s;
+    }
+    for (let x = 0; x < nt; x++) h2last -= h2y[tc[x]] * ev.beta[tg[x]];
+    h2[mz] = h2last;
+    const act = active[i];
     for (const a of act) {
       const k = a.index;
       if (a.columns) {
-        const Z = a.columns;
-        for (const j of Z) {
-          trace[k] += H[j * m + j];
+        for (const j of a.columns) {
           quadratic[k] += h[j] * h[j];
-          // tr(C_loc H[T,j] H[j,T]) = H[j,T] C_loc H[T,j]
-          let q = 0;
-          for (let x = 0; x < nt; x++) {
-            const hx = H[j * m + tc[x]];
-            if (hx === 0) continue;
-            let r = 0;
-            for (let y = 0; y < nt; y++) r += cl[x * nt + y] * H[j * m + tc[y]];
-            q += hx * r;
-          }
-          trace[k] -= q;
-          for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * m + j] * h[j];
+          for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + j] * h[j];
         }
       } else {
-        const H2m = H2!;
-        const h2v = h2!;
-        trace[k] += (t.n - s.trWK) / s.sigma2;
-        let q = 0;
-        for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) q += cl[x * nt + y] * H2m[tc[y] * m + tc[x]];
-        trace[k] -= q;
-        let qq = 0;
-        for (let j = 0; j < m; j++) qq += rho[j] * h2v[j];
+        // rho' h2 = h2[y] - beta_T . h2[T]
+        let qq = h2[mz];
+        for (let x = 0; x < nt; x++) qq -= ev.beta[tg[x]] * h2[tc[x]];
         quadratic[k] += qq;
-        for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2v[tc[x]];
+        for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2[tc[x]];
       }
     }
-    // first AI term: r'V^-1 V_k V^-1 V_l V^-1 r
+    // first AI term r'V^-1 V_k V^-1 V_l V^-1 r
     for (let ia = 0; ia < act.length; ia++) {
       const A = act[ia];
       for (let ib = ia; ib < act.length; ib++) {
@@ -87,17 +141,28 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
         if (A.columns && B.columns) {
           for (const x of A.columns) {
             if (h[x] === 0) continue;
-            let r = 0;
-            for (const y of B.columns) r += H[x * m + y] * h[y];
-            val += h[x] * r;
+            let s = 0;
+            for (const y of B.columns) s += H[x * mz + y] * h[y];
+            val += h[x] * s;
           }
         } else if (A.columns || B.columns) {
-          const Z = (A.columns ?? B.columns)!;
-          for (const x of Z) val += h[x] * h2![x];
+          for (const x of (A.columns ?? B.columns)!) val += h[x] * h2[x];
         } else {
-          // r'V^-3 r = a' h2 with V^-1 r = B a, a = (rho - E_R W (K rho)_R) / sigma2
-          const aV = vInverseCoordinates(t.gram, m, s.randomColumns, s.w, s.sigma2, rho);
-          for (let j = 0; j < m; j++) val += aV[j] * h2![j];
+          // r'V^-3 r = a . h2 with V^-1 r = B a, a = (rho - E_R W (K rho)_R) / sigma2
+          for (let b = 0; b < r; b++) {
+            let s = K[R[b] * m + mz];
+            for (let x = 0; x < nt; x++) s -= K[R[b] * m + tc[x]] * ev.beta[tg[x]];
+            kr[b] = s;
+          }
+          av.fill(0, 0, m);
+          for (let x = 0; x < nt; x++) av[tc[x]] = -ev.beta[tg[x]];
+          av[mz] = 1;
+          for (let a = 0; a < r; a++) {
+            let s = 0;
+            for (let b = 0; b < r; b++) s += pat.w[a * r + b] * kr[b];
+            av[R[a]] -= s;
+          }
+          for (let j = 0; j < m; j++) val += (av[j] / s2) * h2[j];
         }
         ai[A.index * nP + B.index] += val;
         if (A.index !== B.index) ai[B.index * nP + A.index] += val;
@@ -122,23 +187,4 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
       if (l !== k) ai[l * nP + k] -= s;
     }
   return { gradient, ai, quadratic, trace };
-}
-
-/** Coordinates a with V^-1 B rho = B a. */
-export function vInverseCoordinates(gram: Float64Array, m: number, R: Int32Array, w: Float64Array, sigma2: number, rho: Float64Array): Float64Array {
-  const r = R.length;
-  const kr = new Float64Array(r);
-  for (let a = 0; a < r; a++) {
-    let s = 0;
-    for (let j = 0; j < m; j++) s += gram[R[a] * m + j] * rho[j];
-    kr[a] = s;
-  }
-  const out = Float64Array.from(rho);
-  for (let a = 0; a < r; a++) {
-    let s = 0;
-    for (let b = 0; b < r; b++) s += w[a * r + b] * kr[b];
-    out[R[a]] -= s;
-  }
-  for (let j = 0; j < m; j++) out[j] /= sigma2;
-  return out;
 }

@@ -5,7 +5,7 @@
 //   O_kl  = 2 y'P V_k P V_l P y - tr(P V_k P V_l)   observed Hessian of -2 logLik
 // with tr(P V_k P V_l) = tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) + tr(C P_k C P_l). All sums run
 // trial by trial over the small blocks; Q_kl is only ever held per trial.
-import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import { blockState, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensureH2, nextInversePower } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
@@ -47,7 +47,7 @@ interface TrialForms {
 
 function trialForms(frame: ModelFrame, ev: Evaluation, i: number, act: readonly ActiveParameter[]): TrialForms {
   const t = frame.stats.trials[i];
-  const s = ev.states[i];
+  const s = blockState(frame, ev, i);
   const m = t.m;
   const T = t.treatmentColumns;
   const H = s.h;

@@ -3,7 +3,7 @@
 // and block effects cancel because contrast coefficients sum to zero) and the trial's own
 // fixed-effects estimate (blocks + treatments fitted to that trial alone, from its Gram matrix).
 import { cholesky, cholInverse, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import { blockState, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import { residualCoordinates, symmetricMatVec } from './trialParameters.js';
 import type { TrialContrastReport } from './types.js';
 
@@ -62,7 +62,7 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
   return frame.stats.trials.map((t, i) => {
     const own = ownFit(frame, i);
     const rho = residualCoordinates(frame, i, ev.beta);
-    const h = symmetricMatVec(ev.states[i].h, t.m, rho);
+    const h = symmetricMatVec(blockState(frame, ev, i).h, t.m, rho);
     const local = new Int32Array(p).fill(-1);
     t.treatmentIndex.forEach((g, a) => (local[g] = a));
     const out = contrasts.map((c): TrialContrastReport => {
