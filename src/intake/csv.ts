@@ -142,7 +142,7 @@ export class CsvRecordReader {
       pos += c === CR && pos + 1 < n && text.charCodeAt(pos + 1) === LF ? 2 : 1;
       break;
     }
-    out.length = count;
+    if (out.length !== count) out.length = count; // setting length is a runtime call: only when it changes
     this.pos = pos;
     return this.records;
   }

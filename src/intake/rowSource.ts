@@ -61,18 +61,30 @@ export function openCsv(text: string, options: SourceOptions): RowSource | null 
       break;
     }
   }
-  return {
-    header: header.map((h) => h.trim()),
-    headerRow,
-    decimalMode: decimalComma ? 'comma' : 'point',
-    next: (out) => reader.next(out),
-    fraction: () => reader.fraction(),
-    finish(problems) {
-      if (reader.unterminatedQuoteRecord > 0) {
-        problems.add(reader.unterminatedQuoteRecord, null, null, 'unclosed-quote', 'a quoted field opened on this row is never closed, so the rest of the file was read as one cell');
-      }
-    },
-  };
+  return new CsvRowSource(reader, header.map((h) => h.trim()), headerRow, decimalComma ? 'comma' : 'point');
+}
+
+class CsvRowSource implements RowSource {
+  constructor(
+    private readonly reader: CsvRecordReader,
+    readonly header: readonly string[],
+    readonly headerRow: number,
+    readonly decimalMode: DecimalMode,
+  ) {}
+
+  next(out: string[]): number {
+    return this.reader.next(out);
+  }
+
+  fraction(): number {
+    return this.reader.fraction();
+  }
+
+  finish(problems: ProblemList): void {
+    if (this.reader.unterminatedQuoteRecord > 0) {
+      problems.add(this.reader.unterminatedQuoteRecord, null, null, 'unclosed-quote', 'a quoted field opened on this row is never closed, so the rest of the file was read as one cell');
+    }
+  }
 }
 
 function openXlsx(filePath: string, bytes: Uint8Array, options: SourceOptions): RowSource | null {
