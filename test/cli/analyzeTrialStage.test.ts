@@ -80,6 +80,7 @@ cc <- list(
   rate_linear = (rates - mean(rates)) / sum((rates - mean(rates))^2))
 for (e in sort(unique(d$env))) {
   s <- d[d$env == e & !is.na(d$y), ]
+  s$block <- droplevels(s$block)
   s$trt <- factor(s$trt, levels = intersect(codes, unique(s$trt)))
   fit <- lm(y ~ block + trt, data = s)
   grid <- expand.grid(block = levels(s$block), trt = levels(s$trt))

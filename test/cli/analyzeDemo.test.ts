@@ -1,0 +1,84 @@
+// The example analysis on the demo workspace through the command: the JSON contract of
+// DESIGN §5 is complete, the designed quirks are flagged and kept, and the rate response gives
+// a pooled optimum with its interval, profitable range and the cautions — in JSON and as text.
+import { beforeAll, describe, expect, it } from 'vitest';
+import { join } from 'node:path';
+import { manyfield, tempDir } from '../support/cli.js';
+
+const POOLED_KEYS = ['name', 'estimate', 'se', 'lower', 'upper', 'p', 'tau2', 'tau2Lower', 'tau2Upper', 'Q', 'Qdf', 'Qp', 'I2', 'H2', 'predictionLower', 'predictionUpper', 'probPositive', 'probAboveThreshold', 'k'];
+
+interface Flag { code: string; plotId?: string | number | null }
+interface Report {
+  oneStage: { remlCriterion: number; logLik: number; converged: boolean; iterations: number; variance: Record<string, unknown>; means: { treatment: string; estimate: number; se: number }[]; contrasts: { name: string; estimate: number; se: number; df: number; lower: number; upper: number; p: number }[] };
+  twoStage: { trials: { trial: string; model: { n: number }; flags: Flag[]; contrasts: { name: string }[] }[]; pooled: Record<string, unknown>[] };
+  rateResponse: { pooled: { optimum: number; optimumLower: number; optimumUpper: number; profitableLower: number; profitableUpper: number; netReturnAtOptimum: number; yieldGainAtOptimum: number }; trials: { trial: string; model: string; optimum: number | null; converged: boolean }[]; cautions: string[] };
+  warnings: string[];
+  cautions: string[];
+}
+
+describe('analyze on the demo workspace', () => {
+  const dir = tempDir();
+  const ws = join(dir, 'demo.manyfield');
+  const spec = join(process.cwd(), 'examples', 'demo-analysis.json');
+  let report: Report;
+
+  beforeAll(() => {
+    expect(manyfield(['demo', '--workspace', ws]).status).toBe(0);
+    const r = manyfield(['analyze', '--workspace', ws, '--spec', spec, '--json']);
+    expect(r.stderr).toBe('');
+    expect(r.status).toBe(0);
+    report = JSON.parse(r.stdout) as Report;
+  });
+
+  it('fills every key of the contract', () => {
+    expect(report.twoStage.pooled.map((p) => p.name)).toEqual(['treated_vs_control', 'early_vs_late', 'rate_linear']);
+    for (const p of report.twoStage.pooled) for (const k of POOLED_KEYS) expect(p, `pooled.${k}`).toHaveProperty(k);
+    const o = report.oneStage;
+    expect(o.converged).toBe(true);
+    expect(Number.isFinite(o.logLik)).toBe(true);
+    expect(o.remlCriterion).toBeCloseTo(-2 * o.logLik, 6);
+    expect(Object.keys(o.variance)).toEqual(expect.arrayContaining(['trial', 'block', 'treatment:trial', 'residualByTrial']));
+    expect(o.means).toHaveLength(7);
+    expect(o.contrasts.map((c) => c.name)).toEqual(['treated_vs_control', 'early_vs_late', 'rate_linear']);
+    expect(report.twoStage.trials).toHaveLength(42);
+  });
+
+  it('flags the column-trend trial and the outlier, and drops neither', () => {
+    const inc = report.twoStage.trials.find((t) => t.trial === 'INC-2023')!;
+    expect(inc.flags.map((f) => f.code)).toContain('spatial-trend');
+    expect(inc.model.n).toBe(28);
+    const jes = report.twoStage.trials.find((t) => t.trial === 'JES-2024')!;
+    expect(jes.flags.map((f) => f.code)).toContain('outlier-residual');
+    expect(jes.model.n).toBe(28);
+  });
+
+  it('leaves the trial missing a treatment out of those contrasts, with a warning', () => {
+    expect(report.warnings.filter((w) => w.includes('DUN-2025'))).toHaveLength(3);
+    expect(report.twoStage.pooled.every((p) => p.k === 41)).toBe(true);
+  });
+
+  it('gives a pooled economic optimum with interval and profitable range, and the cautions', () => {
+    const p = report.rateResponse.pooled;
+    expect(p.optimumLower).toBeLessThan(p.optimum);
+    expect(p.optimum).toBeLessThan(p.optimumUpper);
+    expect(p.profitableLower).toBeLessThanOrEqual(p.optimum);
+    expect(p.optimum).toBeLessThanOrEqual(p.profitableUpper);
+    expect(p.optimum).toBeGreaterThan(0);
+    expect(p.optimum).toBeLessThanOrEqual(160);
+    expect(p.yieldGainAtOptimum).toBeGreaterThan(p.netReturnAtOptimum);
+    expect(report.rateResponse.trials).toHaveLength(42);
+    expect(report.cautions.join(' ')).toMatch(/label/);
+    expect(report.rateResponse.cautions.join(' ')).toMatch(/local agronomic advice/);
+  });
+
+  it('prints the same as a readable table with the cautions when --json is not given', () => {
+    const r = manyfield(['analyze', '--workspace', ws, '--spec', spec, '--no-save']);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toMatch(/Economic optimum/);
+    expect(r.stdout).toMatch(/profitable range/);
+    expect(r.stdout).toMatch(/label limits/);
+    expect(r.stdout).toMatch(/treated_vs_control/);
+    const optimum = report.rateResponse.pooled.optimum;
+    expect(r.stdout).toContain(Number(optimum.toPrecision(4)).toString());
+  });
+});
