@@ -104,6 +104,9 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
   if (pooled.length === 0) warnings.push('No trial has a converged curve: no pooled optimum.');
   else if (pooled.length < 5) warnings.push(`Only ${pooled.length} trial(s) in the pooled optimum: its interval is rough.`);
   if (options.model === 'best' && new Set(curves.map((c) => c.model)).size > 1) warnings.push('Trials use different curve models (chosen per trial by AICc); the pooled curve averages them.');
+  const straight = trials.filter((t) => t.model === 'linear' && t.optimum !== null).length;
+  if (options.model === 'best' && straight > 0)
+    warnings.push(`${straight} trial(s) are best described by a straight line over the tested rates: a line has no optimum inside the range, so their optimum sits at an end of it and pulls the pooled optimum there. Compare with a curved model before recommending a rate.`);
 
   const point = pooled.length > 0 && hi >= lo ? pooledOptimum(curves, r, lo, hi, options.profitableWithin) : null;
   const pooledResult = buildPooled(point, curves, pooled, options, lo, hi, progress, signal, warnings);

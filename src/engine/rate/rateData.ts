@@ -67,10 +67,10 @@ function blockingLabels(trial: TrialInput): ((p: TrialInput['plots'][number]) =>
       return [];
     case 'randomised-blocks':
       return [(p) => p.block];
+    // Rows and columns, as the per-trial analysis models these designs.
     case 'latin-square':
-      return [(p) => (p.row === null ? null : String(p.row)), (p) => (p.col === null ? null : String(p.col))];
     case 'row-column':
-      return [(p) => p.block, (p) => (p.row === null ? null : String(p.row)), (p) => (p.col === null ? null : String(p.col))];
+      return [(p) => (p.row === null ? null : String(p.row)), (p) => (p.col === null ? null : String(p.col))];
   }
 }
 

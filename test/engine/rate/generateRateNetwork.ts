@@ -45,14 +45,27 @@ export function generateRateNetwork(o: GenerateOptions): NetworkInput {
     // Centred block effects, so the curve's intercept is the mean over blocks.
     const rawBlock = Array.from({ length: nb }, () => 0.4 * z());
     const blockEff = rawBlock.map((v) => v - rawBlock.reduce((s, w) => s + w, 0) / nb);
+    // Row-column trials: rows are the blocks, treatments placed at random along each row,
+    // and every column carries its own effect too.
+    const rowCol = design === 'row-column';
+    const colEff = treatments.map(() => (rowCol ? 0.3 * z() : 0));
     let plots: PlotObservation[] = [];
     for (let b = 0; b < nb; b++) {
-      for (const tr of treatments) {
+      const order = treatments.map((_, i) => i).sort(() => u() - 0.5);
+      treatments.forEach((tr, j) => {
         const x = (tr.levels.rate as number | null) ?? 0;
         const shift = tr.levels.timing === 'late' ? (o.lateShift ?? -0.1) : 0;
-        const value = curve(x) + shift + (design === 'completely-randomised' ? 0 : blockEff[b]) + sd * z();
-        plots.push({ plotId: `${t}-${b}-${tr.code}`, treatment: tr.code, block: design === 'completely-randomised' ? null : `B${b + 1}`, row: null, col: null, value });
-      }
+        const col = order[j];
+        const value = curve(x) + shift + (design === 'completely-randomised' ? 0 : blockEff[b]) + colEff[col] + sd * z();
+        plots.push({
+          plotId: `${t}-${b}-${tr.code}`,
+          treatment: tr.code,
+          block: design === 'completely-randomised' ? null : `B${b + 1}`,
+          row: rowCol ? b + 1 : null,
+          col: rowCol ? col + 1 : null,
+          value,
+        });
+      });
     }
     for (let k = 0; k < (o.dropPlots ?? 0); k++) plots = plots.filter((_, i) => i !== Math.floor(u() * plots.length));
     trials.push({ trial: `T${String(t + 1).padStart(2, '0')}`, design, plots });
@@ -91,3 +104,17 @@ export const quadraticPlateauCurve = (a: number, b: number, x0: number): TrueCur
   const m = Math.min(x, x0);
   return a + b * m - (b * m * m) / (2 * x0);
 };
+
+/** As trialCsv, with the row and column of each plot (row-column trials). */
+export function trialCsvRowCol(network: NetworkInput, trial: TrialInput, timing: string | null): string {
+  const rateOf = new Map(network.treatments.map((t) => [t.code, t.levels.rate === null ? 0 : (t.levels.rate as number)]));
+  const timingOf = new Map(network.treatments.map((t) => [t.code, t.levels.timing]));
+  const lines = ['row,col,rate,y'];
+  for (const p of trial.plots) {
+    const tm = timingOf.get(p.treatment);
+    if (timing !== null && tm !== null && tm !== timing) continue;
+    if (p.value === null) continue;
+    lines.push(`${p.row},${p.col},${rateOf.get(p.treatment)},${p.value.toPrecision(17)}`);
+  }
+  return lines.join('\n') + '\n';
+}

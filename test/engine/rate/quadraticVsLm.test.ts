@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeRateResponse } from '../../../src/engine/rate/analyzeRateResponse.js';
 import { runR, rVector, relDiff } from '../../support/rscript.js';
-import { generateRateNetwork, quadraticCurve, quadraticPlateauCurve, exponentialCurve, trialCsv } from './generateRateNetwork.js';
+import { generateRateNetwork, quadraticCurve, quadraticPlateauCurve, exponentialCurve, trialCsv, trialCsvRowCol } from './generateRateNetwork.js';
 
 const TOL = 1e-8;
 const priceRatio = 0.006;
@@ -73,5 +73,36 @@ describe('per-trial quadratic vs R lm (y ~ block + rate + I(rate^2))', () => {
   });
   it('averaged over timings (all plots): same agreement', () => {
     compareWithLm(null);
+  });
+});
+
+describe('row-column trials: rows and columns as offsets, vs R lm (y ~ row + col + rate + I(rate^2))', () => {
+  it('coefficients, standard errors and optimum within 1e-8 relative', () => {
+    const rc = generateRateNetwork({ seed: 4711, trials: 3, curves: [quadraticCurve(6, 0.03, -8e-5)], designs: ['row-column'], sd: 0.3 });
+    const res = analyzeRateResponse(rc, { factor: 'rate', model: 'quadratic', priceRatio, profitableWithin: 0, bootstrap: 0, seed: 1, confidence: 0.95 });
+    const files: Record<string, string> = {};
+    rc.trials.forEach((t, i) => (files[`t${i + 1}.csv`] = trialCsvRowCol(rc, t, null)));
+    const run = runR(
+      `
+for (i in 1:${rc.trials.length}) {
+  d <- read.csv(paste0("t", i, ".csv")); d$row <- factor(d$row); d$col <- factor(d$col)
+  fit <- lm(y ~ row + col + rate + I(rate^2), data = d, contrasts = list(row = "contr.sum", col = "contr.sum"))
+  cf <- coef(fit); se <- summary(fit)$coefficients[, "Std. Error"]
+  emit(paste0("a", i), cf[["(Intercept)"]]); emit(paste0("b", i), cf[["rate"]]); emit(paste0("c", i), cf[["I(rate^2)"]])
+  emit(paste0("seb", i), se[["rate"]]); emit(paste0("sec", i), se[["I(rate^2)"]])
+  emit(paste0("opt", i), (${priceRatio} - cf[["rate"]]) / (2 * cf[["I(rate^2)"]]))
+}
+`,
+      files,
+    );
+    rc.trials.forEach((_, i) => {
+      const tr = res.trials[i];
+      expect(relDiff(tr.params.intercept as number, rVector(run, `a${i + 1}`)[0])).toBeLessThan(TOL);
+      expect(relDiff(tr.params.linear as number, rVector(run, `b${i + 1}`)[0])).toBeLessThan(TOL);
+      expect(relDiff(tr.params.quadratic as number, rVector(run, `c${i + 1}`)[0])).toBeLessThan(TOL);
+      expect(relDiff(tr.standardErrors.linear as number, rVector(run, `seb${i + 1}`)[0])).toBeLessThan(TOL);
+      expect(relDiff(tr.standardErrors.quadratic as number, rVector(run, `sec${i + 1}`)[0])).toBeLessThan(TOL);
+      expect(relDiff(tr.unconstrainedOptimum as number, rVector(run, `opt${i + 1}`)[0])).toBeLessThan(TOL);
+    });
   });
 });
