@@ -15,8 +15,13 @@ function isBlankCode(c: number): boolean {
  * exponent, surrounding blanks allowed). Returns NaN for anything else, including "".
  */
 export function parseDecimal(s: string, mode: DecimalMode): number {
-  let i = 0;
-  let n = s.length;
+  return parseDecimalRange(s, 0, s.length, mode);
+}
+
+/** parseDecimal on s[from, to), without cutting the string out first. */
+export function parseDecimalRange(s: string, from: number, to: number, mode: DecimalMode): number {
+  let i = from;
+  let n = to;
   while (i < n && isBlankCode(s.charCodeAt(i))) i++;
   while (n > i && isBlankCode(s.charCodeAt(n - 1))) n--;
   if (i === n) return NaN;
@@ -73,9 +78,14 @@ export function parseDecimal(s: string, mode: DecimalMode): number {
 
 /** Cell text that means "no value": empty, blanks only, or R's NA. */
 export function isMissingText(s: string): boolean {
-  const n = s.length;
-  if (n === 0) return true;
-  if (n === 2 && s === 'NA') return true;
-  for (let i = 0; i < n; i++) if (!isBlankCode(s.charCodeAt(i))) return s.trim() === 'NA';
-  return true;
+  return isMissingRange(s, 0, s.length);
+}
+
+/** isMissingText on s[from, to). */
+export function isMissingRange(s: string, from: number, to: number): boolean {
+  let i = from;
+  let n = to;
+  while (i < n && isBlankCode(s.charCodeAt(i))) i++;
+  while (n > i && isBlankCode(s.charCodeAt(n - 1))) n--;
+  return i === n || (n - i === 2 && s.charCodeAt(i) === 78 && s.charCodeAt(i + 1) === 65); // "NA"
 }

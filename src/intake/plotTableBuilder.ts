@@ -3,8 +3,9 @@
 // one-entry cache, since files are usually sorted by trial and often by treatment.
 import type { FactorInfo, LevelValue, TreatmentInfo, TrialDesign } from '../engine/types.js';
 import { parseDesignName, DESIGN_NAMES } from './designs.js';
-import { isMissingText, parseDecimal, type DecimalMode } from './numbers.js';
+import { parseDecimal, type DecimalMode } from './numbers.js';
 import type { PlotColumns } from './plotColumns.js';
+import type { RowCells } from './rowCells.js';
 import type { ProblemList } from './problems.js';
 import type { ImportMapping, ParsedObservation, ParsedPlot, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
 import { findUnit, toCanonical } from './units.js';
@@ -25,6 +26,11 @@ interface TreatmentState {
   readonly raw: string[];
 }
 
+interface BlockState {
+  readonly label: string;
+  readonly id: number;
+}
+
 interface TrialState {
   readonly key: string;
   readonly firstRow: number;
@@ -40,8 +46,9 @@ interface TrialState {
   rowWithoutRowCol: number;
   /** Plot key -> plot index; keys are small integers where possible (cheaper than strings). */
   readonly plotIndex: Map<number | string, number>;
-  /** Block label -> id, which also shares one string per block among the trial's plots. */
-  readonly blocks: Map<string, { readonly label: string; readonly id: number }>;
+  /** Block label -> block, which also shares one string per block among the trial's plots. */
+  readonly blocks: Map<string, BlockState>;
+  lastBlock: BlockState | null;
   /** Plots per treatment id. */
   readonly plotsPerTreatment: number[];
   readonly covariates: (string | null)[];
@@ -59,11 +66,6 @@ function smallPair(a: number, b: number): number | null {
   return a >= 0 && b >= 0 && a < 16384 && b < 16384 ? a * 16384 + b : null;
 }
 
-/** Cell `i` of a row; '' when the column is not mapped (-1) or the row is short. */
-function cellAt(f: readonly string[], i: number): string {
-  return i >= 0 && i < f.length ? f[i] : '';
-}
-
 function parseYear(text: string, mode: DecimalMode): number {
   const y = parseDecimal(text, mode);
   return Number.isInteger(y) && y >= 1000 && y <= 9999 ? y : NaN;
@@ -74,6 +76,7 @@ export class PlotTableBuilder {
   private readonly traitList: TraitState[] = [];
   private readonly acceptAnyTrait: boolean;
   private readonly treatments = new Map<string, TreatmentState>();
+  private readonly treatmentList: TreatmentState[] = [];
   private readonly allowedTreatments: Set<string> | null;
   private readonly trials = new Map<string, TrialState>();
   private readonly plots: ParsedPlot[] = [];
@@ -126,14 +129,14 @@ export class PlotTableBuilder {
   }
 
   /** Validates one data row and adds its plot and observation. */
-  addRow(f: string[], rowNo: number): void {
+  addRow(r: RowCells, rowNo: number): void {
     const cols = this.cols;
     const problems = this.problems;
-    const n = f.length;
+    const n = r.count;
     // Blank rows (often trailing ones from spreadsheets) are not data.
     let blank = true;
     for (let i = 0; i < n; i++) {
-      if (f[i] !== '') {
+      if (!r.isEmpty(i)) {
         blank = false;
         break;
       }
@@ -141,48 +144,29 @@ export class PlotTableBuilder {
     if (blank) return;
     this.rowsRead++;
     for (let i = cols.header.length; i < n; i++) {
-      if (f[i] !== '') {
-        problems.add(rowNo, null, f[i], 'extra-cells', `the row has ${n} cells but the header only ${cols.header.length}; check the delimiter or quoting`);
+      if (!r.isEmpty(i)) {
+        problems.add(rowNo, null, r.text(i), 'extra-cells', `the row has ${n} cells but the header only ${cols.header.length}; check the delimiter or quoting`);
         break;
       }
     }
-    const trial = this.trialOf(f, rowNo);
-    const treatment = this.treatmentOf(cellAt(f, cols.treatment), f, rowNo);
+
+    const trial = this.trialOf(r, rowNo);
+    const treatment = this.treatmentOf(r, rowNo);
 
     // Layout: block, row, column, plot id.
-    const blockText = cellAt(f, cols.block);
-    const plotRow = this.layoutNumber(cols.row, cellAt(f, cols.row), rowNo);
-    const plotCol = this.layoutNumber(cols.col, cellAt(f, cols.col), rowNo);
-    const plotId = cellAt(f, cols.plot);
+    const plotRow = this.layoutNumber(r, cols.row, rowNo);
+    const plotCol = this.layoutNumber(r, cols.col, rowNo);
+    const plotId = cols.plot >= 0 ? r.text(cols.plot) : '';
     if (cols.plot >= 0 && plotId === '') problems.add(rowNo, this.cellName(cols.plot), '', 'missing-value', 'the plot identifier is empty');
 
     // Trait and value.
-    let trait: TraitState | undefined;
-    if (cols.trait >= 0) {
-      const name = cellAt(f, cols.trait);
-      trait = this.traits.get(name);
-      if (trait === undefined) {
-        if (name === '') problems.add(rowNo, this.cellName(cols.trait), '', 'missing-value', 'the trait name is empty');
-        else if (this.acceptAnyTrait) trait = this.declareTrait(name, 'as-is');
-        else problems.add(rowNo, this.cellName(cols.trait), name, 'unknown-trait', `trait "${name}" is not listed under "traits" in the mapping (listed: ${this.traitList.map((t) => t.trait.name).join(', ')})`);
-      }
-    } else trait = this.traitList[0];
-    const value = trait === undefined ? null : this.valueOf(cellAt(f, cols.response), trait, rowNo);
+    const trait = cols.trait >= 0 ? this.traitOf(r, rowNo) : this.traitList[0];
+    const value = trait === undefined ? null : this.valueOf(r, trait, rowNo);
 
     if (trial === null || treatment === null || trait === undefined) return;
 
-    let block = blockText;
-    let blockId = -1;
-    if (blockText !== '') {
-      trial.hasBlock = true;
-      let b = trial.blocks.get(blockText);
-      if (b === undefined) {
-        b = { label: blockText, id: trial.blocks.size };
-        trial.blocks.set(blockText, b);
-      }
-      block = b.label;
-      blockId = b.id;
-    } else if (trial.rowWithoutBlock === 0) trial.rowWithoutBlock = rowNo;
+    const block = cols.block >= 0 ? this.blockOf(trial, r) : null;
+    if (block === null && trial.rowWithoutBlock === 0) trial.rowWithoutBlock = rowNo;
     if ((plotRow === null || plotCol === null) && trial.rowWithoutRowCol === 0) trial.rowWithoutRowCol = rowNo;
 
     // Plot identity: plot id, else row+column, else block+treatment.
@@ -196,20 +180,20 @@ export class PlotTableBuilder {
     } else if (plotRow !== null && plotCol !== null) {
       key = smallPair(plotRow, plotCol) ?? `${plotRow}\u0001${plotCol}`;
       keyColumn = cols.row;
-    } else if (blockId >= 0) {
-      key = smallPair(blockId, treatment.id) ?? `${block}\u0000${treatment.code}`;
+    } else if (block !== null) {
+      key = smallPair(block.id, treatment.id) ?? `${block.label}\u0000${treatment.code}`;
       keyColumn = cols.block;
     }
 
     let plotIndex = key === null ? undefined : trial.plotIndex.get(key);
     if (plotIndex !== undefined) {
       const existing = this.plots[plotIndex];
-      const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block}" and treatment "${treatment.code}"`;
+      const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block?.label ?? ''}" and treatment "${treatment.code}"`;
       if (cols.trait < 0 || this.wasObserved(plotIndex, trait.index)) {
-        problems.add(rowNo, this.cellName(keyColumn), f[keyColumn], 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}`);
+        problems.add(rowNo, this.cellName(keyColumn), r.text(keyColumn), 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}`);
         return;
       }
-      if (existing.treatment !== treatment.code || existing.block !== (block === '' ? null : block)) {
+      if (existing.treatment !== treatment.code || existing.block !== (block?.label ?? null)) {
         problems.add(rowNo, this.cellName(cols.treatment), treatment.code, 'plot-disagrees', `${what} of trial "${trial.key}" has treatment "${existing.treatment}", block "${existing.block ?? ''}" on row ${existing.sourceRow}`);
         return;
       }
@@ -219,7 +203,7 @@ export class PlotTableBuilder {
         problems.add(rowNo, this.cellName(cols.trait), trait.trait.name, 'no-plot-identifier', 'with one row per plot and trait, each row needs a plot column, row and column, or a block to tie its traits to one plot');
       }
       plotIndex = this.plots.length;
-      this.plots.push({ trialKey: trial.key, treatment: treatment.code, block: block === '' ? null : block, row: plotRow, col: plotCol, plotId: cols.plot >= 0 ? plotId : null, sourceRow: rowNo });
+      this.plots.push({ trialKey: trial.key, treatment: treatment.code, block: block === null ? null : block.label, row: plotRow, col: plotCol, plotId: cols.plot >= 0 ? plotId : null, sourceRow: rowNo });
       if (key !== null) trial.plotIndex.set(key, plotIndex);
       const reps = trial.plotsPerTreatment;
       while (reps.length <= treatment.id) reps.push(0);
@@ -241,31 +225,69 @@ export class PlotTableBuilder {
     } else this.observedMore.add(`${plot}:${trait}`);
   }
 
-  private trialOf(f: string[], rowNo: number): TrialState | null {
+  private traitOf(r: RowCells, rowNo: number): TraitState | undefined {
+    const i = this.cols.trait;
+    for (const t of this.traitList) if (r.equals(i, t.trait.name)) return t;
+    const name = r.text(i);
+    if (name === '') this.problems.add(rowNo, this.cellName(i), '', 'missing-value', 'the trait name is empty');
+    else if (this.acceptAnyTrait) return this.declareTrait(name, 'as-is');
+    else this.problems.add(rowNo, this.cellName(i), name, 'unknown-trait', `trait "${name}" is not listed under "traits" in the mapping (listed: ${this.traitList.map((t) => t.trait.name).join(', ')})`);
+    return undefined;
+  }
+
+  /** The block of this row within its trial, with one shared label string per block; null when empty. */
+  private blockOf(trial: TrialState, r: RowCells): BlockState | null {
+    const i = this.cols.block;
+    if (r.isEmpty(i)) return null;
+    trial.hasBlock = true;
+    const last = trial.lastBlock;
+    if (last !== null && r.equals(i, last.label)) return last;
+    let b: BlockState | undefined;
+    if (trial.blocks.size <= 16) {
+      for (const candidate of trial.blocks.values()) {
+        if (r.equals(i, candidate.label)) {
+          b = candidate;
+          break;
+        }
+      }
+    } else b = trial.blocks.get(r.text(i));
+    if (b === undefined) {
+      const label = r.text(i);
+      b = { label, id: trial.blocks.size };
+      trial.blocks.set(label, b);
+    }
+    trial.lastBlock = b;
+    return b;
+  }
+
+  private trialOf(r: RowCells, rowNo: number): TrialState | null {
     const cols = this.cols;
-    const n = f.length;
-    const siteRaw = cols.site >= 0 && cols.site < n ? f[cols.site] : '';
-    const yearRaw = cols.year >= 0 && cols.year < n ? f[cols.year] : '';
     let trial: TrialState | null | undefined;
     if (cols.trial >= 0) {
-      const key = cols.trial < n ? f[cols.trial] : '';
-      if (key === '') {
-        this.problems.add(rowNo, this.cellName(cols.trial), '', 'missing-value', 'the trial is empty');
-        return null;
-      }
-      trial = this.lastTrial !== null && this.lastTrial.key === key ? this.lastTrial : this.trials.get(key);
-      if (trial === undefined) trial = this.newTrial(key, siteRaw === '' ? key : siteRaw, yearRaw, rowNo);
+      const last = this.lastTrial;
+      if (last !== null && r.equals(cols.trial, last.key)) trial = last;
       else {
-        if (cols.site >= 0 && siteRaw !== trial.siteRaw) {
-          this.problems.add(rowNo, this.cellName(cols.site), siteRaw, 'trial-disagrees', `trial "${key}" has site "${trial.siteRaw}" on row ${trial.firstRow}`);
+        const key = r.text(cols.trial);
+        if (key === '') {
+          this.problems.add(rowNo, this.cellName(cols.trial), '', 'missing-value', 'the trial is empty');
+          return null;
         }
-        if (cols.year >= 0 && yearRaw !== trial.yearRaw && parseYear(yearRaw, this.mode) !== trial.year) {
-          this.problems.add(rowNo, this.cellName(cols.year), yearRaw, 'trial-disagrees', `trial "${key}" has year "${trial.yearRaw}" on row ${trial.firstRow}`);
+        trial = this.trials.get(key);
+        if (trial === undefined) trial = this.newTrial(key, r.text(cols.site), r.text(cols.year), rowNo);
+      }
+      if (trial !== null) {
+        if (cols.site >= 0 && !r.equals(cols.site, trial.siteRaw)) {
+          this.problems.add(rowNo, this.cellName(cols.site), r.text(cols.site), 'trial-disagrees', `trial "${trial.key}" has site "${trial.siteRaw}" on row ${trial.firstRow}`);
+        }
+        if (cols.year >= 0 && !r.equals(cols.year, trial.yearRaw) && parseYear(r.text(cols.year), this.mode) !== trial.year) {
+          this.problems.add(rowNo, this.cellName(cols.year), r.text(cols.year), 'trial-disagrees', `trial "${trial.key}" has year "${trial.yearRaw}" on row ${trial.firstRow}`);
         }
       }
     } else {
-      if (this.lastTrial !== null && siteRaw === this.lastSiteRaw && yearRaw === this.lastYearRaw) trial = this.lastTrial;
+      if (this.lastTrial !== null && r.equals(cols.site, this.lastSiteRaw) && r.equals(cols.year, this.lastYearRaw)) trial = this.lastTrial;
       else {
+        const siteRaw = r.text(cols.site);
+        const yearRaw = r.text(cols.year);
         if (siteRaw === '') {
           this.problems.add(rowNo, this.cellName(cols.site), '', 'missing-value', 'the site is empty');
           return null;
@@ -283,12 +305,13 @@ export class PlotTableBuilder {
     }
     if (trial === null) return null;
     this.lastTrial = trial;
-    if (cols.design >= 0) this.checkDesignCell(trial, cols.design < n ? f[cols.design] : '', rowNo);
-    this.checkCovariates(trial, f, rowNo);
+    if (cols.design >= 0) this.checkDesignCell(trial, r, rowNo);
+    if (cols.covariates.length > 0) this.checkCovariates(trial, r, rowNo);
     return trial;
   }
 
-  private newTrial(key: string, site: string, yearRaw: string, rowNo: number): TrialState | null {
+  /** A new trial; its site is the site cell, or the trial key when the file has no site. */
+  private newTrial(key: string, siteRaw: string, yearRaw: string, rowNo: number): TrialState | null {
     let year = 0;
     if (this.cols.year >= 0) {
       year = parseYear(yearRaw, this.mode);
@@ -300,8 +323,8 @@ export class PlotTableBuilder {
     const trial: TrialState = {
       key,
       firstRow: rowNo,
-      siteRaw: this.cols.site >= 0 ? site : '',
-      site,
+      siteRaw,
+      site: siteRaw === '' ? key : siteRaw,
       yearRaw,
       year,
       designRaw: '',
@@ -311,6 +334,7 @@ export class PlotTableBuilder {
       rowWithoutRowCol: 0,
       plotIndex: new Map(),
       blocks: new Map(),
+      lastBlock: null,
       plotsPerTreatment: [],
       covariates: this.cols.covariates.map(() => null),
       covariateRows: this.cols.covariates.map(() => 0),
@@ -319,9 +343,11 @@ export class PlotTableBuilder {
     return trial;
   }
 
-  private checkDesignCell(trial: TrialState, text: string, rowNo: number): void {
-    if (text === '' || text === trial.designRaw) return;
-    const column = this.cellName(this.cols.design);
+  private checkDesignCell(trial: TrialState, r: RowCells, rowNo: number): void {
+    const i = this.cols.design;
+    if (r.isEmpty(i) || (trial.designRaw !== '' && r.equals(i, trial.designRaw))) return;
+    const text = r.text(i);
+    const column = this.cellName(i);
     const design = parseDesignName(text);
     if (design === undefined) {
       this.problems.add(rowNo, column, text, 'unknown-design', `unknown design; use one of: ${DESIGN_NAMES.join(', ')}`);
@@ -335,18 +361,19 @@ export class PlotTableBuilder {
     }
   }
 
-  private checkCovariates(trial: TrialState, f: string[], rowNo: number): void {
+  private checkCovariates(trial: TrialState, r: RowCells, rowNo: number): void {
     const covs = this.cols.covariates;
     for (let k = 0; k < covs.length; k++) {
       const i = covs[k].index;
-      const text = i < f.length ? f[i] : '';
-      if (text === '') continue; // a covariate may be given on one row of the trial only
+      if (r.isEmpty(i)) continue; // a covariate may be given on one row of the trial only
       const seen = trial.covariates[k];
+      if (seen !== null && r.equals(i, seen)) continue;
+      const text = r.text(i);
       if (seen === null) {
         trial.covariates[k] = text;
         trial.covariateRows[k] = rowNo;
         if (this.covariateNumeric[k] && Number.isNaN(parseDecimal(text, this.mode))) this.covariateNumeric[k] = false;
-      } else if (seen !== text) {
+      } else {
         const a = parseDecimal(seen, this.mode);
         if (Number.isNaN(a) || a !== parseDecimal(text, this.mode)) {
           this.problems.add(rowNo, covs[k].column, text, 'covariate-not-constant', `trial "${trial.key}" has ${covs[k].column} "${seen}" on row ${trial.covariateRows[k]}; a trial covariate must be the same on every row of the trial`);
@@ -355,67 +382,83 @@ export class PlotTableBuilder {
     }
   }
 
-  private treatmentOf(code: string, f: string[], rowNo: number): TreatmentState | null {
-    const column = this.cellName(this.cols.treatment);
-    if (code === '') {
-      this.problems.add(rowNo, column, '', 'unknown-treatment', 'the treatment code is empty');
-      return null;
+  /** The row's treatment, found by comparing cells in place while the list is short. */
+  private findTreatment(r: RowCells): TreatmentState | undefined {
+    const i = this.cols.treatment;
+    const last = this.lastTreatment;
+    if (last !== null && r.equals(i, last.code)) return last;
+    const list = this.treatmentList;
+    if (list.length <= 64) {
+      for (let k = 0; k < list.length; k++) if (r.equals(i, list[k].code)) return list[k];
+      return undefined;
     }
-    let t = this.lastTreatment !== null && this.lastTreatment.code === code ? this.lastTreatment : this.treatments.get(code);
+    return this.treatments.get(r.text(i));
+  }
+
+  private treatmentOf(r: RowCells, rowNo: number): TreatmentState | null {
+    const i = this.cols.treatment;
+    const column = this.cellName(i);
+    let t = this.findTreatment(r);
     const factors = this.cols.factors;
     if (t === undefined) {
+      const code = r.text(i);
+      if (code === '') {
+        this.problems.add(rowNo, column, '', 'unknown-treatment', 'the treatment code is empty');
+        return null;
+      }
       if (this.allowedTreatments !== null && !this.allowedTreatments.has(code)) {
         this.problems.add(rowNo, column, code, 'unknown-treatment', `treatment "${code}" is not among the treatments the mapping lists`);
         return null;
       }
-      t = { code, id: this.treatments.size, firstRow: rowNo, raw: factors.map((fc) => (fc.index < f.length ? f[fc.index] : '')) };
+      t = { code, id: this.treatmentList.length, firstRow: rowNo, raw: factors.map((fc) => r.text(fc.index)) };
       this.treatments.set(code, t);
+      this.treatmentList.push(t);
     } else {
       for (let k = 0; k < factors.length; k++) {
-        const i = factors[k].index;
-        const text = i < f.length ? f[i] : '';
+        const fi = factors[k].index;
         const first = t.raw[k];
-        if (text === first) continue;
-        const a = parseDecimal(text, this.mode);
+        if (r.equals(fi, first)) continue;
+        const a = r.number(fi, this.mode);
         if (!Number.isNaN(a) && a === parseDecimal(first, this.mode)) continue;
-        this.problems.add(rowNo, factors[k].column, text, 'treatment-levels-disagree', `treatment "${code}" has ${factors[k].name} "${first}" on row ${t.firstRow}`);
+        this.problems.add(rowNo, factors[k].column, r.text(fi), 'treatment-levels-disagree', `treatment "${t.code}" has ${factors[k].name} "${first}" on row ${t.firstRow}`);
       }
     }
     this.lastTreatment = t;
     return t;
   }
 
-  private layoutNumber(index: number, text: string, rowNo: number): number | null {
-    if (index < 0 || text === '') return null;
-    const v = parseDecimal(text, this.mode);
+  private layoutNumber(r: RowCells, index: number, rowNo: number): number | null {
+    if (index < 0 || r.isEmpty(index)) return null;
+    const v = r.number(index, this.mode);
     if (!Number.isInteger(v)) {
-      this.problems.add(rowNo, this.cellName(index), text, Number.isNaN(v) ? 'not-a-number' : 'not-an-integer', 'a row or column position must be a whole number');
+      this.problems.add(rowNo, this.cellName(index), r.text(index), Number.isNaN(v) ? 'not-a-number' : 'not-an-integer', 'a row or column position must be a whole number');
       return null;
     }
     return v;
   }
 
-  private valueOf(text: string, trait: TraitState, rowNo: number): number | null {
-    if (isMissingText(text)) return null;
-    const raw = parseDecimal(text, this.mode);
-    const column = this.cellName(this.cols.response);
+  private valueOf(r: RowCells, trait: TraitState, rowNo: number): number | null {
+    const i = this.cols.response;
+    if (r.isMissing(i)) return null;
+    const raw = r.number(i, this.mode);
+    const column = this.cellName(i);
     if (Number.isNaN(raw)) {
-      this.problems.add(rowNo, column, text, 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}`);
+      this.problems.add(rowNo, column, r.text(i), 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}`);
       return null;
     }
     if (!Number.isFinite(raw)) {
-      this.problems.add(rowNo, column, text, 'not-a-number', 'the number is too large');
+      this.problems.add(rowNo, column, r.text(i), 'not-a-number', 'the number is too large');
       return null;
     }
     const v = trait.factor === 1 ? raw : raw * trait.factor;
     const t = trait.trait;
     if ((t.lower !== null && v < t.lower) || (t.upper !== null && v > t.upper)) {
       const range = `${t.lower ?? '-inf'} to ${t.upper ?? 'inf'} ${t.unit}`;
-      this.problems.add(rowNo, column, text, 'out-of-bounds', `trait "${t.name}" must lie within ${range}${trait.factor !== 1 ? ` (value converted from ${trait.fileUnit}: ${v})` : ''}`);
+      this.problems.add(rowNo, column, r.text(i), 'out-of-bounds', `trait "${t.name}" must lie within ${range}${trait.factor !== 1 ? ` (value converted from ${trait.fileUnit}: ${v})` : ''}`);
       return null;
     }
     if (t.kind === 'count' && !Number.isInteger(v)) {
-      this.problems.add(rowNo, column, text, 'not-a-count', `trait "${t.name}" is a count: a whole number is expected`);
+      this.problems.add(rowNo, column, r.text(i), 'not-a-count', `trait "${t.name}" is a count: a whole number is expected`);
       return null;
     }
     return v;
@@ -467,7 +510,7 @@ export class PlotTableBuilder {
   }
 
   private factorsAndTreatments(): { factors: FactorInfo[]; treatments: TreatmentInfo[] } {
-    const list = [...this.treatments.values()];
+    const list = this.treatmentList;
     const factors: FactorInfo[] = [];
     const scales: number[] = [];
     this.cols.factors.forEach((fc, k) => {

@@ -35,15 +35,14 @@ export async function readPlotFile(filePath: string, mapping: ImportMapping, opt
     throw new Error('unreachable');
   }
   const builder = new PlotTableBuilder(cols, mapping, source.decimalMode, problems);
-  const cells: string[] = [];
   let sinceReport = 0;
   for (;;) {
-    const rowNo = source.next(cells);
+    const rowNo = source.next();
     if (rowNo === 0) break;
-    builder.addRow(cells, rowNo);
+    builder.addRow(source.cells, rowNo);
     if (problems.full) {
       // Further rows could only add problems we are not allowed to list.
-      if (source.next(cells) !== 0) problems.truncated = true;
+      if (source.next() !== 0) problems.truncated = true;
       break;
     }
     if (++sinceReport === PROGRESS_EVERY) {

@@ -50,10 +50,12 @@ export async function readSummaryFile(filePath: string, columns: ColumnsSpec, op
   const rows: SummaryRow[] = [];
   const rawCovariates: string[][] = [];
   const firstRowOf = new Map<string, number>();
-  const cells: string[] = [];
-  for (let rowNo = source.next(cells); rowNo !== 0 && !problems.full; rowNo = source.next(cells)) {
-    if (cells.every((c) => c === '')) continue;
-    const cell = (i: number): string => (i >= 0 && i < cells.length ? cells[i] : '');
+  const cells = source.cells;
+  for (let rowNo = source.next(); rowNo !== 0 && !problems.full; rowNo = source.next()) {
+    let blank = true;
+    for (let i = 0; i < cells.count; i++) if (!cells.isEmpty(i)) blank = false;
+    if (blank) continue;
+    const cell = (i: number): string => cells.text(i);
     const number = (i: number, what: string): number => {
       const text = cell(i);
       if (isMissingText(text)) {

@@ -5,6 +5,7 @@ import { createHash } from 'node:crypto';
 import { CsvRecordReader, detectDelimiter } from './csv.js';
 import type { DecimalMode } from './numbers.js';
 import { failWith, type ProblemList } from './problems.js';
+import { StringCells, type RowCells } from './rowCells.js';
 import { decodeText, looksLikeZip } from './text.js';
 import { readXlsxSheet, type SheetRow } from './xlsx.js';
 
@@ -14,8 +15,10 @@ export interface RowSource {
   readonly headerRow: number;
   /** How numbers in cells are written. */
   readonly decimalMode: DecimalMode;
-  /** Fills `out` with the next row's cells and returns its row number; 0 at the end. */
-  next(out: string[]): number;
+  /** The current row's cells, valid until the next call of next(). */
+  readonly cells: RowCells;
+  /** Moves to the next row and returns its row number; 0 at the end. */
+  next(): number;
   fraction(): number;
   /** Called once the rows are exhausted: adds structural problems (an unclosed quote). */
   finish(problems: ProblemList): void;
@@ -72,8 +75,12 @@ class CsvRowSource implements RowSource {
     readonly decimalMode: DecimalMode,
   ) {}
 
-  next(out: string[]): number {
-    return this.reader.next(out);
+  get cells(): RowCells {
+    return this.reader;
+  }
+
+  next(): number {
+    return this.reader.advance();
   }
 
   fraction(): number {
@@ -97,15 +104,16 @@ function openXlsx(filePath: string, bytes: Uint8Array, options: SourceOptions): 
   }
   if (rows.length === 0) return null;
   let k = 1;
+  const cells = new StringCells();
   return {
     header: rows[0].cells.map((h) => h.trim()),
     headerRow: rows[0].row,
     decimalMode: options.decimalComma === true ? 'either' : 'point',
-    next(out) {
+    cells,
+    next() {
       if (k >= rows.length) return 0;
       const row = rows[k++];
-      out.length = 0;
-      for (const c of row.cells) out.push(c.trim());
+      cells.cells = row.cells.map((c) => c.trim());
       return row.row;
     },
     fraction: () => (rows.length <= 1 ? 1 : (k - 1) / (rows.length - 1)),

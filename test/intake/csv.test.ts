@@ -2,6 +2,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { CsvRecordReader, detectDelimiter } from '../../src/intake/csv.js';
 import { readPlotFile } from '../../src/intake/index.js';
+import { isMissingText, parseDecimal } from '../../src/intake/numbers.js';
 import { decodeText } from '../../src/intake/text.js';
 import { csvCell, MAPPING, problemsOf, brief, toCsv, validRows, writeTemp } from './helpers.js';
 
@@ -86,6 +87,22 @@ describe('CSV records (RFC 4180)', () => {
             .map((r) => r.map((c) => (c === '' || c.trim() !== c || c.includes('\r') ? `"${c.replace(/"/g, '""')}"` : csvCell(c, delimiter))).join(delimiter))
             .join(eol);
           expect(records(text + eol, delimiter)).toEqual(rows);
+          // The in-place cell methods agree with the cell text.
+          const reader = new CsvRecordReader(text + eol, delimiter);
+          for (const row of rows) {
+            expect(reader.advance()).toBeGreaterThan(0);
+            expect(reader.count).toBe(row.length);
+            row.forEach((cellText, i) => {
+              expect(reader.equals(i, cellText)).toBe(true);
+              expect(reader.equals(i, `${cellText}x`)).toBe(false);
+              expect(reader.isEmpty(i)).toBe(cellText === '');
+              expect(reader.isMissing(i)).toBe(isMissingText(cellText));
+              expect(Object.is(reader.number(i, 'point'), parseDecimal(cellText, 'point'))).toBe(true);
+            });
+            expect(reader.equals(row.length, '')).toBe(true);
+            expect(reader.text(-1)).toBe('');
+          }
+          expect(reader.advance()).toBe(0);
         },
       ),
       { numRuns: 500, seed: 20261201 },

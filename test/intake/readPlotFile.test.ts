@@ -74,6 +74,22 @@ describe('readPlotFile on a valid file', () => {
   });
 });
 
+describe('trial column with a site column', () => {
+  const header = ['env', 'site', 'block', 'trt', 'y'];
+  const mapping: ImportMapping = { columns: { trial: 'env', site: 'site', block: 'block', treatment: 'trt', response: 'y' } };
+  const data = (sites: string[]): string[][] => sites.map((s, i) => ['E1', s, String(1 + (i >> 1)), i % 2 === 0 ? 'CTL' : 'A1', String(i + 1)]);
+
+  it('uses the trial key as site when the site cells are all empty', async () => {
+    const t = await readPlotFile(writeTemp('nosite.csv', toCsv(data(['', '', '', '']), header)), mapping);
+    expect(t.trials).toEqual([{ key: 'E1', site: 'E1', year: 0, design: 'randomised-blocks' }]);
+  });
+
+  it('reports a site cell left empty on one row of a trial', async () => {
+    const p = await problemsOf(() => readPlotFile(writeTemp('somesite.csv', toCsv(data(['Hill', 'Hill', '', 'Hill']), header)), mapping));
+    expect(brief(p)).toEqual([['trial-disagrees', 4, 'site', '']]);
+  });
+});
+
 describe('design per trial', () => {
   const header = ['env', 'design', 'row', 'col', 'block', 'trt', 'y'];
   const base = (env: string, design: string, withBlock: boolean, withRowCol: boolean): string[][] =>
