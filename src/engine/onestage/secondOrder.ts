@@ -4,10 +4,11 @@
 //   E_kl  = tr(P V_k P V_l)                          expected information of -2 logLik (x2)
 //   O_kl  = 2 y'P V_k P V_l P y - tr(P V_k P V_l)   observed Hessian of -2 logLik
 // with tr(P V_k P V_l) = tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) + tr(C P_k C P_l). All sums run
-// trial by trial over the small blocks; Q_kl is only ever held per trial.
-import { blockState, type Evaluation, type ModelFrame } from './remlCriterion.js';
+// over the small blocks. They depend on the design only, so each design pattern is visited once
+// and weighted by its number of trials; Q_kl is only ever held per pattern.
+import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
-import { ensureH2, nextInversePower } from './trialBlock.js';
+import { ensurePatternH2 } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
 
 export interface SecondOrder {
@@ -36,45 +37,58 @@ function mul(a: Small, b: Small): Small {
   return { rows: a.rows, cols: b.cols, data: out };
 }
 
-/** Per-trial pieces shared by the second-order sums and the Kenward–Roger correction. */
-interface TrialForms {
+/** Design-only pieces of one pattern (every trial of the pattern has the same ones). */
+interface PatternForms {
   readonly pLocal: Map<number, Small>;
-  /** Q_kl restricted to this trial's treatments, for each active pair (k, l) (both orders). */
+  /** Q_kl restricted to the pattern's treatments, for an active pair (k, l) in that order. */
   readonly q: (a: ActiveParameter, b: ActiveParameter) => Small;
   /** tr(V_i^-1 V_k V_i^-1 V_l). */
   readonly trVV: (a: ActiveParameter, b: ActiveParameter) => number;
 }
 
-function trialForms(frame: ModelFrame, ev: Evaluation, i: number, act: readonly ActiveParameter[]): TrialForms {
-  const t = frame.stats.trials[i];
-  const s = blockState(frame, ev, i);
-  const m = t.m;
+function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[]): PatternForms {
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const pat = ev.patterns[q];
+  const mz = t.m - 1;
   const T = t.treatmentColumns;
-  const H = s.h;
-  const needH2 = act.some((a) => a.columns === null);
-  const H2 = needH2 ? ensureH2(t, s) : null;
-  let H3: Float64Array | null = null;
+  const H = pat.hzz;
+  const H2 = ensurePatternH2(pat, mz);
+  let H3: Small | null = null;
   const pLocal = new Map<number, Small>();
-  for (const a of act) pLocal.set(a.index, a.columns ? mul(sub(H, m, T, a.columns), sub(H, m, a.columns, T)) : sub(H2!, m, T, T));
-  const q = (a: ActiveParameter, b: ActiveParameter): Small => {
-    if (a.columns && b.columns) return mul(mul(sub(H, m, T, a.columns), sub(H, m, a.columns, b.columns)), sub(H, m, b.columns, T));
-    if (a.columns) return mul(sub(H, m, T, a.columns), sub(H2!, m, a.columns, T));
-    if (b.columns) return mul(sub(H2!, m, T, b.columns), sub(H, m, b.columns, T));
-    H3 ??= nextInversePower(t, s, H2!);
-    return sub(H3, m, T, T);
+  for (const a of act) pLocal.set(a.index, a.columns ? mul(sub(H, mz, T, a.columns), sub(H, mz, a.columns, T)) : sub(H2, mz, T, T));
+  const third = (): Small => {
+    // B'V^-3 B on the treatment block: (H2_TT - gz_T. H2_RT) / sigma2
+    const R = pat.randomColumns;
+    const r = R.length;
+    const nt = T.length;
+    const out = new Float64Array(nt * nt);
+    for (let x = 0; x < nt; x++)
+      for (let y = 0; y < nt; y++) {
+        let v = H2[T[x] * mz + T[y]];
+        for (let b = 0; b < r; b++) v -= pat.gz[T[x] * r + b] * H2[R[b] * mz + T[y]];
+        out[x * nt + y] = v / pat.sigma2;
+      }
+    return { rows: nt, cols: nt, data: out };
+  };
+  const qf = (a: ActiveParameter, b: ActiveParameter): Small => {
+    if (a.columns && b.columns) return mul(mul(sub(H, mz, T, a.columns), sub(H, mz, a.columns, b.columns)), sub(H, mz, b.columns, T));
+    if (a.columns) return mul(sub(H, mz, T, a.columns), sub(H2, mz, a.columns, T));
+    if (b.columns) return mul(sub(H2, mz, T, b.columns), sub(H, mz, b.columns, T));
+    H3 ??= third();
+    return H3;
   };
   const trVV = (a: ActiveParameter, b: ActiveParameter): number => {
     let v = 0;
     if (a.columns && b.columns) {
-      for (const x of a.columns) for (const y of b.columns) v += H[x * m + y] ** 2;
+      for (const x of a.columns) for (const y of b.columns) v += H[x * mz + y] ** 2;
     } else if (a.columns || b.columns) {
-      for (const x of (a.columns ?? b.columns)!) v += H2![x * m + x];
+      for (const x of (a.columns ?? b.columns)!) v += H2[x * mz + x];
     } else {
-      v = (t.n - 2 * s.trWK + s.trWKWK) / (s.sigma2 * s.sigma2);
+      v = (t.n - 2 * pat.trWK + pat.trWKWK) / (pat.sigma2 * pat.sigma2);
     }
     return v;
   };
-  return { pLocal, q, trVV };
+  return { pLocal, q: qf, trVV };
 }
 
 function traceProduct(a: Float64Array, b: Small): number {
@@ -90,22 +104,23 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
   const p = frame.stats.treatments.length;
   const P = Array.from({ length: nP }, () => new Float64Array(p * p));
   const expected = new Float64Array(nP * nP);
-  for (let i = 0; i < frame.stats.trials.length; i++) {
-    const t = frame.stats.trials[i];
-    const tg = t.treatmentIndex;
+  for (let q = 0; q < frame.patternTrial.length; q++) {
+    const i0 = frame.patternTrial[q];
+    const count = frame.patternCount[q];
+    const tg = frame.stats.trials[i0].treatmentIndex;
     const cl = localBlock(ev.c, p, tg);
-    const act = active[i];
-    const f = trialForms(frame, ev, i, act);
+    const act = active[i0];
+    const f = patternForms(frame, ev, q, act);
     for (const a of act) {
       const pl = f.pLocal.get(a.index)!;
       const target = P[a.index];
-      for (let x = 0; x < tg.length; x++) for (let y = 0; y < tg.length; y++) target[tg[x] * p + tg[y]] += pl.data[x * tg.length + y];
+      for (let x = 0; x < tg.length; x++) for (let y = 0; y < tg.length; y++) target[tg[x] * p + tg[y]] += count * pl.data[x * tg.length + y];
     }
     for (let ia = 0; ia < act.length; ia++)
       for (let ib = ia; ib < act.length; ib++) {
         const a = act[ia];
         const b = act[ib];
-        const v = f.trVV(a, b) - 2 * traceProduct(cl, f.q(a, b));
+        const v = count * (f.trVV(a, b) - 2 * traceProduct(cl, f.q(a, b)));
         expected[a.index * nP + b.index] += v;
         if (a.index !== b.index) expected[b.index * nP + a.index] += v;
       }
@@ -132,16 +147,18 @@ export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder
   const nP = frame.layout.parameters.length;
   const p = frame.stats.treatments.length;
   const u = new Float64Array(p * p);
-  for (let i = 0; i < frame.stats.trials.length; i++) {
-    const tg = frame.stats.trials[i].treatmentIndex;
-    const act = active[i];
-    const f = trialForms(frame, ev, i, act);
+  for (let qi = 0; qi < frame.patternTrial.length; qi++) {
+    const i0 = frame.patternTrial[qi];
+    const count = frame.patternCount[qi];
+    const tg = frame.stats.trials[i0].treatmentIndex;
+    const act = active[i0];
+    const f = patternForms(frame, ev, qi, act);
     for (const a of act)
       for (const b of act) {
         const wab = w[a.index * nP + b.index];
         if (wab === 0) continue;
         const q = f.q(a, b);
-        for (let x = 0; x < tg.length; x++) for (let y = 0; y < tg.length; y++) u[tg[x] * p + tg[y]] += wab * q.data[x * tg.length + y];
+        for (let x = 0; x < tg.length; x++) for (let y = 0; y < tg.length; y++) u[tg[x] * p + tg[y]] += count * wab * q.data[x * tg.length + y];
       }
   }
   const cp = so.p.map((pk) => matMul(ev.c, pk, p));

@@ -2,9 +2,8 @@
 // u_T,i = sigma2_TxT Z_T'V^-1 r are the trial's predicted treatment-by-trial effects; the trial
 // and block effects cancel because contrast coefficients sum to zero) and the trial's own
 // fixed-effects estimate (blocks + treatments fitted to that trial alone, from its Gram matrix).
-import { cholesky, cholInverse, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import { blockState, type Evaluation, type ModelFrame } from './remlCriterion.js';
-import { residualCoordinates, symmetricMatVec } from './trialParameters.js';
+import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
+import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { TrialContrastReport } from './types.js';
 
 export interface ContrastVector {
@@ -13,56 +12,61 @@ export interface ContrastVector {
   readonly l: Float64Array | null;
 }
 
-interface OwnFit {
-  readonly tau: Float64Array; // per present treatment, relative to the first
-  readonly cov: Float64Array; // unscaled covariance of tau (t x t, first row/col zero)
-  readonly s2: number;
+/** The design-only part of a trial's own fit: inverse normal equations on its columns. */
+interface OwnDesign {
+  readonly cols: number[];
+  readonly inv: Float64Array;
   readonly df: number;
 }
 
-function ownFit(frame: ModelFrame, i: number): OwnFit | null {
+function ownDesign(frame: ModelFrame, i: number): OwnDesign | null {
   const t = frame.stats.trials[i];
   const m = t.m;
   const K = t.gram;
   // columns: blocks, then treatments 2..t (treatment 1 absorbed by the block intercepts)
   const cols = [...t.blockColumns, ...Array.from(t.treatmentColumns).slice(1)];
   const k = cols.length;
-  const nt = t.treatmentColumns.length;
   const df = t.n - k;
-  if (nt < 2 || df <= 0) return null;
+  if (t.treatmentColumns.length < 2 || df <= 0) return null;
   const a: Matrix = { rows: k, cols: k, data: new Float64Array(k * k) };
-  const b = new Float64Array(k);
-  for (let x = 0; x < k; x++) {
-    for (let y = 0; y < k; y++) a.data[x * k + y] = K[cols[x] * m + cols[y]];
-    b[x] = K[cols[x] * m + t.yColumn];
-  }
-  let l: Matrix;
+  for (let x = 0; x < k; x++) for (let y = 0; y < k; y++) a.data[x * k + y] = K[cols[x] * m + cols[y]];
   try {
-    l = cholesky(a);
+    return { cols, inv: cholInverse(cholesky(a)).data, df };
   } catch (err) {
     if (err instanceof NotPositiveDefiniteError) return null; // disconnected design
     throw err;
   }
-  const coef = cholSolve(l, b);
-  let rss = K[t.yColumn * m + t.yColumn];
-  for (let x = 0; x < k; x++) rss -= coef[x] * b[x];
-  const inv = cholInverse(l).data;
-  const nb = t.blockColumns.length;
-  const tau = new Float64Array(nt);
-  const cov = new Float64Array(nt * nt);
-  for (let x = 1; x < nt; x++) {
-    tau[x] = coef[nb + x - 1];
-    for (let y = 1; y < nt; y++) cov[x * nt + y] = inv[(nb + x - 1) * k + nb + y - 1];
-  }
-  return { tau, cov, s2: Math.max(rss, 0) / df, df };
 }
 
 export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: readonly ContrastVector[], treatmentTrialVariance: number): { trial: string; contrasts: TrialContrastReport[] }[] {
   const p = frame.stats.treatments.length;
+  const designs = new Map<number, OwnDesign | null>();
   return frame.stats.trials.map((t, i) => {
-    const own = ownFit(frame, i);
-    const rho = residualCoordinates(frame, i, ev.beta);
-    const h = symmetricMatVec(blockState(frame, ev, i).h, t.m, rho);
+    const q = frame.patternOf[i];
+    if (!designs.has(q)) designs.set(q, ownDesign(frame, i));
+    const own = designs.get(q)!;
+    const m = t.m;
+    const mz = m - 1;
+    const nt = t.treatmentColumns.length;
+    // the trial's own estimates: tau (treatment 1 = 0), residual variance
+    const tau = new Float64Array(nt);
+    let s2 = NaN;
+    if (own) {
+      const k = own.cols.length;
+      const b = Float64Array.from(own.cols, (c) => t.gram[c * m + mz]);
+      let rss = t.gram[mz * m + mz];
+      const nb = k - (nt - 1);
+      for (let x = 0; x < k; x++) {
+        let s = 0;
+        for (let y = 0; y < k; y++) s += own.inv[x * k + y] * b[y];
+        rss -= s * b[x];
+        if (x >= nb) tau[x - nb + 1] = s;
+      }
+      s2 = Math.max(rss, 0) / own.df;
+    }
+    // h_T = (B'V^-1 r)_T, for the predicted treatment-by-trial effects
+    const pat = ev.patterns[q];
+    const o = frame.offsets[i];
     const local = new Int32Array(p).fill(-1);
     t.treatmentIndex.forEach((g, a) => (local[g] = a));
     const out = contrasts.map((c): TrialContrastReport => {
@@ -72,21 +76,27 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
       for (let j = 0; j < p; j++) {
         if (c.l[j] === 0) continue;
         const a = local[j];
-        const u = a >= 0 && treatmentTrialVariance > 0 ? treatmentTrialVariance * h[t.treatmentColumns[a]] : 0;
+        let u = 0;
+        if (a >= 0 && treatmentTrialVariance > 0) {
+          const col = t.treatmentColumns[a];
+          let h = ev.hzy[o + col];
+          for (let x = 0; x < nt; x++) h -= pat.hzz[col * mz + t.treatmentColumns[x]] * ev.beta[t.treatmentIndex[x]];
+          u = treatmentTrialVariance * h;
+        }
         blup += c.l[j] * (ev.beta[j] + u);
         if (a < 0) estimable = false;
       }
       if (!estimable || !own) return { name: c.name, blup, raw: null, rawSe: null, rawDf: null };
-      const nt = t.treatmentColumns.length;
-      const ll = new Float64Array(nt);
-      for (let a = 0; a < nt; a++) ll[a] = c.l[t.treatmentIndex[a]];
+      const k = own.cols.length;
+      const nb = k - (nt - 1);
       let raw = 0;
       let v = 0;
-      for (let a = 0; a < nt; a++) {
-        raw += ll[a] * own.tau[a];
-        for (let b = 0; b < nt; b++) v += ll[a] * own.cov[a * nt + b] * ll[b];
+      for (let a = 1; a < nt; a++) {
+        const la = c.l[t.treatmentIndex[a]];
+        raw += la * tau[a];
+        for (let b = 1; b < nt; b++) v += la * own.inv[(nb + a - 1) * k + nb + b - 1] * c.l[t.treatmentIndex[b]];
       }
-      return { name: c.name, blup, raw, rawSe: Math.sqrt(own.s2 * v), rawDf: own.df };
+      return { name: c.name, blup, raw, rawSe: Math.sqrt(s2 * v), rawDf: own.df };
     });
     return { trial: t.trial, contrasts: out };
   });

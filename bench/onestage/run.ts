@@ -1,0 +1,159 @@
+// Bench for issue 4: one-stage REML at network scale against R in the same run.
+//   npx tsx bench/onestage/run.ts [--sizes 250,1000,4000] [--per-trial 200] [--skip-r]
+// 1. Common residual: networks of 250, 1,000 and 4,000 trials (7 treatments x 4 blocks, 28
+//    plots each) written as CSV; each is fitted by a fresh `node` process running
+//    bench/onestage/fitCsv.ts (read the CSV, fit, print the JSON result) and by Rscript
+//    (read.csv + lme4::lmer). Both report their own read+fit time, excluding interpreter start-up
+//    (and loading lme4), and the wall time of the whole process; both ratios are printed.
+// 2. Per-trial residual at 200 trials vs glmmTMB (dispformula = ~env, REML = TRUE).
+// 3. Kenward–Roger df for one contrast at the largest size, timed in-process after the fit.
+import { spawnSync } from 'node:child_process';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, dirname } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { simulateNetwork } from '../../test/engine/onestage/support/simulateNetwork.js';
+import { buildNetworkStatistics } from '../../src/engine/onestage/sufficientStatistics.js';
+import { parameterLayout } from '../../src/engine/onestage/parameters.js';
+import { modelFrame } from '../../src/engine/onestage/remlCriterion.js';
+import { optimiseReml } from '../../src/engine/onestage/optimise.js';
+import { startValues } from '../../src/engine/onestage/startValues.js';
+import { activeParameterTable } from '../../src/engine/onestage/trialParameters.js';
+import { secondOrder, kenwardRogerU } from '../../src/engine/onestage/secondOrder.js';
+import { expandW, kenwardRogerContrast, kenwardRogerCovariance } from '../../src/engine/onestage/contrastInference.js';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const root = join(here, '..', '..');
+const args = process.argv.slice(2);
+const arg = (name: string): string | undefined => {
+  const i = args.indexOf(name);
+  return i >= 0 ? args[i + 1] : undefined;
+};
+const sizes = (arg('--sizes') ?? '250,1000,4000').split(',').map(Number);
+const perTrialSize = Number(arg('--per-trial') ?? 200);
+const skipR = args.includes('--skip-r');
+const dir = join(tmpdir(), 'manyfield-bench-onestage');
+mkdirSync(dir, { recursive: true });
+
+interface Timing {
+  readonly inner: number;
+  readonly wall: number;
+  readonly logLik: number;
+  readonly note: string;
+}
+
+function run(cmd: string, argv: string[]): { stdout: string; stderr: string; wall: number } {
+  const t0 = performance.now();
+  const r = spawnSync(cmd, argv, { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30 });
+  const wall = performance.now() - t0;
+  if (r.status !== 0) throw new Error(`${cmd} ${argv.join(' ')} failed (${r.status}):\n${r.stderr}`);
+  return { stdout: r.stdout, stderr: r.stderr, wall };
+}
+
+function ours(file: string, residual: 'common' | 'per-trial', lrt: boolean): Timing {
+  const r = run(process.execPath, ['--import', 'tsx', join(here, 'fitCsv.ts'), file, residual, 'satterthwaite', lrt ? 'lrt' : 'no-lrt']);
+  const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
+  if (!line) throw new Error(`fitCsv printed no BENCH line:\n${r.stderr}`);
+  const b = JSON.parse(line.slice(6));
+  const note = `${b.iterations} AI iterations, converged ${b.converged}; read ${b.readMs.toFixed(0)} ms, fit ${b.fitMs.toFixed(0)} ms, print ${b.printMs.toFixed(0)} ms (${(b.bytes / 1e6).toFixed(1)} MB JSON)`;
+  return { inner: b.totalMs, wall: r.wall, logLik: b.logLik, note };
+}
+
+function value(out: string, name: string): number {
+  const m = new RegExp(`^${name}=(.*)$`, 'm').exec(out);
+  if (!m) throw new Error(`R printed no ${name}:\n${out}`);
+  return Number(m[1]);
+}
+
+function rTiming(script: string): Timing {
+  const file = join(dir, 'bench.R');
+  writeFileSync(file, script);
+  const r = run('Rscript', ['--vanilla', file]);
+  const note = /^note=(.*)$/m.exec(r.stdout)?.[1] ?? '';
+  return { inner: value(r.stdout, 'inner'), wall: r.wall, logLik: value(r.stdout, 'loglik'), note };
+}
+
+const lme4 = (file: string): Timing =>
+  rTiming(`suppressMessages(library(lme4))
+t0 <- proc.time()[['elapsed']]
+d <- read.csv('${file}', stringsAsFactors = TRUE)
+f <- lmer(y ~ trt + (1|env) + (1|env:block) + (1|env:trt), data = d, REML = TRUE)
+t1 <- proc.time()[['elapsed']]
+cat(sprintf('inner=%.6f\\nloglik=%.10f\\n', 1000 * (t1 - t0), as.numeric(logLik(f))))
+msg <- f@optinfo$conv$lme4$messages
+cat(sprintf('note=%s\\n', if (length(msg)) paste('lme4 says:', paste(gsub('\\n', ' ', msg), collapse = ' | ')) else 'lme4 gave no convergence message'))
+`);
+
+const glmmTmb = (file: string): Timing =>
+  rTiming(`suppressMessages(library(glmmTMB))
+t0 <- proc.time()[['elapsed']]
+d <- read.csv('${file}', stringsAsFactors = TRUE)
+g <- glmmTMB(y ~ trt + (1|env) + (1|env:block) + (1|env:trt), dispformula = ~env, data = d, REML = TRUE)
+t1 <- proc.time()[['elapsed']]
+cat(sprintf('inner=%.6f\\nloglik=%.10f\\n', 1000 * (t1 - t0), as.numeric(logLik(g))))
+`);
+
+const fmt = (ms: number): string => (ms >= 10000 ? `${(ms / 1000).toFixed(1)} s` : `${ms.toFixed(0)} ms`);
+
+function report(label: string, a: Timing, b: Timing | null, refName: string): void {
+  console.log(label);
+  console.log(`  manyfield  read+fit+print ${fmt(a.inner).padStart(8)}   process wall ${fmt(a.wall).padStart(8)}   logLik ${a.logLik.toFixed(6)}   ${a.note}`);
+  if (!b) return;
+  console.log(`  ${refName.padEnd(10)} read+fit       ${fmt(b.inner).padStart(8)}   process wall ${fmt(b.wall).padStart(8)}   logLik ${b.logLik.toFixed(6)}   ${b.note}`);
+  console.log(`  ratio ${refName}/manyfield: ${(b.inner / a.inner).toFixed(1)}x read+fit, ${(b.wall / a.wall).toFixed(1)}x wall;  |logLik difference| ${Math.abs(a.logLik - b.logLik).toExponential(2)}`);
+}
+
+console.log(`one-stage REML bench — ${new Date().toISOString()} — node ${process.version}`);
+console.log('model: y = treatment means + trial + block(trial) + treatment:trial + residual, REML\n');
+
+const perTrialMs: { trials: number; ms: number }[] = [];
+let largest = '';
+for (const n of sizes) {
+  const sim = simulateNetwork({ seed: 4000 + n, trials: n });
+  const file = join(dir, `network-${n}.csv`);
+  writeFileSync(file, sim.csv);
+  largest = file;
+  const a = ours(file, 'common', false);
+  const b = skipR ? null : lme4(file);
+  report(`${n} trials x 28 plots, common residual (no LRT refits)`, a, b, 'lme4');
+  perTrialMs.push({ trials: n, ms: a.inner });
+  const c = ours(file, 'common', true);
+  console.log(`  with the 3 likelihood-ratio refits: manyfield read+fit+print ${fmt(c.inner)}\n`);
+}
+if (perTrialMs.length > 1) {
+  const f = perTrialMs[0];
+  console.log('growth (read+fit+print per trial, relative to the smallest network):');
+  for (const p of perTrialMs) console.log(`  ${String(p.trials).padStart(5)} trials: ${(p.ms / p.trials).toFixed(3)} ms/trial (${(p.ms / p.trials / (f.ms / f.trials)).toFixed(2)}x)`);
+  console.log('');
+}
+
+if (perTrialSize > 0) {
+  const sim = simulateNetwork({ seed: 77, trials: perTrialSize, residualSpread: [0.5, 2] });
+  const file = join(dir, `network-${perTrialSize}-hetero.csv`);
+  writeFileSync(file, sim.csv);
+  const a = ours(file, 'per-trial', false);
+  const b = skipR ? null : glmmTmb(file);
+  report(`${perTrialSize} trials, one residual variance per trial (no LRT refits)`, a, b, 'glmmTMB');
+  if (b) console.log(`  logLik agreement within 1e-4: ${Math.abs(a.logLik - b.logLik) < 1e-4 ? 'yes' : 'NO'}`);
+  console.log('');
+}
+
+{
+  // Kenward–Roger df for one contrast on the largest network, after the REML fit
+  const n = sizes[sizes.length - 1];
+  const sim = simulateNetwork({ seed: 4000 + n, trials: n });
+  const stats = buildNetworkStatistics(sim.network, ['trial', 'block', 'treatment:trial']);
+  const frame = modelFrame(stats, parameterLayout(stats, 'common'));
+  const fit = optimiseReml(frame, startValues(frame));
+  const p = stats.treatments.length;
+  const l = Float64Array.from({ length: p }, (_, j) => (j === 0 ? -1 : 1 / (p - 1)));
+  const t0 = performance.now();
+  const active = activeParameterTable(frame);
+  const so = secondOrder(frame, fit.evaluation, fit.score, active);
+  const kr = kenwardRogerCovariance(so, fit.atZero);
+  const u = kenwardRogerU(frame, fit.evaluation, so, expandW(kr, frame.layout.parameters.length), active);
+  const r = kenwardRogerContrast(fit.evaluation, so, kr, u, l);
+  const ms = performance.now() - t0;
+  console.log(`Kenward–Roger df for treated-vs-control at ${n} trials: ${r.df.toFixed(3)} (se ${Math.sqrt(r.variance).toPrecision(6)}) in ${fmt(ms)} after the fit (target < 2 s)`);
+  void largest;
+}
