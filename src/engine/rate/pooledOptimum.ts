@@ -31,16 +31,36 @@ function meanSlope(curves: readonly Curve[], x: number): number {
   return s / curves.length;
 }
 
-export function pooledOptimum(curves: readonly Curve[], r: number, lo: number, hi: number, within: number, gridPoints = POOLED_GRID_POINTS): PooledPoint {
-  const net = (x: number) => meanYieldGain(curves, x) - r * x;
-  const slope = (x: number) => meanSlope(curves, x) - r;
+/** The search grid over [lo, hi]. */
+export function gridRates(lo: number, hi: number, gridPoints = POOLED_GRID_POINTS): Float64Array {
   const step = (hi - lo) / (gridPoints - 1);
   const xs = new Float64Array(gridPoints);
+  for (let i = 0; i < gridPoints; i++) xs[i] = i === gridPoints - 1 ? hi : lo + step * i;
+  return xs;
+}
+
+/** Each curve's yield gain on gridRates(lo, hi): lets the bootstrap reuse them. */
+export function gridGains(curves: readonly Curve[], xs: Float64Array): Float64Array[] {
+  return curves.map((c) => xs.map((x) => yieldGain(c, x)));
+}
+
+/**
+ * `gains`, when given, must be gridGains(curves, gridRates(lo, hi)) in the order of
+ * `curves`; it gives the same numbers as evaluating the curves afresh.
+ */
+export function pooledOptimum(curves: readonly Curve[], r: number, lo: number, hi: number, within: number, gains?: readonly Float64Array[]): PooledPoint {
+  const net = (x: number) => meanYieldGain(curves, x) - r * x;
+  const slope = (x: number) => meanSlope(curves, x) - r;
+  const xs = gridRates(lo, hi);
+  const gridPoints = xs.length;
   const ns = new Float64Array(gridPoints);
   let best = 0;
   for (let i = 0; i < gridPoints; i++) {
-    xs[i] = i === gridPoints - 1 ? hi : lo + step * i;
-    ns[i] = net(xs[i]);
+    if (gains) {
+      let sum = 0;
+      for (const g of gains) sum += g[i];
+      ns[i] = sum / curves.length - r * xs[i];
+    } else ns[i] = net(xs[i]);
     if (ns[i] > ns[best]) best = i;
   }
   const last = gridPoints - 1;
