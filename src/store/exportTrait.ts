@@ -58,31 +58,40 @@ export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
   const valueCol = uniqueName(taken, t.name);
   const header = [...fixed, ...factorCols, ...covariateCols, valueCol];
 
-  const plotsOf = db.prepare(
-    `SELECT p.treatment_id, tm.code, p.block, p.row, p.col, o.value FROM plot p
-     JOIN treatment tm ON tm.id = p.treatment_id
-     JOIN observation o ON o.plot_id = p.id AND o.trait_id = ?
-     WHERE p.trial_id = ? ORDER BY p.id`,
-  );
+  const plotsOf = db
+    .prepare(
+      `SELECT p.treatment_id, tm.code, p.block, p.row, p.col, o.value FROM plot p
+       JOIN treatment tm ON tm.id = p.treatment_id
+       JOIN observation o ON o.plot_id = p.id AND o.trait_id = ?
+       WHERE p.trial_id = ? ORDER BY p.id`,
+    )
+    .raw();
+  // Factor cells per treatment, worked out once rather than per plot.
+  const factorCells = new Map<number, ExportCell[]>();
+  for (const [id, lv] of levels) factorCells.set(id, factorNames.map((f) => lv.get(f) ?? null));
+  const noLevels = factorNames.map(() => null);
+  const width = header.length;
+  const nFactors = factorNames.length;
+  const nCovariates = covariateNames.length;
   const rows: ExportCell[][] = [];
   for (const trial of trials) {
     const cov = new Map((covariatesOf.all(trial.id) as (StoredLevel & { name: string })[]).map((c) => [c.name, levelFromColumns(c)]));
     const covCells = covariateNames.map((n) => cov.get(n) ?? null);
-    for (const p of plotsOf.all(t.id, trial.id) as { treatment_id: number; code: string; block: string | null; row: number | null; col: number | null; value: number | null }[]) {
-      const lv = levels.get(p.treatment_id);
-      rows.push([
-        trial.site,
-        trial.year,
-        trial.label,
-        trial.design,
-        p.block,
-        p.row,
-        p.col,
-        p.code,
-        ...factorNames.map((f) => lv?.get(f) ?? null),
-        ...covCells,
-        p.value,
-      ]);
+    for (const p of plotsOf.all(t.id, trial.id) as [number, string, string | null, number | null, number | null, number | null][]) {
+      const f = factorCells.get(p[0]) ?? noLevels;
+      const row: ExportCell[] = new Array(width);
+      row[0] = trial.site;
+      row[1] = trial.year;
+      row[2] = trial.label;
+      row[3] = trial.design;
+      row[4] = p[2];
+      row[5] = p[3];
+      row[6] = p[4];
+      row[7] = p[1];
+      for (let i = 0; i < nFactors; i++) row[8 + i] = f[i];
+      for (let i = 0; i < nCovariates; i++) row[8 + nFactors + i] = covCells[i];
+      row[width - 1] = p[5];
+      rows.push(row);
     }
   }
 
