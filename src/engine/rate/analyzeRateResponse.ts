@@ -61,7 +61,8 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
       trials.push(emptyTrial(t.trial, 'no usable plots of the chosen treatments'));
     } else {
       if (!d.hasZeroRate) warnings.push(`Trial ${t.trial}: no plots at rate 0; its yield gain is measured from the curve extrapolated to rate 0.`);
-      const { chosen, table } = chooseTrialModel(d, options.model);
+      const { chosen, table, fallback } = chooseTrialModel(d, options.model);
+      if (fallback && chosen.converged) warnings.push(`Trial ${t.trial}: ${fallback}.`);
       const curve = chosen.curve;
       const flags: OptimumFlag[] = [];
       let opt: ReturnType<typeof cappedOptimum> | null = null;

@@ -37,10 +37,12 @@ export function aicc(rss: number, n: number, k: number): number {
 export interface TrialChoice {
   readonly chosen: FitOutcome;
   readonly table: AiccRow[] | null;
+  /** Why the choice was not made by AICc, when it was not. */
+  readonly fallback: string | null;
 }
 
 export function chooseTrialModel(d: TrialRateData, choice: RateModelChoice): TrialChoice {
-  if (choice !== 'best') return { chosen: fitRateModel(d, choice), table: null };
+  if (choice !== 'best') return { chosen: fitRateModel(d, choice), table: null, fallback: null };
   const fits = RATE_MODELS.map((m) => fitRateModel(d, m));
   const scores = fits.map((f) => (f.curve ? aicc(f.rss, f.n, f.parameters) : NaN));
   let bestIdx = -1;
@@ -58,6 +60,9 @@ export function chooseTrialModel(d: TrialRateData, choice: RateModelChoice): Tri
     converged: f.converged,
     note: f.note ?? (f.curve && !Number.isFinite(scores[i]) ? 'too few plots for AICc' : null),
   }));
-  // When nothing converged, show the first attempted fit so the failure is visible.
-  return { chosen: bestIdx >= 0 ? fits[bestIdx] : fits[1], table };
+  if (bestIdx >= 0) return { chosen: fits[bestIdx], table, fallback: null };
+  // No AICc to compare (too few plots) or nothing converged: the quadratic if it fitted,
+  // else the first curve that did; when none did, the quadratic's failure is what is shown.
+  const usable = [fits[1], ...fits].find((f) => f.converged) ?? fits[1];
+  return { chosen: usable, table, fallback: usable.converged ? `no curve could be compared by AICc (too few plots); ${usable.model} used` : 'no curve could be fitted' };
 }

@@ -68,6 +68,15 @@ describe('rate response behaviour', () => {
     }
   });
 
+  it("'best' with too few plots for AICc falls back to the quadratic and says so", () => {
+    // One plot per rate in a completely randomised trial: 4 plots, quadratic k = 4, n - k - 1 < 0.
+    const tiny = generateRateNetwork({ seed: 3, trials: 1, blocks: 1, rates: [0, 50, 100, 150], curves: [quadraticCurve(6, 0.03, -8e-5)], designs: ['completely-randomised'], sd: 0.2 });
+    const res = analyzeRateResponse(tiny, { ...base, model: 'best', at: { timing: 'early' } });
+    expect(res.trials[0].model).toBe('quadratic');
+    expect(res.trials[0].aicTable?.every((r) => r.aicc === null)).toBe(true);
+    expect(res.warnings.some((w) => w.includes('too few plots') && w.includes('quadratic used'))).toBe(true);
+  });
+
   it('reports progress and can be cancelled during the bootstrap', () => {
     const stages: { stage: string; fraction: number }[] = [];
     analyzeRateResponse(network, { ...base, bootstrap: 40 }, { onProgress: (e) => stages.push(e) });
