@@ -15,6 +15,7 @@ import { quantileType7 } from './quantile.js';
 import { treatmentRates, trialRateData } from './rateData.js';
 import { unitNote } from './unitNote.js';
 import {
+  CURVE_FORMS,
   RATE_CAUTIONS,
   RATE_MODELS,
   type OptimumFlag,
@@ -141,6 +142,7 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
     rateUnit,
     yieldUnit,
     unitNote: unitNote(rateUnit, yieldUnit),
+    curveForms: [...CURVE_FORMS],
     trials,
     pooled: pooledResult,
     siteOptima,

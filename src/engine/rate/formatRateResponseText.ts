@@ -39,6 +39,13 @@ export function formatRateResponseText(result: RateResponseResult): string {
       result.trials.map((t) => [t.trial, t.model ?? '–', t.converged ? 'yes' : 'NO', f(t.optimum), f(t.yieldGainAtOptimum, 3), f(t.netReturnAtOptimum, 3), [...t.flags, ...(t.convergence.note && !t.converged ? [t.convergence.note] : [])].join('; ')]),
     ),
   );
+  out.push('');
+  out.push('Curve parameters (standard error):');
+  for (const t of result.trials) {
+    if (!t.model) continue;
+    const parts = Object.entries(t.params).map(([k, v]) => `${k} ${g(v)}` + (t.standardErrors[k] !== undefined ? ` (${g(t.standardErrors[k])})` : ''));
+    out.push(`  ${t.trial}  ${t.model}: ${parts.join(', ')}`);
+  }
   const withTables = result.trials.filter((t) => t.aicTable);
   if (withTables.length > 0) {
     out.push('');
@@ -50,7 +57,7 @@ export function formatRateResponseText(result: RateResponseResult): string {
         withTables.map((t) => [t.trial, ...(t.aicTable ?? []).map((r) => (r.deltaAicc === null ? (r.converged ? 'n/a' : 'failed') : r.deltaAicc.toFixed(2)) + (r.converged ? '' : '*'))]),
       ),
     );
-    out.push('  * did not converge');
+    if (withTables.some((t) => (t.aicTable ?? []).some((r) => !r.converged))) out.push('  * did not converge');
   }
   out.push('');
   out.push('Price-ratio sensitivity:');
@@ -62,6 +69,8 @@ export function formatRateResponseText(result: RateResponseResult): string {
   );
   out.push('');
   out.push(result.unitNote);
+  out.push('');
+  for (const line of result.curveForms) out.push(line);
   if (result.warnings.length > 0) {
     out.push('');
     out.push('Warnings:');

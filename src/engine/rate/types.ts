@@ -131,6 +131,8 @@ export interface RateResponseResult {
   readonly rateUnit: string | null;
   readonly yieldUnit: string | null;
   readonly unitNote: string;
+  /** The curve formulas, parameter names and optimum closed forms, with their sign conventions. */
+  readonly curveForms: string[];
   readonly trials: TrialRateResult[];
   readonly pooled: PooledRateResult;
   readonly siteOptima: SiteOptima;
@@ -141,4 +143,14 @@ export interface RateResponseResult {
 
 export const RATE_CAUTIONS: readonly string[] = [
   'These results summarise the trials in this workspace only. Rates must respect product label limits and local nutrient-management rules, and be confirmed by local agronomic advice.',
+];
+
+export const CURVE_FORMS: readonly string[] = [
+  'Curves give yield at rate x, block offsets averaged out (intercept = mean over blocks); yield gain = f(x) - f(0); net return = gain - priceRatio * x (yield units); r = priceRatio.',
+  'linear: f = intercept + slope x. Optimum: the top tested rate when slope > r, else 0.',
+  'quadratic: f = intercept + linear x + quadratic x^2 (quadratic < 0 for diminishing returns). Optimum (r - linear) / (2 quadratic) when quadratic < 0; otherwise the better end of the range.',
+  'linear-plateau: f = intercept + slope min(x, join); plateau = intercept + slope join. Optimum: join when slope > r, else 0.',
+  'quadratic-plateau: f = intercept + linear m + quadratic m^2 with m = min(x, join) and quadratic = -linear / (2 join) (smooth join); plateau = intercept + linear join / 2. Optimum join (1 - r / linear) = (r - linear) / (2 quadratic).',
+  'exponential: f = intercept + rise (1 - exp(-curvature x)); asymptote = intercept + rise. Optimum log(rise curvature / r) / curvature when rise curvature > r, else 0.',
+  'Optima outside the tested rates are held at the nearest tested rate and flagged (above-tested-range, below-tested-range, no-input-pays).',
 ];
