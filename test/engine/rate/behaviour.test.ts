@@ -44,6 +44,24 @@ describe('rate response behaviour', () => {
     expect(res.siteOptima.shareNoInputPays).toBe(1);
   });
 
+  it('without a control, an optimum below the lowest tested rate is flagged below-tested-range', () => {
+    const noControl = { ...network, control: undefined };
+    const res = analyzeRateResponse(noControl, { ...base, priceRatio: 0.05 });
+    expect(res.warnings.some((w) => w.includes('No treatment at rate 0'))).toBe(true);
+    expect(res.pooled.range).toEqual([40, 200]);
+    expect(res.pooled.optimum).toBe(40);
+    expect(res.pooled.flags).toEqual(['below-tested-range']);
+    for (const t of res.trials) expect(t.flags).toContain('below-tested-range');
+  });
+
+  it('pools only over the rates every trial tested, and says so', () => {
+    const trials = network.trials.map((t, i) => (i === 0 ? { ...t, plots: t.plots.filter((p) => !p.treatment.endsWith('200')) } : t));
+    const res = analyzeRateResponse({ ...network, trials }, base);
+    expect(res.trials[0].testedRange).toEqual([0, 160]);
+    expect(res.pooled.range).toEqual([0, 160]);
+    expect(res.warnings.some((w) => w.includes('different rate ranges') && w.includes('0–160'))).toBe(true);
+  });
+
   it('shows a non-converged plateau fit and leaves that trial out of the pooled results', () => {
     // Trial 1 keeps rising linearly over the whole range: no plateau to find.
     const mixed = generateRateNetwork({ seed: 8, trials: 3, curves: [linearPlateauCurve(5, 0.02, 1000), linearPlateauCurve(5, 0.03, 100), linearPlateauCurve(5, 0.03, 100)], sd: 0.01 });
