@@ -38,6 +38,7 @@ describe('nonlinear curves vs R nls with block offsets', () => {
     it(`${c.model}: parameters within 1e-5 relative where nls converges`, () => {
       const network = generateRateNetwork({ seed: c.seed, trials: 5, curves: [c.curve], designs: ['randomised-blocks', 'randomised-blocks', 'completely-randomised'], sd: 0.25, dropPlots: 1 });
       const res = analyzeRateResponse(network, { factor: 'rate', model: c.model, priceRatio: 0.006, at: { timing: 'early' }, profitableWithin: 0, bootstrap: 0, seed: 1, confidence: 0.95 });
+      const best = analyzeRateResponse(network, { factor: 'rate', model: 'best', priceRatio: 0.006, at: { timing: 'early' }, profitableWithin: 0, bootstrap: 0, seed: 1, confidence: 0.95 });
       const files: Record<string, string> = {};
       const starts: string[] = [];
       network.trials.forEach((t, i) => {
@@ -74,6 +75,8 @@ for (i in 1:${network.trials.length}) {
     emit(paste0("a", i), cf[["a"]]); emit(paste0("b", i), cf[["b"]]); emit(paste0("th", i), cf[["th"]])
     emit(paste0("rss", i), deviance(fit))
     se <- summary(fit)$coefficients[, "Std. Error"]
+    k <- attr(logLik(fit), "df"); n <- length(d$y)
+    emit(paste0("aicc", i), AIC(fit) + 2 * k * (k + 1) / (n - k - 1))
     emit(paste0("sea", i), se[["a"]]); emit(paste0("seb", i), se[["b"]]); emit(paste0("seth", i), se[["th"]])
   }
 }
@@ -90,6 +93,9 @@ cat("R", as.character(getRversion()), "\\n")
         expect(relDiff(tr.params[slopeName(c.model)] as number, rVector(run, `b${i + 1}`)[0])).toBeLessThan(PARAM_TOL);
         expect(relDiff(tr.params[c.nonlinear] as number, rVector(run, `th${i + 1}`)[0])).toBeLessThan(PARAM_TOL);
         expect(relDiff(tr.rss as number, rVector(run, `rss${i + 1}`)[0])).toBeLessThan(RSS_TOL);
+        // AICc from the engine's table vs AIC(nls) + 2k(k+1)/(n-k-1): 1e-8 relative.
+        const row = best.trials[i].aicTable?.find((r) => r.model === c.model);
+        expect(relDiff(row?.aicc as number, rVector(run, `aicc${i + 1}`)[0])).toBeLessThan(1e-8);
         expect(relDiff(tr.standardErrors.intercept as number, rVector(run, `sea${i + 1}`)[0])).toBeLessThan(SE_TOL);
         expect(relDiff(tr.standardErrors[slopeName(c.model)] as number, rVector(run, `seb${i + 1}`)[0])).toBeLessThan(SE_TOL);
         expect(relDiff(tr.standardErrors[c.nonlinear] as number, rVector(run, `seth${i + 1}`)[0])).toBeLessThan(SE_TOL);
