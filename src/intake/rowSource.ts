@@ -6,7 +6,7 @@ import { CsvRecordReader, detectDelimiter } from './csv.js';
 import type { DecimalMode } from './numbers.js';
 import { failWith, type ProblemList } from './problems.js';
 import { StringCells, type RowCells } from './rowCells.js';
-import { decodeText, looksLikeZip } from './text.js';
+import { decodeText, looksLikeOldExcel, looksLikeZip } from './text.js';
 import { readXlsxSheet, type SheetRow } from './xlsx.js';
 
 export interface RowSource {
@@ -44,6 +44,7 @@ export async function openRowSource(filePath: string, options: SourceOptions): P
     failWith(filePath, 'file-unreadable', `cannot read the file: ${(e as Error).message}`);
   }
   const sha256 = createHash('sha256').update(bytes).digest('hex');
+  if (looksLikeOldExcel(bytes)) failWith(filePath, 'unsupported-format', 'this is an old binary Excel (.xls) file: save it as .xlsx or CSV and import that');
   const isXlsx = looksLikeZip(bytes) || /\.xls[xm]$/i.test(filePath);
   const source = isXlsx ? openXlsx(filePath, bytes, options) : openCsv(decodeText(bytes), options);
   return { source, sha256 };

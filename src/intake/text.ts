@@ -21,3 +21,8 @@ export function decodeText(bytes: Uint8Array): string {
 export function looksLikeZip(bytes: Uint8Array): boolean {
   return bytes.length >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04;
 }
+
+/** True for the old binary Excel format (OLE2 compound file), which we do not read. */
+export function looksLikeOldExcel(bytes: Uint8Array): boolean {
+  return bytes.length >= 4 && bytes[0] === 0xd0 && bytes[1] === 0xcf && bytes[2] === 0x11 && bytes[3] === 0xe0;
+}

@@ -54,6 +54,12 @@ describe('XLSX reading', () => {
     expect(brief(q)).toEqual([['not-a-number', 20, 'yield', '12,4x']]);
   });
 
+  it('refuses an old binary .xls file with a clear message', async () => {
+    const ole2 = new Uint8Array([0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1, 0, 0, 0, 0]);
+    const p = await problemsOf(() => readPlotFile(writeTemp('old.xls', ole2), MAPPING));
+    expect(brief(p)).toEqual([['unsupported-format', 0, null, null]]);
+  });
+
   it('places cells by their reference, so gaps land in the right columns', () => {
     const row: CellValue[] = [];
     row[0] = 'a';
