@@ -104,6 +104,7 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
   if (pooled.length > 0 && pooled.some((p) => p.range[0] !== lo || p.range[1] !== hi))
     warnings.push(`Trials tested different rate ranges; the pooled optimum is sought only over ${lo}–${hi}, the range tested in every trial used.`);
   if (pooled.length === 0) warnings.push('No trial has a converged curve: no pooled optimum.');
+  else if (hi < lo) warnings.push('The trials share no common range of tested rates: no pooled optimum.');
   else if (pooled.length < 5) warnings.push(`Only ${pooled.length} trial(s) in the pooled optimum: its interval is rough.`);
   if (options.model === 'best' && new Set(curves.map((c) => c.model)).size > 1) warnings.push('Trials use different curve models (chosen per trial by AICc); the pooled curve averages them.');
   const straight = trials.filter((t) => t.model === 'linear' && t.optimum !== null).length;

@@ -4,7 +4,8 @@
 // that x0 falls inside the interval it is the interval's minimum, otherwise the minimum is
 // at an end, where the fit is linear in a and b. Taking the best candidate over all
 // intervals gives the global least-squares join — no starting values, no local minima.
-// A join at the highest rate means no plateau is seen: non-convergence.
+// A join at the highest rate means no plateau is seen, one at the lowest positive rate
+// means the join is not identified: both reported as non-convergence.
 import type { TrialRateData } from './rateData.js';
 import { fitWithOffsets, type LinearFit } from './leastSquares.js';
 import { failedFit, type FitOutcome } from './fitOutcome.js';
@@ -49,20 +50,27 @@ export function fitLinearPlateau(d: TrialRateData): FitOutcome {
   const a = fit.coef[0];
   const b = fit.coef[fit.curveStart];
   const noPlateau = x0 >= u[m - 1];
+  // A join at the lowest positive rate fits exactly as well as any join below it (no plots
+  // in between): the join and the slope are then not identified.
+  const stepOnly = x0 <= u[1];
   // No LM here (the exact search is already the minimum, and the kink defeats derivatives);
   // the Jacobian at the solution gives Gauss–Newton standard errors as nls reports them.
   const pol = polishSeparable(d, LINEAR_PLATEAU_SHAPE, fit, x0, false);
-  const cov = noPlateau ? null : jacobianCovariance(pol.jacobian, fit.rss);
+  const cov = noPlateau || stepOnly ? null : jacobianCovariance(pol.jacobian, fit.rss);
   return {
     model: 'linear-plateau',
     curve: { model: 'linear-plateau', params: { intercept: a, slope: b, join: x0, plateau: a + b * x0 } },
     rss: fit.rss,
     parameters: fit.rank + 2,
     n,
-    converged: !noPlateau,
+    converged: !noPlateau && !stepOnly,
     method: 'exact least squares over join intervals',
     evaluations,
-    note: noPlateau ? 'join point at the highest tested rate: no plateau within the tested range' : null,
+    note: noPlateau
+      ? 'join point at the highest tested rate: no plateau within the tested range'
+      : stepOnly
+        ? 'join point at the lowest positive rate: the whole response happens at or below it, so the join is not identified'
+        : null,
     standardErrors: separableStandardErrors(cov, { intercept: [1, 0, 0], slope: [0, 1, 0], join: [0, 0, 1], plateau: [1, x0, b] }),
   };
 }

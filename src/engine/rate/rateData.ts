@@ -30,6 +30,7 @@ export function treatmentRates(network: NetworkInput, factor: string, at: Readon
     const rate = rateOf(t, factor, network.control);
     if (rate === null) continue;
     if (!matchesAt(t, at)) continue;
+    if (rate < 0) throw new RateResponseInputError(`treatment ${t.code} has ${factor} = ${rate}; rates must be >= 0`);
     out.set(t.code, rate);
   }
   if (at && Object.keys(at).length > 0) {

@@ -75,6 +75,13 @@ describe('rate response behaviour', () => {
     expect(res.pooled.trialsUsed).toBe(2);
   });
 
+  it('a plateau reached by the lowest rate leaves the join unidentified: not converged, said so', () => {
+    const step = generateRateNetwork({ seed: 12, trials: 1, curves: [linearPlateauCurve(5, 0.1, 20)], sd: 0.01 });
+    const res = analyzeRateResponse(step, { ...base, model: 'linear-plateau' });
+    expect(res.trials[0].converged).toBe(false);
+    expect(res.trials[0].convergence.note).toMatch(/not identified/);
+  });
+
   it("'best' shows the AICc table for every trial and picks its lowest converged row", () => {
     const res = analyzeRateResponse(network, { ...base, model: 'best' });
     for (const t of res.trials) {
