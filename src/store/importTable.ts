@@ -1,6 +1,7 @@
 // Store a validated plot table as one import batch, all or nothing: one IMMEDIATE transaction,
 // prepared multi-row inserts, integer ids from Maps and explicit plot ids, so no per-row SELECT.
 import type Database from 'better-sqlite3';
+import { ManyfieldError } from '../api/result.js';
 import type { ParsedPlotTable } from '../intake/types.js';
 import { bulkInserter } from './bulkInsert.js';
 import { ImportRefusedError } from './errors.js';
@@ -12,7 +13,10 @@ import type { Workspace } from './workspace.js';
 export interface ImportOptions {
   /** Replace the batch previously imported from a file with the same SHA-256. */
   readonly replace?: boolean;
-  /** Rows written so far (plots + observations) out of the total; called every few thousand rows. */
+  /**
+   * Rows written so far (plots + observations) out of the total; called every few thousand
+   * rows. Throwing from it cancels the import: the transaction rolls back, nothing is stored.
+   */
   readonly onProgress?: (done: number, total: number) => void;
   readonly now?: () => Date;
 }
@@ -155,9 +159,15 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
     const pv = plots.values;
     const treatmentIds = protocol.treatmentIds;
     let done = 0;
+    // Files are sorted by trial, so a one-entry cache answers most lookups without hashing.
+    let lastKey: string | null = null;
+    let trialId: number | undefined;
     for (let i = 0; i < table.plots.length; i++) {
       const p = table.plots[i];
-      const trialId = trialIds.get(p.trialKey);
+      if (p.trialKey !== lastKey) {
+        lastKey = p.trialKey;
+        trialId = trialIds.get(lastKey);
+      }
       const treatmentId = treatmentIds.get(p.treatment);
       if (trialId === undefined || treatmentId === undefined) refuseInconsistent(`row ${p.sourceRow} names ${trialId === undefined ? `trial "${p.trialKey}"` : `treatment "${p.treatment}"`}, which is not in the table's list`);
       const at = plots.nextRow();
@@ -175,8 +185,13 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
     const observations = bulkInserter(db, 'observation', ['plot_id', 'trait_id', 'value']);
     const ov = observations.values;
     const nPlots = table.plots.length;
+    let lastTrait: string | null = null;
+    let traitId: number | undefined;
     for (const o of table.observations) {
-      const traitId = traitIds.get(o.trait);
+      if (o.trait !== lastTrait) {
+        lastTrait = o.trait;
+        traitId = traitIds.get(lastTrait);
+      }
       const plot = o.plot;
       const value = o.value;
       if (traitId === undefined || !(plot >= 0 && plot < nPlots && Number.isInteger(plot)) || (value !== null && !Number.isFinite(value))) {
@@ -218,6 +233,9 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
     // Two values of one trait for one plot: the observation key says no.
     if (err instanceof Error && (err as { code?: string }).code === 'SQLITE_CONSTRAINT_PRIMARYKEY' && /observation/.test(err.message)) {
       refuseInconsistent('one plot has two values of the same trait');
+    }
+    if (err instanceof Error && (err as { code?: string }).code === 'SQLITE_BUSY') {
+      throw new ManyfieldError('conflict', `workspace "${ws.path}" is busy with another change (another import?); nothing was imported — try again when it has finished`);
     }
     throw err;
   } finally {

@@ -1,7 +1,9 @@
 // Opening a workspace: one SQLite file in WAL mode with foreign keys enforced, migrated to the
 // schema this build ships before anything else touches it.
 import { existsSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 import Database from 'better-sqlite3';
+import { ManyfieldError } from '../api/result.js';
 import { WorkspaceNotFoundError } from './errors.js';
 import { migrate, type MigrateOutcome } from './migrate.js';
 
@@ -33,7 +35,11 @@ export class Workspace {
 export function openWorkspace(path: string, options: OpenWorkspaceOptions = {}): Workspace {
   const readonly = options.readonly ?? false;
   if (readonly && options.create) throw new Error('a workspace cannot be created read-only');
-  if (!existsSync(path) && !options.create) throw new WorkspaceNotFoundError(path);
+  if (!existsSync(path)) {
+    if (!options.create) throw new WorkspaceNotFoundError(path);
+    const folder = dirname(resolve(path));
+    if (!existsSync(folder)) throw new ManyfieldError('not-found', `cannot create workspace "${path}": the folder "${folder}" does not exist`, { path });
+  }
 
   const db = new Database(path, { readonly, fileMustExist: !options.create });
   try {

@@ -59,6 +59,27 @@ describe('importParsedTable', () => {
     ws.close();
   });
 
+  it('is cancelled by throwing from onProgress, storing nothing and keeping the workspace usable', () => {
+    const ws = freshWorkspace();
+    importParsedTable(ws, syntheticTable({ trials: 2, prefix: 'Keep' }));
+    const before = counts(ws);
+    const big = syntheticTable({ trials: 2000 });
+    let calls = 0;
+    expect(() =>
+      importParsedTable(ws, big, {
+        onProgress: () => {
+          if (++calls === 3) throw new Error('cancelled by the user');
+        },
+      }),
+    ).toThrow('cancelled by the user');
+    expect(counts(ws)).toEqual(before);
+    expect(ws.db.inTransaction).toBe(false);
+    expect(ws.db.pragma('foreign_keys', { simple: true })).toBe(1);
+    importParsedTable(ws, big); // the same file can then be imported normally
+    expect(counts(ws).plots).toBe(before.plots + 2000 * 28);
+    ws.close();
+  });
+
   it('refuses a file already imported (same SHA-256) and changes nothing', () => {
     const ws = freshWorkspace();
     const table = syntheticTable({ trials: 4 });
