@@ -7,6 +7,7 @@ import { cholesky, cholInverse, cholLogDet, cholSolve, NotPositiveDefiniteError,
 import type { NetworkStatistics } from './sufficientStatistics.js';
 import type { ParameterLayout } from './parameters.js';
 import { designKey, evaluatePattern, randomColumnsOf, trialFromPattern, type PatternState, type TrialBlockState } from './trialBlock.js';
+import { patternMoments, type PatternMoments } from './patternMoments.js';
 
 export interface ModelFrame {
   readonly stats: NetworkStatistics;
@@ -17,8 +18,10 @@ export interface ModelFrame {
   readonly patternOf: Int32Array;
   readonly patternTrial: readonly number[];
   readonly patternCount: Int32Array;
-  /** Offset of each trial's (m - 1)-vector in Evaluation.hzy. */
-  readonly offsets: Int32Array;
+  /** Data moments of each pattern (see patternMoments.ts). */
+  readonly moments: readonly PatternMoments[];
+  /** Offset of each pattern's first column vector in Evaluation.hzy (m - 1 values per column). */
+  readonly columnOffsets: Int32Array;
 }
 
 export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): ModelFrame {
@@ -36,9 +39,12 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
   });
   const patternCount = new Int32Array(patternTrial.length);
   for (const q of patternOf) patternCount[q]++;
-  const offsets = new Int32Array(stats.trials.length + 1);
-  stats.trials.forEach((t, i) => (offsets[i + 1] = offsets[i] + t.m - 1));
-  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf), patternOf, patternTrial, patternCount, offsets };
+  const members: (typeof stats.trials)[number][][] = patternTrial.map(() => []);
+  stats.trials.forEach((t, i) => members[patternOf[i]].push(t));
+  const moments = members.map(patternMoments);
+  const columnOffsets = new Int32Array(patternTrial.length + 1);
+  moments.forEach((mo, q) => (columnOffsets[q + 1] = columnOffsets[q] + mo.nColumns * (stats.trials[patternTrial[q]].m - 1)));
+  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf), patternOf, patternTrial, patternCount, moments, columnOffsets };
 }
 
 export interface Evaluation {
@@ -49,9 +55,12 @@ export interface Evaluation {
   /** (X'V^-1 X)^-1, p x p. */
   readonly c: Float64Array;
   readonly patterns: PatternState[];
-  /** Per trial: the design rows of B'V^-1 y (at frame.offsets[i]) and y'V^-1 y. */
+  /** Per pattern column f (see patternMoments): the design rows of B'V^-1 y at
+   *  frame.columnOffsets, and the quadratic part of y'V^-1 y (its y'y part is sumYy / sigma2). */
   readonly hzy: Float64Array;
   readonly hyy: Float64Array;
+  /** Per pattern: the design rows of B'V^-1 y summed over its trials ((m - 1) each, same offsets as trials' m - 1). */
+  readonly hzySum: Float64Array[];
   readonly sumLogDetV: number;
   readonly logDetXVX: number;
 }
@@ -79,36 +88,39 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
     for (let a = 0; a < tc.length; a++) for (let b = 0; b < tc.length; b++) xvx[tg[a] * p + tg[b]] += count * pat.hzz[tc[a] * mz + tc[b]];
     sumLogDetV += count * ((t.n - pat.randomColumns.length) * Math.log(pat.sigma2) + pat.logDetM);
   });
-  const hzy = new Float64Array(frame.offsets[stats.trials.length]);
-  const hyy = new Float64Array(stats.trials.length);
-  const kry = new Float64Array(frame.randomColumns.reduce((mx, rc) => Math.max(mx, rc.length), 1));
-  for (let i = 0; i < stats.trials.length; i++) {
-    const t = stats.trials[i];
-    const pat = patterns[frame.patternOf[i]];
-    const m = t.m;
-    const mz = m - 1;
-    const K = t.gram;
+  const nColumns = frame.moments.reduce((n, mo) => n + mo.nColumns, 0);
+  const hzy = new Float64Array(frame.columnOffsets[frame.patternTrial.length]);
+  const hyy = new Float64Array(nColumns);
+  const hzySum: Float64Array[] = [];
+  let col = 0;
+  for (let q = 0; q < patterns.length; q++) {
+    const t = stats.trials[frame.patternTrial[q]];
+    const pat = patterns[q];
+    const mo = frame.moments[q];
+    const mz = t.m - 1;
     const R = pat.randomColumns;
     const r = R.length;
-    const o = frame.offsets[i];
-    for (let b = 0; b < r; b++) kry[b] = K[R[b] * m + mz];
-    // H_Zy = (K_Zy - gz K_Ry) / sigma2 ; H_yy = (K_yy - K_yR W K_Ry) / sigma2
-    for (let j = 0; j < mz; j++) {
-      let s = K[j * m + mz];
-      for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * kry[b];
-      hzy[o + j] = s / pat.sigma2;
+    // H_Zy = (u - gz u_R) / sigma2 ; quadratic part of H_yy = -u_R' W u_R / sigma2
+    for (let f = 0; f < mo.nColumns; f++, col++) {
+      const u = mo.columns.subarray(f * t.m, f * t.m + mz);
+      const o = frame.columnOffsets[q] + f * mz;
+      designRowsOfHy(u, pat, mz, hzy.subarray(o, o + mz));
+      let quad = 0;
+      for (let a = 0; a < r; a++) {
+        let s = 0;
+        for (let b = 0; b < r; b++) s += pat.w[a * r + b] * u[R[b]];
+        quad += u[R[a]] * s;
+      }
+      hyy[col] = -quad / pat.sigma2;
+      yvy += hyy[col];
     }
-    let q = 0;
-    for (let a = 0; a < r; a++) {
-      let s = 0;
-      for (let b = 0; b < r; b++) s += pat.w[a * r + b] * kry[b];
-      q += kry[a] * s;
-    }
-    hyy[i] = (K[mz * m + mz] - q) / pat.sigma2;
-    yvy += hyy[i];
+    yvy += mo.sumYy / pat.sigma2;
+    const hs = new Float64Array(mz);
+    designRowsOfHy(mo.sum.subarray(0, mz), pat, mz, hs);
+    hzySum.push(hs);
     const tc = t.treatmentColumns;
     const tg = t.treatmentIndex;
-    for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hzy[o + tc[a]];
+    for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hs[tc[a]];
   }
   const xvxM: Matrix = { rows: p, cols: p, data: xvx };
   const l = cholesky(xvxM);
@@ -118,7 +130,18 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   for (let j = 0; j < p; j++) rvr -= xvy[j] * beta[j];
   const dfResidual = stats.nObservations - p;
   const criterion = dfResidual * Math.log(2 * Math.PI) + sumLogDetV + logDetXVX + rvr;
-  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, sumLogDetV, logDetXVX };
+  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, hzySum, sumLogDetV, logDetXVX };
+}
+
+/** (u - gz u_R) / sigma2: the design rows of B'V^-1 y for data vector u = Z'y. */
+export function designRowsOfHy(u: ArrayLike<number>, pat: PatternState, mz: number, out: Float64Array): void {
+  const R = pat.randomColumns;
+  const r = R.length;
+  for (let j = 0; j < mz; j++) {
+    let s = u[j];
+    for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * u[R[b]];
+    out[j] = s / pat.sigma2;
+  }
 }
 
 /** The full block of trial i (B'V^-1 B and friends), for the once-per-fit inference passes. */

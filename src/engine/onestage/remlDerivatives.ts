@@ -5,9 +5,10 @@
 // with P = V^-1 - V^-1 X C X'V^-1, C = (X'V^-1 X)^-1, V_k = Z_k Z_k' or I. Everything is a
 // bilinear form on B: P y = V^-1 r, r = B rho with rho = (-beta on the treatment columns, 1 on y).
 // The trace terms depend on the design only, so they are computed once per design pattern;
-// per trial only the vectors h = B'V^-1 r and h2 = B'V^-2 r are formed.
+// the data enter through each pattern's moments (patternMoments.ts), so an iteration costs
+// O(patterns), not O(trials) — for networks of identically laid-out trials, O(1).
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
-import { ensurePatternH2 } from './trialBlock.js';
+import { ensurePatternH2, type PatternState } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
 
 export interface ScoreAndInformation {
@@ -70,9 +71,13 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
   const h2y = new Float64Array(maxM);
   const av = new Float64Array(maxM);
   const kr = new Float64Array(maxM);
-  for (let i = 0; i < stats.trials.length; i++) {
-    const t = stats.trials[i];
-    const pat = ev.patterns[frame.patternOf[i]];
+  const wu = new Float64Array(maxM);
+  let col = 0;
+  for (let q = 0; q < ev.patterns.length; q++) {
+    const i0 = frame.patternTrial[q];
+    const t = stats.trials[i0];
+    const pat = ev.patterns[q];
+    const mo = frame.moments[q];
     const m = t.m;
     const mz = m - 1;
     const K = t.gram;
@@ -84,90 +89,86 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
     const tc = t.treatmentColumns;
     const tg = t.treatmentIndex;
     const nt = tc.length;
-    const o = frame.offsets[i];
-    const hzy = ev.hzy;
-    // h = H rho: design rows H_Z,T rho_T + H_Zy ; y entry H_yT rho_T + H_yy
-    let hy = ev.hyy[i];
-    for (let j = 0; j < mz; j++) {
-      let s = hzy[o + j];
-      for (let x = 0; x < nt; x++) s -= H[j * mz + tc[x]] * ev.beta[tg[x]];
-      h[j] = s;
+    const act = active[i0];
+    // Quadratic terms, column by column. Every term below is of degree two in (u, c): where a
+    // constant (beta) meets a data-linear quantity the column's c stands in for the trial's 1.
+    for (let f = 0; f < mo.nColumns; f++, col++) {
+      const u = mo.columns.subarray(f * m, f * m + m);
+      const c = u[mz];
+      const hzy = ev.hzy.subarray(frame.columnOffsets[q] + f * mz, frame.columnOffsets[q] + (f + 1) * mz);
+      vectorsOf(H, H2, pat, hzy, c, ev.beta, tc, tg, mz, h, h2, h2y);
+      // y entry of h2 = B'V^-2 r: (H_yy - u_R' W H_Ry) / sigma2 - c beta . h2y_T   (y'y part added per pattern)
+      let h2last = ev.hyy[col];
+      for (let a = 0; a < r; a++) {
+        let w = 0;
+        for (let b = 0; b < r; b++) w += pat.w[a * r + b] * hzy[R[b]];
+        h2last -= u[R[a]] * w;
+      }
+      h2last /= s2;
+      for (let x = 0; x < nt; x++) h2last -= c * h2y[tc[x]] * ev.beta[tg[x]];
+      h2[mz] = h2last;
+      for (const a of act) {
+        if (a.columns) {
+          for (const j of a.columns) quadratic[a.index] += h[j] * h[j];
+        } else {
+          let qq = h2[mz];
+          for (let x = 0; x < nt; x++) qq -= c * ev.beta[tg[x]] * h2[tc[x]];
+          quadratic[a.index] += qq;
+        }
+      }
+      for (let ia = 0; ia < act.length; ia++) {
+        const A = act[ia];
+        for (let ib = ia; ib < act.length; ib++) {
+          const B = act[ib];
+          let val = 0;
+          if (A.columns && B.columns) {
+            for (const x of A.columns) {
+              if (h[x] === 0) continue;
+              let sum = 0;
+              for (const y of B.columns) sum += H[x * mz + y] * h[y];
+              val += h[x] * sum;
+            }
+          } else if (A.columns || B.columns) {
+            for (const x of (A.columns ?? B.columns)!) val += h[x] * h2[x];
+          } else {
+            // r'V^-3 r = a . h2 / sigma2 with V^-1 r = B a / sigma2, a = rho - E_R W (K rho)_R
+            for (let b = 0; b < r; b++) {
+              let sum = u[R[b]];
+              for (let x = 0; x < nt; x++) sum -= c * K[R[b] * m + tc[x]] * ev.beta[tg[x]];
+              kr[b] = sum;
+            }
+            av.fill(0, 0, m);
+            for (let x = 0; x < nt; x++) av[tc[x]] = -c * ev.beta[tg[x]];
+            av[mz] = 1;
+            for (let a = 0; a < r; a++) {
+              let sum = 0;
+              for (let b = 0; b < r; b++) sum += pat.w[a * r + b] * kr[b];
+              av[R[a]] -= sum;
+            }
+            for (let j = 0; j < m; j++) val += (av[j] / s2) * h2[j];
+          }
+          ai[A.index * nP + B.index] += val;
+          if (A.index !== B.index) ai[B.index * nP + A.index] += val;
+        }
+      }
     }
-    for (let x = 0; x < nt; x++) hy -= hzy[o + tc[x]] * ev.beta[tg[x]];
-    h[mz] = hy;
-    // H2_Zy = (H_Zy - gz H_Ry) / sigma2 ; H2_yy = (H_yy - K_yR W H_Ry) / sigma2
-    for (let j = 0; j < mz; j++) {
-      let s = hzy[o + j];
-      for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * hzy[o + R[b]];
-      h2y[j] = s / s2;
-    }
-    let h2yy = ev.hyy[i];
-    for (let a = 0; a < r; a++) {
-      let s = 0;
-      for (let b = 0; b < r; b++) s += pat.w[a * r + b] * hzy[o + R[b]];
-      h2yy -= K[mz * m + R[a]] * s;
-    }
-    h2yy /= s2;
-    let h2last = h2yy;
-    for (let j = 0; j < mz; j++) {
-      let s = h2y[j];
-      for (let x = 0; x < nt; x++) s -= H2[j * mz + tc[x]] * ev.beta[tg[x]];
-      h2[j] = s;
-    }
-    for (let x = 0; x < nt; x++) h2last -= h2y[tc[x]] * ev.beta[tg[x]];
-    h2[mz] = h2last;
-    const act = active[i];
+    // the y'y parts: r'V^-2 r and r'V^-3 r contain sum y'y / sigma2^2 and / sigma2^3
+    for (const a of act)
+      if (!a.columns) {
+        quadratic[a.index] += mo.sumYy / (s2 * s2);
+        ai[a.index * nP + a.index] += mo.sumYy / (s2 * s2 * s2);
+      }
+    // linear terms from the summed data vector (c = number of trials)
+    vectorsOf(H, H2, pat, ev.hzySum[q], mo.sum[mz], ev.beta, tc, tg, mz, h, h2, h2y);
     for (const a of act) {
       const k = a.index;
       if (a.columns) {
-        for (const j of a.columns) {
-          quadratic[k] += h[j] * h[j];
-          for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + j] * h[j];
-        }
+        for (const j of a.columns) for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + j] * h[j];
       } else {
-        // rho' h2 = h2[y] - beta_T . h2[T]
-        let qq = h2[mz];
-        for (let x = 0; x < nt; x++) qq -= ev.beta[tg[x]] * h2[tc[x]];
-        quadratic[k] += qq;
         for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2[tc[x]];
       }
     }
-    // first AI term r'V^-1 V_k V^-1 V_l V^-1 r
-    for (let ia = 0; ia < act.length; ia++) {
-      const A = act[ia];
-      for (let ib = ia; ib < act.length; ib++) {
-        const B = act[ib];
-        let val = 0;
-        if (A.columns && B.columns) {
-          for (const x of A.columns) {
-            if (h[x] === 0) continue;
-            let s = 0;
-            for (const y of B.columns) s += H[x * mz + y] * h[y];
-            val += h[x] * s;
-          }
-        } else if (A.columns || B.columns) {
-          for (const x of (A.columns ?? B.columns)!) val += h[x] * h2[x];
-        } else {
-          // r'V^-3 r = a . h2 with V^-1 r = B a, a = (rho - E_R W (K rho)_R) / sigma2
-          for (let b = 0; b < r; b++) {
-            let s = K[R[b] * m + mz];
-            for (let x = 0; x < nt; x++) s -= K[R[b] * m + tc[x]] * ev.beta[tg[x]];
-            kr[b] = s;
-          }
-          av.fill(0, 0, m);
-          for (let x = 0; x < nt; x++) av[tc[x]] = -ev.beta[tg[x]];
-          av[mz] = 1;
-          for (let a = 0; a < r; a++) {
-            let s = 0;
-            for (let b = 0; b < r; b++) s += pat.w[a * r + b] * kr[b];
-            av[R[a]] -= s;
-          }
-          for (let j = 0; j < m; j++) val += (av[j] / s2) * h2[j];
-        }
-        ai[A.index * nP + B.index] += val;
-        if (A.index !== B.index) ai[B.index * nP + A.index] += val;
-      }
-    }
+    void wu;
   }
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
@@ -187,4 +188,29 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
       if (l !== k) ai[l * nP + k] -= s;
     }
   return { gradient, ai, quadratic, trace };
+}
+
+/**
+ * Design rows of h = B'V^-1 r and h2 = B'V^-2 r for one data column (u, c): r = y - X beta, with
+ * the column's c in place of the trial's 1 where beta enters. Also h2y = design rows of B'V^-2 y.
+ */
+function vectorsOf(H: Float64Array, H2: Float64Array, pat: PatternState, hzy: ArrayLike<number>, c: number, beta: Float64Array, tc: Int32Array, tg: Int32Array, mz: number, h: Float64Array, h2: Float64Array, h2y: Float64Array): void {
+  const R = pat.randomColumns;
+  const r = R.length;
+  const nt = tc.length;
+  for (let j = 0; j < mz; j++) {
+    let s = hzy[j];
+    let s2 = 0;
+    for (let x = 0; x < nt; x++) {
+      const b = beta[tg[x]];
+      s -= c * H[j * mz + tc[x]] * b;
+      s2 += H2[j * mz + tc[x]] * b;
+    }
+    h[j] = s;
+    let y2 = hzy[j];
+    for (let b = 0; b < r; b++) y2 -= pat.gz[j * r + b] * hzy[R[b]];
+    y2 /= pat.sigma2;
+    h2y[j] = y2;
+    h2[j] = y2 - c * s2;
+  }
 }

@@ -3,7 +3,7 @@
 // and block effects cancel because contrast coefficients sum to zero) and the trial's own
 // fixed-effects estimate (blocks + treatments fitted to that trial alone, from its Gram matrix).
 import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import { designRowsOfHy, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import type { TrialContrastReport } from './types.js';
 
 export interface ContrastVector {
@@ -66,7 +66,8 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
     }
     // h_T = (B'V^-1 r)_T, for the predicted treatment-by-trial effects
     const pat = ev.patterns[q];
-    const o = frame.offsets[i];
+    const hzy = new Float64Array(mz);
+    designRowsOfHy(Float64Array.from({ length: mz }, (_, j) => t.gram[j * m + mz]), pat, mz, hzy);
     const local = new Int32Array(p).fill(-1);
     t.treatmentIndex.forEach((g, a) => (local[g] = a));
     const out = contrasts.map((c): TrialContrastReport => {
@@ -79,7 +80,7 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
         let u = 0;
         if (a >= 0 && treatmentTrialVariance > 0) {
           const col = t.treatmentColumns[a];
-          let h = ev.hzy[o + col];
+          let h = hzy[col];
           for (let x = 0; x < nt; x++) h -= pat.hzz[col * mz + t.treatmentColumns[x]] * ev.beta[t.treatmentIndex[x]];
           u = treatmentTrialVariance * h;
         }
