@@ -4,21 +4,20 @@
 // -> price-ratio sensitivity. A mixed-model quadratic (random trial deviations of the
 // coefficients) is not part of this module yet.
 import type { NetworkInput } from '../types.js';
-import { cappedOptimum, netReturn, yieldGain, type Curve } from './curves.js';
+import { cappedOptimum, type Curve } from './curves.js';
 import { RateResponseInputError } from './errors.js';
-import { num, numRecord } from './jsonSafe.js';
-import { chooseTrialModel } from './modelChoice.js';
+import { num } from './jsonSafe.js';
 import { pooledOptimum, type PooledPoint } from './pooledOptimum.js';
 import { quadraticDeltaInterval } from './deltaMethod.js';
 import { bootstrapOptimum } from './bootstrap.js';
 import { quantileType7 } from './quantile.js';
-import { treatmentRates, trialRateData } from './rateData.js';
+import { treatmentRates } from './rateData.js';
+import { analyseTrialRate, type PooledTrial } from './trialRate.js';
 import { unitNote } from './unitNote.js';
 import {
   CURVE_FORMS,
   RATE_CAUTIONS,
   RATE_MODELS,
-  type OptimumFlag,
   type PooledRateResult,
   type RateResponseHooks,
   type RateResponseOptions,
@@ -33,11 +32,6 @@ export type { RateResponseOptions, RateResponseResult } from './types.js';
 
 export const SENSITIVITY_MULTIPLIERS: readonly number[] = [0.5, 0.75, 1, 1.25, 1.5, 2];
 export const SITE_QUANTILES: readonly number[] = [0.1, 0.25, 0.5, 0.75, 0.9];
-
-interface PooledTrial {
-  readonly curve: Curve;
-  readonly range: [number, number];
-}
 
 export function analyzeRateResponse(network: NetworkInput, options: RateResponseOptions, hooks?: RateResponseHooks): RateResponseResult {
   checkOptions(options);
@@ -54,47 +48,10 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
   const pooled: PooledTrial[] = [];
   network.trials.forEach((t, i) => {
     signal?.throwIfAborted();
-    const d = trialRateData(t, rates);
-    const n = d.y.length;
-    const range: [number, number] = n > 0 ? [d.distinctRates[0], d.distinctRates[d.distinctRates.length - 1]] : [NaN, NaN];
-    if (n === 0) {
-      warnings.push(`Trial ${t.trial}: no usable plots of the chosen treatments; left out.`);
-      trials.push(emptyTrial(t.trial, 'no usable plots of the chosen treatments'));
-    } else {
-      if (!d.hasZeroRate) warnings.push(`Trial ${t.trial}: no plots at rate 0; its yield gain is measured from the curve extrapolated to rate 0.`);
-      const { chosen, table, fallback } = chooseTrialModel(d, options.model);
-      if (fallback && chosen.converged) warnings.push(`Trial ${t.trial}: ${fallback}.`);
-      const curve = chosen.curve;
-      const flags: OptimumFlag[] = [];
-      let opt: ReturnType<typeof cappedOptimum> | null = null;
-      if (!curve) flags.push('no-curve');
-      else if (!chosen.converged) flags.push('not-converged');
-      else {
-        opt = cappedOptimum(curve, r, range[0], range[1]);
-        flags.push(...opt.flags);
-        pooled.push({ curve, range });
-      }
-      if (!chosen.converged) warnings.push(`Trial ${t.trial}: ${chosen.model} fit did not converge (${chosen.note ?? 'no detail'}); left out of the pooled results.`);
-      const df = n - (chosen.parameters - 1);
-      trials.push({
-        trial: t.trial,
-        model: curve ? chosen.model : null,
-        params: curve ? numRecord(curve.params) : {},
-        standardErrors: curve ? numRecord(chosen.standardErrors) : {},
-        optimum: num(opt?.optimum),
-        unconstrainedOptimum: num(opt?.unconstrained),
-        yieldGainAtOptimum: opt && curve ? num(yieldGain(curve, opt.optimum)) : null,
-        netReturnAtOptimum: opt && curve ? num(netReturn(curve, opt.optimum, r)) : null,
-        converged: chosen.converged,
-        convergence: { method: chosen.method, evaluations: chosen.evaluations, note: chosen.note },
-        flags,
-        testedRange: [num(range[0]), num(range[1])],
-        plots: n,
-        rss: curve ? num(chosen.rss) : null,
-        residualSd: curve && df > 0 ? num(Math.sqrt(chosen.rss / df)) : null,
-        ...(table ? { aicTable: table } : {}),
-      });
-    }
+    const entry = analyseTrialRate(t, rates, options);
+    trials.push(entry.result);
+    warnings.push(...entry.warnings);
+    if (entry.pooled) pooled.push(entry.pooled);
     progress('fitting trials', (i + 1) / network.trials.length);
   });
 
@@ -222,26 +179,6 @@ function summariseSiteOptima(trials: TrialRateResult[]): SiteOptima {
     min: n > 0 ? Math.min(...optima) : null,
     max: n > 0 ? Math.max(...optima) : null,
     shareNoInputPays: n > 0 ? trials.filter((t) => t.optimum !== null && t.flags.includes('no-input-pays')).length / n : null,
-  };
-}
-
-function emptyTrial(trial: string, note: string): TrialRateResult {
-  return {
-    trial,
-    model: null,
-    params: {},
-    standardErrors: {},
-    optimum: null,
-    unconstrainedOptimum: null,
-    yieldGainAtOptimum: null,
-    netReturnAtOptimum: null,
-    converged: false,
-    convergence: { method: 'none', evaluations: 0, note },
-    flags: ['no-curve'],
-    testedRange: [null, null],
-    plots: 0,
-    rss: null,
-    residualSd: null,
   };
 }
 
