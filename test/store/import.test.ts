@@ -156,6 +156,19 @@ describe('importParsedTable', () => {
     expect(counts(ws)).toEqual(before);
   });
 
+  it('keeps trial names unique across files: a key already used elsewhere is qualified by site and year', () => {
+    const ws = freshWorkspace();
+    const renamed = (prefix: string): ParsedPlotTable => {
+      const t = syntheticTable({ trials: 1, prefix });
+      const old = t.trials[0].key;
+      return { ...t, trials: [{ ...t.trials[0], key: 'T1' }], plots: t.plots.map((p) => ({ ...p, trialKey: 'T1' })), trialCovariates: { T1: t.trialCovariates[old] } };
+    };
+    importParsedTable(ws, renamed('A'));
+    importParsedTable(ws, renamed('B'));
+    expect(listTrials(ws).map((t) => t.label)).toEqual(['T1', 'T1 (B000 2015)']);
+    expect(loadNetwork(ws, 'yield').trials.map((t) => t.trial)).toEqual(['T1', 'T1 (B000 2015)']);
+  });
+
   it('refuses a trait stored with another unit, and a table that contradicts itself', () => {
     const ws = freshWorkspace();
     importParsedTable(ws, syntheticTable({ trials: 2 }));
