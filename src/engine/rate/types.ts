@@ -116,10 +116,11 @@ export interface SensitivityRow {
 
 export interface SiteOptima {
   readonly n: number;
-  /** Quantiles of the trials' optima (R's default type 7). */
+  /** Quantiles of the trials' optima as reported (held inside each trial's tested range), R's default type 7. */
   readonly quantiles: { readonly p: number; readonly value: Num }[];
   readonly min: Num;
   readonly max: Num;
+  /** Share of trials with a converged curve whose optimum is rate 0. */
   readonly shareNoInputPays: Num;
 }
 
