@@ -1,14 +1,15 @@
 // Turns data rows into a validated, unit-converted plot table. Rows are fed one at a time
-// (cells in a reused array); per-trial and per-treatment state is kept in maps with a
-// one-entry cache, since files are usually sorted by trial and often by treatment.
-import type { FactorInfo, LevelValue, TreatmentInfo, TrialDesign } from '../engine/types.js';
+// (cells read in place); per-trial and per-treatment state is kept with a one-entry cache,
+// since files are usually sorted by trial and often by treatment.
+import type { TrialDesign } from '../engine/types.js';
 import { parseDesignName, DESIGN_NAMES } from './designs.js';
 import { parseDecimal, type DecimalMode } from './numbers.js';
 import type { PlotColumns } from './plotColumns.js';
 import type { RowCells } from './rowCells.js';
 import type { ProblemList } from './problems.js';
 import type { ImportMapping, ParsedObservation, ParsedPlot, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
-import { findUnit, toCanonical } from './units.js';
+import { covariateTable, factorsAndTreatments } from './plotTableLevels.js';
+import { toCanonical } from './units.js';
 
 interface TraitState {
   readonly trait: ParsedTrait;
@@ -491,7 +492,7 @@ export class PlotTableBuilder {
       trials.push({ key: t.key, site: t.site, year: t.year, design });
     }
     problems.throwIfAny();
-    const { factors, treatments } = this.factorsAndTreatments();
+    const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode);
     return {
       file,
       sha256,
@@ -504,51 +505,8 @@ export class PlotTableBuilder {
       trials,
       plots: this.plots,
       observations: this.observations,
-      trialCovariates: this.covariateTable(),
+      trialCovariates: covariateTable(this.trials.values(), cols.covariates, this.covariateNumeric, this.mode),
       mapping: this.mapping,
     };
-  }
-
-  private factorsAndTreatments(): { factors: FactorInfo[]; treatments: TreatmentInfo[] } {
-    const list = this.treatmentList;
-    const factors: FactorInfo[] = [];
-    const scales: number[] = [];
-    this.cols.factors.forEach((fc, k) => {
-      const numeric = list.every((t) => t.raw[k] === '' || !Number.isNaN(parseDecimal(t.raw[k], this.mode)));
-      const unitText = this.mapping.factorUnits?.[fc.name];
-      let unit = unitText;
-      let scale = 1;
-      const known = unitText === undefined ? undefined : findUnit(unitText);
-      if (numeric && known !== undefined && known.dimension !== 'none' && known.perBushelLb !== true) {
-        unit = known.canonical;
-        scale = known.factor;
-      }
-      scales.push(scale);
-      factors.push(unit === undefined ? { name: fc.name, kind: numeric ? 'numeric' : 'categorical' } : { name: fc.name, kind: numeric ? 'numeric' : 'categorical', unit });
-    });
-    const treatments = list.map((t): TreatmentInfo => {
-      const levels: Record<string, LevelValue> = {};
-      this.cols.factors.forEach((fc, k) => {
-        const raw = t.raw[k];
-        levels[fc.name] = raw === '' ? null : factors[k].kind === 'numeric' ? parseDecimal(raw, this.mode) * scales[k] : raw;
-      });
-      return { code: t.code, levels };
-    });
-    return { factors, treatments };
-  }
-
-  private covariateTable(): Record<string, Record<string, number | string | null>> {
-    const out: Record<string, Record<string, number | string | null>> = {};
-    const covs = this.cols.covariates;
-    if (covs.length === 0) return out;
-    for (const t of this.trials.values()) {
-      const row: Record<string, number | string | null> = {};
-      covs.forEach((c, k) => {
-        const raw = t.covariates[k];
-        row[c.name] = raw === null ? null : this.covariateNumeric[k] ? parseDecimal(raw, this.mode) : raw;
-      });
-      out[t.key] = row;
-    }
-    return out;
   }
 }
