@@ -303,6 +303,48 @@ describe('every kind of bad input names its row and column', () => {
   });
 });
 
+describe('layout and trait-kind rules', () => {
+  const header = ['env', 'design', 'block', 'row', 'col', 'trt', 'y'];
+  const mapping: ImportMapping = { columns: { trial: 'env', design: 'design', block: 'block', row: 'row', col: 'col', treatment: 'trt', response: 'y' } };
+  const rcRows = (): string[][] => [
+    ['T', 'row-column', '', '1', '1', 'CTL', '3'],
+    ['T', 'row-column', '', '1', '2', 'A1', '4'],
+    ['T', 'row-column', '', '2', '1', 'A1', '5'],
+    ['T', 'row-column', '', '2', '2', 'CTL', '6'],
+  ];
+
+  it('an unknown design name', async () => {
+    const data = rcRows();
+    data[1][1] = 'split-plot';
+    const p = await problemsOf(() => readPlotFile(writeTemp('ud.csv', toCsv(data, header)), mapping));
+    expect(brief(p)).toEqual([['unknown-design', 3, 'design', 'split-plot']]);
+  });
+
+  it('a row-column trial with a plot lacking its column, and a position that is not a whole number', async () => {
+    const data = rcRows();
+    data[2][4] = '';
+    data[3][3] = '2.5';
+    const p = await problemsOf(() => readPlotFile(writeTemp('rc.csv', toCsv(data, header)), mapping));
+    expect(brief(p)).toEqual([
+      ['not-an-integer', 5, 'row', '2.5'],
+      ['missing-row-column', 4, 'row', ''],
+    ]);
+  });
+
+  it('a randomised-blocks trial with a plot lacking its block', async () => {
+    const data = rcRows().map((r, i) => [r[0], 'rcbd', i === 2 ? '' : String(1 + (i >> 1)), '', '', r[5], r[6]]);
+    const p = await problemsOf(() => readPlotFile(writeTemp('rb.csv', toCsv(data, header)), mapping));
+    expect(brief(p)).toEqual([['missing-block', 4, 'block', '']]);
+  });
+
+  it('a count trait must hold whole numbers', async () => {
+    const data = rcRows();
+    data[0][6] = '3.5';
+    const p = await problemsOf(() => readPlotFile(writeTemp('count.csv', toCsv(data, header)), { ...mapping, trait: { name: 'y', unit: 'as-is', kind: 'count' } }));
+    expect(brief(p)).toEqual([['not-a-count', 2, 'y', '3.5']]);
+  });
+});
+
 describe('one row per plot and trait', () => {
   const header = ['env', 'block', 'trt', 'trait', 'value'];
   const data: string[][] = [];
@@ -335,6 +377,26 @@ describe('one row per plot and trait', () => {
       [2, 120 * 0.1],
       [3, 135 * 0.1],
     ]);
+  });
+
+  it('reports a plot whose rows disagree on the treatment', async () => {
+    const header2 = ['env', 'plot', 'trt', 'trait', 'value'];
+    const rows2 = [
+      ['E1', '1', 'CTL', 'yield', '4'],
+      ['E1', '1', 'CTL', 'protein', '120'],
+      ['E1', '2', 'A1', 'yield', '5'],
+      ['E1', '2', 'CTL', 'protein', '130'],
+      ['E1', '3', 'CTL', 'yield', '4'],
+      ['E1', '4', 'A1', 'yield', '5'],
+    ];
+    const p = await problemsOf(() => readPlotFile(writeTemp('long-plot.csv', toCsv(rows2, header2)), { ...mapping, columns: { trial: 'env', plot: 'plot', treatment: 'trt', trait: 'trait', response: 'value' } }));
+    expect(brief(p)).toEqual([['plot-disagrees', 5, 'trt', 'CTL']]);
+  });
+
+  it('asks for a plot identifier when traits cannot be tied to plots', async () => {
+    const rows2 = data.map((r) => [r[0], r[2], r[3], r[4]]);
+    const p = await problemsOf(() => readPlotFile(writeTemp('long-noid.csv', toCsv(rows2, ['env', 'trt', 'trait', 'value'])), { ...mapping, columns: { trial: 'env', treatment: 'trt', trait: 'trait', response: 'value' } }));
+    expect(brief(p)).toEqual([['no-plot-identifier', 2, 'trait', 'yield']]);
   });
 
   it('reports the same trait twice for a plot, and an unlisted trait', async () => {
