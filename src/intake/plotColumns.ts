@@ -29,6 +29,12 @@ export interface PlotColumns {
   readonly header: readonly string[];
 }
 
+/** The header's names for a message, cut short when a damaged file has thousands of cells. */
+export function listHeader(header: readonly string[]): string {
+  const shown = header.slice(0, 30).map((h) => `"${h.length > 40 ? `${h.slice(0, 37)}...` : h}"`);
+  return header.length > 30 ? `${shown.join(', ')} and ${header.length - 30} more` : shown.join(', ');
+}
+
 /** Index of `name` in the header: exact match first, then a unique case-insensitive match. */
 export function findColumn(header: readonly string[], name: string): number {
   const exact = header.indexOf(name.trim());
@@ -46,7 +52,7 @@ export function resolveColumns(header: readonly string[], headerRow: number, map
     const index = findColumn(header, name);
     if (index < 0) {
       ok = false;
-      problems.add(headerRow, name, null, 'missing-column', `column "${name}" (mapping key ${key}) is not in the header; the header has: ${header.map((h) => `"${h}"`).join(', ')}`);
+      problems.add(headerRow, name, null, 'missing-column', `column "${name}" (mapping key ${key}) is not in the header; the header has: ${listHeader(header)}`);
       return -1;
     }
     if (header.indexOf(header[index], index + 1) >= 0) {

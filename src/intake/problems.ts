@@ -2,6 +2,8 @@
 import { IntakeError, type IntakeProblem } from './types.js';
 
 export const DEFAULT_MAX_PROBLEMS = 200;
+const MAX_VALUE_CHARS = 200;
+const MAX_MESSAGE_CHARS = 1000;
 
 export class ProblemList {
   readonly items: IntakeProblem[] = [];
@@ -18,7 +20,10 @@ export class ProblemList {
       this.truncated = true;
       return;
     }
-    this.items.push({ file: this.file, row, column, value, rule, message });
+    // A damaged file can hold megabyte cells; a problem shows enough of one to find it.
+    const shown = value !== null && value.length > MAX_VALUE_CHARS ? `${value.slice(0, MAX_VALUE_CHARS)}... (${value.length} characters)` : value;
+    const text = message.length > MAX_MESSAGE_CHARS ? `${message.slice(0, MAX_MESSAGE_CHARS)}...` : message;
+    this.items.push({ file: this.file, row, column, value: shown, rule, message: text });
   }
 
   /** True once the limit is reached: reading further would only find problems we cannot list. */

@@ -2,7 +2,7 @@
 // plot data; same reader and the same style of problems as plot files.
 import type { ColumnsSpec } from '../spec/analysisSpec.js';
 import { isMissingText, parseDecimal } from './numbers.js';
-import { findColumn } from './plotColumns.js';
+import { findColumn, listHeader } from './plotColumns.js';
 import { DEFAULT_MAX_PROBLEMS, ProblemList } from './problems.js';
 import { openRowSource, type SourceOptions } from './rowSource.js';
 
@@ -36,7 +36,7 @@ export async function readSummaryFile(filePath: string, columns: ColumnsSpec, op
   const locate = (key: string, name: string | undefined): number => {
     if (name === undefined) return -1;
     const i = findColumn(source.header, name);
-    if (i < 0) problems.add(source.headerRow, name, null, 'missing-column', `column "${name}" (${key}) is not in the header; the header has: ${source.header.map((h) => `"${h}"`).join(', ')}`);
+    if (i < 0) problems.add(source.headerRow, name, null, 'missing-column', `column "${name}" (${key}) is not in the header; the header has: ${listHeader(source.header)}`);
     return i;
   };
   const trialAt = locate('columns.trial', columns.trial);

@@ -36,6 +36,8 @@ async function readsCleanly(content: string | Uint8Array, mapping: ImportMapping
     expect(e.problems.length).toBeLessThanOrEqual(200);
     for (const p of e.problems) {
       expect(p.file).toBe(path);
+      expect(p.value === null || p.value.length <= 240).toBe(true);
+      expect(p.message.length).toBeLessThanOrEqual(1003);
       expect(Number.isInteger(p.row) && p.row >= 0).toBe(true);
       expect(p.rule).toMatch(/^[a-z-]+$/);
     }

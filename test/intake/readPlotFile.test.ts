@@ -295,6 +295,13 @@ describe('every kind of bad input names its row and column', () => {
     expect(brief(p.filter((x) => x.rule === 'unclosed-quote'))).toEqual([['unclosed-quote', 12, null, null]]);
   });
 
+  it('shows only the start of a huge bad cell', async () => {
+    const rows = validRows();
+    setCell(rows, 4, 'yield', 'x'.repeat(100_000));
+    const p = await problemsOf(() => readPlotFile(file('hugecell.csv', rows), MAPPING));
+    expect(brief(p)).toEqual([['not-a-number', 4, 'yield', `${'x'.repeat(200)}... (100000 characters)`]]);
+  });
+
   it('a row with more cells than the header', async () => {
     const rows = validRows();
     rows[7].push('surplus');
