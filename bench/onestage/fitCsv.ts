@@ -1,11 +1,12 @@
 // Child process of the bench: read one CSV, fit the one-stage model, print the JSON result.
-// Prints one line "BENCH {json}" with its own timings (read, fit, print) to stderr.
+// Prints one line "BENCH {json}" with its own timings (read, fit, print; wall and CPU) to stderr.
 import { readFileSync } from 'node:fs';
 import { fitOneStage } from '../../src/engine/onestage/fitOneStage.js';
 import type { ResolvedContrast } from '../../src/engine/contrasts/resolve.js';
 import { networkFromCsv } from './csvNetwork.js';
 
 const [file, residual, df, lrt] = process.argv.slice(2);
+const cpu0 = process.cpuUsage();
 const t0 = performance.now();
 const network = networkFromCsv(readFileSync(file, 'utf8'));
 const t1 = performance.now();
@@ -30,6 +31,7 @@ const t2 = performance.now();
 const text = JSON.stringify(result);
 process.stdout.write(`${text}\n`);
 const t3 = performance.now();
+const cpu = process.cpuUsage(cpu0);
 process.stderr.write(
-  `BENCH ${JSON.stringify({ readMs: t1 - t0, fitMs: t2 - t1, printMs: t3 - t2, totalMs: t3 - t0, logLik: result.logLik, iterations: result.run.iterations, converged: result.converged, variance: result.variance.residualByTrial ? undefined : result.variance, contrast: result.contrasts[0], bytes: text.length })}\n`,
+  `BENCH ${JSON.stringify({ readMs: t1 - t0, fitMs: t2 - t1, printMs: t3 - t2, totalMs: t3 - t0, cpuMs: (cpu.user + cpu.system) / 1000, logLik: result.logLik, iterations: result.run.iterations, converged: result.converged, variance: result.variance.residualByTrial ? undefined : result.variance, contrast: result.contrasts[0], bytes: text.length })}\n`,
 );

@@ -1,7 +1,7 @@
 // Per-trial sufficient statistics, computed once per fit. Each trial's plots are summarised by
 // the Gram matrix of B = [trial intercept?, block indicators, treatment indicators, y]; every
 // REML quantity later is a function of these small matrices, never of the plots themselves.
-import type { NetworkInput } from '../types.js';
+import type { NetworkInput, PlotObservation } from '../types.js';
 import type { RandomTerm } from './types.js';
 import { RANDOM_TERMS } from './types.js';
 
@@ -46,10 +46,14 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
   const known = new Map(network.treatments.map((t, i) => [t.code, i]));
   const observed = new Array<boolean>(network.treatments.length).fill(false);
   let dropped = 0;
-  const usable: { trial: string; plots: { t: number; block: string; y: number }[] }[] = [];
+  // keep[k] = 1 + network treatment index of plot k, or 0 when the plot is dropped
+  const usable: { trial: string; plots: readonly PlotObservation[]; keep: Int32Array }[] = [];
   for (const trial of network.trials) {
-    const plots: { t: number; block: string; y: number }[] = [];
-    for (const p of trial.plots) {
+    const plots = trial.plots;
+    const keep = new Int32Array(plots.length);
+    let any = false;
+    for (let k = 0; k < plots.length; k++) {
+      const p = plots[k];
       const t = known.get(p.treatment);
       if (t === undefined) throw new OneStageDataError(`trial "${trial.trial}": plot treatment "${p.treatment}" is not one of the network's treatments`);
       if (p.value === null || p.excluded || !Number.isFinite(p.value)) {
@@ -57,9 +61,10 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
         continue;
       }
       observed[t] = true;
-      plots.push({ t, block: p.block ?? '', y: p.value });
+      keep[k] = t + 1;
+      any = true;
     }
-    if (plots.length > 0) usable.push({ trial: trial.trial, plots });
+    if (any) usable.push({ trial: trial.trial, plots, keep });
   }
   const globalIndex = new Array<number>(network.treatments.length).fill(-1);
   const treatments: string[] = [];
@@ -69,7 +74,7 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
       treatments.push(t.code);
     }
   });
-  const trials = usable.map((u) => trialStatistics(u.trial, u.plots, globalIndex, termIncluded));
+  const trials = usable.map((u) => trialStatistics(u.trial, u.plots, u.keep, globalIndex, termIncluded));
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
   if (trials.length === 0) throw new OneStageDataError('no usable plots: every value is missing or excluded');
   return { treatments, trials, nObservations, droppedPlots: dropped, termIncluded };
@@ -77,46 +82,69 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
 
 function trialStatistics(
   trial: string,
-  plots: readonly { t: number; block: string; y: number }[],
+  plots: readonly PlotObservation[],
+  keep: Int32Array,
   globalIndex: readonly number[],
   termIncluded: readonly boolean[],
 ): TrialStatistics {
-  const blocks = [...new Set(plots.map((p) => p.block))];
-  const present = [...new Set(plots.map((p) => globalIndex[p.t]))].sort((a, b) => a - b);
+  // one pass to number the blocks and find the treatments present
+  const blockOf = new Map<string, number>();
+  const treatOf = new Int32Array(plots.length);
+  const blockIdx = new Int32Array(plots.length);
+  const presentFlag = new Uint8Array(globalIndex.length);
+  let n = 0;
+  for (let k = 0; k < plots.length; k++) {
+    if (!keep[k]) continue;
+    n++;
+    const p = plots[k];
+    const label = p.block ?? '';
+    let b = blockOf.get(label);
+    if (b === undefined) blockOf.set(label, (b = blockOf.size));
+    blockIdx[k] = b;
+    const g = globalIndex[keep[k] - 1];
+    treatOf[k] = g;
+    presentFlag[g] = 1;
+  }
+  const present: number[] = [];
+  for (let g = 0; g < presentFlag.length; g++) if (presentFlag[g]) present.push(g);
+  const nBlocks = blockOf.size;
   const hasIntercept = termIncluded[0];
   const blockStart = hasIntercept ? 1 : 0;
-  const treatStart = blockStart + blocks.length;
+  const treatStart = blockStart + nBlocks;
   const yColumn = treatStart + present.length;
   const m = yColumn + 1;
-  const blockCol = new Map(blocks.map((b, i) => [b, blockStart + i]));
-  const treatCol = new Map(present.map((g, i) => [g, treatStart + i]));
+  const treatCol = new Int32Array(globalIndex.length).fill(-1);
+  present.forEach((g, i) => (treatCol[g] = treatStart + i));
   const gram = new Float64Array(m * m);
   const cols = [0, 0, 0];
-  for (const p of plots) {
-    let k = 0;
-    if (hasIntercept) cols[k++] = 0;
-    cols[k++] = blockCol.get(p.block)!;
-    cols[k++] = treatCol.get(globalIndex[p.t])!;
-    for (let a = 0; a < k; a++) {
-      for (let b = 0; b < k; b++) gram[cols[a] * m + cols[b]] += 1;
-      gram[cols[a] * m + yColumn] += p.y;
-      gram[yColumn * m + cols[a]] += p.y;
+  for (let k = 0; k < plots.length; k++) {
+    if (!keep[k]) continue;
+    const y = plots[k].value as number;
+    let c = 0;
+    if (hasIntercept) cols[c++] = 0;
+    cols[c++] = blockStart + blockIdx[k];
+    cols[c++] = treatCol[treatOf[k]];
+    for (let a = 0; a < c; a++) {
+      const ro = cols[a] * m;
+      for (let b = 0; b < c; b++) gram[ro + cols[b]] += 1;
+      gram[ro + yColumn] += y;
+      gram[yColumn * m + cols[a]] += y;
     }
-    gram[yColumn * m + yColumn] += p.y * p.y;
+    gram[yColumn * m + yColumn] += y * y;
   }
   const termOfColumn = new Int8Array(m - 1).fill(-1);
   if (hasIntercept) termOfColumn[0] = 0;
-  if (termIncluded[1]) for (let i = 0; i < blocks.length; i++) termOfColumn[blockStart + i] = 1;
+  if (termIncluded[1]) for (let i = 0; i < nBlocks; i++) termOfColumn[blockStart + i] = 1;
   if (termIncluded[2]) for (let i = 0; i < present.length; i++) termOfColumn[treatStart + i] = 2;
   return {
     trial,
-    n: plots.length,
+    n,
     m,
     gram,
     termOfColumn,
     treatmentColumns: Int32Array.from(present, (_, i) => treatStart + i),
     treatmentIndex: Int32Array.from(present),
-    blockColumns: Int32Array.from(blocks, (_, i) => blockStart + i),
+    blockColumns: Int32Array.from({ length: nBlocks }, (_, i) => blockStart + i),
     yColumn,
   };
 }

@@ -41,6 +41,10 @@ function ownDesign(frame: ModelFrame, i: number): OwnDesign | null {
 export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: readonly ContrastVector[], treatmentTrialVariance: number): { trial: string; contrasts: TrialContrastReport[] }[] {
   const p = frame.stats.treatments.length;
   const designs = new Map<number, OwnDesign | null>();
+  const local = new Int32Array(p);
+  const maxM = frame.stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1);
+  const u = new Float64Array(maxM);
+  const hzy = new Float64Array(maxM);
   return frame.stats.trials.map((t, i) => {
     const q = frame.patternOf[i];
     if (!designs.has(q)) designs.set(q, ownDesign(frame, i));
@@ -53,7 +57,8 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
     let s2 = NaN;
     if (own) {
       const k = own.cols.length;
-      const b = Float64Array.from(own.cols, (c) => t.gram[c * m + mz]);
+      const b = new Float64Array(k);
+      for (let x = 0; x < k; x++) b[x] = t.gram[own.cols[x] * m + mz];
       let rss = t.gram[mz * m + mz];
       const nb = k - (nt - 1);
       for (let x = 0; x < k; x++) {
@@ -66,10 +71,10 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
     }
     // h_T = (B'V^-1 r)_T, for the predicted treatment-by-trial effects
     const pat = ev.patterns[q];
-    const hzy = new Float64Array(mz);
-    designRowsOfHy(Float64Array.from({ length: mz }, (_, j) => t.gram[j * m + mz]), pat, mz, hzy);
-    const local = new Int32Array(p).fill(-1);
-    t.treatmentIndex.forEach((g, a) => (local[g] = a));
+    for (let j = 0; j < mz; j++) u[j] = t.gram[j * m + mz];
+    designRowsOfHy(u, pat, mz, hzy);
+    local.fill(-1);
+    for (let a = 0; a < nt; a++) local[t.treatmentIndex[a]] = a;
     const out = contrasts.map((c): TrialContrastReport => {
       if (!c.l) return { name: c.name, blup: null, raw: null, rawSe: null, rawDf: null };
       let blup = 0;

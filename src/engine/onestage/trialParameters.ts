@@ -20,9 +20,10 @@ export function activeParameters(frame: ModelFrame, trial: number): ActiveParame
   return out;
 }
 
-/** All trials' active parameters, computed once per fit. */
+/** All trials' active parameters, computed once per fit and shared within a design pattern. */
 export function activeParameterTable(frame: ModelFrame): ActiveParameter[][] {
-  return frame.stats.trials.map((_, i) => activeParameters(frame, i));
+  const byPattern = frame.patternTrial.map((i) => activeParameters(frame, i));
+  return frame.stats.trials.map((_, i) => byPattern[frame.patternOf[i]]);
 }
 
 /** rho: coordinates in B of r = y - X beta (treatment columns -beta, y column 1). */
