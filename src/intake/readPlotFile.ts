@@ -2,7 +2,7 @@
 // return the table the store writes or the engine analyses. All-or-nothing: any problem
 // throws an IntakeError listing every problem found (up to maxProblems).
 import type { AnalysisSpec } from '../spec/analysisSpec.js';
-import { checkMapping } from './mapping.js';
+import { parseMapping } from './mapping.js';
 import { resolveColumns } from './plotColumns.js';
 import { PlotTableBuilder } from './plotTableBuilder.js';
 import { DEFAULT_MAX_PROBLEMS, ProblemList } from './problems.js';
@@ -19,9 +19,9 @@ export interface ReadPlotOptions {
 /** Rows between progress reports; the reader also yields to the event loop there. */
 const PROGRESS_EVERY = 1 << 16;
 
-export async function readPlotFile(filePath: string, mapping: ImportMapping, options: ReadPlotOptions = {}): Promise<ParsedPlotTable> {
-  const mappingProblems = checkMapping(mapping, filePath);
-  if (mappingProblems.length > 0) throw new IntakeError(mappingProblems);
+export async function readPlotFile(filePath: string, given: ImportMapping, options: ReadPlotOptions = {}): Promise<ParsedPlotTable> {
+  // Checked again here: a mapping built in code has not been through readMappingFile.
+  const mapping = parseMapping(given, filePath);
   const problems = new ProblemList(filePath, options.maxProblems ?? DEFAULT_MAX_PROBLEMS);
   const { source, sha256 } = await openRowSource(filePath, mapping);
   if (source === null) {

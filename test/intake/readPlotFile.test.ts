@@ -455,3 +455,10 @@ describe('readDataForAnalysis', () => {
     expect(brief(await problemsOf(() => readDataForAnalysis('x.csv', spec)))).toEqual([['mapping-incomplete', 0, 'columns', null]]);
   });
 });
+
+describe('a mapping built in code', () => {
+  it('is checked like a mapping file, naming the key', async () => {
+    const bad = { columns: { trial: 'env', treatment: 'trt', response: 'y', extra: 'z' } } as unknown as ImportMapping;
+    expect(brief(await problemsOf(() => readPlotFile(writeTemp('m.csv', 'env,trt,y\n'), bad)))).toEqual([['mapping-unknown-key', 0, 'columns.extra', 'z']]);
+  });
+});
