@@ -25,9 +25,10 @@ interface ChildRun {
 }
 
 /** Run the child; kill it `killAfterMs` after it starts importing (never, if null). */
-function runChild(workspace: string, prefix: string, killAfterMs: number | null): Promise<ChildRun> {
+function runChild(workspace: string, prefix: string, killAfterMs: number | null, replaceSeed?: number): Promise<ChildRun> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', CHILD, workspace, prefix, String(TRIALS_PER_IMPORT)], {
+    const extra = replaceSeed === undefined ? [] : [String(replaceSeed)];
+    const child = spawn(process.execPath, ['--import', 'tsx', CHILD, workspace, prefix, String(TRIALS_PER_IMPORT), ...extra], {
       cwd: REPO,
       stdio: ['ignore', 'pipe', 'pipe'],
     });
@@ -56,10 +57,16 @@ function runChild(workspace: string, prefix: string, killAfterMs: number | null)
   });
 }
 
-function inspect(file: string): { integrity: unknown; foreignKeys: unknown[]; counts: WorkspaceCounts } {
+function inspect(file: string): { integrity: unknown; foreignKeys: unknown[]; counts: WorkspaceCounts; valueSum: number } {
   const ws = openWorkspace(file);
   try {
-    return { integrity: ws.db.pragma('integrity_check', { simple: true }), foreignKeys: ws.db.pragma('foreign_key_check') as unknown[], counts: counts(ws) };
+    return {
+      integrity: ws.db.pragma('integrity_check', { simple: true }),
+      foreignKeys: ws.db.pragma('foreign_key_check') as unknown[],
+      counts: counts(ws),
+      // Values have 3 decimals: summing them in thousandths as integers is exact in any order.
+      valueSum: (ws.db.prepare('SELECT COALESCE(SUM(CAST(ROUND(value * 1000) AS INTEGER)), 0) AS s FROM observation').get() as { s: number }).s,
+    };
   } finally {
     ws.close();
   }
@@ -89,8 +96,8 @@ describe('crash safety of an import', () => {
     const outcomes = { before: 0, after: 0 };
     for (let k = 0; k < KILLS; k++) {
       before = inspect(file).counts;
-      // Kill anywhere from the first row to a little after the usual end of the import.
-      const run = await runChild(file, `K${k}`, Math.floor(rand() * span * 1.2));
+      // Kill anywhere in the first 90% of the usual import time (machine load moves the real end).
+      const run = await runChild(file, `K${k}`, Math.floor(rand() * span * 0.9));
       const seen = inspect(file);
       expect(seen.integrity, `kill ${k}`).toBe('ok');
       expect(seen.foreignKeys, `kill ${k}`).toEqual([]);
@@ -109,6 +116,47 @@ describe('crash safety of an import', () => {
     }
     console.log(`crash test: ${KILLS} kills, ${outcomes.before} left the workspace as before, ${outcomes.after} after a finished commit (import takes ~${Math.round(span)} ms here)`);
     // The seeded delays must actually interrupt imports, or the test proves nothing.
-    expect(outcomes.before).toBeGreaterThanOrEqual(KILLS / 3);
+    expect(outcomes.before).toBeGreaterThanOrEqual(KILLS / 4);
   }, 900_000);
+});
+
+describe('crash safety of a replacing import', () => {
+  const REPLACE_KILLS = 10;
+  it(`keeps the old batch intact when a --replace import is killed (${REPLACE_KILLS} seeded SIGKILLs)`, async () => {
+    const file = path.join(newDir(), 'replace.manyfield');
+    const ws = openWorkspace(file, { create: true });
+    importParsedTable(ws, syntheticTable({ trials: 40, prefix: 'Base' }));
+    importParsedTable(ws, syntheticTable({ trials: TRIALS_PER_IMPORT, prefix: 'R', seed: 7 }));
+    ws.close();
+    const sum = (t: ReturnType<typeof syntheticTable>) => t.observations.reduce((a, o) => a + (o.value === null ? 0 : Math.round(o.value * 1000)), 0);
+    const baseSum = sum(syntheticTable({ trials: 40, prefix: 'Base' }));
+
+    const first = inspect(file);
+    const timed = await runChild(file, 'R', null, 100);
+    const span = Math.max(timed.importMs, 200);
+    const rand = mulberry32(SEED + 1);
+    const outcomes = { before: 0, after: 0 };
+    let before = inspect(file);
+    expect(before.counts).toEqual(first.counts); // same sizes, new values
+    expect(before.valueSum).toBe(baseSum + sum(syntheticTable({ trials: TRIALS_PER_IMPORT, prefix: 'R', seed: 100 })));
+    for (let k = 0; k < REPLACE_KILLS; k++) {
+      const seed = 101 + k;
+      const replacementSum = baseSum + sum(syntheticTable({ trials: TRIALS_PER_IMPORT, prefix: 'R', seed }));
+      const run = await runChild(file, 'R', Math.floor(rand() * span * 0.9), seed);
+      const seen = inspect(file);
+      expect(seen.integrity, `kill ${k}`).toBe('ok');
+      expect(seen.foreignKeys, `kill ${k}`).toEqual([]);
+      expect(seen.counts, `kill ${k}`).toEqual(before.counts);
+      if (seen.valueSum === before.valueSum) {
+        expect(run.said.includes('committed'), `kill ${k}`).toBe(false);
+        outcomes.before++;
+      } else {
+        expect(seen.valueSum, `kill ${k}`).toBe(replacementSum);
+        outcomes.after++;
+      }
+      before = seen;
+    }
+    console.log(`replace crash test: ${REPLACE_KILLS} kills, ${outcomes.before} kept the old batch, ${outcomes.after} after a finished commit`);
+    expect(outcomes.before).toBeGreaterThanOrEqual(REPLACE_KILLS / 4);
+  }, 600_000);
 });
