@@ -6,7 +6,7 @@
 // Trials with the same design (same Z'Z) and the same residual parameter share M, W and the
 // design block of B'V^-1 B: that part is computed once per design pattern, and only the
 // y row and column are computed per trial.
-import { cholesky, cholInverse, cholLogDet, type Matrix } from '../linalg/index.js';
+import { choleskyInPlace, inverseFromCholesky } from './smallSpd.js';
 import type { TrialStatistics } from './sufficientStatistics.js';
 
 /** The part of a block shared by all trials of one design pattern. */
@@ -69,15 +69,15 @@ export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Arra
   const r = R.length;
   const d = new Float64Array(r);
   for (let a = 0; a < r; a++) d[a] = Math.sqrt(Math.max(0, termVariance[stats.termOfColumn[R[a]]]));
-  const mm: Matrix = { rows: r, cols: r, data: new Float64Array(r * r) };
+  const mm = new Float64Array(r * r);
   for (let a = 0; a < r; a++) {
     const ka = R[a] * m;
-    for (let b = 0; b < r; b++) mm.data[a * r + b] = d[a] * K[ka + R[b]] * d[b];
-    mm.data[a * r + a] += sigma2;
+    for (let b = 0; b < r; b++) mm[a * r + b] = d[a] * K[ka + R[b]] * d[b];
+    mm[a * r + a] += sigma2;
   }
-  const l = cholesky(mm);
-  const logDetM = cholLogDet(l);
-  const minv = cholInverse(l).data;
+  const logDetM = choleskyInPlace(mm, r);
+  const minv = new Float64Array(r * r);
+  inverseFromCholesky(mm, r, minv, new Float64Array(r * r));
   const w = new Float64Array(r * r);
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) w[a * r + b] = d[a] * minv[a * r + b] * d[b];
   const gz = new Float64Array(mz * r);
