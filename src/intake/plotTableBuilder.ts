@@ -50,8 +50,9 @@ interface TrialState {
   /** Block label -> block, which also shares one string per block among the trial's plots. */
   readonly blocks: Map<string, BlockState>;
   lastBlock: BlockState | null;
-  /** Plots per treatment id. */
+  /** Plots per treatment id, for ids below DENSE_TREATMENTS; the rest in morePlotsPerTreatment. */
   readonly plotsPerTreatment: number[];
+  readonly morePlotsPerTreatment: Map<number, number>;
   readonly covariates: (string | null)[];
   readonly covariateRows: number[];
 }
@@ -66,6 +67,12 @@ const NUMBER_HINT: Record<DecimalMode, string> = {
 function smallPair(a: number, b: number): number | null {
   return a >= 0 && b >= 0 && a < 16384 && b < 16384 ? a * 16384 + b : null;
 }
+
+/**
+ * Treatment ids counted in a per-trial array; beyond this a map, so a damaged file with
+ * thousands of codes cannot make every trial's array as long as the code list.
+ */
+const DENSE_TREATMENTS = 256;
 
 function parseYear(text: string, mode: DecimalMode): number {
   const y = parseDecimal(text, mode);
@@ -113,7 +120,7 @@ export class PlotTableBuilder {
     const conv = toCanonical(unit, this.mapping.crop);
     const resolvedKind = kind ?? (conv.to === '%' ? 'percent' : 'continuous');
     const lo = lower !== undefined ? lower * conv.factor : resolvedKind === 'percent' || resolvedKind === 'count' ? 0 : null;
-    const hi = upper !== undefined ? upper * conv.factor : resolvedKind === 'percent' && conv.to === '%' ? 100 : null;
+    const hi = upper !== undefined ? upper * conv.factor : resolvedKind === 'percent' && (conv.to === '%' || conv.to === 'as-is') ? 100 : null;
     const state: TraitState = {
       trait: { name, unit: conv.to, kind: resolvedKind, lower: lo, upper: hi },
       index: this.traitList.length,
@@ -206,9 +213,12 @@ export class PlotTableBuilder {
       plotIndex = this.plots.length;
       this.plots.push({ trialKey: trial.key, treatment: treatment.code, block: block === null ? null : block.label, row: plotRow, col: plotCol, plotId: cols.plot >= 0 ? plotId : null, sourceRow: rowNo });
       if (key !== null) trial.plotIndex.set(key, plotIndex);
-      const reps = trial.plotsPerTreatment;
-      while (reps.length <= treatment.id) reps.push(0);
-      reps[treatment.id]++;
+      const id = treatment.id;
+      if (id < DENSE_TREATMENTS) {
+        const reps = trial.plotsPerTreatment;
+        while (reps.length <= id) reps.push(0);
+        reps[id]++;
+      } else trial.morePlotsPerTreatment.set(id, (trial.morePlotsPerTreatment.get(id) ?? 0) + 1);
     }
     if (cols.trait >= 0) this.markObserved(plotIndex, trait.index);
     this.observations.push({ plot: plotIndex, trait: trait.trait.name, value });
@@ -228,7 +238,13 @@ export class PlotTableBuilder {
 
   private traitOf(r: RowCells, rowNo: number): TraitState | undefined {
     const i = this.cols.trait;
-    for (const t of this.traitList) if (r.equals(i, t.trait.name)) return t;
+    // Compare in place while the list is short; a map once a file names many traits.
+    if (this.traitList.length <= 16) {
+      for (const t of this.traitList) if (r.equals(i, t.trait.name)) return t;
+    } else {
+      const found = this.traits.get(r.text(i));
+      if (found !== undefined) return found;
+    }
     const name = r.text(i);
     if (name === '') this.problems.add(rowNo, this.cellName(i), '', 'missing-value', 'the trait name is empty');
     else if (this.acceptAnyTrait) return this.declareTrait(name, 'as-is');
@@ -337,6 +353,7 @@ export class PlotTableBuilder {
       blocks: new Map(),
       lastBlock: null,
       plotsPerTreatment: [],
+      morePlotsPerTreatment: new Map(),
       covariates: this.cols.covariates.map(() => null),
       covariateRows: this.cols.covariates.map(() => 0),
     };
@@ -485,8 +502,14 @@ export class PlotTableBuilder {
         problems.add(t.rowWithoutRowCol, cols.row >= 0 ? this.cellName(cols.row) : null, '', 'missing-row-column', `trial "${t.key}" has a ${design} design, so every plot needs a row and a column`);
       }
       let replicated = false;
-      for (const count of t.plotsPerTreatment) if (count > 1) replicated = true;
-      if (!replicated && t.plotsPerTreatment.length > 0) {
+      let any = false;
+      for (const counts of [t.plotsPerTreatment, t.morePlotsPerTreatment.values()]) {
+        for (const count of counts) {
+          if (count > 0) any = true;
+          if (count > 1) replicated = true;
+        }
+      }
+      if (!replicated && any) {
         problems.add(t.firstRow, treatmentColumn, t.key, 'single-replicate', `trial "${t.key}" has every treatment only once: with a single replicate there is no error term`);
       }
       trials.push({ key: t.key, site: t.site, year: t.year, design });

@@ -19,6 +19,8 @@ export interface SheetData {
 
 /** Refuse archives that inflate beyond this: protects against zip bombs. */
 const MAX_PART_BYTES = 1 << 30;
+/** Refuse sheets whose rows, padded to their last cell, hold more cells than this. */
+const MAX_SHEET_CELLS = 20_000_000;
 
 function unzipParts(bytes: Uint8Array, wanted: (name: string) => boolean): Record<string, Uint8Array> {
   try {
@@ -150,6 +152,7 @@ function readSheetRows(xml: string, shared: readonly string[]): SheetRow[] {
   let capture = false; // inside <v>, or a <t> of an inline string
   let inInline = false;
   let phonetic = 0;
+  let cellBudget = MAX_SHEET_CELLS;
   const finishCell = (): void => {
     if (cells === null || col < 0) return;
     let value = cellText;
@@ -158,6 +161,7 @@ function readSheetRows(xml: string, shared: readonly string[]): SheetRow[] {
       if (!Number.isInteger(k) || k < 0 || k >= shared.length) throw new XlsxFormatError(`row ${rowNumber}: shared string index "${cellText}" out of range`);
       value = shared[k];
     } else if (cellType === 'b') value = cellText.trim() === '1' ? 'TRUE' : 'FALSE';
+    if (value === '') return;
     while (cells.length < col) cells.push('');
     cells[col] = value;
   };
@@ -191,7 +195,11 @@ function readSheetRows(xml: string, shared: readonly string[]): SheetRow[] {
       else if (name === 'rPh') phonetic = Math.max(0, phonetic - 1);
       else if (name === 'c') finishCell();
       else if (name === 'row') {
-        if (cells !== null && cells.some((c) => c !== '')) rows.push({ row: rowNumber, cells });
+        if (cells !== null && cells.length > 0) {
+          cellBudget -= cells.length;
+          if (cellBudget < 0) throw new XlsxFormatError(`the sheet holds more than ${MAX_SHEET_CELLS} cells`);
+          rows.push({ row: rowNumber, cells });
+        }
         cells = null;
       }
     },

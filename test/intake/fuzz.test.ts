@@ -103,6 +103,16 @@ describe('fuzzing the plot-file reader', () => {
   });
 });
 
+describe('no quadratic blow-up on many distinct names', () => {
+  // 20 000 rows, each with a new trial, treatment, block and trait: a linear scan per row
+  // over everything seen would take minutes; the bound is the same CASE_LIMIT_MS.
+  it('reads a long-format file of all-distinct names within the case limit', async () => {
+    const lines = ['env,block,trt,trait,value'];
+    for (let i = 0; i < 20_000; i++) lines.push(`E${i},B${i},T${i},trait${i},${i}`);
+    await readsCleanly(`${lines.join('\n')}\n`, { columns: { trial: 'env', block: 'block', treatment: 'trt', trait: 'trait', response: 'value' } });
+  });
+});
+
 describe('fuzzing the XLSX reader', () => {
   const valid = buildXlsx([{ name: 'Plots', rows: [HEADER, ...validRows()] }]);
 
