@@ -4,7 +4,7 @@ import { existsSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import Database from 'better-sqlite3';
 import { ManyfieldError } from '../api/result.js';
-import { WorkspaceNotFoundError } from './errors.js';
+import { WorkspaceNotFoundError, WorkspaceRefusedError } from './errors.js';
 import { migrate, type MigrateOutcome } from './migrate.js';
 
 export interface OpenWorkspaceOptions {
@@ -57,6 +57,9 @@ export function openWorkspace(path: string, options: OpenWorkspaceOptions = {}):
     return new Workspace(path, db, migration);
   } catch (err) {
     db.close();
+    if (err instanceof Error && (err as { code?: string }).code === 'SQLITE_NOTADB') {
+      throw new WorkspaceRefusedError('not-a-workspace', `"${path}" is not a Manyfield workspace (not an SQLite file); check the path`, { path });
+    }
     throw err;
   }
 }

@@ -203,6 +203,15 @@ describe('refusals', () => {
     expect(e.message).toMatch(/not a Manyfield workspace/);
   });
 
+  it('refuses a file that is not SQLite at all (a CSV given as the workspace)', () => {
+    const file = path.join(newDir(), 'plots.csv');
+    writeFileSync(file, 'site,year,yield\nA,2020,5.1\n'.repeat(200));
+    const bytes = readFileSync(file);
+    const e = refusal(() => openWorkspace(file));
+    expect(e.reason).toBe('not-a-workspace');
+    expect(readFileSync(file).equals(bytes)).toBe(true);
+  });
+
   it('refuses a history with a hole in it', () => {
     const dir = newDir();
     const migrations = copyMigrations(dir);
