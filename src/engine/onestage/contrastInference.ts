@@ -45,14 +45,17 @@ function cTimes(ev: Evaluation, p: number, l: ArrayLike<number>): Float64Array {
   return out;
 }
 
-export function satterthwaiteDf(ev: Evaluation, so: SecondOrder, free: readonly number[], l: ArrayLike<number>): number {
+/** 2 O^-1 on the free parameters, computed once per fit and shared by every contrast. */
+export function observedInverse(so: SecondOrder, free: readonly number[]): Float64Array | null {
+  return subInverse(so.observed, so.p.length, free);
+}
+
+export function satterthwaiteDf(ev: Evaluation, so: SecondOrder, free: readonly number[], oinv: Float64Array | null, l: ArrayLike<number>): number {
   const p = ev.beta.length;
-  const nP = so.p.length;
   const cl = cTimes(ev, p, l);
   let v = 0;
   for (let i = 0; i < p; i++) v += l[i] * cl[i];
   const g = free.map((k) => quadraticForm(so.p[k], p, cl));
-  const oinv = subInverse(so.observed, nP, free);
   if (!oinv) return NaN;
   const f = free.length;
   let gag = 0;

@@ -11,7 +11,7 @@ import { optimiseReml, type OptimiseOutcome } from './optimise.js';
 import { startValues } from './startValues.js';
 import { activeParameterTable } from './trialParameters.js';
 import { secondOrder, kenwardRogerU, type SecondOrder } from './secondOrder.js';
-import { expandW, kenwardRogerContrast, kenwardRogerCovariance, satterthwaiteDf, subInverse, tInterval, quadraticForm } from './contrastInference.js';
+import { expandW, kenwardRogerContrast, kenwardRogerCovariance, observedInverse, satterthwaiteDf, subInverse, tInterval, quadraticForm } from './contrastInference.js';
 import { trialContrasts, type ContrastVector } from './trialContrasts.js';
 import { profileInterval } from './profile.js';
 import { RANDOM_TERMS } from './types.js';
@@ -120,6 +120,7 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
     const pieces = kenwardRogerCovariance(so, fit.atZero);
     kr = { pieces, u: kenwardRogerU(frame, ev, so, expandW(pieces, nP), active) };
   }
+  const oinv = options.df === 'satterthwaite' && so ? observedInverse(so, free) : null;
   return vectors.map((v): ContrastReport => {
     const empty = { name: v.name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: options.df, seUnadjusted: null };
     if (!v.l) return { ...empty, note: 'not estimable: a treatment in the contrast has no usable plot' };
@@ -129,7 +130,7 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
     let se = seUnadjusted;
     let df: number;
     if (options.df === 'residual') df = frame.stats.nObservations - p;
-    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, v.l);
+    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, oinv, v.l);
     else {
       const r = kenwardRogerContrast(ev, so!, kr!.pieces, kr!.u, v.l);
       df = r.df;

@@ -74,10 +74,18 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
       treatments.push(t.code);
     }
   });
-  const trials = usable.map((u) => trialStatistics(u.trial, u.plots, u.keep, globalIndex, termIncluded));
+  const blocks: BlockNumbering = { ids: new Map(), local: [], stamp: [] };
+  const trials = usable.map((u, i) => trialStatistics(u.trial, u.plots, u.keep, globalIndex, termIncluded, blocks, i));
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
   if (trials.length === 0) throw new OneStageDataError('no usable plots: every value is missing or excluded');
   return { treatments, trials, nObservations, droppedPlots: dropped, termIncluded };
+}
+
+/** Block labels numbered once for the whole network; `local`/`stamp` give each trial's own numbering. */
+interface BlockNumbering {
+  readonly ids: Map<string, number>;
+  readonly local: number[];
+  readonly stamp: number[];
 }
 
 function trialStatistics(
@@ -86,9 +94,11 @@ function trialStatistics(
   keep: Int32Array,
   globalIndex: readonly number[],
   termIncluded: readonly boolean[],
+  blocks: BlockNumbering,
+  trialNo: number,
 ): TrialStatistics {
   // one pass to number the blocks and find the treatments present
-  const blockOf = new Map<string, number>();
+  let nBlocks = 0;
   const treatOf = new Int32Array(plots.length);
   const blockIdx = new Int32Array(plots.length);
   const presentFlag = new Uint8Array(globalIndex.length);
@@ -98,16 +108,24 @@ function trialStatistics(
     n++;
     const p = plots[k];
     const label = p.block ?? '';
-    let b = blockOf.get(label);
-    if (b === undefined) blockOf.set(label, (b = blockOf.size));
-    blockIdx[k] = b;
+    let id = blocks.ids.get(label);
+    if (id === undefined) {
+      id = blocks.ids.size;
+      blocks.ids.set(label, id);
+      blocks.stamp.push(-1);
+      blocks.local.push(0);
+    }
+    if (blocks.stamp[id] !== trialNo) {
+      blocks.stamp[id] = trialNo;
+      blocks.local[id] = nBlocks++;
+    }
+    blockIdx[k] = blocks.local[id];
     const g = globalIndex[keep[k] - 1];
     treatOf[k] = g;
     presentFlag[g] = 1;
   }
   const present: number[] = [];
   for (let g = 0; g < presentFlag.length; g++) if (presentFlag[g]) present.push(g);
-  const nBlocks = blockOf.size;
   const hasIntercept = termIncluded[0];
   const blockStart = hasIntercept ? 1 : 0;
   const treatStart = blockStart + nBlocks;
