@@ -22,7 +22,7 @@ export { OneStageCancelledError } from './types.js';
 export { OneStageDataError } from './sufficientStatistics.js';
 
 /** Networks up to this many trials get profile-likelihood intervals unless options.profile says otherwise. */
-const PROFILE_DEFAULT_MAX_TRIALS = 300;
+const PROFILE_DEFAULT_MAX_TRIALS = 200;
 
 export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: OneStageOptions, hooks: OneStageHooks = {}): OneStageResult {
   const began = Date.now();
