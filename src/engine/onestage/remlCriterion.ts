@@ -6,7 +6,7 @@
 import { cholesky, cholInverse, cholLogDet, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
 import type { NetworkStatistics } from './sufficientStatistics.js';
 import type { ParameterLayout } from './parameters.js';
-import { designKey, evaluatePattern, randomColumnsOf, trialFromPattern, type PatternState, type TrialBlockState } from './trialBlock.js';
+import { designKey, evaluatePattern, randomColumnsOf, type PatternState } from './trialBlock.js';
 import { patternMoments, type PatternMoments } from './patternMoments.js';
 
 export interface ModelFrame {
@@ -142,11 +142,6 @@ export function designRowsOfHy(u: ArrayLike<number>, pat: PatternState, mz: numb
     for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * u[R[b]];
     out[j] = s / pat.sigma2;
   }
-}
-
-/** The full block of trial i (B'V^-1 B and friends), for the once-per-fit inference passes. */
-export function blockState(frame: ModelFrame, ev: Evaluation, i: number): TrialBlockState {
-  return trialFromPattern(frame.stats.trials[i], ev.patterns[frame.patternOf[i]]);
 }
 
 /** The criterion, or +Infinity where V is not positive definite (outside the parameter space). */

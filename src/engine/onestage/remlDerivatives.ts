@@ -71,7 +71,6 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
   const h2y = new Float64Array(maxM);
   const av = new Float64Array(maxM);
   const kr = new Float64Array(maxM);
-  const wu = new Float64Array(maxM);
   let col = 0;
   for (let q = 0; q < ev.patterns.length; q++) {
     const i0 = frame.patternTrial[q];
@@ -168,7 +167,6 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
         for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2[tc[x]];
       }
     }
-    void wu;
   }
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];

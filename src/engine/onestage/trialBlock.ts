@@ -4,8 +4,8 @@
 //   log|V| = (n - r) log sigma2 + log|M|
 // so B'V^-1 B = (K - K_.R W K_R.) / sigma2 with K = B'B, and powers of V^-1 follow by recursion.
 // Trials with the same design (same Z'Z) and the same residual parameter share M, W and the
-// design block of B'V^-1 B: that part is computed once per design pattern, and only the
-// y row and column are computed per trial.
+// design block of B'V^-1 B: that part is computed once per design pattern; the data enter
+// through the pattern's moments (patternMoments.ts).
 import { choleskyInPlace, inverseFromCholesky } from './smallSpd.js';
 import type { TrialStatistics } from './sufficientStatistics.js';
 
@@ -24,23 +24,6 @@ export interface PatternState {
   h2zz: Float64Array | null;
   readonly trWK: number;
   readonly trWKWK: number;
-}
-
-export interface TrialBlockState {
-  readonly sigma2: number;
-  readonly logDetV: number;
-  readonly randomColumns: Int32Array;
-  readonly w: Float64Array;
-  /** K_.R W (m x r). */
-  readonly kw: Float64Array;
-  /** B'V^-1 B (m x m). */
-  readonly h: Float64Array;
-  /** B'V^-2 B (m x m), filled on demand (needed for the residual derivatives). */
-  h2: Float64Array | null;
-  /** tr(W K_RR) and tr(W K_RR W K_RR): the traces of V^-1 and V^-2 need them. */
-  readonly trWK: number;
-  readonly trWKWK: number;
-  readonly pattern: PatternState;
 }
 
 export function randomColumnsOf(stats: TrialStatistics): Int32Array {
@@ -103,79 +86,6 @@ export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Arra
   let trWKWK = 0;
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) trWKWK += gz[R[a] * r + b] * gz[R[b] * r + a];
   return { sigma2, logDetM, randomColumns: R, w, gz, hzz, h2zz: null, trWK, trWKWK };
-}
-
-/** A trial's block from its pattern: copy the shared design part, compute the y row and column. */
-export function trialFromPattern(stats: TrialStatistics, pat: PatternState): TrialBlockState {
-  const m = stats.m;
-  const mz = m - 1;
-  const K = stats.gram;
-  const R = pat.randomColumns;
-  const r = R.length;
-  const s2 = pat.sigma2;
-  const kw = new Float64Array(m * r);
-  kw.set(pat.gz);
-  const yo = mz * m;
-  for (let b = 0; b < r; b++) {
-    let s = 0;
-    for (let a = 0; a < r; a++) s += K[yo + R[a]] * pat.w[a * r + b];
-    kw[mz * r + b] = s;
-  }
-  const h = new Float64Array(m * m);
-  for (let i = 0; i < mz; i++) h.set(pat.hzz.subarray(i * mz, i * mz + mz), i * m);
-  for (let i = 0; i < m; i++) {
-    let s = K[i * m + mz];
-    for (let b = 0; b < r; b++) s -= kw[i * r + b] * K[R[b] * m + mz];
-    h[i * m + mz] = s / s2;
-    h[mz * m + i] = s / s2;
-  }
-  return {
-    sigma2: s2,
-    logDetV: (stats.n - r) * Math.log(s2) + pat.logDetM,
-    randomColumns: R,
-    w: pat.w,
-    kw,
-    h,
-    h2: null,
-    trWK: pat.trWK,
-    trWKWK: pat.trWKWK,
-    pattern: pat,
-  };
-}
-
-/** B'V^-(j+1) B from B'V^-j B: (prev - K_.R W prev_R.) / sigma2. */
-export function nextInversePower(stats: TrialStatistics, s: TrialBlockState, prev: Float64Array): Float64Array {
-  const m = stats.m;
-  const R = s.randomColumns;
-  const r = R.length;
-  const out = new Float64Array(m * m);
-  for (let i = 0; i < m; i++)
-    for (let j = 0; j < m; j++) {
-      let v = prev[i * m + j];
-      for (let b = 0; b < r; b++) v -= s.kw[i * r + b] * prev[R[b] * m + j];
-      out[i * m + j] = v / s.sigma2;
-    }
-  return out;
-}
-
-export function ensureH2(stats: TrialStatistics, s: TrialBlockState): Float64Array {
-  if (s.h2) return s.h2;
-  const m = stats.m;
-  const mz = m - 1;
-  const pat = s.pattern;
-  const h2zz = ensurePatternH2(pat, mz);
-  const R = s.randomColumns;
-  const r = R.length;
-  const out = new Float64Array(m * m);
-  for (let i = 0; i < mz; i++) out.set(h2zz.subarray(i * mz, i * mz + mz), i * m);
-  for (let i = 0; i < m; i++) {
-    let v = s.h[i * m + mz];
-    for (let b = 0; b < r; b++) v -= s.kw[i * r + b] * s.h[R[b] * m + mz];
-    out[i * m + mz] = v / s.sigma2;
-    out[mz * m + i] = v / s.sigma2;
-  }
-  s.h2 = out;
-  return out;
 }
 
 /** Design block of B'V^-2 B for a pattern: (hzz - gz hzz_R.) / sigma2, computed once. */

@@ -26,29 +26,10 @@ export function activeParameterTable(frame: ModelFrame): ActiveParameter[][] {
   return frame.stats.trials.map((_, i) => byPattern[frame.patternOf[i]]);
 }
 
-/** rho: coordinates in B of r = y - X beta (treatment columns -beta, y column 1). */
-export function residualCoordinates(frame: ModelFrame, trial: number, beta: ArrayLike<number>): Float64Array {
-  const t = frame.stats.trials[trial];
-  const rho = new Float64Array(t.m);
-  for (let a = 0; a < t.treatmentColumns.length; a++) rho[t.treatmentColumns[a]] = -beta[t.treatmentIndex[a]];
-  rho[t.yColumn] = 1;
-  return rho;
-}
-
 /** Local copy C[tg, tg] of the global p x p matrix C for this trial's treatments. */
 export function localBlock(c: Float64Array, p: number, tg: Int32Array): Float64Array {
   const t = tg.length;
   const out = new Float64Array(t * t);
   for (let a = 0; a < t; a++) for (let b = 0; b < t; b++) out[a * t + b] = c[tg[a] * p + tg[b]];
   return out;
-}
-
-export function symmetricMatVec(a: Float64Array, m: number, x: Float64Array): Float64Array {
-  const y = new Float64Array(m);
-  for (let i = 0; i < m; i++) {
-    let s = 0;
-    for (let j = 0; j < m; j++) s += a[i * m + j] * x[j];
-    y[i] = s;
-  }
-  return y;
 }
