@@ -59,24 +59,55 @@ function run(cmd: string, argv: string[]): { stdout: string; stderr: string; wal
 
 // Run the child as compiled JavaScript, as the installed CLI would be: bundle fitCsv.ts with the
 // esbuild that tsx already brings; fall back to running it through tsx.
-let childArgs: string[] = ['--import', 'tsx', join(here, 'fitCsv.ts')];
-let childKind = 'node --import tsx (TypeScript compiled on load)';
-try {
-  const esbuild = await import('esbuild');
-  const outfile = join(dir, 'fitCsv.mjs');
-  await esbuild.build({
-    entryPoints: [join(here, 'fitCsv.ts')],
-    bundle: true,
-    platform: 'node',
-    format: 'esm',
-    outfile,
-    banner: { js: "import { createRequire } from 'module'; const require = createRequire(import.meta.url);" },
-    logLevel: 'warning',
-  });
-  childArgs = [outfile];
-  childKind = 'node on an esbuild bundle of bench/onestage/fitCsv.ts';
-} catch {
-  // keep tsx
+async function compiled(name: string): Promise<{ args: string[]; kind: string }> {
+  try {
+    const esbuild = await import('esbuild');
+    // inside the project (node_modules/.cache) so the bundle resolves native packages like better-sqlite3
+    const outDir = join(root, 'node_modules', '.cache', 'manyfield-bench');
+    mkdirSync(outDir, { recursive: true });
+    const outfile = join(outDir, name.replace(/\.ts$/, '.mjs'));
+    await esbuild.build({
+      entryPoints: [join(here, name)],
+      bundle: true,
+      platform: 'node',
+      format: 'esm',
+      outfile,
+      external: ['better-sqlite3'],
+      banner: { js: "import { createRequire as benchCreateRequire } from 'module'; const require = benchCreateRequire(import.meta.url);" },
+      logLevel: 'silent',
+    });
+    return { args: [outfile], kind: `node on an esbuild bundle of bench/onestage/${name}` };
+  } catch {
+    return { args: ['--import', 'tsx', join(here, name)], kind: `node --import tsx bench/onestage/${name}` };
+  }
+}
+const child = await compiled('fitCsv.ts');
+const childArgs = child.args;
+const childKind = child.kind;
+const cliChild = await compiled('cliChild.ts');
+// one-stage only: the trial stage always runs in `analyze`; two-stage pooling is switched off
+const specFile = join(dir, 'spec-onestage.json');
+writeFileSync(
+  specFile,
+  JSON.stringify({
+    trait: 'y',
+    columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y' },
+    control: 'CTL',
+    contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' }],
+    twoStage: null,
+    oneStage: { random: ['trial', 'block', 'treatment:trial'], residual: 'common', df: 'satterthwaite' },
+  }),
+);
+
+/** `manyfield analyze --data F --spec S --json` in a fresh process; null if the command fails. */
+function cli(file: string): { inner: number; cpu: number; wall: number } | string {
+  const t0 = performance.now();
+  const r = spawnSync(process.execPath, [...cliChild.args, file, specFile], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30 });
+  const wall = performance.now() - t0;
+  const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
+  if (r.status !== 0 || !line) return `analyze failed (${r.status}): ${r.stderr.split('\n').slice(0, 3).join(' ')}`;
+  const b = JSON.parse(line.slice(6));
+  return { inner: b.totalMs, cpu: b.cpuMs, wall };
 }
 
 function ours(file: string, residual: 'common' | 'per-trial', lrt: boolean): Timing {
@@ -174,7 +205,16 @@ for (const n of sizes) {
   const w = warm(file, 'common');
   console.log(`  warm engine (in-process, after two fits): manyfield read+fit+print ${fmt(w)}${b ? `; lme4/manyfield ${(b.inner / w).toFixed(1)}x` : ''}`);
   const c = best(() => ours(file, 'common', true));
-  console.log(`  with the 3 likelihood-ratio refits: manyfield read+fit+print ${fmt(c.inner)}\n`);
+  console.log(`  with the 3 likelihood-ratio refits: manyfield read+fit+print ${fmt(c.inner)}`);
+  const runs = Array.from({ length: repeats }, () => cli(file));
+  const ok = runs.filter((r): r is { inner: number; cpu: number; wall: number } => typeof r !== 'string');
+  if (ok.length === 0) console.log(`  manyfield analyze --data --spec --json: ${runs[0] as string}`);
+  else {
+    const t = Math.min(...ok.map((r) => r.inner));
+    const wall = Math.min(...ok.map((r) => r.wall));
+    console.log(`  manyfield analyze --data F --spec S --json (${cliChild.kind}; intake + trial stage + one-stage with LRTs, pooling off): ${fmt(t)} in the command, ${fmt(wall)} process wall${b ? `; lme4/analyze ${(b.inner / t).toFixed(1)}x (in-process), ${(b.wall / wall).toFixed(1)}x (wall)` : ''}`);
+  }
+  console.log('');
 }
 if (perTrialMs.length > 1) {
   const f = perTrialMs[0];
