@@ -39,10 +39,14 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
     const nt = tc.length;
     const cl = localBlock(ev.c, p, t.treatmentIndex);
     const count = frame.patternCount[q];
-    for (const a of active[i0]) {
+    const act0 = active[i0];
+    for (let ia = 0; ia < act0.length; ia++) {
+      const a = act0[ia];
       let tr = 0;
       if (a.columns) {
-        for (const j of a.columns) {
+        const Z = a.columns;
+        for (let jz = 0; jz < Z.length; jz++) {
+          const j = Z[jz];
           tr += H[j * mz + j];
           let s = 0;
           for (let x = 0; x < nt; x++) {
@@ -106,9 +110,11 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
       h2last /= s2;
       for (let x = 0; x < nt; x++) h2last -= c * h2y[tc[x]] * ev.beta[tg[x]];
       h2[mz] = h2last;
-      for (const a of act) {
+      for (let ia = 0; ia < act.length; ia++) {
+        const a = act[ia];
         if (a.columns) {
-          for (const j of a.columns) quadratic[a.index] += h[j] * h[j];
+          const Z = a.columns;
+          for (let jz = 0; jz < Z.length; jz++) quadratic[a.index] += h[Z[jz]] * h[Z[jz]];
         } else {
           let qq = h2[mz];
           for (let x = 0; x < nt; x++) qq -= c * ev.beta[tg[x]] * h2[tc[x]];
@@ -121,14 +127,18 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
           const B = act[ib];
           let val = 0;
           if (A.columns && B.columns) {
-            for (const x of A.columns) {
+            const ZA = A.columns;
+            const ZB = B.columns;
+            for (let xa = 0; xa < ZA.length; xa++) {
+              const x = ZA[xa];
               if (h[x] === 0) continue;
               let sum = 0;
-              for (const y of B.columns) sum += H[x * mz + y] * h[y];
+              for (let yb = 0; yb < ZB.length; yb++) sum += H[x * mz + ZB[yb]] * h[ZB[yb]];
               val += h[x] * sum;
             }
           } else if (A.columns || B.columns) {
-            for (const x of (A.columns ?? B.columns)!) val += h[x] * h2[x];
+            const Z = (A.columns ?? B.columns)!;
+            for (let xz = 0; xz < Z.length; xz++) val += h[Z[xz]] * h2[Z[xz]];
           } else {
             // r'V^-3 r = a . h2 / sigma2 with V^-1 r = B a / sigma2, a = rho - E_R W (K rho)_R
             for (let b = 0; b < r; b++) {
@@ -152,17 +162,21 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
       }
     }
     // the y'y parts: r'V^-2 r and r'V^-3 r contain sum y'y / sigma2^2 and / sigma2^3
-    for (const a of act)
+    for (let ia = 0; ia < act.length; ia++) {
+      const a = act[ia];
       if (!a.columns) {
         quadratic[a.index] += mo.sumYy / (s2 * s2);
         ai[a.index * nP + a.index] += mo.sumYy / (s2 * s2 * s2);
       }
+    }
     // linear terms from the summed data vector (c = number of trials)
     vectorsOf(H, H2, pat, ev.hzySum[q], mo.sum[mz], ev.beta, tc, tg, mz, h, h2, h2y);
-    for (const a of act) {
+    for (let ia = 0; ia < act.length; ia++) {
+      const a = act[ia];
       const k = a.index;
       if (a.columns) {
-        for (const j of a.columns) for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + j] * h[j];
+        const Z = a.columns;
+        for (let jz = 0; jz < Z.length; jz++) for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + Z[jz]] * h[Z[jz]];
       } else {
         for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2[tc[x]];
       }

@@ -80,9 +80,12 @@ function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonl
   const trVV = (a: ActiveParameter, b: ActiveParameter): number => {
     let v = 0;
     if (a.columns && b.columns) {
-      for (const x of a.columns) for (const y of b.columns) v += H[x * mz + y] ** 2;
+      const ZA = a.columns;
+      const ZB = b.columns;
+      for (let xa = 0; xa < ZA.length; xa++) for (let yb = 0; yb < ZB.length; yb++) v += H[ZA[xa] * mz + ZB[yb]] ** 2;
     } else if (a.columns || b.columns) {
-      for (const x of (a.columns ?? b.columns)!) v += H2[x * mz + x];
+      const Z = (a.columns ?? b.columns)!;
+      for (let xz = 0; xz < Z.length; xz++) v += H2[Z[xz] * mz + Z[xz]];
     } else {
       v = (t.n - 2 * pat.trWK + pat.trWKWK) / (pat.sigma2 * pat.sigma2);
     }
