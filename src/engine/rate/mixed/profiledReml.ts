@@ -1,0 +1,155 @@
+// The REML criterion of the mixed quadratic model with the residual variance profiled out.
+// Write V_t = s² H_t with H_t = I + Z_t Λ Λ' Z_t', Λ = blockdiag(L, θ_block I, ...): L is the
+// lower Cholesky factor of G / s² (3 x 3, unconstrained entries: a column's sign does not
+// change L L'), θ_k the block sd relative to s. With M_t = I + Λ' Z_t' Z_t Λ (small),
+//   |H_t| = |M_t|,   H_t⁻¹ = I - Z_t Λ M_t⁻¹ Λ' Z_t'          (determinant lemma, Woodbury)
+// so X'H⁻¹X, X'H⁻¹y, y'H⁻¹y are sums over trials of cross-products. Then
+//   β̂ = (X'H⁻¹X)⁻¹ X'H⁻¹y,  s² = (y'H⁻¹y - β̂'X'H⁻¹y) / (n - 3),
+//   -2 l_R = Σ log|M_t| + log|X'H⁻¹X| + (n - 3)(1 + log(2π s²)),
+// which is the REML deviance lme4 minimises (its logLik is -1/2 of it, no log|X'X| term).
+// Random-effect predictions: b_t = Λ M_t⁻¹ Λ' Z_t' (y_t - X_t β̂).
+import { cholesky, cholSolve, cholLogDet, cholInverse, forwardSolveInPlace } from '../../linalg/cholesky.js';
+import type { Matrix } from '../../linalg/matrix.js';
+import type { MixedNetworkData, MixedTrialData } from './mixedData.js';
+
+export const FIXED = 3;
+
+/** Number of optimised parameters: 6 Cholesky entries + one relative sd per grouping factor. */
+export function parameterCount(d: MixedNetworkData): number {
+  return 6 + d.grouping.length;
+}
+
+/** L (3 x 3 lower, row-major) from theta[0..5] = L00, L10, L11, L20, L21, L22. */
+export function choleskyFactor(theta: ArrayLike<number>): Float64Array {
+  return Float64Array.from([theta[0], 0, 0, theta[1], theta[2], 0, theta[3], theta[4], theta[5]]);
+}
+
+interface TrialPieces {
+  readonly chol: Matrix;
+  readonly cX: Float64Array; // q x 3, Lm⁻¹ Λ'Z'X
+  readonly cy: Float64Array; // q, Lm⁻¹ Λ'Z'y
+  readonly lambda: Float64Array; // q x q
+}
+
+function trialPieces(t: MixedTrialData, theta: ArrayLike<number>): TrialPieces {
+  const q = t.q;
+  const lambda = new Float64Array(q * q);
+  const l = choleskyFactor(theta);
+  for (let i = 0; i < 3; i++) for (let j = 0; j <= i; j++) lambda[i * q + j] = l[i * 3 + j];
+  for (let k = 3; k < q; k++) lambda[k * q + k] = theta[6 + t.indicatorFactor[k - 3]];
+  // T = Z'Z Λ, then M = Λ' T + I.
+  const tm = new Float64Array(q * q);
+  for (let i = 0; i < q; i++)
+    for (let j = 0; j < q; j++) {
+      let s = 0;
+      for (let k = j; k < q; k++) s += t.ztz[i * q + k] * lambda[k * q + j];
+      tm[i * q + j] = s;
+    }
+  const m = new Float64Array(q * q);
+  for (let i = 0; i < q; i++)
+    for (let j = 0; j <= i; j++) {
+      let s = 0;
+      for (let k = i; k < q; k++) s += lambda[k * q + i] * tm[k * q + j];
+      m[i * q + j] = s;
+      m[j * q + i] = s;
+    }
+  for (let i = 0; i < q; i++) m[i * q + i] += 1;
+  const chol = cholesky({ rows: q, cols: q, data: m });
+  // Λ'Z'X and Λ'Z'y, then forward-solve by the Cholesky factor.
+  const cX = new Float64Array(q * 3);
+  const cy = new Float64Array(q);
+  for (let i = 0; i < q; i++) {
+    let sy = 0;
+    for (let k = i; k < q; k++) sy += lambda[k * q + i] * t.zty[k];
+    cy[i] = sy;
+    for (let c = 0; c < 3; c++) {
+      let s = 0;
+      for (let k = i; k < q; k++) s += lambda[k * q + i] * t.ztx[k * 3 + c];
+      cX[i * 3 + c] = s;
+    }
+  }
+  forwardSolveInPlace(chol, cy);
+  const col = new Float64Array(q);
+  for (let c = 0; c < 3; c++) {
+    for (let i = 0; i < q; i++) col[i] = cX[i * 3 + c];
+    forwardSolveInPlace(chol, col);
+    for (let i = 0; i < q; i++) cX[i * 3 + c] = col[i];
+  }
+  return { chol, cX, cy, lambda };
+}
+
+export interface RemlSolution {
+  /** REML deviance -2 l_R (lme4's REML criterion). */
+  readonly deviance: number;
+  /** Fixed effects in scaled-rate units: intercept, x/scale, (x/scale)². */
+  readonly beta: Float64Array;
+  readonly sigma2: number;
+  /** (X'H⁻¹X)⁻¹: times sigma2 it is the fixed effects' covariance. */
+  readonly unscaledCovariance: Matrix;
+}
+
+/** The criterion and estimates at theta; deviance = Infinity where a factorisation fails. */
+export function remlSolution(d: MixedNetworkData, theta: ArrayLike<number>): RemlSolution {
+  const xhx = new Float64Array(9);
+  const xhy = new Float64Array(3);
+  let yhy = 0;
+  let logDetH = 0;
+  for (const t of d.trials) {
+    const p = trialPieces(t, theta);
+    const q = t.q;
+    logDetH += cholLogDet(p.chol);
+    for (let a = 0; a < 3; a++) {
+      for (let b = 0; b < 3; b++) {
+        let s = 0;
+        for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * p.cX[k * 3 + b];
+        xhx[a * 3 + b] += t.xtx[a * 3 + b] - s;
+      }
+      let s = 0;
+      for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * p.cy[k];
+      xhy[a] += t.xty[a] - s;
+    }
+    let s = 0;
+    for (let k = 0; k < q; k++) s += p.cy[k] * p.cy[k];
+    yhy += t.yty - s;
+  }
+  const lx = cholesky({ rows: 3, cols: 3, data: xhx });
+  const beta = cholSolve(lx, xhy);
+  const pwrss = yhy - (beta[0] * xhy[0] + beta[1] * xhy[1] + beta[2] * xhy[2]);
+  const df = d.n - FIXED;
+  const sigma2 = pwrss / df;
+  const deviance = logDetH + cholLogDet(lx) + df * (1 + Math.log(2 * Math.PI * sigma2));
+  return { deviance, beta, sigma2, unscaledCovariance: cholInverse(lx) };
+}
+
+export function remlDeviance(d: MixedNetworkData, theta: ArrayLike<number>): number {
+  try {
+    const v = remlSolution(d, theta).deviance;
+    return Number.isFinite(v) ? v : Infinity;
+  } catch {
+    return Infinity;
+  }
+}
+
+/** Predicted trial deviations (intercept, slope, curvature; scaled-rate units) per trial. */
+export function trialDeviations(d: MixedNetworkData, theta: ArrayLike<number>, beta: ArrayLike<number>): Float64Array[] {
+  return d.trials.map((t) => {
+    const p = trialPieces(t, theta);
+    const q = t.q;
+    // Λ'Z'(y - Xβ) = Lm (cy - cX β); then M⁻¹ of it = Lm'⁻¹ (cy - cX β).
+    const r = new Float64Array(q);
+    for (let i = 0; i < q; i++) r[i] = p.cy[i] - (p.cX[i * 3] * beta[0] + p.cX[i * 3 + 1] * beta[1] + p.cX[i * 3 + 2] * beta[2]);
+    const lt = p.chol;
+    for (let i = q - 1; i >= 0; i--) {
+      let s = r[i];
+      for (let k = i + 1; k < q; k++) s -= lt.data[k * q + i] * r[k];
+      r[i] = s / lt.data[i * q + i];
+    }
+    const u = new Float64Array(3);
+    for (let i = 0; i < 3; i++) {
+      let s = 0;
+      for (let k = 0; k <= i; k++) s += p.lambda[i * q + k] * r[k];
+      u[i] = s;
+    }
+    return u;
+  });
+}
