@@ -1,0 +1,100 @@
+// The mixed quadratic rate response against lme4 (R package lme4, lmer with REML = TRUE) on
+// random-coefficient rate trials generated here with fixed seeds:
+//   lmer(y ~ x + I(x^2) + (x + I(x^2) | trial) + (1 | trial:block), REML = TRUE), x = rate / max rate.
+// lme4 runs bobyqa with a tight end radius so both sides reach the optimum. Tolerances:
+//   REML logLik 1e-5 relative (and lme4's own deviance function at our parameters must not
+//   beat our optimum by more than 1e-6), fixed effects and their standard errors 1e-4 relative,
+//   G elements, block variance and residual variance 1e-3 relative.
+import { describe, expect, it } from 'vitest';
+import { analyzeMixedQuadratic } from '../../../../src/engine/rate/mixed/analyzeMixedQuadratic.js';
+import { fitMixedQuadratic } from '../../../../src/engine/rate/mixed/fitMixedQuadratic.js';
+import { mixedQuadraticData } from '../../../../src/engine/rate/mixed/mixedData.js';
+import { treatmentRates } from '../../../../src/engine/rate/rateData.js';
+import { mulberry32, normalSampler } from '../../../../src/engine/stats/random.js';
+import type { NetworkInput } from '../../../../src/engine/types.js';
+import { relDiff, runR, rVector } from '../../../support/rscript.js';
+import { generateRateNetwork, quadraticCurve, trialCsv } from '../generateRateNetwork.js';
+
+const LOGLIK_TOL = 1e-5;
+const FIXED_TOL = 1e-4;
+const VAR_TOL = 1e-3;
+
+function randomCoefficientNetwork(seed: number, trials: number, dropPlots: number): NetworkInput {
+  const z = normalSampler(mulberry32(seed));
+  const curves = Array.from({ length: trials }, () => quadraticCurve(6 + 0.7 * z(), 0.03 + 0.007 * z(), -0.00008 + 0.00002 * z()));
+  return generateRateNetwork({ seed: seed + 1, trials, curves, sd: 0.3, dropPlots });
+}
+
+/** lme4's theta order for a 3 x 3 term: column-major lower triangle, non-negative diagonal. */
+function lme4Theta(theta: Float64Array): { trial: number[]; block: number } {
+  const L = [
+    [theta[0], 0, 0],
+    [theta[1], theta[2], 0],
+    [theta[3], theta[4], theta[5]],
+  ];
+  for (let j = 0; j < 3; j++) if (L[j][j] < 0) for (let i = j; i < 3; i++) L[i][j] = -L[i][j];
+  return { trial: [L[0][0], L[1][0], L[2][0], L[1][1], L[2][1], L[2][2]], block: Math.abs(theta[6]) };
+}
+
+const rScript = (trialTheta: number[], blockTheta: number) => `
+suppressPackageStartupMessages(library(lme4))
+d <- read.csv("d.csv", colClasses = c("character", "character", "numeric", "numeric"))
+S <- max(d$rate); d$x <- d$rate / S
+fit <- lmer(y ~ x + I(x^2) + (x + I(x^2) | trial) + (1 | trial:block), data = d, REML = TRUE,
+  control = lmerControl(optimizer = "bobyqa", optCtrl = list(rhoend = 1e-11, maxfun = 1e5), check.conv.singular = "ignore"))
+back <- c(1, 1 / S, 1 / S^2)
+emit("fixed", fixef(fit) * back)
+emit("se", sqrt(diag(as.matrix(vcov(fit)))) * back)
+G <- as.matrix(VarCorr(fit)$trial)
+emit("G", as.vector(diag(back) %*% G %*% diag(back)))
+emit("blockVar", as.numeric(VarCorr(fit)[["trial:block"]]))
+emit("sigma2", sigma(fit)^2)
+emit("logLik", as.numeric(logLik(fit)))
+emit("deviance", as.numeric(REMLcrit(fit)))
+dfun <- update(fit, devFunOnly = TRUE)
+th <- getME(fit, "theta")
+ours <- th
+ours[grep("^trial:block", names(th))] <- ${blockTheta}
+ours[grep("^trial\\\\.", names(th))] <- c(${trialTheta.join(', ')})
+emit("devianceAtOurs", dfun(ours))
+`;
+
+function compare(seed: number, trials: number, dropPlots: number) {
+  const network = randomCoefficientNetwork(seed, trials, dropPlots);
+  const rates = treatmentRates(network, 'rate', { timing: 'early' });
+  const result = analyzeMixedQuadratic(network, rates, { priceRatio: 0.006, confidence: 0.95 });
+  const fit = fitMixedQuadratic(mixedQuadraticData(network, rates));
+  const csv = ['trial,block,rate,y', ...network.trials.flatMap((t) => trialCsv(network, t, 'early').trim().split('\n').slice(1).map((l) => `${t.trial},${l}`))].join('\n') + '\n';
+  const th = lme4Theta(fit.theta);
+  const run = runR(rScript(th.trial, th.block), { 'd.csv': csv });
+  const rFixed = rVector(run, 'fixed');
+  const rSe = rVector(run, 'se');
+  const rG = rVector(run, 'G'); // column-major 3 x 3
+  const rDeviance = rVector(run, 'deviance')[0];
+  const atOurs = rVector(run, 'devianceAtOurs')[0];
+  // Same criterion: lme4's deviance function at our parameters equals our deviance.
+  expect(relDiff(atOurs, -2 * (result.logLik as number))).toBeLessThan(1e-9);
+  // Our optimum is at least as good as lme4's (to 1e-6 in deviance).
+  expect(atOurs).toBeLessThan(rDeviance + 1e-6);
+  expect(relDiff(result.logLik as number, rVector(run, 'logLik')[0])).toBeLessThan(LOGLIK_TOL);
+  const names = ['intercept', 'linear', 'quadratic'] as const;
+  names.forEach((k, i) => {
+    expect(relDiff(result.fixed[k] as number, rFixed[i])).toBeLessThan(FIXED_TOL);
+    expect(relDiff(result.standardErrors[k] as number, rSe[i])).toBeLessThan(FIXED_TOL);
+  });
+  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) expect(relDiff(result.randomCovariance[i][j] as number, rG[j * 3 + i])).toBeLessThan(VAR_TOL);
+  expect(relDiff(result.groupingVariances.block as number, rVector(run, 'blockVar')[0])).toBeLessThan(VAR_TOL);
+  expect(relDiff(result.residualVariance as number, rVector(run, 'sigma2')[0])).toBeLessThan(VAR_TOL);
+  expect(result.convergence.converged).toBe(true);
+  if (process.env.MIXED_DEBUG) console.log(JSON.stringify({ rDeviance, atOurs, ours: -2 * (result.logLik as number), fixed: result.fixed, rFixed, se: result.standardErrors, rSe, G: result.randomCovariance, rG, block: result.groupingVariances, rBlock: rVector(run, "blockVar"), s2: result.residualVariance, rs2: rVector(run, "sigma2"), evals: result.convergence.evaluations }));
+  return { result, rDeviance, atOurs };
+}
+
+describe('mixed quadratic rate response vs lme4 lmer (REML)', () => {
+  it('12 balanced trials: logLik, fixed effects, SEs, G, block and residual variances', () => {
+    compare(20261202, 12, 0);
+  });
+  it('15 trials with 3 plots dropped per trial (unbalanced): same agreement', () => {
+    compare(4242, 15, 3);
+  });
+});
