@@ -32,7 +32,8 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
     const trait = spec.trait ?? table.traits[0]?.name;
     if (!trait) throw new ManyfieldError('invalid-input', `${source.data} holds no trait values`);
     const network = networkFromTable(table, trait);
-    return withProvenance(runAnalysis(network, spec, ctx), { source: source.data, fingerprint: fingerprint(network) });
+    // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
+    return withProvenance(runAnalysis(network, spec, ctx), { source: source.data, fingerprint: `sha256:${table.sha256}` });
   }
   const ws = openWorkspace(source.workspace!);
   try {

@@ -6,15 +6,19 @@ import { ManyfieldError } from '../result.js';
 export function networkFromTable(table: ParsedPlotTable, trait: string): NetworkInput {
   const traitInfo = table.traits.find((t) => t.name === trait);
   if (!traitInfo) throw new ManyfieldError('invalid-argument', `trait "${trait}" is not in ${table.file} (traits: ${table.traits.map((t) => t.name).join(', ')})`);
-  const values = new Map<number, number | null>();
-  for (const o of table.observations) if (o.trait === trait) values.set(o.plot, o.value);
+  // One pass over the observations into a per-plot array (undefined = no value for this trait).
+  const values: (number | null | undefined)[] = new Array(table.plots.length);
+  for (const o of table.observations) if (o.trait === trait) values[o.plot] = o.value;
   const plotsByTrial = new Map<string, PlotObservation[]>();
-  table.plots.forEach((p, i) => {
-    if (!values.has(i)) return;
+  const plots = table.plots;
+  for (let i = 0; i < plots.length; i++) {
+    const value = values[i];
+    if (value === undefined) continue;
+    const p = plots[i];
     let list = plotsByTrial.get(p.trialKey);
     if (!list) plotsByTrial.set(p.trialKey, (list = []));
-    list.push({ plotId: p.sourceRow, treatment: p.treatment, block: p.block, row: p.row, col: p.col, value: values.get(i) ?? null });
-  });
+    list.push({ plotId: p.plotId ?? p.sourceRow, treatment: p.treatment, block: p.block, row: p.row, col: p.col, value });
+  }
   const trials: TrialInput[] = table.trials
     .filter((t) => plotsByTrial.has(t.key))
     .map((t) => ({ trial: t.key, site: t.site, year: t.year, design: t.design, plots: plotsByTrial.get(t.key)!, covariates: table.trialCovariates[t.key] ?? {} }));
