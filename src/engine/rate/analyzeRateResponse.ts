@@ -1,8 +1,8 @@
 // Response to rate across a network of trials and the economic optimum rate.
 // Stages: per-trial curves (with the trial's block offsets) -> per-trial optima -> pooled
 // optimum of the mean net return -> its uncertainty (delta method, bootstrap over trials)
-// -> price-ratio sensitivity. A mixed-model quadratic (random trial deviations of the
-// coefficients) is not part of this module yet.
+// -> price-ratio sensitivity; for quadratic (or 'best') curves also a mixed-model quadratic
+// with random trial deviations of the coefficients (mixed/), whose failure is a warning.
 import type { NetworkInput } from '../types.js';
 import { cappedOptimum, type Curve } from './curves.js';
 import { RateResponseInputError } from './errors.js';
@@ -13,6 +13,8 @@ import { bootstrapOptimum } from './bootstrap.js';
 import { quantileType7 } from './quantile.js';
 import { treatmentRates } from './rateData.js';
 import { analyseTrialRate, type PooledTrial } from './trialRate.js';
+import { analyzeMixedQuadratic } from './mixed/analyzeMixedQuadratic.js';
+import type { MixedRateResult } from './mixed/types.js';
 import { unitNote } from './unitNote.js';
 import {
   CURVE_FORMS,
@@ -88,6 +90,7 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
       flags: p?.flags ?? ['no-curve'],
     };
   });
+  const mixedModel = options.model === 'quadratic' || options.model === 'best' ? mixedQuadraticOrWarning(network, rates, options, warnings) : undefined;
   progress('done', 1);
   const factorInfo = network.factors.find((f) => f.name === options.factor);
   const rateUnit = factorInfo?.unit ?? null;
@@ -107,7 +110,19 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
     sensitivity,
     cautions: [...RATE_CAUTIONS],
     warnings,
+    ...(mixedModel !== undefined ? { mixedModel } : {}),
   };
+}
+
+function mixedQuadraticOrWarning(network: NetworkInput, rates: Map<string, number>, options: RateResponseOptions, warnings: string[]): MixedRateResult | null {
+  try {
+    const m = analyzeMixedQuadratic(network, rates, { priceRatio: options.priceRatio, confidence: options.confidence });
+    if (!m.convergence.converged) warnings.push(`Mixed-model quadratic: ${m.convergence.note ?? 'did not converge'}; read its figures with care.`);
+    return m;
+  } catch (e) {
+    warnings.push(`Mixed-model quadratic could not be fitted: ${e instanceof Error ? e.message : String(e)}.`);
+    return null;
+  }
 }
 
 function buildPooled(

@@ -1,6 +1,7 @@
 // Plain-text rendering of a rate-response result for the terminal: a short summary of the
 // pooled optimum, one line per trial, the price-ratio sensitivity, then cautions.
 import type { Num, RateResponseResult } from './types.js';
+import { formatMixedModelText } from './mixed/formatMixedModelText.js';
 
 function f(x: Num, digits = 1): string {
   return x === null ? '–' : x.toFixed(digits);
@@ -32,6 +33,8 @@ export function formatRateResponseText(result: RateResponseResult): string {
   if (p.flags.length > 0) out.push(`  note: ${p.flags.join(', ')}`);
   const s = result.siteOptima;
   out.push(`Site optima (${s.n} trials): ` + s.quantiles.map((q) => `${Math.round(q.p * 100)}% ${f(q.value)}`).join(', ') + `; no input pays at ${f(s.shareNoInputPays === null ? null : s.shareNoInputPays * 100, 0)}% of trials`);
+  const mixed = formatMixedModelText(result.mixedModel, ru);
+  if (mixed.length > 0) out.push('', ...mixed);
   out.push('');
   out.push(
     ...table(

@@ -1,5 +1,6 @@
 // Shapes of the rate-response analysis: options in, a JSON-safe result out.
 // Yields and net returns are in the trait's unit; rates in the rate factor's unit.
+import type { MixedRateResult } from './mixed/types.js';
 
 export type RateModel = 'linear' | 'quadratic' | 'linear-plateau' | 'quadratic-plateau' | 'exponential';
 export type RateModelChoice = RateModel | 'best';
@@ -140,6 +141,11 @@ export interface RateResponseResult {
   readonly sensitivity: SensitivityRow[];
   readonly cautions: string[];
   readonly warnings: string[];
+  /**
+   * Mixed-model quadratic (random trial deviations of the coefficients, REML): present when
+   * the model is 'quadratic' or 'best'; null when that fit failed (see warnings).
+   */
+  readonly mixedModel?: MixedRateResult | null;
 }
 
 export const RATE_CAUTIONS: readonly string[] = [
