@@ -4,7 +4,9 @@
 // lme4 runs bobyqa with a tight end radius so both sides reach the optimum. Tolerances:
 //   REML logLik 1e-5 relative (and lme4's own deviance function at our parameters must not
 //   beat our optimum by more than 1e-6), fixed effects and their standard errors 1e-4 relative,
-//   G elements, block variance and residual variance 1e-3 relative.
+//   G elements, block variance and residual variance 1e-3 relative; trial-specific
+//   coefficients (lme4's coef(): fixed effects plus predicted deviations) and the trial
+//   optima (r - b) / (2 c) held to 0..200, 1e-4 relative.
 import { describe, expect, it } from 'vitest';
 import { analyzeMixedQuadratic } from '../../../../src/engine/rate/mixed/analyzeMixedQuadratic.js';
 import { fitMixedQuadratic } from '../../../../src/engine/rate/mixed/fitMixedQuadratic.js';
@@ -51,6 +53,10 @@ emit("blockVar", as.numeric(VarCorr(fit)[["trial:block"]]))
 emit("sigma2", sigma(fit)^2)
 emit("logLik", as.numeric(logLik(fit)))
 emit("deviance", as.numeric(REMLcrit(fit)))
+cf <- as.matrix(coef(fit)$trial)
+emit("trialIntercept", cf[, 1] * back[1]); emit("trialLinear", cf[, 2] * back[2]); emit("trialQuadratic", cf[, 3] * back[3])
+opt <- (0.006 - cf[, 2] * back[2]) / (2 * cf[, 3] * back[3])
+emit("trialOptimum", ifelse(cf[, 3] < 0, pmin(pmax(opt, 0), 200), NA))
 dfun <- update(fit, devFunOnly = TRUE)
 th <- getME(fit, "theta")
 ours <- th
@@ -86,6 +92,17 @@ function compare(seed: number, trials: number, dropPlots: number) {
   expect(relDiff(result.groupingVariances.block as number, rVector(run, 'blockVar')[0])).toBeLessThan(VAR_TOL);
   expect(relDiff(result.residualVariance as number, rVector(run, 'sigma2')[0])).toBeLessThan(VAR_TOL);
   expect(result.convergence.converged).toBe(true);
+  const rInt = rVector(run, 'trialIntercept');
+  const rLin = rVector(run, 'trialLinear');
+  const rQuad = rVector(run, 'trialQuadratic');
+  const rOpt = rVector(run, 'trialOptimum');
+  expect(result.trialOptima.byTrial.map((t) => t.trial)).toEqual([...network.trials.map((t) => t.trial)].sort());
+  result.trialOptima.byTrial.forEach((t, i) => {
+    expect(relDiff(t.intercept as number, rInt[i])).toBeLessThan(FIXED_TOL);
+    expect(relDiff(t.linear as number, rLin[i])).toBeLessThan(FIXED_TOL);
+    expect(relDiff(t.quadratic as number, rQuad[i])).toBeLessThan(FIXED_TOL);
+    if (Number.isFinite(rOpt[i])) expect(Math.abs((t.optimum as number) - rOpt[i])).toBeLessThan(FIXED_TOL * Math.max(1, rOpt[i]));
+  });
   if (process.env.MIXED_DEBUG) console.log(JSON.stringify({ rDeviance, atOurs, ours: -2 * (result.logLik as number), fixed: result.fixed, rFixed, se: result.standardErrors, rSe, G: result.randomCovariance, rG, block: result.groupingVariances, rBlock: rVector(run, "blockVar"), s2: result.residualVariance, rs2: rVector(run, "sigma2"), evals: result.convergence.evaluations }));
   return { result, rDeviance, atOurs };
 }
