@@ -118,7 +118,9 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
         observations.push({ plot: plotIndex, trait: 'protein', value: round(proteinValue, 2) });
       }
       trials.push({ key, site: site.code, year, design });
-      trialCovariates[key] = { rainfall, soil_ph: site.soilPh, organic_matter: site.organicMatter, region: site.region };
+      // Seasonal rainfall belongs to the site-year; soil pH, organic matter and region are the
+      // site's own and are stored with the site (the workspace merges them into each trial).
+      trialCovariates[key] = { rainfall };
       truths.push({
         trial: key,
         site: site.code,

@@ -4,13 +4,14 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { manyfield, tempDir } from '../support/cli.js';
+import { DEMO_MODEL, DEMO_TREATMENTS } from '../../src/demo/scenario.js';
 
 const POOLED_KEYS = ['name', 'estimate', 'se', 'lower', 'upper', 'p', 'tau2', 'tau2Lower', 'tau2Upper', 'Q', 'Qdf', 'Qp', 'I2', 'H2', 'predictionLower', 'predictionUpper', 'probPositive', 'probAboveThreshold', 'k'];
 
 interface Flag { code: string; plotId?: string | number | null }
 interface Report {
   oneStage: { remlCriterion: number; logLik: number; converged: boolean; iterations: number; variance: Record<string, unknown>; means: { treatment: string; estimate: number; se: number }[]; contrasts: { name: string; estimate: number; se: number; df: number; lower: number; upper: number; p: number }[] };
-  twoStage: { trials: { trial: string; model: { n: number }; flags: Flag[]; contrasts: { name: string }[] }[]; pooled: Record<string, unknown>[] };
+  twoStage: { trials: { trial: string; model: { n: number }; flags: Flag[]; contrasts: { name: string }[] }[]; pooled: (Record<string, unknown> & { metaRegression?: { coefficients: { term: string; estimate: number; se: number }[] } })[] };
   rateResponse: { pooled: { optimum: number; optimumLower: number; optimumUpper: number; profitableLower: number; profitableUpper: number; netReturnAtOptimum: number; yieldGainAtOptimum: number }; trials: { trial: string; model: string; optimum: number | null; converged: boolean }[]; cautions: string[] };
   warnings: string[];
   cautions: string[];
@@ -55,6 +56,20 @@ describe('analyze on the demo workspace', () => {
   it('leaves the trial missing a treatment out of those contrasts, with a warning', () => {
     expect(report.warnings.filter((w) => w.includes('DUN-2025'))).toHaveLength(3);
     expect(report.twoStage.pooled.every((p) => p.k === 41)).toBe(true);
+  });
+
+  it('meta-regression on site-year rainfall and site organic matter recovers the stated model', () => {
+    // Stated model (src/demo/scenario.ts): Gmax rises by gmaxRain per 100 mm of rainfall and
+    // by gmaxOm per % organic matter; treated_vs_control averages Gmax (1 - exp(-c x)) over
+    // the six treated treatments, so its true slopes are those coefficients times that average.
+    const treated = DEMO_TREATMENTS.filter((t) => t.timing !== null);
+    const share = treated.reduce((s, t) => s + (1 - Math.exp(-DEMO_MODEL.curvature * t.rate * DEMO_MODEL.efficiency[t.timing as string])), 0) / treated.length;
+    const m = report.twoStage.pooled.find((p) => p.name === 'treated_vs_control')!.metaRegression!;
+    const rain = m.coefficients.find((c) => c.term === 'rainfall')!;
+    const om = m.coefficients.find((c) => c.term === 'organic_matter')!;
+    // Within 3 standard errors of the truth (a false failure has probability ~0.003 each).
+    expect(Math.abs(rain.estimate - (DEMO_MODEL.gmaxRain / 100) * share)).toBeLessThan(3 * rain.se);
+    expect(Math.abs(om.estimate - DEMO_MODEL.gmaxOm * share)).toBeLessThan(3 * om.se);
   });
 
   it('gives a pooled economic optimum with interval and profitable range, and the cautions', () => {

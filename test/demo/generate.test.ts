@@ -27,7 +27,7 @@ describe('demo network', () => {
     expect(rates).toEqual([40, 80, 160]); // unequally spaced
     expect(t.treatments.find((x) => x.code === 'CTL')!.levels.timing).toBeNull();
     expect(t.traits.map((x) => x.name)).toEqual(['yield', 'protein']);
-    for (const trial of t.trials) expect(Object.keys(t.trialCovariates[trial.key])).toEqual(expect.arrayContaining(['rainfall', 'soil_ph', 'organic_matter']));
+    for (const trial of t.trials) expect(Object.keys(t.trialCovariates[trial.key])).toEqual(['rainfall']);
   });
 
   it('carries the stated quirks', () => {

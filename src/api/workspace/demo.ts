@@ -2,8 +2,8 @@
 // moved into place only when complete, so a failure or cancellation leaves nothing behind.
 import { existsSync, renameSync, rmSync } from 'node:fs';
 import { generateDemoNetwork, type DemoTruth } from '../../demo/generate.js';
-import { DEMO_NETWORK_NAME } from '../../demo/scenario.js';
-import { openWorkspace, importParsedTable, setMeta } from '../../store/index.js';
+import { DEMO_NETWORK_NAME, DEMO_SITES } from '../../demo/scenario.js';
+import { openWorkspace, importParsedTable, setMeta, setSiteDetails } from '../../store/index.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 
@@ -29,6 +29,15 @@ export function buildDemo(path: string, replace: boolean, ctx?: CallContext): De
     try {
       throwIfCancelled(ctx);
       importParsedTable(ws, table, { onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }) });
+      for (const site of DEMO_SITES)
+        setSiteDetails(ws, site.code, {
+          name: site.name,
+          region: site.region,
+          lat: site.lat,
+          lon: site.lon,
+          covariates: { soil_ph: site.soilPh, organic_matter: site.organicMatter, rainfall_normal: site.rainfallNormal },
+          units: { soil_ph: 'pH', organic_matter: '%', rainfall_normal: 'mm' },
+        });
       setMeta(ws, DEMO_TRUTH_KEY, truth satisfies DemoTruth);
       setMeta(ws, 'network.name', DEMO_NETWORK_NAME);
     } finally {
