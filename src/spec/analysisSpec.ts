@@ -68,6 +68,10 @@ export const oneStageSchema = z
     residual: z.enum(['common', 'per-trial']).default('common'),
     df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     covariates: z.array(z.string()).default([]),
+    /** Likelihood-ratio test of each variance component (one refit per component). */
+    lrt: z.boolean().default(true),
+    /** Profile-likelihood intervals for the variance components (default: networks up to 200 trials). */
+    profile: z.boolean().optional(),
   })
   .strict();
 

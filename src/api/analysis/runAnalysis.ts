@@ -43,9 +43,9 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   let oneStage: ReturnType<typeof fitOneStage> | null = null;
   if (spec.oneStage !== null) {
     throwIfCancelled(ctx);
-    const options = spec.oneStage ?? { random: ['trial', 'block', 'treatment:trial'] as const, residual: 'common' as const, df: 'satterthwaite' as const, covariates: [] };
+    const options = spec.oneStage ?? { random: ['trial', 'block', 'treatment:trial'] as const, residual: 'common' as const, df: 'satterthwaite' as const, covariates: [], lrt: true, profile: undefined };
     const modelled = transformNetwork(network, spec);
-    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence }, {
+    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile }, {
       onProgress: (e) => ctx?.onProgress?.({ stage: 'one-stage', step: `iteration ${e.iteration}`, fraction: null }),
       signal: ctx?.signal,
     });
