@@ -8,7 +8,7 @@
 //   -2 l_R = Σ log|M_t| + log|X'H⁻¹X| + (n - 3)(1 + log(2π s²)),
 // which is the REML deviance lme4 minimises (its logLik is -1/2 of it, no log|X'X| term).
 // Random-effect predictions: b_t = Λ M_t⁻¹ Λ' Z_t' (y_t - X_t β̂).
-import { cholesky, cholSolve, cholLogDet, cholInverse, forwardSolveInPlace } from '../../linalg/cholesky.js';
+import { cholesky, cholSolve, cholLogDet, cholInverse } from '../../linalg/cholesky.js';
 import type { Matrix } from '../../linalg/matrix.js';
 import type { MixedNetworkData, MixedTrialData } from './mixedData.js';
 
@@ -25,57 +25,90 @@ export function choleskyFactor(theta: ArrayLike<number>): Float64Array {
 }
 
 interface TrialPieces {
-  readonly chol: Matrix;
+  /** Lower Cholesky factor of M_t, q x q row-major (upper part unused). */
+  readonly chol: Float64Array;
   readonly cX: Float64Array; // q x 3, Lm⁻¹ Λ'Z'X
   readonly cy: Float64Array; // q, Lm⁻¹ Λ'Z'y
-  readonly lambda: Float64Array; // q x q
+  /** θ of each indicator column (entries 0..2 unused). */
+  readonly diag: Float64Array;
+  readonly l: Float64Array;
+}
+
+/** In-place lower Cholesky of a q x q row-major matrix; false when not positive definite. */
+function cholInPlace(a: Float64Array, q: number): boolean {
+  for (let j = 0; j < q; j++) {
+    let d = a[j * q + j];
+    for (let k = 0; k < j; k++) d -= a[j * q + k] * a[j * q + k];
+    if (!(d > 0)) return false;
+    const ljj = Math.sqrt(d);
+    a[j * q + j] = ljj;
+    for (let i = j + 1; i < q; i++) {
+      let s = a[i * q + j];
+      for (let k = 0; k < j; k++) s -= a[i * q + k] * a[j * q + k];
+      a[i * q + j] = s / ljj;
+    }
+  }
+  return true;
+}
+
+function forwardSolve(l: Float64Array, q: number, b: Float64Array, stride: number, col: number): void {
+  for (let i = 0; i < q; i++) {
+    let s = b[i * stride + col];
+    for (let k = 0; k < i; k++) s -= l[i * q + k] * b[k * stride + col];
+    b[i * stride + col] = s / l[i * q + i];
+  }
 }
 
 function trialPieces(t: MixedTrialData, theta: ArrayLike<number>): TrialPieces {
   const q = t.q;
-  const lambda = new Float64Array(q * q);
   const l = choleskyFactor(theta);
-  for (let i = 0; i < 3; i++) for (let j = 0; j <= i; j++) lambda[i * q + j] = l[i * 3 + j];
-  for (let k = 3; k < q; k++) lambda[k * q + k] = theta[6 + t.indicatorFactor[k - 3]];
-  // T = Z'Z Λ, then M = Λ' T + I.
-  const tm = new Float64Array(q * q);
-  for (let i = 0; i < q; i++)
-    for (let j = 0; j < q; j++) {
-      let s = 0;
-      for (let k = j; k < q; k++) s += t.ztz[i * q + k] * lambda[k * q + j];
-      tm[i * q + j] = s;
-    }
+  const diag = new Float64Array(q);
+  for (let k = 3; k < q; k++) diag[k] = theta[6 + t.indicatorFactor[k - 3]];
+  // M = Λ' Z'Z Λ + I, using the structure Λ = blockdiag(L, diag(θ)): the coefficient
+  // columns mix through L, each indicator column is only scaled by its θ.
+  const zz = t.ztz;
   const m = new Float64Array(q * q);
+  // P = Z'Z[:, 0:3] L (q x 3).
+  const pm = new Float64Array(q * 3);
   for (let i = 0; i < q; i++)
+    for (let j = 0; j < 3; j++) {
+      let s = 0;
+      for (let k = j; k < 3; k++) s += zz[i * q + k] * l[k * 3 + j];
+      pm[i * 3 + j] = s;
+    }
+  for (let i = 0; i < 3; i++)
     for (let j = 0; j <= i; j++) {
       let s = 0;
-      for (let k = i; k < q; k++) s += lambda[k * q + i] * tm[k * q + j];
+      for (let k = i; k < 3; k++) s += l[k * 3 + i] * pm[k * 3 + j];
       m[i * q + j] = s;
-      m[j * q + i] = s;
     }
+  for (let i = 3; i < q; i++) {
+    const ti = diag[i];
+    for (let j = 0; j < 3; j++) m[i * q + j] = ti * pm[i * 3 + j];
+    for (let j = 3; j <= i; j++) m[i * q + j] = ti * diag[j] * zz[i * q + j];
+  }
   for (let i = 0; i < q; i++) m[i * q + i] += 1;
-  const chol = cholesky({ rows: q, cols: q, data: m });
+  if (!cholInPlace(m, q)) throw new Error('mixed quadratic: M_t not positive definite');
   // Λ'Z'X and Λ'Z'y, then forward-solve by the Cholesky factor.
   const cX = new Float64Array(q * 3);
   const cy = new Float64Array(q);
-  for (let i = 0; i < q; i++) {
+  for (let i = 0; i < 3; i++) {
     let sy = 0;
-    for (let k = i; k < q; k++) sy += lambda[k * q + i] * t.zty[k];
+    for (let k = i; k < 3; k++) sy += l[k * 3 + i] * t.zty[k];
     cy[i] = sy;
     for (let c = 0; c < 3; c++) {
       let s = 0;
-      for (let k = i; k < q; k++) s += lambda[k * q + i] * t.ztx[k * 3 + c];
+      for (let k = i; k < 3; k++) s += l[k * 3 + i] * t.ztx[k * 3 + c];
       cX[i * 3 + c] = s;
     }
   }
-  forwardSolveInPlace(chol, cy);
-  const col = new Float64Array(q);
-  for (let c = 0; c < 3; c++) {
-    for (let i = 0; i < q; i++) col[i] = cX[i * 3 + c];
-    forwardSolveInPlace(chol, col);
-    for (let i = 0; i < q; i++) cX[i * 3 + c] = col[i];
+  for (let i = 3; i < q; i++) {
+    cy[i] = diag[i] * t.zty[i];
+    for (let c = 0; c < 3; c++) cX[i * 3 + c] = diag[i] * t.ztx[i * 3 + c];
   }
-  return { chol, cX, cy, lambda };
+  forwardSolve(m, q, cy, 1, 0);
+  for (let c = 0; c < 3; c++) forwardSolve(m, q, cX, 3, c);
+  return { chol: m, cX, cy, diag, l };
 }
 
 export interface RemlSolution {
@@ -97,7 +130,7 @@ export function remlSolution(d: MixedNetworkData, theta: ArrayLike<number>): Rem
   for (const t of d.trials) {
     const p = trialPieces(t, theta);
     const q = t.q;
-    logDetH += cholLogDet(p.chol);
+    for (let i = 0; i < q; i++) logDetH += 2 * Math.log(p.chol[i * q + i]);
     for (let a = 0; a < 3; a++) {
       for (let b = 0; b < 3; b++) {
         let s = 0;
@@ -141,13 +174,13 @@ export function trialDeviations(d: MixedNetworkData, theta: ArrayLike<number>, b
     const lt = p.chol;
     for (let i = q - 1; i >= 0; i--) {
       let s = r[i];
-      for (let k = i + 1; k < q; k++) s -= lt.data[k * q + i] * r[k];
-      r[i] = s / lt.data[i * q + i];
+      for (let k = i + 1; k < q; k++) s -= lt[k * q + i] * r[k];
+      r[i] = s / lt[i * q + i];
     }
     const u = new Float64Array(3);
     for (let i = 0; i < 3; i++) {
       let s = 0;
-      for (let k = 0; k <= i; k++) s += p.lambda[i * q + k] * r[k];
+      for (let k = 0; k <= i; k++) s += p.l[i * 3 + k] * r[k];
       u[i] = s;
     }
     return u;
