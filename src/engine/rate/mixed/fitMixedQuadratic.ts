@@ -28,9 +28,16 @@ export interface MixedQuadraticFit {
   readonly starts: number;
   /** Largest minus smallest deviance reached over the starts (0 when all agree). */
   readonly startSpread: number;
+  /**
+   * A variance-covariance parameter sits on the boundary: a diagonal entry of the relative
+   * Cholesky factor (or a relative block sd) below 1e-4, lme4's rule for a singular fit.
+   */
+  readonly singular: boolean;
   /** The optimised parameters (relative Cholesky entries, relative block sds), scaled units. */
   readonly theta: Float64Array;
 }
+
+export const SINGULAR_THETA = 1e-4;
 
 export interface MixedFitOptions {
   readonly maxEvaluations?: number;
@@ -73,6 +80,7 @@ export function fitMixedQuadratic(d: MixedNetworkData, o: MixedFitOptions = {}):
     evaluations: runs.reduce((s, r) => s + r.evaluations, 0),
     starts: runs.length,
     startSpread: Math.max(...values) - Math.min(...values),
+    singular: [0, 2, 5, ...d.grouping.map((_, j) => 6 + j)].some((i) => Math.abs(theta[i]) < SINGULAR_THETA),
     theta,
   };
 }

@@ -70,6 +70,8 @@ export interface MixedRateResult {
     readonly starts: number;
     /** Spread of the REML deviance reached from the different starts. */
     readonly startSpread: Num;
+    /** Some variance (or a combination of the trial deviations) is estimated at zero. */
+    readonly singular: boolean;
     readonly note: string | null;
   };
   readonly optimum: MixedPopulationOptimum;
