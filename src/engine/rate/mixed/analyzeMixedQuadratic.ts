@@ -66,7 +66,7 @@ export function analyzeMixedQuadratic(network: NetworkInput, rates: Map<string, 
     logLik: num(fit.logLik),
     convergence: {
       converged: fit.converged,
-      method: `Nelder–Mead on the profiled REML deviance (rates divided by ${data.rateScale}), restarted until no gain, from ${fit.starts} starts`,
+      method: `Nelder–Mead on the profiled REML deviance (rates divided by ${data.rateScale}); stops at deviance spread 1e-12 x (1 + |deviance|) and vertex distance 1e-8, restarted until a restart gains < 1e-9; ${fit.starts} starts`,
       evaluations: fit.evaluations,
       starts: fit.starts,
       startSpread: num(fit.startSpread),
