@@ -1,13 +1,14 @@
 // Turns data rows into a validated, unit-converted plot table. Rows are fed one at a time
 // (cells read in place); per-trial and per-treatment state is kept with a one-entry cache,
 // since files are usually sorted by trial and often by treatment.
-import type { TrialDesign } from '../engine/types.js';
+import type { FactorInfo, TreatmentInfo, TrialDesign } from '../engine/types.js';
 import { parseDesignName, DESIGN_NAMES } from './designs.js';
 import { parseDecimal, type DecimalMode } from './numbers.js';
 import type { PlotColumns } from './plotColumns.js';
 import type { RowCells } from './rowCells.js';
 import type { ProblemList } from './problems.js';
-import type { ImportMapping, ParsedObservation, ParsedPlot, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
+import type { PlotSink } from './plotSink.js';
+import type { ImportMapping, ParsedTrait, ParsedTrial } from './types.js';
 import { covariateTable, factorsAndTreatments } from './plotTableLevels.js';
 import { toCanonical } from './units.js';
 
@@ -74,6 +75,19 @@ function smallPair(a: number, b: number): number | null {
  */
 const DENSE_TREATMENTS = 256;
 
+/** A validated table without its plots and values (those went to the builder's sink). */
+export interface PlotTableSummary {
+  readonly rowsRead: number;
+  readonly protocol: string;
+  readonly control: string | null;
+  readonly traits: readonly ParsedTrait[];
+  readonly factors: readonly FactorInfo[];
+  readonly treatments: readonly TreatmentInfo[];
+  readonly trials: readonly ParsedTrial[];
+  readonly trialCovariates: Readonly<Record<string, Readonly<Record<string, number | string | null>>>>;
+  readonly mapping: ImportMapping;
+}
+
 function parseYear(text: string, mode: DecimalMode): number {
   const y = parseDecimal(text, mode);
   return Number.isInteger(y) && y >= 1000 && y <= 9999 ? y : NaN;
@@ -87,8 +101,6 @@ export class PlotTableBuilder {
   private readonly treatmentList: TreatmentState[] = [];
   private readonly allowedTreatments: Set<string> | null;
   private readonly trials = new Map<string, TrialState>();
-  private readonly plots: ParsedPlot[] = [];
-  private readonly observations: ParsedObservation[] = [];
   /** Per plot, a bit per trait already observed (traits 0..29); later traits in observedMore. */
   private readonly observedMask: number[] = [];
   private readonly observedMore = new Set<string>();
@@ -106,6 +118,7 @@ export class PlotTableBuilder {
     private readonly mapping: ImportMapping,
     private readonly mode: DecimalMode,
     private readonly problems: ProblemList,
+    private readonly sink: PlotSink,
   ) {
     this.acceptAnyTrait = cols.trait >= 0 && mapping.traits === undefined;
     const declared = cols.trait >= 0 ? (mapping.traits ?? []) : [mapping.trait ?? { name: mapping.columns.response ?? 'value', unit: 'as-is' }];
@@ -195,7 +208,7 @@ export class PlotTableBuilder {
 
     let plotIndex = key === null ? undefined : trial.plotIndex.get(key);
     if (plotIndex !== undefined) {
-      const existing = this.plots[plotIndex];
+      const existing = this.sink.plotAt(plotIndex);
       const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block?.label ?? ''}" and treatment "${treatment.code}"`;
       if (cols.trait < 0 || this.wasObserved(plotIndex, trait.index)) {
         problems.add(rowNo, this.cellName(keyColumn), r.text(keyColumn), 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}`);
@@ -210,8 +223,7 @@ export class PlotTableBuilder {
         this.reportedNoPlotKey = true;
         problems.add(rowNo, this.cellName(cols.trait), trait.trait.name, 'no-plot-identifier', 'with one row per plot and trait, each row needs a plot column, row and column, or a block to tie its traits to one plot');
       }
-      plotIndex = this.plots.length;
-      this.plots.push({ trialKey: trial.key, treatment: treatment.code, block: block === null ? null : block.label, row: plotRow, col: plotCol, plotId: cols.plot >= 0 ? plotId : null, sourceRow: rowNo });
+      plotIndex = this.sink.addPlot(trial.key, treatment.code, block === null ? null : block.label, plotRow, plotCol, cols.plot >= 0 ? plotId : null, rowNo);
       if (key !== null) trial.plotIndex.set(key, plotIndex);
       const id = treatment.id;
       if (id < DENSE_TREATMENTS) {
@@ -221,7 +233,7 @@ export class PlotTableBuilder {
       } else trial.morePlotsPerTreatment.set(id, (trial.morePlotsPerTreatment.get(id) ?? 0) + 1);
     }
     if (cols.trait >= 0) this.markObserved(plotIndex, trait.index);
-    this.observations.push({ plot: plotIndex, trait: trait.trait.name, value });
+    this.sink.addObservation(plotIndex, trait.trait.name, value);
   }
 
   private wasObserved(plot: number, trait: number): boolean {
@@ -482,8 +494,8 @@ export class PlotTableBuilder {
     return v;
   }
 
-  /** Whole-file checks and the final table; call after the last row. */
-  finish(file: string, sha256: string): ParsedPlotTable {
+  /** Whole-file checks (throws IntakeError listing every problem) and all but the plots, which are in the sink; call after the last row. */
+  finish(): PlotTableSummary {
     const problems = this.problems;
     const cols = this.cols;
     const treatmentColumn = this.cellName(cols.treatment);
@@ -517,8 +529,6 @@ export class PlotTableBuilder {
     problems.throwIfAny();
     const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode);
     return {
-      file,
-      sha256,
       rowsRead: this.rowsRead,
       protocol: this.mapping.protocol ?? 'default',
       control,
@@ -526,8 +536,6 @@ export class PlotTableBuilder {
       factors,
       treatments,
       trials,
-      plots: this.plots,
-      observations: this.observations,
       trialCovariates: covariateTable(this.trials.values(), cols.covariates, this.covariateNumeric, this.mode),
       mapping: this.mapping,
     };

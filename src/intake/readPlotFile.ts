@@ -4,7 +4,8 @@
 import type { AnalysisSpec } from '../spec/analysisSpec.js';
 import { parseMapping } from './mapping.js';
 import { resolveColumns } from './plotColumns.js';
-import { PlotTableBuilder } from './plotTableBuilder.js';
+import { PlotTableBuilder, type PlotTableSummary } from './plotTableBuilder.js';
+import { PlotListSink, type PlotSink } from './plotSink.js';
 import { DEFAULT_MAX_PROBLEMS, ProblemList } from './problems.js';
 import { openRowSource } from './rowSource.js';
 import { IntakeError, type ImportMapping, type ParsedPlotTable } from './types.js';
@@ -22,6 +23,30 @@ const PROGRESS_EVERY = 1 << 16;
 export async function readPlotFile(filePath: string, given: ImportMapping, options: ReadPlotOptions = {}): Promise<ParsedPlotTable> {
   // Checked again here: a mapping built in code has not been through readMappingFile.
   const mapping = parseMapping(given, filePath);
+  const sink = new PlotListSink();
+  const { summary: s, sha256 } = await readPlotRows(filePath, mapping, sink, options);
+  return {
+    file: filePath,
+    sha256,
+    rowsRead: s.rowsRead,
+    protocol: s.protocol,
+    control: s.control,
+    traits: s.traits,
+    factors: s.factors,
+    treatments: s.treatments,
+    trials: s.trials,
+    plots: sink.plots,
+    observations: sink.observations,
+    trialCovariates: s.trialCovariates,
+    mapping: s.mapping,
+  };
+}
+
+/**
+ * Reads and validates every row of a plot file into `sink`; returns the whole-file summary
+ * and the file's SHA-256. `mapping` must have been through parseMapping.
+ */
+export async function readPlotRows(filePath: string, mapping: ImportMapping, sink: PlotSink, options: ReadPlotOptions = {}): Promise<{ summary: PlotTableSummary; sha256: string }> {
   const problems = new ProblemList(filePath, options.maxProblems ?? DEFAULT_MAX_PROBLEMS);
   const { source, sha256 } = await openRowSource(filePath, mapping);
   if (source === null) {
@@ -34,7 +59,7 @@ export async function readPlotFile(filePath: string, given: ImportMapping, optio
     problems.throwIfAny();
     throw new Error('unreachable');
   }
-  const builder = new PlotTableBuilder(cols, mapping, source.decimalMode, problems);
+  const builder = new PlotTableBuilder(cols, mapping, source.decimalMode, problems, sink);
   let sinceReport = 0;
   for (;;) {
     const rowNo = source.next();
@@ -52,9 +77,9 @@ export async function readPlotFile(filePath: string, given: ImportMapping, optio
     }
   }
   source.finish(problems);
-  const table = builder.finish(filePath, sha256);
+  const summary = builder.finish();
   options.onProgress?.(1);
-  return table;
+  return { summary, sha256 };
 }
 
 /**
@@ -62,13 +87,16 @@ export async function readPlotFile(filePath: string, given: ImportMapping, optio
  * spec's columns, the trait keeps its file unit ("as-is").
  */
 export async function readDataForAnalysis(filePath: string, spec: AnalysisSpec): Promise<{ table: ParsedPlotTable }> {
+  return { table: await readPlotFile(filePath, analysisMapping(filePath, spec)) };
+}
+
+/** The mapping an analysis spec's columns describe; the trait keeps its file unit ("as-is"). */
+export function analysisMapping(filePath: string, spec: AnalysisSpec): ImportMapping {
   const columns = spec.columns;
   if (columns === undefined) {
     throw new IntakeError([{ file: filePath, row: 0, column: 'columns', value: null, rule: 'mapping-incomplete', message: 'the spec must have a "columns" object saying which column of the data file is what' }]);
   }
-  const mapping: ImportMapping =
-    columns.trait !== undefined
-      ? { columns, control: spec.control }
-      : { columns, trait: { name: spec.trait ?? columns.response ?? 'value', unit: 'as-is' }, control: spec.control };
-  return { table: await readPlotFile(filePath, mapping) };
+  return columns.trait !== undefined
+    ? { columns, control: spec.control }
+    : { columns, trait: { name: spec.trait ?? columns.response ?? 'value', unit: 'as-is' }, control: spec.control };
 }

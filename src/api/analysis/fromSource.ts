@@ -1,7 +1,7 @@
 // Runs an analysis on a plot file, a per-trial summary file, or a workspace, and records
 // where the data came from so any number can be traced and reproduced.
 import { createHash } from 'node:crypto';
-import { readDataForAnalysis, readSummaryFile } from '../../intake/index.js';
+import { readDataForAnalysis, readNetworkForAnalysis, readSummaryFile, specHasOneRowPerPlot } from '../../intake/index.js';
 import { openWorkspace, loadNetwork, saveAnalysis } from '../../store/index.js';
 import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
@@ -28,12 +28,9 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
       const rows = await readSummaryFile(source.data, spec.columns);
       return withProvenance(poolSummaryRows(rows, spec), { source: source.data, fingerprint: fingerprint(rows) });
     }
-    const { table } = await readDataForAnalysis(source.data, spec);
-    const trait = spec.trait ?? table.traits[0]?.name;
-    if (!trait) throw new ManyfieldError('invalid-input', `${source.data} holds no trait values`);
-    const network = networkFromTable(table, trait);
+    const { network, sha256 } = specHasOneRowPerPlot(spec) ? await readNetworkForAnalysis(source.data, spec) : await readLongFile(source.data, spec);
     // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
-    return withProvenance(runAnalysis(network, spec, ctx), { source: source.data, fingerprint: `sha256:${table.sha256}` });
+    return withProvenance(runAnalysis(network, spec, ctx), { source: source.data, fingerprint: `sha256:${sha256}` });
   }
   const ws = openWorkspace(source.workspace!);
   try {
@@ -47,6 +44,14 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
   } finally {
     ws.close();
   }
+}
+
+/** A file with a trait column (one row per plot and trait): read as a table, then one trait taken. */
+async function readLongFile(file: string, spec: AnalysisSpec): Promise<{ network: NetworkInput; sha256: string }> {
+  const { table } = await readDataForAnalysis(file, spec);
+  const trait = spec.trait ?? table.traits[0]?.name;
+  if (!trait) throw new ManyfieldError('invalid-input', `${file} holds no trait values`);
+  return { network: networkFromTable(table, trait), sha256: table.sha256 };
 }
 
 function fingerprint(data: NetworkInput | unknown): string {

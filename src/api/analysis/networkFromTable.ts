@@ -1,5 +1,6 @@
 // A validated plot table (from a file) seen as the engine's network for one trait.
-import type { NetworkInput, PlotObservation, TrialInput } from '../../engine/types.js';
+import type { NetworkInput, PlotObservation } from '../../engine/types.js';
+import { assembleNetwork } from '../../intake/analysisNetwork.js';
 import type { ParsedPlotTable } from '../../intake/types.js';
 import { ManyfieldError } from '../result.js';
 
@@ -19,16 +20,5 @@ export function networkFromTable(table: ParsedPlotTable, trait: string): Network
     if (!list) plotsByTrial.set(p.trialKey, (list = []));
     list.push({ plotId: p.plotId ?? p.sourceRow, treatment: p.treatment, block: p.block, row: p.row, col: p.col, value });
   }
-  const trials: TrialInput[] = table.trials
-    .filter((t) => plotsByTrial.has(t.key))
-    .map((t) => ({ trial: t.key, site: t.site, year: t.year, design: t.design, plots: plotsByTrial.get(t.key)!, covariates: table.trialCovariates[t.key] ?? {} }));
-  return {
-    trait,
-    traitKind: traitInfo.kind,
-    unit: traitInfo.unit,
-    factors: table.factors,
-    treatments: table.treatments,
-    control: table.control ?? undefined,
-    trials,
-  };
+  return assembleNetwork(table, traitInfo, plotsByTrial);
 }

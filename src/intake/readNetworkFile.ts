@@ -1,0 +1,26 @@
+// `manyfield analyze --data F --spec S` on a file with one row per plot: the rows go through
+// the same PlotTableBuilder checks as an import, but land directly in per-trial engine plots.
+import type { NetworkInput } from '../engine/types.js';
+import type { AnalysisSpec } from '../spec/analysisSpec.js';
+import { assembleNetwork } from './analysisNetwork.js';
+import { parseMapping } from './mapping.js';
+import { analysisMapping, readPlotRows, type ReadPlotOptions } from './readPlotFile.js';
+import { TrialPlotsSink } from './trialPlotsSink.js';
+
+/** True when the spec's file has one row per plot (no trait column), the case readNetworkForAnalysis reads. */
+export function specHasOneRowPerPlot(spec: AnalysisSpec): boolean {
+  return spec.columns?.trait === undefined;
+}
+
+/**
+ * The network an analysis of a one-row-per-plot file works on, and the file's SHA-256.
+ * Problems are the IntakeError readDataForAnalysis would throw, row for row.
+ */
+export async function readNetworkForAnalysis(filePath: string, spec: AnalysisSpec, options: ReadPlotOptions = {}): Promise<{ network: NetworkInput; sha256: string }> {
+  if (!specHasOneRowPerPlot(spec)) throw new Error('readNetworkForAnalysis: a file with a trait column is read with readDataForAnalysis');
+  const mapping = parseMapping(analysisMapping(filePath, spec), filePath);
+  const sink = new TrialPlotsSink();
+  const { summary, sha256 } = await readPlotRows(filePath, mapping, sink, options);
+  // Without a trait column the mapping declares exactly one trait, the one every row holds.
+  return { network: assembleNetwork(summary, summary.traits[0], sink.plotsByTrial), sha256 };
+}
