@@ -31,6 +31,8 @@ interface TreatmentState {
 interface BlockState {
   readonly label: string;
   readonly id: number;
+  /** Plot index + 1 (0 = none yet) by treatment id below DENSE_TREATMENTS; see blockSlots. */
+  readonly plotByTreatment: number[];
 }
 
 interface TrialState {
@@ -46,14 +48,14 @@ interface TrialState {
   hasBlock: boolean;
   rowWithoutBlock: number;
   rowWithoutRowCol: number;
-  /** Plot key -> plot index; keys are small integers where possible (cheaper than strings). */
-  readonly plotIndex: Map<number | string, number>;
+  /** Plot key -> plot index; keys are small integers where possible (cheaper than strings). Made on first use. */
+  plotIndex: Map<number | string, number> | null;
   /** Block label -> block, which also shares one string per block among the trial's plots. */
   readonly blocks: Map<string, BlockState>;
   lastBlock: BlockState | null;
   /** Plots per treatment id, for ids below DENSE_TREATMENTS; the rest in morePlotsPerTreatment. */
   readonly plotsPerTreatment: number[];
-  readonly morePlotsPerTreatment: Map<number, number>;
+  morePlotsPerTreatment: Map<number, number> | null;
   readonly covariates: (string | null)[];
   readonly covariateRows: number[];
 }
@@ -111,6 +113,12 @@ export class PlotTableBuilder {
   private lastYearRaw = '';
   private lastTreatment: TreatmentState | null = null;
   private reportedNoPlotKey = false;
+  /**
+   * Whether a block+treatment plot key lives in its block's plotByTreatment array instead of
+   * the trial's plotIndex map (a map per trial costs a large share of reading a big file). Only
+   * when row+column keys cannot occur, as those share the map's number keys.
+   */
+  private readonly blockSlots: boolean;
   rowsRead = 0;
 
   constructor(
@@ -126,6 +134,7 @@ export class PlotTableBuilder {
     this.allowedTreatments = mapping.treatments ? new Set(mapping.treatments) : null;
     this.covariateNumeric = cols.covariates.map(() => true);
     this.mappingDesign = mapping.design ?? null;
+    this.blockSlots = !(cols.plot < 0 && cols.row >= 0 && cols.col >= 0);
   }
 
   private declareTrait(name: string, unit: string, kind?: ParsedTrait['kind'], lower?: number, upper?: number): TraitState {
@@ -193,6 +202,7 @@ export class PlotTableBuilder {
     // Plot identity: plot id, else row+column, else block+treatment.
     let key: number | string | null = null;
     let keyColumn = -1;
+    let slotBlock: BlockState | null = null; // set when the key is the block's plotByTreatment slot
     if (cols.plot >= 0) {
       if (plotId !== '') {
         key = plotId;
@@ -202,11 +212,16 @@ export class PlotTableBuilder {
       key = smallPair(plotRow, plotCol) ?? `${plotRow}\u0001${plotCol}`;
       keyColumn = cols.row;
     } else if (block !== null) {
-      key = smallPair(block.id, treatment.id) ?? `${block.label}\u0000${treatment.code}`;
+      if (this.blockSlots && treatment.id < DENSE_TREATMENTS) slotBlock = block;
+      else key = smallPair(block.id, treatment.id) ?? `${block.label}\u0000${treatment.code}`;
       keyColumn = cols.block;
     }
 
-    let plotIndex = key === null ? undefined : trial.plotIndex.get(key);
+    let plotIndex: number | undefined;
+    if (slotBlock !== null) {
+      const slot = slotBlock.plotByTreatment[treatment.id];
+      plotIndex = slot === undefined || slot === 0 ? undefined : slot - 1;
+    } else plotIndex = key === null || trial.plotIndex === null ? undefined : trial.plotIndex.get(key);
     if (plotIndex !== undefined) {
       const existing = this.sink.plotAt(plotIndex);
       const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block?.label ?? ''}" and treatment "${treatment.code}"`;
@@ -219,18 +234,25 @@ export class PlotTableBuilder {
         return;
       }
     } else {
-      if (cols.trait >= 0 && key === null && !this.reportedNoPlotKey) {
+      if (cols.trait >= 0 && key === null && slotBlock === null && !this.reportedNoPlotKey) {
         this.reportedNoPlotKey = true;
         problems.add(rowNo, this.cellName(cols.trait), trait.trait.name, 'no-plot-identifier', 'with one row per plot and trait, each row needs a plot column, row and column, or a block to tie its traits to one plot');
       }
       plotIndex = this.sink.addPlot(trial.key, treatment.code, block === null ? null : block.label, plotRow, plotCol, cols.plot >= 0 ? plotId : null, rowNo);
-      if (key !== null) trial.plotIndex.set(key, plotIndex);
+      if (slotBlock !== null) {
+        const slots = slotBlock.plotByTreatment;
+        while (slots.length < treatment.id) slots.push(0);
+        slots[treatment.id] = plotIndex + 1;
+      } else if (key !== null) (trial.plotIndex ??= new Map()).set(key, plotIndex);
       const id = treatment.id;
       if (id < DENSE_TREATMENTS) {
         const reps = trial.plotsPerTreatment;
         while (reps.length <= id) reps.push(0);
         reps[id]++;
-      } else trial.morePlotsPerTreatment.set(id, (trial.morePlotsPerTreatment.get(id) ?? 0) + 1);
+      } else {
+        const more = (trial.morePlotsPerTreatment ??= new Map());
+        more.set(id, (more.get(id) ?? 0) + 1);
+      }
     }
     if (cols.trait >= 0) this.markObserved(plotIndex, trait.index);
     this.sink.addObservation(plotIndex, trait.trait.name, value);
@@ -282,7 +304,7 @@ export class PlotTableBuilder {
     } else b = trial.blocks.get(r.text(i));
     if (b === undefined) {
       const label = r.text(i);
-      b = { label, id: trial.blocks.size };
+      b = { label, id: trial.blocks.size, plotByTreatment: [] };
       trial.blocks.set(label, b);
     }
     trial.lastBlock = b;
@@ -361,11 +383,11 @@ export class PlotTableBuilder {
       hasBlock: false,
       rowWithoutBlock: 0,
       rowWithoutRowCol: 0,
-      plotIndex: new Map(),
+      plotIndex: null,
       blocks: new Map(),
       lastBlock: null,
       plotsPerTreatment: [],
-      morePlotsPerTreatment: new Map(),
+      morePlotsPerTreatment: null,
       covariates: this.cols.covariates.map(() => null),
       covariateRows: this.cols.covariates.map(() => 0),
     };
@@ -469,8 +491,9 @@ export class PlotTableBuilder {
 
   private valueOf(r: RowCells, trait: TraitState, rowNo: number): number | null {
     const i = this.cols.response;
-    if (r.isMissing(i)) return null;
+    // Parse first: a missing cell (empty, blank, NA) never parses, so most rows scan the cell once.
     const raw = r.number(i, this.mode);
+    if (Number.isNaN(raw) && r.isMissing(i)) return null;
     const column = this.cellName(i);
     if (Number.isNaN(raw)) {
       this.problems.add(rowNo, column, r.text(i), 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}`);
@@ -515,8 +538,12 @@ export class PlotTableBuilder {
       }
       let replicated = false;
       let any = false;
-      for (const counts of [t.plotsPerTreatment, t.morePlotsPerTreatment.values()]) {
-        for (const count of counts) {
+      for (const count of t.plotsPerTreatment) {
+        if (count > 0) any = true;
+        if (count > 1) replicated = true;
+      }
+      if (t.morePlotsPerTreatment !== null) {
+        for (const count of t.morePlotsPerTreatment.values()) {
           if (count > 0) any = true;
           if (count > 1) replicated = true;
         }

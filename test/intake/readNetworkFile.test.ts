@@ -7,9 +7,9 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { networkFromTable } from '../../src/api/analysis/networkFromTable.js';
 import { readDataForAnalysis, readNetworkForAnalysis, specHasOneRowPerPlot } from '../../src/intake/index.js';
-import { IntakeError } from '../../src/intake/types.js';
+import { IntakeError, type IntakeProblem } from '../../src/intake/types.js';
 import { analysisSpecSchema, type AnalysisSpec } from '../../src/spec/analysisSpec.js';
-import { HEADER, setCell, toCsv, validRows, writeTemp } from './helpers.js';
+import { brief, HEADER, setCell, toCsv, validRows, writeTemp } from './helpers.js';
 
 const SPEC = analysisSpecSchema.parse({
   columns: { site: 'site', year: 'year', block: 'block', treatment: 'trt', response: 'yield', factors: { rate: 'rate', timing: 'timing' } },
@@ -92,6 +92,19 @@ describe('readNetworkForAnalysis gives what the table path gives', () => {
     expect(r.ok === false && r.truncated).toBe(true);
     // No columns at all in the spec.
     await expect(readNetworkForAnalysis('x.csv', analysisSpecSchema.parse({}))).rejects.toBeInstanceOf(IntakeError);
+  });
+
+  it('block+treatment plot keys beyond the first 256 treatments (kept in a map) catch duplicates too', async () => {
+    const header = ['env', 'block', 'trt', 'y'];
+    const rows: string[][] = [];
+    for (const b of ['1', '2']) for (let t = 0; t < 300; t++) rows.push(['E1', b, `T${t}`, String(t % 7)]);
+    rows.push(['E1', '2', 'T10', '1'], ['E1', '1', 'T280', '2']);
+    const spec = analysisSpecSchema.parse({ columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y' } });
+    const r = await bothAgree(writeTemp('wide.csv', toCsv(rows, header)), spec);
+    expect(r.ok === false && brief(r.problems as IntakeProblem[])).toEqual([
+      ['duplicate-plot', 602, 'block', '2'],
+      ['duplicate-plot', 603, 'block', '1'],
+    ]);
   });
 
   it('random edits of a valid file agree (seeded, 300 runs)', async () => {
