@@ -1,7 +1,7 @@
 // The `manyfield` command, built on the api handler map. Errors go to stderr with a
 // non-zero exit code; a failed command writes nothing.
 import { readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
-import { api } from '../api/handlers.js';
+import { api, type HandlerArgs } from '../api/handlers.js';
 import type { Result } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
 import { optionsFor, parseArgs, UsageError } from './args.js';
@@ -24,7 +24,9 @@ Commands:
 
 Exit codes: 0 done, 1 the operation failed (message on stderr), 2 the command line is wrong.`;
 
-type Output = { stdout: string[]; };
+interface Output {
+  readonly stdout: string[];
+}
 
 export async function main(argv: readonly string[]): Promise<number> {
   const out: Output = { stdout: [] };
@@ -99,7 +101,8 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const controller = new AbortController();
       const onSigint = () => controller.abort();
       process.once('SIGINT', onSigint);
-      const r = await api['analysis.run']({ spec: spec as never, data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal });
+      // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.
+      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal });
       process.off('SIGINT', onSigint);
       progress.done();
       const target = o.value('out');
