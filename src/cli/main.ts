@@ -32,11 +32,7 @@ export async function main(argv: readonly string[]): Promise<number> {
   const out: Output = { stdout: [] };
   try {
     const parsed = parseArgs(argv);
-    if (parsed.command === null || parsed.command === 'help' || (parsed.options.help && parsed.command === null)) {
-      process.stdout.write(`${USAGE}\n`);
-      return 0;
-    }
-    if (parsed.options.help) {
+    if (parsed.command === null || parsed.command === 'help' || parsed.options.help) {
       process.stdout.write(`${USAGE}\n`);
       return 0;
     }
