@@ -32,12 +32,12 @@ export async function main(argv: readonly string[]): Promise<number> {
   const out: Output = { stdout: [] };
   try {
     const parsed = parseArgs(argv);
-    if (parsed.command === null || parsed.command === 'help' || parsed.options.help) {
-      process.stdout.write(`${USAGE}\n`);
-      return 0;
-    }
     if (parsed.command === 'version' || parsed.options.version) {
       process.stdout.write(`${APP_VERSION}\n`);
+      return 0;
+    }
+    if (parsed.command === null || parsed.command === 'help' || parsed.options.help) {
+      process.stdout.write(`${USAGE}\n`);
       return 0;
     }
     const code = await runCommand(parsed.command, parsed, out);
