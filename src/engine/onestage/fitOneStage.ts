@@ -11,7 +11,8 @@ import { optimiseReml, type OptimiseOutcome } from './optimise.js';
 import { startValues } from './startValues.js';
 import { activeParameterTable } from './trialParameters.js';
 import { secondOrder, kenwardRogerU, type SecondOrder } from './secondOrder.js';
-import { expandW, kenwardRogerContrast, kenwardRogerCovariance, observedInverse, satterthwaiteDf, subInverse, tInterval, quadraticForm } from './contrastInference.js';
+import { expandW, kenwardRogerContrast, kenwardRogerCovariance, observedFactor, satterthwaiteDf, tInterval, quadraticForm } from './contrastInference.js';
+import { inverseDiagonal, subCholesky } from './spdSolve.js';
 import { trialContrasts, type ContrastVector } from './trialContrasts.js';
 import { profileInterval } from './profile.js';
 import { RANDOM_TERMS } from './types.js';
@@ -45,10 +46,11 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   const needSecond = options.df !== 'residual';
   const so: SecondOrder | null = needSecond ? secondOrder(frame, ev, fit.score, active) : null;
 
-  const aiInv = subInverse(fit.score.ai, nP, free);
+  const aiFactor = subCholesky(fit.score.ai, nP, free);
+  const aiInvDiag = aiFactor ? inverseDiagonal(aiFactor) : null;
   const seOf = (k: number): number | null => {
     const f = free.indexOf(k);
-    return f < 0 || !aiInv ? null : Math.sqrt(2 * aiInv[f * free.length + f]);
+    return f < 0 || !aiInvDiag ? null : Math.sqrt(2 * aiInvDiag[f]);
   };
 
   const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments) }));
@@ -120,7 +122,7 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
     const pieces = kenwardRogerCovariance(so, fit.atZero);
     kr = { pieces, u: kenwardRogerU(frame, ev, so, expandW(pieces, nP), active) };
   }
-  const oinv = options.df === 'satterthwaite' && so ? observedInverse(so, free) : null;
+  const oFactor = options.df === 'satterthwaite' && so ? observedFactor(so, free) : null;
   return vectors.map((v): ContrastReport => {
     const empty = { name: v.name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: options.df, seUnadjusted: null };
     if (!v.l) return { ...empty, note: 'not estimable: a treatment in the contrast has no usable plot' };
@@ -130,7 +132,7 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
     let se = seUnadjusted;
     let df: number;
     if (options.df === 'residual') df = frame.stats.nObservations - p;
-    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, oinv, v.l);
+    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, oFactor, v.l);
     else {
       const r = kenwardRogerContrast(ev, so!, kr!.pieces, kr!.u, v.l);
       df = r.df;

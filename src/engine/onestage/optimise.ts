@@ -11,6 +11,7 @@ import { criterionOrInfinity, type Evaluation, type ModelFrame } from './remlCri
 import { scoreAndInformation, type ScoreAndInformation } from './remlDerivatives.js';
 import { activeParameterTable, type ActiveParameter } from './trialParameters.js';
 import { OneStageCancelledError, type OneStageHooks, type RunRecord } from './types.js';
+import { borderedSolve } from './borderedSolve.js';
 
 export const DECREMENT_TOL = 1e-10;
 export const CRITERION_TOL = 1e-12;
@@ -18,6 +19,8 @@ export const PARAMETER_TOL = 1e-10;
 const MAX_ITERATIONS = 200;
 const MAX_HALVINGS = 40;
 const EM_ITERATIONS = 3;
+/** With more free parameters than this the Newton step uses the bordered solve (borderedSolve.ts). */
+const BORDERED_MIN_FREE = 16;
 
 export interface OptimiseOptions {
   /** Parameters held at zero throughout (reduced models for likelihood-ratio tests). */
@@ -55,7 +58,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   const dims = randomEffectCounts(frame, active);
   for (let it = 0; it < emIterations; it++) {
     checkCancelled(hooks);
-    const sc = scoreAndInformation(frame, ev, active);
+    const sc = scoreAndInformation(frame, ev, active, false);
     const next = Float64Array.from(theta, (v, k) => (fixed[k] ? held[k] : Math.max(0, v - ((v * v) / dims[k]) * sc.gradient[k])));
     const c = criterionOrInfinity(frame, next);
     if (!c.evaluation || c.value > ev.criterion) break;
@@ -70,6 +73,8 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   let decrement = NaN;
   let sc = scoreAndInformation(frame, ev, active);
   const atZero = new Array<boolean>(nP).fill(false);
+  const residual = frame.layout.parameters.map((par) => par.kind === 'residual');
+  const p = frame.stats.treatments.length;
   for (; iterations < MAX_ITERATIONS; iterations++) {
     checkCancelled(hooks);
     const free: number[] = [];
@@ -77,7 +82,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
       atZero[k] = theta[k] <= 0 && sc.gradient[k] >= 0;
       if (!atZero[k] && !fixed[k]) free.push(k);
     }
-    const step = newtonStep(sc, free, nP);
+    const step = newtonStep(sc, free, nP, residual, ev.c, p);
     decrement = step.decrement;
     if (decrement < DECREMENT_TOL) {
       outcome = 'converged';
@@ -134,27 +139,40 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   };
 }
 
-function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number): { direction: Float64Array; decrement: number } {
+function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number, residual: readonly boolean[], c: Float64Array, p: number): { direction: Float64Array; decrement: number } {
   const f = free.length;
   const direction = new Float64Array(nP);
   if (f === 0) return { direction, decrement: 0 };
-  const a: Matrix = { rows: f, cols: f, data: new Float64Array(f * f) };
-  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a.data[i * f + j] = sc.ai[free[i] * nP + free[j]];
   const g = Float64Array.from(free, (k) => sc.gradient[k]);
-  let x: Float64Array;
-  try {
-    x = cholSolve(cholesky(a), g);
-  } catch (err) {
-    if (!(err instanceof NotPositiveDefiniteError)) throw err;
-    // AI singular along some direction: fall back to a scaled gradient step on the diagonal.
-    x = Float64Array.from(g, (gi, i) => gi / Math.max(a.data[i * f + i], 1e-300));
+  let x: Float64Array | null = null;
+  let notPositiveDefinite = false;
+  if (f > BORDERED_MIN_FREE) {
+    const b = borderedSolve(sc.a0, sc.v, c, nP, p, free, residual, g);
+    if (b && 'x' in b) x = b.x;
+    else if (b) notPositiveDefinite = true;
   }
+  if (!x && !notPositiveDefinite) x = denseSolve(sc, free, nP, g);
+  // AI singular along some direction: fall back to a scaled gradient step on the diagonal.
+  if (!x) x = Float64Array.from(g, (gi, i) => gi / Math.max(sc.ai[free[i] * nP + free[i]], 1e-300));
   let decrement = 0;
   for (let i = 0; i < f; i++) {
     direction[free[i]] = -x[i];
     decrement += g[i] * x[i];
   }
   return { direction, decrement };
+}
+
+/** Cholesky solve on the free block of the AI matrix; null when it is not positive definite. */
+function denseSolve(sc: ScoreAndInformation, free: readonly number[], nP: number, g: Float64Array): Float64Array | null {
+  const f = free.length;
+  const a: Matrix = { rows: f, cols: f, data: new Float64Array(f * f) };
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a.data[i * f + j] = sc.ai[free[i] * nP + free[j]];
+  try {
+    return cholSolve(cholesky(a), g);
+  } catch (err) {
+    if (!(err instanceof NotPositiveDefiniteError)) throw err;
+    return null;
+  }
 }
 
 /** Number of random effects (or observations, for a residual) each parameter governs: the EM divisor. */

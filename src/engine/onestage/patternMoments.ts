@@ -6,6 +6,7 @@
 // trials into a sum over F's columns ("pseudo-trials" whose last coordinate c replaces the 1).
 // A pattern with few trials keeps the trials' own vectors as its columns.
 import type { TrialStatistics } from './sufficientStatistics.js';
+import { f64 } from './arena.js';
 
 export interface PatternMoments {
   /** Column vectors (u = Z'y over the design columns, then c), each of length m; row-major. */
@@ -19,7 +20,7 @@ export interface PatternMoments {
 function dataVector(t: TrialStatistics): Float64Array {
   const m = t.m;
   const mz = m - 1;
-  const v = new Float64Array(m);
+  const v = f64(m);
   for (let j = 0; j < mz; j++) v[j] = t.gram[j * m + mz];
   v[mz] = 1;
   return v;

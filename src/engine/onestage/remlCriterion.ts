@@ -6,8 +6,9 @@
 import { cholesky, cholInverse, cholLogDet, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
 import type { NetworkStatistics } from './sufficientStatistics.js';
 import type { ParameterLayout } from './parameters.js';
-import { designKey, evaluatePattern, randomColumnsOf, type PatternState } from './trialBlock.js';
+import { designHash, evaluatePattern, sameDesign, randomColumnsOf, type PatternState } from './trialBlock.js';
 import { patternMoments, type PatternMoments } from './patternMoments.js';
+import { f64 } from './arena.js';
 
 export interface ModelFrame {
   readonly stats: NetworkStatistics;
@@ -25,18 +26,31 @@ export interface ModelFrame {
 }
 
 export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): ModelFrame {
-  const ids = new Map<string, number>();
+  // trials of one pattern: same residual parameter and identical design (hash, then exact check)
+  const candidates = new Map<number, number[]>();
   const patternTrial: number[] = [];
-  const patternOf = Int32Array.from(stats.trials, (t, i) => {
-    const key = `${layout.residualParameter[i]}|${designKey(t)}`;
-    let id = ids.get(key);
-    if (id === undefined) {
-      id = patternTrial.length;
-      ids.set(key, id);
-      patternTrial.push(i);
+  const patternOf = new Int32Array(stats.trials.length);
+  for (let i = 0; i < stats.trials.length; i++) {
+    const t = stats.trials[i];
+    const res = layout.residualParameter[i];
+    const h = designHash(t, res);
+    let list = candidates.get(h);
+    if (!list) candidates.set(h, (list = []));
+    let id = -1;
+    for (const q of list) {
+      const rep = patternTrial[q];
+      if (layout.residualParameter[rep] === res && sameDesign(stats.trials[rep], t)) {
+        id = q;
+        break;
+      }
     }
-    return id;
-  });
+    if (id < 0) {
+      id = patternTrial.length;
+      patternTrial.push(i);
+      list.push(id);
+    }
+    patternOf[i] = id;
+  }
   const patternCount = new Int32Array(patternTrial.length);
   for (const q of patternOf) patternCount[q]++;
   const members: (typeof stats.trials)[number][][] = patternTrial.map(() => []);
@@ -69,58 +83,32 @@ export function termVariances(frame: ModelFrame, theta: ArrayLike<number>): Floa
   return Float64Array.from(frame.layout.termParameter, (k) => (k < 0 ? 0 : theta[k]));
 }
 
+// evaluateReml is kept free of long loops: the per-pattern work sits in small functions that V8
+// optimises early, instead of one large function running on on-stack-replaced code.
 export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evaluation {
   const { stats, layout } = frame;
   const p = stats.treatments.length;
+  const nQ = frame.patternTrial.length;
   const gTerm = termVariances(frame, theta);
   const xvx = new Float64Array(p * p);
   const xvy = new Float64Array(p);
   let yvy = 0;
   let sumLogDetV = 0;
-  const patterns: PatternState[] = frame.patternTrial.map((i) => evaluatePattern(stats.trials[i], frame.randomColumns[i], gTerm, theta[layout.residualParameter[i]]));
-  // X'V^-1 X: the pattern's treatment block times the number of its trials
-  patterns.forEach((pat, q) => {
-    const t = stats.trials[frame.patternTrial[q]];
-    const mz = t.m - 1;
-    const tc = t.treatmentColumns;
-    const tg = t.treatmentIndex;
-    const count = frame.patternCount[q];
-    for (let a = 0; a < tc.length; a++) for (let b = 0; b < tc.length; b++) xvx[tg[a] * p + tg[b]] += count * pat.hzz[tc[a] * mz + tc[b]];
-    sumLogDetV += count * ((t.n - pat.randomColumns.length) * Math.log(pat.sigma2) + pat.logDetM);
-  });
-  const nColumns = frame.moments.reduce((n, mo) => n + mo.nColumns, 0);
-  const hzy = new Float64Array(frame.columnOffsets[frame.patternTrial.length]);
+  const patterns: PatternState[] = new Array<PatternState>(nQ);
+  for (let q = 0; q < nQ; q++) {
+    const i = frame.patternTrial[q];
+    patterns[q] = evaluatePattern(stats.trials[i], frame.randomColumns[i], gTerm, theta[layout.residualParameter[i]]);
+  }
+  let nColumns = 0;
+  for (let q = 0; q < nQ; q++) nColumns += frame.moments[q].nColumns;
+  const hzy = new Float64Array(frame.columnOffsets[nQ]);
   const hyy = new Float64Array(nColumns);
-  const hzySum: Float64Array[] = [];
+  const hzySum: Float64Array[] = new Array<Float64Array>(nQ);
   let col = 0;
-  for (let q = 0; q < patterns.length; q++) {
-    const t = stats.trials[frame.patternTrial[q]];
-    const pat = patterns[q];
-    const mo = frame.moments[q];
-    const mz = t.m - 1;
-    const R = pat.randomColumns;
-    const r = R.length;
-    // H_Zy = (u - gz u_R) / sigma2 ; quadratic part of H_yy = -u_R' W u_R / sigma2
-    for (let f = 0; f < mo.nColumns; f++, col++) {
-      const u = mo.columns.subarray(f * t.m, f * t.m + mz);
-      const o = frame.columnOffsets[q] + f * mz;
-      designRowsOfHy(u, pat, mz, hzy.subarray(o, o + mz));
-      let quad = 0;
-      for (let a = 0; a < r; a++) {
-        let s = 0;
-        for (let b = 0; b < r; b++) s += pat.w[a * r + b] * u[R[b]];
-        quad += u[R[a]] * s;
-      }
-      hyy[col] = -quad / pat.sigma2;
-      yvy += hyy[col];
-    }
-    yvy += mo.sumYy / pat.sigma2;
-    const hs = new Float64Array(mz);
-    designRowsOfHy(mo.sum.subarray(0, mz), pat, mz, hs);
-    hzySum.push(hs);
-    const tc = t.treatmentColumns;
-    const tg = t.treatmentIndex;
-    for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hs[tc[a]];
+  for (let q = 0; q < nQ; q++) {
+    sumLogDetV += accumulateXvx(frame, patterns[q], q, p, xvx);
+    yvy += patternDataTerms(frame, patterns[q], q, col, hzy, hyy, hzySum, xvy);
+    col += frame.moments[q].nColumns;
   }
   const xvxM: Matrix = { rows: p, cols: p, data: xvx };
   const l = cholesky(xvxM);
@@ -133,6 +121,58 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, hzySum, sumLogDetV, logDetXVX };
 }
 
+/** X'V^-1 X gains the pattern's treatment block times its number of trials; returns its part of sum log|V_i|. */
+function accumulateXvx(frame: ModelFrame, pat: PatternState, q: number, p: number, xvx: Float64Array): number {
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const mz = t.m - 1;
+  const tc = t.treatmentColumns;
+  const tg = t.treatmentIndex;
+  const count = frame.patternCount[q];
+  for (let a = 0; a < tc.length; a++) for (let b = 0; b < tc.length; b++) xvx[tg[a] * p + tg[b]] += count * pat.hzz[tc[a] * mz + tc[b]];
+  return count * ((t.n - pat.randomColumns.length) * Math.log(pat.sigma2) + pat.logDetM);
+}
+
+/**
+ * The data terms of one pattern: per column the design rows of B'V^-1 y (into hzy) and the
+ * quadratic part of y'V^-1 y (into hyy), the summed vector's design rows (hzySum[q]) and its
+ * X'V^-1 y. Returns the pattern's part of y'V^-1 y.
+ */
+function patternDataTerms(frame: ModelFrame, pat: PatternState, q: number, col0: number, hzy: Float64Array, hyy: Float64Array, hzySum: Float64Array[], xvy: Float64Array): number {
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const mo = frame.moments[q];
+  const m = t.m;
+  const mz = m - 1;
+  let yvy = 0;
+  // H_Zy = (u - gz u_R) / sigma2 ; quadratic part of H_yy = -u_R' W u_R / sigma2
+  for (let f = 0; f < mo.nColumns; f++) {
+    designRowsOfHyAt(mo.columns, f * m, pat, mz, hzy, frame.columnOffsets[q] + f * mz);
+    const h = -columnQuadratic(mo.columns, f * m, pat) / pat.sigma2;
+    hyy[col0 + f] = h;
+    yvy += h;
+  }
+  yvy += mo.sumYy / pat.sigma2;
+  const hs = f64(mz);
+  designRowsOfHyAt(mo.sum, 0, pat, mz, hs, 0);
+  hzySum[q] = hs;
+  const tc = t.treatmentColumns;
+  const tg = t.treatmentIndex;
+  for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hs[tc[a]];
+  return yvy;
+}
+
+/** u_R' W u_R for the data vector u = columns[off ...]. */
+function columnQuadratic(columns: Float64Array, off: number, pat: PatternState): number {
+  const R = pat.randomColumns;
+  const r = R.length;
+  let quad = 0;
+  for (let a = 0; a < r; a++) {
+    let s = 0;
+    for (let b = 0; b < r; b++) s += pat.w[a * r + b] * columns[off + R[b]];
+    quad += columns[off + R[a]] * s;
+  }
+  return quad;
+}
+
 /** (u - gz u_R) / sigma2: the design rows of B'V^-1 y for data vector u = Z'y. */
 export function designRowsOfHy(u: ArrayLike<number>, pat: PatternState, mz: number, out: Float64Array): void {
   const R = pat.randomColumns;
@@ -141,6 +181,17 @@ export function designRowsOfHy(u: ArrayLike<number>, pat: PatternState, mz: numb
     let s = u[j];
     for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * u[R[b]];
     out[j] = s / pat.sigma2;
+  }
+}
+
+/** designRowsOfHy on u = src[srcOff ...] into out[outOff ...], without making views. */
+function designRowsOfHyAt(src: Float64Array, srcOff: number, pat: PatternState, mz: number, out: Float64Array, outOff: number): void {
+  const R = pat.randomColumns;
+  const r = R.length;
+  for (let j = 0; j < mz; j++) {
+    let s = src[srcOff + j];
+    for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * src[srcOff + R[b]];
+    out[outOff + j] = s / pat.sigma2;
   }
 }
 

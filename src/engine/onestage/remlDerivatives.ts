@@ -18,200 +18,303 @@ export interface ScoreAndInformation {
   /** y'P V_k P y and tr(P V_k), kept for the EM update. */
   readonly quadratic: Float64Array;
   readonly trace: Float64Array;
+  /** v_k = X'V^-1 V_k V^-1 r, nParameters x p: ai = a0 - V C V'. */
+  readonly v: Float64Array;
+  /** The sum of the per-block terms of the AI matrix (nParameters x nParameters; empty without information). */
+  readonly a0: Float64Array;
 }
 
-export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: readonly ActiveParameter[][]): ScoreAndInformation {
-  const { stats } = frame;
+/** The dense AI matrix is formed from a0 and V on first use only: the bordered Newton step does not need it. */
+class ScoreWithLazyInformation implements ScoreAndInformation {
+  private dense: Float64Array | null = null;
+  constructor(
+    readonly gradient: Float64Array,
+    readonly quadratic: Float64Array,
+    readonly trace: Float64Array,
+    readonly v: Float64Array,
+    readonly a0: Float64Array,
+    private readonly c: Float64Array,
+    private readonly p: number,
+  ) {}
+
+  get ai(): Float64Array {
+    if (!this.dense) {
+      const nP = this.gradient.length;
+      this.dense = this.a0.length === nP * nP ? Float64Array.from(this.a0) : new Float64Array(nP * nP);
+      if (this.a0.length === nP * nP) subtractLowRank(this.dense, this.v, this.c, nP, this.p);
+    }
+    return this.dense;
+  }
+}
+
+// The work is split into small functions on purpose: V8 optimises a small function after a few
+// calls, whereas one large function runs unoptimised (and allocates a heap number for every
+// floating-point temporary) for much of a short fit before its optimised code is ready.
+
+/** Score and average information. `withInformation` false (EM steps) skips the AI matrix (ai is then all zero). */
+export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: readonly ActiveParameter[][], withInformation = true): ScoreAndInformation {
   const nP = frame.layout.parameters.length;
-  const p = stats.treatments.length;
+  const p = frame.stats.treatments.length;
   const trace = new Float64Array(nP);
   const quadratic = new Float64Array(nP);
-  const ai = new Float64Array(nP * nP);
-  const v = new Float64Array(nP * p); // v_k = X'V^-1 V_k V^-1 r
-
-  // design-only trace terms, once per pattern
-  ev.patterns.forEach((pat, q) => {
-    const i0 = frame.patternTrial[q];
-    const t = stats.trials[i0];
-    const mz = t.m - 1;
-    const H = pat.hzz;
-    const tc = t.treatmentColumns;
-    const nt = tc.length;
-    const cl = localBlock(ev.c, p, t.treatmentIndex);
-    const count = frame.patternCount[q];
-    const act0 = active[i0];
-    for (let ia = 0; ia < act0.length; ia++) {
-      const a = act0[ia];
-      let tr = 0;
-      if (a.columns) {
-        const Z = a.columns;
-        for (let jz = 0; jz < Z.length; jz++) {
-          const j = Z[jz];
-          tr += H[j * mz + j];
-          let s = 0;
-          for (let x = 0; x < nt; x++) {
-            const hx = H[j * mz + tc[x]];
-            if (hx === 0) continue;
-            let r = 0;
-            for (let y = 0; y < nt; y++) r += cl[x * nt + y] * H[j * mz + tc[y]];
-            s += hx * r;
-          }
-          tr -= s;
-        }
-      } else {
-        const H2 = ensurePatternH2(pat, mz);
-        tr += (t.n - pat.trWK) / pat.sigma2;
-        let s = 0;
-        for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) s += cl[x * nt + y] * H2[tc[y] * mz + tc[x]];
-        tr -= s;
-      }
-      trace[a.index] += count * tr;
-    }
-  });
-
-  const maxM = stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1);
-  const h = new Float64Array(maxM);
-  const h2 = new Float64Array(maxM);
-  const h2y = new Float64Array(maxM);
-  const av = new Float64Array(maxM);
-  const kr = new Float64Array(maxM);
-  let col = 0;
+  const ai = new Float64Array(withInformation ? nP * nP : 0);
+  const v = new Float64Array(nP * p);
+  const work = workVectors(frame);
+  let col = 0; // the pattern's first column in ev.hyy
   for (let q = 0; q < ev.patterns.length; q++) {
     const i0 = frame.patternTrial[q];
-    const t = stats.trials[i0];
-    const pat = ev.patterns[q];
-    const mo = frame.moments[q];
-    const m = t.m;
-    const mz = m - 1;
-    const K = t.gram;
-    const H = pat.hzz;
-    const H2 = ensurePatternH2(pat, mz);
-    const R = pat.randomColumns;
-    const r = R.length;
-    const s2 = pat.sigma2;
-    const tc = t.treatmentColumns;
-    const tg = t.treatmentIndex;
-    const nt = tc.length;
-    const act = active[i0];
-    // Quadratic terms, column by column. Every term below is of degree two in (u, c): where a
-    // constant (beta) meets a data-linear quantity the column's c stands in for the trial's 1.
-    for (let f = 0; f < mo.nColumns; f++, col++) {
-      const u = mo.columns.subarray(f * m, f * m + m);
-      const c = u[mz];
-      const hzy = ev.hzy.subarray(frame.columnOffsets[q] + f * mz, frame.columnOffsets[q] + (f + 1) * mz);
-      vectorsOf(H, H2, pat, hzy, c, ev.beta, tc, tg, mz, h, h2, h2y);
-      // y entry of h2 = B'V^-2 r: (H_yy - u_R' W H_Ry) / sigma2 - c beta . h2y_T   (y'y part added per pattern)
-      let h2last = ev.hyy[col];
-      for (let a = 0; a < r; a++) {
-        let w = 0;
-        for (let b = 0; b < r; b++) w += pat.w[a * r + b] * hzy[R[b]];
-        h2last -= u[R[a]] * w;
-      }
-      h2last /= s2;
-      for (let x = 0; x < nt; x++) h2last -= c * h2y[tc[x]] * ev.beta[tg[x]];
-      h2[mz] = h2last;
-      for (let ia = 0; ia < act.length; ia++) {
-        const a = act[ia];
-        if (a.columns) {
-          const Z = a.columns;
-          for (let jz = 0; jz < Z.length; jz++) quadratic[a.index] += h[Z[jz]] * h[Z[jz]];
-        } else {
-          let qq = h2[mz];
-          for (let x = 0; x < nt; x++) qq -= c * ev.beta[tg[x]] * h2[tc[x]];
-          quadratic[a.index] += qq;
-        }
-      }
-      for (let ia = 0; ia < act.length; ia++) {
-        const A = act[ia];
-        for (let ib = ia; ib < act.length; ib++) {
-          const B = act[ib];
-          let val = 0;
-          if (A.columns && B.columns) {
-            const ZA = A.columns;
-            const ZB = B.columns;
-            for (let xa = 0; xa < ZA.length; xa++) {
-              const x = ZA[xa];
-              if (h[x] === 0) continue;
-              let sum = 0;
-              for (let yb = 0; yb < ZB.length; yb++) sum += H[x * mz + ZB[yb]] * h[ZB[yb]];
-              val += h[x] * sum;
-            }
-          } else if (A.columns || B.columns) {
-            const Z = (A.columns ?? B.columns)!;
-            for (let xz = 0; xz < Z.length; xz++) val += h[Z[xz]] * h2[Z[xz]];
-          } else {
-            // r'V^-3 r = a . h2 / sigma2 with V^-1 r = B a / sigma2, a = rho - E_R W (K rho)_R
-            for (let b = 0; b < r; b++) {
-              let sum = u[R[b]];
-              for (let x = 0; x < nt; x++) sum -= c * K[R[b] * m + tc[x]] * ev.beta[tg[x]];
-              kr[b] = sum;
-            }
-            av.fill(0, 0, m);
-            for (let x = 0; x < nt; x++) av[tc[x]] = -c * ev.beta[tg[x]];
-            av[mz] = 1;
-            for (let a = 0; a < r; a++) {
-              let sum = 0;
-              for (let b = 0; b < r; b++) sum += pat.w[a * r + b] * kr[b];
-              av[R[a]] -= sum;
-            }
-            for (let j = 0; j < m; j++) val += (av[j] / s2) * h2[j];
-          }
-          ai[A.index * nP + B.index] += val;
-          if (A.index !== B.index) ai[B.index * nP + A.index] += val;
-        }
-      }
-    }
-    // the y'y parts: r'V^-2 r and r'V^-3 r contain sum y'y / sigma2^2 and / sigma2^3
-    for (let ia = 0; ia < act.length; ia++) {
-      const a = act[ia];
-      if (!a.columns) {
-        quadratic[a.index] += mo.sumYy / (s2 * s2);
-        ai[a.index * nP + a.index] += mo.sumYy / (s2 * s2 * s2);
-      }
-    }
-    // linear terms from the summed data vector (c = number of trials)
-    vectorsOf(H, H2, pat, ev.hzySum[q], mo.sum[mz], ev.beta, tc, tg, mz, h, h2, h2y);
-    for (let ia = 0; ia < act.length; ia++) {
-      const a = act[ia];
-      const k = a.index;
-      if (a.columns) {
-        const Z = a.columns;
-        for (let jz = 0; jz < Z.length; jz++) for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + Z[jz]] * h[Z[jz]];
-      } else {
-        for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2[tc[x]];
-      }
-    }
+    patternTrace(frame, ev, q, active[i0], trace);
+    patternQuadratic(frame, ev, q, col, active[i0], quadratic, withInformation ? ai : null, work);
+    patternLinear(frame, ev, q, active[i0], v, work);
+    col += frame.moments[q].nColumns;
   }
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
-  // second AI term: - v_k' C v_l
+  return new ScoreWithLazyInformation(gradient, quadratic, trace, v, ai, ev.c, p);
+}
+
+interface WorkVectors {
+  readonly h: Float64Array;
+  readonly h2: Float64Array;
+  readonly h2y: Float64Array;
+  readonly av: Float64Array;
+  readonly kr: Float64Array;
+}
+
+function workVectors(frame: ModelFrame): WorkVectors {
+  let maxM = 1;
+  for (const t of frame.stats.trials) if (t.m > maxM) maxM = t.m;
+  return { h: new Float64Array(maxM), h2: new Float64Array(maxM), h2y: new Float64Array(maxM), av: new Float64Array(maxM), kr: new Float64Array(maxM) };
+}
+
+/** Design-only trace terms tr(P V_k) of one pattern, times its number of trials. */
+function patternTrace(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], trace: Float64Array): void {
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const pat = ev.patterns[q];
+  const p = frame.stats.treatments.length;
+  const mz = t.m - 1;
+  const tc = t.treatmentColumns;
+  const cl = localBlock(ev.c, p, t.treatmentIndex);
+  const count = frame.patternCount[q];
+  for (let ia = 0; ia < act.length; ia++) {
+    const a = act[ia];
+    const tr = a.columns ? termTrace(pat.hzz, a.columns, tc, cl, mz) : residualTrace(pat, t.n, tc, cl, mz);
+    trace[a.index] += count * tr;
+  }
+}
+
+function termTrace(H: Float64Array, Z: Int32Array, tc: Int32Array, cl: Float64Array, mz: number): number {
+  const nt = tc.length;
+  let tr = 0;
+  for (let jz = 0; jz < Z.length; jz++) {
+    const j = Z[jz];
+    tr += H[j * mz + j];
+    let s = 0;
+    for (let x = 0; x < nt; x++) {
+      const hx = H[j * mz + tc[x]];
+      if (hx === 0) continue;
+      let r = 0;
+      for (let y = 0; y < nt; y++) r += cl[x * nt + y] * H[j * mz + tc[y]];
+      s += hx * r;
+    }
+    tr -= s;
+  }
+  return tr;
+}
+
+function residualTrace(pat: PatternState, n: number, tc: Int32Array, cl: Float64Array, mz: number): number {
+  const H2 = ensurePatternH2(pat, mz);
+  const nt = tc.length;
+  const tr = (n - pat.trWK) / pat.sigma2;
+  let s = 0;
+  for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) s += cl[x * nt + y] * H2[tc[y] * mz + tc[x]];
+  return tr - s;
+}
+
+/** Quadratic terms y'P V_k P y and (if ai is given) the block part of the AI matrix, column by column. */
+function patternQuadratic(frame: ModelFrame, ev: Evaluation, q: number, col0: number, act: readonly ActiveParameter[], quadratic: Float64Array, ai: Float64Array | null, w: WorkVectors): void {
+  const nP = frame.layout.parameters.length;
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const pat = ev.patterns[q];
+  const mo = frame.moments[q];
+  const m = t.m;
+  const mz = m - 1;
+  const H = pat.hzz;
+  const H2 = ensurePatternH2(pat, mz);
+  const s2 = pat.sigma2;
+  const tc = t.treatmentColumns;
+  const tg = t.treatmentIndex;
+  const { h, h2, h2y } = w;
+  let col = col0;
+  // Every term below is of degree two in (u, c): where a constant (beta) meets a data-linear
+  // quantity the column's c stands in for the trial's 1.
+  for (let f = 0; f < mo.nColumns; f++, col++) {
+    // the column's data vector u = columns[uo ...] and its design rows of B'V^-1 y at ev.hzy[o ...]
+    const u = mo.columns;
+    const uo = f * m;
+    const c = u[uo + mz];
+    const o = frame.columnOffsets[q] + f * mz;
+    vectorsOf(H, H2, pat, ev.hzy, o, c, ev.beta, tc, tg, mz, h, h2, h2y);
+    h2[mz] = h2Last(pat, u, uo, ev.hzy, o, ev.hyy[col], c, h2y, ev.beta, tc, tg);
+    for (let ia = 0; ia < act.length; ia++) {
+      const a = act[ia];
+      quadratic[a.index] += a.columns ? sumSquaresOn(h, a.columns) : residualQuadratic(h2, c, ev.beta, tc, tg, mz);
+    }
+    if (!ai) continue;
+    for (let ia = 0; ia < act.length; ia++) {
+      const A = act[ia];
+      for (let ib = ia; ib < act.length; ib++) {
+        const B = act[ib];
+        let val: number;
+        if (A.columns && B.columns) val = termTermInformation(H, h, A.columns, B.columns, mz);
+        else if (A.columns || B.columns) val = dotOn(h, h2, (A.columns ?? B.columns)!);
+        else val = residualInformation(t.gram, pat, u, uo, c, ev.beta, tc, tg, h2, m, w);
+        ai[A.index * nP + B.index] += val;
+        if (A.index !== B.index) ai[B.index * nP + A.index] += val;
+      }
+    }
+  }
+  // the y'y parts: r'V^-2 r and r'V^-3 r contain sum y'y / sigma2^2 and / sigma2^3
+  for (let ia = 0; ia < act.length; ia++) {
+    const a = act[ia];
+    if (a.columns) continue;
+    quadratic[a.index] += mo.sumYy / (s2 * s2);
+    if (ai) ai[a.index * nP + a.index] += mo.sumYy / (s2 * s2 * s2);
+  }
+}
+
+/** y entry of h2 = B'V^-2 r: (H_yy - u_R' W H_Ry) / sigma2 - c beta . h2y_T (y'y part added per pattern). */
+function h2Last(pat: PatternState, u: Float64Array, uo: number, hzy: Float64Array, ho: number, hyy: number, c: number, h2y: Float64Array, beta: Float64Array, tc: Int32Array, tg: Int32Array): number {
+  const R = pat.randomColumns;
+  const r = R.length;
+  let v = hyy;
+  for (let a = 0; a < r; a++) {
+    let w = 0;
+    for (let b = 0; b < r; b++) w += pat.w[a * r + b] * hzy[ho + R[b]];
+    v -= u[uo + R[a]] * w;
+  }
+  v /= pat.sigma2;
+  for (let x = 0; x < tc.length; x++) v -= c * h2y[tc[x]] * beta[tg[x]];
+  return v;
+}
+
+function sumSquaresOn(h: Float64Array, Z: Int32Array): number {
+  let s = 0;
+  for (let jz = 0; jz < Z.length; jz++) s += h[Z[jz]] * h[Z[jz]];
+  return s;
+}
+
+function dotOn(a: Float64Array, b: Float64Array, Z: Int32Array): number {
+  let s = 0;
+  for (let jz = 0; jz < Z.length; jz++) s += a[Z[jz]] * b[Z[jz]];
+  return s;
+}
+
+function residualQuadratic(h2: Float64Array, c: number, beta: Float64Array, tc: Int32Array, tg: Int32Array, mz: number): number {
+  let qq = h2[mz];
+  for (let x = 0; x < tc.length; x++) qq -= c * beta[tg[x]] * h2[tc[x]];
+  return qq;
+}
+
+function termTermInformation(H: Float64Array, h: Float64Array, ZA: Int32Array, ZB: Int32Array, mz: number): number {
+  let val = 0;
+  for (let xa = 0; xa < ZA.length; xa++) {
+    const x = ZA[xa];
+    if (h[x] === 0) continue;
+    let sum = 0;
+    for (let yb = 0; yb < ZB.length; yb++) sum += H[x * mz + ZB[yb]] * h[ZB[yb]];
+    val += h[x] * sum;
+  }
+  return val;
+}
+
+/** r'V^-3 r = a . h2 / sigma2 with V^-1 r = B a / sigma2, a = rho - E_R W (K rho)_R. */
+function residualInformation(K: Float64Array, pat: PatternState, u: Float64Array, uo: number, c: number, beta: Float64Array, tc: Int32Array, tg: Int32Array, h2: Float64Array, m: number, w: WorkVectors): number {
+  const R = pat.randomColumns;
+  const r = R.length;
+  const nt = tc.length;
+  const mz = m - 1;
+  const { av, kr } = w;
+  for (let b = 0; b < r; b++) {
+    let sum = u[uo + R[b]];
+    for (let x = 0; x < nt; x++) sum -= c * K[R[b] * m + tc[x]] * beta[tg[x]];
+    kr[b] = sum;
+  }
+  av.fill(0, 0, m);
+  for (let x = 0; x < nt; x++) av[tc[x]] = -c * beta[tg[x]];
+  av[mz] = 1;
+  for (let a = 0; a < r; a++) {
+    let sum = 0;
+    for (let b = 0; b < r; b++) sum += pat.w[a * r + b] * kr[b];
+    av[R[a]] -= sum;
+  }
+  const s2 = pat.sigma2;
+  let val = 0;
+  for (let j = 0; j < m; j++) val += (av[j] / s2) * h2[j];
+  return val;
+}
+
+/** Linear terms of v_k = X'V^-1 V_k V^-1 r from the pattern's summed data vector (c = number of trials). */
+function patternLinear(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], v: Float64Array, w: WorkVectors): void {
+  const p = frame.stats.treatments.length;
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const pat = ev.patterns[q];
+  const mo = frame.moments[q];
+  const mz = t.m - 1;
+  const H = pat.hzz;
+  const H2 = ensurePatternH2(pat, mz);
+  const tc = t.treatmentColumns;
+  const tg = t.treatmentIndex;
+  const nt = tc.length;
+  const { h, h2, h2y } = w;
+  vectorsOf(H, H2, pat, ev.hzySum[q], 0, mo.sum[mz], ev.beta, tc, tg, mz, h, h2, h2y);
+  for (let ia = 0; ia < act.length; ia++) {
+    const a = act[ia];
+    const k = a.index;
+    if (a.columns) {
+      const Z = a.columns;
+      for (let jz = 0; jz < Z.length; jz++) for (let x = 0; x < nt; x++) v[k * p + tg[x]] += H[tc[x] * mz + Z[jz]] * h[Z[jz]];
+    } else {
+      for (let x = 0; x < nt; x++) v[k * p + tg[x]] += h2[tc[x]];
+    }
+  }
+}
+
+/** The second AI term: ai -= V C V' (full rows, so every write is sequential). */
+function subtractLowRank(ai: Float64Array, v: Float64Array, c: Float64Array, nP: number, p: number): void {
   const cv = new Float64Array(nP * p);
   for (let k = 0; k < nP; k++)
     for (let a = 0; a < p; a++) {
       let s = 0;
-      for (let b = 0; b < p; b++) s += ev.c[a * p + b] * v[k * p + b];
+      for (let b = 0; b < p; b++) s += c[a * p + b] * v[k * p + b];
       cv[k * p + a] = s;
     }
-  for (let k = 0; k < nP; k++)
-    for (let l = k; l < nP; l++) {
-      let s = 0;
-      for (let a = 0; a < p; a++) s += v[k * p + a] * cv[l * p + a];
-      ai[k * nP + l] -= s;
-      if (l !== k) ai[l * nP + k] -= s;
-    }
-  return { gradient, ai, quadratic, trace };
+  for (let k = 0; k < nP; k++) subtractRow(ai, v, cv, k, nP, p);
+}
+
+function subtractRow(ai: Float64Array, v: Float64Array, cv: Float64Array, k: number, nP: number, p: number): void {
+  const row = k * nP;
+  for (let l = 0; l < nP; l++) {
+    // same operand order as the (k <= l) entry so the matrix stays exactly symmetric
+    const lo = k <= l ? k : l;
+    const hi = k <= l ? l : k;
+    let s = 0;
+    for (let a = 0; a < p; a++) s += v[lo * p + a] * cv[hi * p + a];
+    ai[row + l] -= s;
+  }
 }
 
 /**
  * Design rows of h = B'V^-1 r and h2 = B'V^-2 r for one data column (u, c): r = y - X beta, with
  * the column's c in place of the trial's 1 where beta enters. Also h2y = design rows of B'V^-2 y.
+ * The column's design rows of B'V^-1 y are hzy[ho ...].
  */
-function vectorsOf(H: Float64Array, H2: Float64Array, pat: PatternState, hzy: ArrayLike<number>, c: number, beta: Float64Array, tc: Int32Array, tg: Int32Array, mz: number, h: Float64Array, h2: Float64Array, h2y: Float64Array): void {
+function vectorsOf(H: Float64Array, H2: Float64Array, pat: PatternState, hzy: Float64Array, ho: number, c: number, beta: Float64Array, tc: Int32Array, tg: Int32Array, mz: number, h: Float64Array, h2: Float64Array, h2y: Float64Array): void {
   const R = pat.randomColumns;
   const r = R.length;
   const nt = tc.length;
   for (let j = 0; j < mz; j++) {
-    let s = hzy[j];
+    let s = hzy[ho + j];
     let s2 = 0;
     for (let x = 0; x < nt; x++) {
       const b = beta[tg[x]];
@@ -219,8 +322,8 @@ function vectorsOf(H: Float64Array, H2: Float64Array, pat: PatternState, hzy: Ar
       s2 += H2[j * mz + tc[x]] * b;
     }
     h[j] = s;
-    let y2 = hzy[j];
-    for (let b = 0; b < r; b++) y2 -= pat.gz[j * r + b] * hzy[R[b]];
+    let y2 = hzy[ho + j];
+    for (let b = 0; b < r; b++) y2 -= pat.gz[j * r + b] * hzy[ho + R[b]];
     y2 /= pat.sigma2;
     h2y[j] = y2;
     h2[j] = y2 - c * s2;

@@ -10,6 +10,7 @@ import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensurePatternH2 } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
+import { f64 } from './arena.js';
 
 export interface SecondOrder {
   /** P_k for each parameter, p x p. */
@@ -21,13 +22,13 @@ export interface SecondOrder {
 type Small = { rows: number; cols: number; data: Float64Array };
 
 function sub(a: Float64Array, m: number, rows: ArrayLike<number>, cols: ArrayLike<number>): Small {
-  const out = new Float64Array(rows.length * cols.length);
+  const out = f64(rows.length * cols.length);
   for (let i = 0; i < rows.length; i++) for (let j = 0; j < cols.length; j++) out[i * cols.length + j] = a[rows[i] * m + cols[j]];
   return { rows: rows.length, cols: cols.length, data: out };
 }
 
 function mul(a: Small, b: Small): Small {
-  const out = new Float64Array(a.rows * b.cols);
+  const out = f64(a.rows * b.cols);
   for (let i = 0; i < a.rows; i++)
     for (let k = 0; k < a.cols; k++) {
       const v = a.data[i * a.cols + k];
@@ -61,7 +62,7 @@ function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonl
     const R = pat.randomColumns;
     const r = R.length;
     const nt = T.length;
-    const out = new Float64Array(nt * nt);
+    const out = f64(nt * nt);
     for (let x = 0; x < nt; x++)
       for (let y = 0; y < nt; y++) {
         let v = H2[T[x] * mz + T[y]];

@@ -2,7 +2,7 @@
 // that trial alone), pooled over trials for a common residual. Random terms: the rest of the
 // pooled within-treatment variance split equally among them (at least a tenth of the residual).
 // Cheap, scale-aware, and close enough that the EM warm start and AI steps converge quickly.
-import { cholesky, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
+import { cholesky, forwardSolveInPlace, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
 import type { ModelFrame } from './remlCriterion.js';
 import type { TrialStatistics } from './sufficientStatistics.js';
 
@@ -26,11 +26,12 @@ export function startValues(frame: ModelFrame): Float64Array {
   // within-trial residual variances, computed once per design pattern's inverse
   let rssAll = 0;
   let dfAll = 0;
-  const factors = new Map<number, Matrix | null>();
+  const factors = new Map<number, OwnFactor | null>();
+  const work = new Float64Array(stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1));
   const own = stats.trials.map((t, i) => {
     const q = frame.patternOf[i];
     if (!factors.has(q)) factors.set(q, withinFactor(t));
-    const w = withinTrial(t, factors.get(q)!);
+    const w = withinTrial(t, factors.get(q)!, work);
     if (w) {
       rssAll += w.rss;
       dfAll += w.df;
@@ -56,28 +57,37 @@ function ownColumns(t: TrialStatistics): number[] {
   return [...t.blockColumns, ...Array.from(t.treatmentColumns).slice(1)];
 }
 
-/** Cholesky factor of the trial's own normal equations (blocks + treatments); design only. */
-function withinFactor(t: TrialStatistics): Matrix | null {
+/** Columns and Cholesky factor of a trial's own normal equations (blocks + treatments); design only. */
+interface OwnFactor {
+  readonly cols: number[];
+  readonly l: Matrix;
+}
+
+function withinFactor(t: TrialStatistics): OwnFactor | null {
   const cols = ownColumns(t);
   const k = cols.length;
   if (t.n - k <= 0) return null;
   const a: Matrix = { rows: k, cols: k, data: new Float64Array(k * k) };
   for (let x = 0; x < k; x++) for (let y = 0; y < k; y++) a.data[x * k + y] = t.gram[cols[x] * t.m + cols[y]];
   try {
-    return cholesky(a);
+    return { cols, l: cholesky(a) };
   } catch (err) {
     if (err instanceof NotPositiveDefiniteError) return null;
     throw err;
   }
 }
 
-function withinTrial(t: TrialStatistics, l: Matrix | null): { rss: number; df: number } | null {
-  if (!l) return null;
-  const cols = ownColumns(t);
+function withinTrial(t: TrialStatistics, f: OwnFactor | null, work: Float64Array): { rss: number; df: number } | null {
+  if (!f) return null;
+  const cols = f.cols;
+  const k = cols.length;
   const m = t.m;
-  const b = Float64Array.from(cols, (c) => t.gram[c * m + t.yColumn]);
-  const coef = cholSolve(l, b);
-  let rss = t.gram[t.yColumn * m + t.yColumn];
-  for (let x = 0; x < cols.length; x++) rss -= coef[x] * b[x];
-  return { rss: Math.max(rss, 0), df: t.n - cols.length };
+  // coef = A^-1 b with b the trial's X'y; rss = y'y - b'coef. `work` holds b, then L^-1 b.
+  for (let x = 0; x < k; x++) work[x] = t.gram[cols[x] * m + t.yColumn];
+  forwardSolveInPlace(f.l, work);
+  // b'A^-1 b = |L^-1 b|^2
+  let fit = 0;
+  for (let x = 0; x < k; x++) fit += work[x] * work[x];
+  const rss = t.gram[t.yColumn * m + t.yColumn] - fit;
+  return { rss: Math.max(rss, 0), df: t.n - k };
 }

@@ -8,6 +8,12 @@
 // through the pattern's moments (patternMoments.ts).
 import { choleskyInPlace, inverseFromCholesky } from './smallSpd.js';
 import type { TrialStatistics } from './sufficientStatistics.js';
+import { f64, Scratch } from './arena.js';
+
+const dScratch = new Scratch();
+const mScratch = new Scratch();
+const invScratch = new Scratch();
+const workScratch = new Scratch();
 
 /** The part of a block shared by all trials of one design pattern. */
 export interface PatternState {
@@ -32,15 +38,30 @@ export function randomColumnsOf(stats: TrialStatistics): Int32Array {
   return Int32Array.from(out);
 }
 
-/** Key that is equal for trials whose design block of the Gram matrix is identical. */
-export function designKey(stats: TrialStatistics): string {
+/** Hash of what sameDesign compares (n, m, column terms, treatments, design block of the Gram matrix). */
+export function designHash(stats: TrialStatistics, residualParameter: number): number {
   const mz = stats.m - 1;
-  const parts: number[] = [stats.n, stats.m];
-  for (let i = 0; i < mz; i++) parts.push(stats.termOfColumn[i]);
-  // the treatments' positions in X matter too: trials of a pattern share their X'V^-1 X block
-  parts.push(-1, ...stats.treatmentIndex);
-  for (let i = 0; i < mz; i++) for (let j = i; j < mz; j++) parts.push(stats.gram[i * stats.m + j]);
-  return parts.join(',');
+  let h = mix(mix(mix(0x811c9dc5, residualParameter), stats.n), stats.m);
+  for (let i = 0; i < mz; i++) h = mix(h, stats.termOfColumn[i]);
+  for (let i = 0; i < stats.treatmentIndex.length; i++) h = mix(h, stats.treatmentIndex[i]);
+  const K = stats.gram;
+  for (let i = 0; i < mz; i++) for (let j = i; j < mz; j++) h = mix(h, K[i * stats.m + j] | 0);
+  return h;
+}
+
+function mix(h: number, v: number): number {
+  return Math.imul(h ^ v, 0x01000193) | 0;
+}
+
+/** Whether two trials have identical design blocks of the Gram matrix (and the same treatments in X). */
+export function sameDesign(a: TrialStatistics, b: TrialStatistics): boolean {
+  if (a.n !== b.n || a.m !== b.m || a.treatmentIndex.length !== b.treatmentIndex.length) return false;
+  const m = a.m;
+  const mz = m - 1;
+  for (let i = 0; i < mz; i++) if (a.termOfColumn[i] !== b.termOfColumn[i]) return false;
+  for (let i = 0; i < a.treatmentIndex.length; i++) if (a.treatmentIndex[i] !== b.treatmentIndex[i]) return false;
+  for (let i = 0; i < mz; i++) for (let j = i; j < mz; j++) if (a.gram[i * m + j] !== b.gram[i * m + j]) return false;
+  return true;
 }
 
 /** Shared part for a representative trial, term variances `termVariance[term]` and sigma2. */
@@ -50,20 +71,20 @@ export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Arra
   const K = stats.gram;
   const R = randomColumns;
   const r = R.length;
-  const d = new Float64Array(r);
+  const d = dScratch.get(r);
   for (let a = 0; a < r; a++) d[a] = Math.sqrt(Math.max(0, termVariance[stats.termOfColumn[R[a]]]));
-  const mm = new Float64Array(r * r);
+  const mm = mScratch.get(r * r);
   for (let a = 0; a < r; a++) {
     const ka = R[a] * m;
     for (let b = 0; b < r; b++) mm[a * r + b] = d[a] * K[ka + R[b]] * d[b];
     mm[a * r + a] += sigma2;
   }
   const logDetM = choleskyInPlace(mm, r);
-  const minv = new Float64Array(r * r);
-  inverseFromCholesky(mm, r, minv, new Float64Array(r * r));
-  const w = new Float64Array(r * r);
+  const minv = invScratch.get(r * r);
+  inverseFromCholesky(mm, r, minv, workScratch.get(r * r));
+  const w = f64(r * r);
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) w[a * r + b] = d[a] * minv[a * r + b] * d[b];
-  const gz = new Float64Array(mz * r);
+  const gz = f64(mz * r);
   for (let i = 0; i < mz; i++) {
     const ko = i * m;
     for (let b = 0; b < r; b++) {
@@ -72,7 +93,7 @@ export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Arra
       gz[i * r + b] = s;
     }
   }
-  const hzz = new Float64Array(mz * mz);
+  const hzz = f64(mz * mz);
   for (let i = 0; i < mz; i++)
     for (let j = i; j < mz; j++) {
       let s = K[i * m + j];
@@ -93,7 +114,7 @@ export function ensurePatternH2(pat: PatternState, mz: number): Float64Array {
   if (pat.h2zz) return pat.h2zz;
   const R = pat.randomColumns;
   const r = R.length;
-  const out = new Float64Array(mz * mz);
+  const out = f64(mz * mz);
   for (let i = 0; i < mz; i++)
     for (let j = 0; j < mz; j++) {
       let v = pat.hzz[i * mz + j];

@@ -45,6 +45,9 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
   const maxM = frame.stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1);
   const u = new Float64Array(maxM);
   const hzy = new Float64Array(maxM);
+  // per-trial working vectors, reused (a trial's values are consumed before the next trial)
+  const tau = new Float64Array(maxM);
+  const b = new Float64Array(maxM);
   return frame.stats.trials.map((t, i) => {
     const q = frame.patternOf[i];
     if (!designs.has(q)) designs.set(q, ownDesign(frame, i));
@@ -53,11 +56,10 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
     const mz = m - 1;
     const nt = t.treatmentColumns.length;
     // the trial's own estimates: tau (treatment 1 = 0), residual variance
-    const tau = new Float64Array(nt);
+    tau.fill(0, 0, nt);
     let s2 = NaN;
     if (own) {
       const k = own.cols.length;
-      const b = new Float64Array(k);
       for (let x = 0; x < k; x++) b[x] = t.gram[own.cols[x] * m + mz];
       let rss = t.gram[mz * m + mz];
       const nb = k - (nt - 1);

@@ -1,5 +1,6 @@
 // Which variance parameters act on one trial's block, and on which columns of B.
 import type { ModelFrame } from './remlCriterion.js';
+import { f64 } from './arena.js';
 
 export interface ActiveParameter {
   readonly index: number;
@@ -29,7 +30,7 @@ export function activeParameterTable(frame: ModelFrame): ActiveParameter[][] {
 /** Local copy C[tg, tg] of the global p x p matrix C for this trial's treatments. */
 export function localBlock(c: Float64Array, p: number, tg: Int32Array): Float64Array {
   const t = tg.length;
-  const out = new Float64Array(t * t);
+  const out = f64(t * t);
   for (let a = 0; a < t; a++) for (let b = 0; b < t; b++) out[a * t + b] = c[tg[a] * p + tg[b]];
   return out;
 }
