@@ -23,34 +23,15 @@ export interface ModelFrame {
   readonly moments: readonly PatternMoments[];
   /** Offset of each pattern's first column vector in Evaluation.hzy (m - 1 values per column). */
   readonly columnOffsets: Int32Array;
+  /** Design group of each trial (identical design, any residual parameter): for design-only work. */
+  readonly designOf: Int32Array;
 }
 
 export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): ModelFrame {
   // trials of one pattern: same residual parameter and identical design (hash, then exact check)
-  const candidates = new Map<number, number[]>();
-  const patternTrial: number[] = [];
-  const patternOf = new Int32Array(stats.trials.length);
-  for (let i = 0; i < stats.trials.length; i++) {
-    const t = stats.trials[i];
-    const res = layout.residualParameter[i];
-    const h = designHash(t, res);
-    let list = candidates.get(h);
-    if (!list) candidates.set(h, (list = []));
-    let id = -1;
-    for (const q of list) {
-      const rep = patternTrial[q];
-      if (layout.residualParameter[rep] === res && sameDesign(stats.trials[rep], t)) {
-        id = q;
-        break;
-      }
-    }
-    if (id < 0) {
-      id = patternTrial.length;
-      patternTrial.push(i);
-      list.push(id);
-    }
-    patternOf[i] = id;
-  }
+  const { groupOf: patternOf, representative: patternTrial } = groupTrials(stats, layout.residualParameter);
+  // trials of one design, whatever their residual parameter (for design-only work)
+  const { groupOf: designOf } = groupTrials(stats, null);
   const patternCount = new Int32Array(patternTrial.length);
   for (const q of patternOf) patternCount[q]++;
   const members: (typeof stats.trials)[number][][] = patternTrial.map(() => []);
@@ -58,7 +39,36 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
   const moments = members.map(patternMoments);
   const columnOffsets = new Int32Array(patternTrial.length + 1);
   moments.forEach((mo, q) => (columnOffsets[q + 1] = columnOffsets[q] + mo.nColumns * (stats.trials[patternTrial[q]].m - 1)));
-  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf), patternOf, patternTrial, patternCount, moments, columnOffsets };
+  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf), patternOf, patternTrial, patternCount, moments, columnOffsets, designOf };
+}
+
+/** Groups of trials with identical designs (and, if given, the same residual parameter), numbered in order of first appearance. */
+function groupTrials(stats: NetworkStatistics, residualParameter: Int32Array | null): { groupOf: Int32Array; representative: number[] } {
+  const candidates = new Map<number, number[]>();
+  const representative: number[] = [];
+  const groupOf = new Int32Array(stats.trials.length);
+  for (let i = 0; i < stats.trials.length; i++) {
+    const t = stats.trials[i];
+    const res = residualParameter ? residualParameter[i] : -1;
+    const h = designHash(t, res);
+    let list = candidates.get(h);
+    if (!list) candidates.set(h, (list = []));
+    let id = -1;
+    for (const q of list) {
+      const rep = representative[q];
+      if ((!residualParameter || residualParameter[rep] === res) && sameDesign(stats.trials[rep], t)) {
+        id = q;
+        break;
+      }
+    }
+    if (id < 0) {
+      id = representative.length;
+      representative.push(i);
+      list.push(id);
+    }
+    groupOf[i] = id;
+  }
+  return { groupOf, representative };
 }
 
 export interface Evaluation {

@@ -51,7 +51,7 @@ class ScoreWithLazyInformation implements ScoreAndInformation {
 // calls, whereas one large function runs unoptimised (and allocates a heap number for every
 // floating-point temporary) for much of a short fit before its optimised code is ready.
 
-/** Score and average information. `withInformation` false (EM steps) skips the AI matrix (ai is then all zero). */
+/** Score and average information. `withInformation` false (EM steps) skips the AI matrix (ai and v are then all zero). */
 export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: readonly ActiveParameter[][], withInformation = true): ScoreAndInformation {
   const nP = frame.layout.parameters.length;
   const p = frame.stats.treatments.length;
@@ -65,7 +65,7 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
     const i0 = frame.patternTrial[q];
     patternTrace(frame, ev, q, active[i0], trace);
     patternQuadratic(frame, ev, q, col, active[i0], quadratic, withInformation ? ai : null, work);
-    patternLinear(frame, ev, q, active[i0], v, work);
+    if (withInformation) patternLinear(frame, ev, q, active[i0], v, work);
     col += frame.moments[q].nColumns;
   }
   const gradient = new Float64Array(nP);

@@ -130,14 +130,16 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
       }
   }
   // + tr(C P_k C P_l)
-  const cp = P.map((pk) => matMul(ev.c, pk, p));
-  for (let k = 0; k < nP; k++)
-    for (let l = k; l < nP; l++) {
-      let s = 0;
-      for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) s += cp[k][a * p + b] * cp[l][b * p + a];
-      expected[k * nP + l] += s;
-      if (l !== k) expected[l * nP + k] += s;
-    }
+  // all C P_k in one array, and their transposes, so each pair is one contiguous dot product
+  // (summed in the same order as the double loop over (a, b))
+  const pp = p * p;
+  const cp = new Float64Array(nP * pp);
+  const cpT = new Float64Array(nP * pp);
+  for (let k = 0; k < nP; k++) {
+    cp.set(matMul(ev.c, P[k], p), k * pp);
+    transposeInto(cp, k * pp, cpT, p);
+  }
+  for (let k = 0; k < nP; k++) addTraceRow(expected, cp, cpT, k, nP, pp);
   const observed = new Float64Array(nP * nP);
   for (let j = 0; j < nP * nP; j++) observed[j] = 2 * score.ai[j] - expected[j];
   return { p: P, expected, observed };
@@ -175,6 +177,22 @@ export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder
       for (let j = 0; j < p * p; j++) u[j] -= wkl * pcp[j];
     }
   return u;
+}
+
+function transposeInto(src: Float64Array, o: number, dst: Float64Array, p: number): void {
+  for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) dst[o + a * p + b] = src[o + b * p + a];
+}
+
+/** expected[k, l] (and [l, k]) += tr(C P_k C P_l) for l >= k. */
+function addTraceRow(expected: Float64Array, cp: Float64Array, cpT: Float64Array, k: number, nP: number, pp: number): void {
+  const ok = k * pp;
+  for (let l = k; l < nP; l++) {
+    const ol = l * pp;
+    let s = 0;
+    for (let j = 0; j < pp; j++) s += cp[ok + j] * cpT[ol + j];
+    expected[k * nP + l] += s;
+    if (l !== k) expected[l * nP + k] += s;
+  }
 }
 
 export function matMul(a: Float64Array, b: Float64Array, n: number): Float64Array {

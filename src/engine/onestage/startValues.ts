@@ -29,7 +29,7 @@ export function startValues(frame: ModelFrame): Float64Array {
   const factors = new Map<number, OwnFactor | null>();
   const work = new Float64Array(stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1));
   const own = stats.trials.map((t, i) => {
-    const q = frame.patternOf[i];
+    const q = frame.designOf[i];
     if (!factors.has(q)) factors.set(q, withinFactor(t));
     const w = withinTrial(t, factors.get(q)!, work);
     if (w) {

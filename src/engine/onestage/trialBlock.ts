@@ -84,29 +84,73 @@ export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Arra
   inverseFromCholesky(mm, r, minv, workScratch.get(r * r));
   const w = f64(r * r);
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) w[a * r + b] = d[a] * minv[a * r + b] * d[b];
+  // K_ZR is an indicator Gram block, mostly zeros: list each design column's nonzero random
+  // rows once and skip the zero products (adding them would not change any sum)
+  const nz = nonzeroRandomRows(K, m, mz, R);
   const gz = f64(mz * r);
-  for (let i = 0; i < mz; i++) {
-    const ko = i * m;
-    for (let b = 0; b < r; b++) {
-      let s = 0;
-      for (let a = 0; a < r; a++) s += K[ko + R[a]] * w[a * r + b];
-      gz[i * r + b] = s;
-    }
-  }
+  for (let i = 0; i < mz; i++) gzRow(K, i * m, R, nz, i, w, r, gz);
   const hzz = f64(mz * mz);
-  for (let i = 0; i < mz; i++)
-    for (let j = i; j < mz; j++) {
-      let s = K[i * m + j];
-      for (let b = 0; b < r; b++) s -= gz[i * r + b] * K[R[b] * m + j];
-      hzz[i * mz + j] = s / sigma2;
-      hzz[j * mz + i] = s / sigma2;
-    }
+  for (let i = 0; i < mz; i++) hzzRow(K, m, mz, i, gz, R, nz, sigma2, hzz);
   let trWK = 0;
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) trWK += w[a * r + b] * K[R[b] * m + R[a]];
   // tr(W K W K) = sum_ab (K W)_ab (K W)_ba over the random rows of gz
   let trWKWK = 0;
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) trWKWK += gz[R[a] * r + b] * gz[R[b] * r + a];
   return { sigma2, logDetM, randomColumns: R, w, gz, hzz, h2zz: null, trWK, trWKWK };
+}
+
+interface NonzeroRows {
+  /** For design column j, the positions b (into R) with K[R[b], j] != 0 are idx[start[j] .. start[j + 1]). */
+  readonly start: Int32Array;
+  readonly idx: Int32Array;
+}
+
+const nzStart = { buf: new Int32Array(64) };
+const nzIdx = { buf: new Int32Array(256) };
+
+function nonzeroRandomRows(K: Float64Array, m: number, mz: number, R: Int32Array): NonzeroRows {
+  const r = R.length;
+  if (nzStart.buf.length < mz + 1) nzStart.buf = new Int32Array(2 * (mz + 1));
+  if (nzIdx.buf.length < mz * r) nzIdx.buf = new Int32Array(2 * mz * r);
+  const start = nzStart.buf;
+  const idx = nzIdx.buf;
+  let n = 0;
+  for (let j = 0; j < mz; j++) {
+    start[j] = n;
+    for (let b = 0; b < r; b++) if (K[R[b] * m + j] !== 0) idx[n++] = b;
+  }
+  start[mz] = n;
+  return { start, idx };
+}
+
+/** gz[i, .] = K[i, R] W, summing over the nonzero K[i, R[a]] (K symmetric) in increasing a. */
+function gzRow(K: Float64Array, ko: number, R: Int32Array, nz: NonzeroRows, i: number, w: Float64Array, r: number, gz: Float64Array): void {
+  const R0 = nz.start[i];
+  const R1 = nz.start[i + 1];
+  const o = i * r;
+  for (let b = 0; b < r; b++) {
+    let s = 0;
+    for (let e = R0; e < R1; e++) {
+      const a = nz.idx[e];
+      s += K[ko + R[a]] * w[a * r + b];
+    }
+    gz[o + b] = s;
+  }
+}
+
+/** Row i of the design block of B'V^-1 B (upper part, mirrored): (K_ij - gz[i, .] K[R, j]) / sigma2. */
+function hzzRow(K: Float64Array, m: number, mz: number, i: number, gz: Float64Array, R: Int32Array, nz: NonzeroRows, sigma2: number, hzz: Float64Array): void {
+  const r = R.length;
+  for (let j = i; j < mz; j++) {
+    let s = K[i * m + j];
+    const e1 = nz.start[j + 1];
+    for (let e = nz.start[j]; e < e1; e++) {
+      const b = nz.idx[e];
+      s -= gz[i * r + b] * K[R[b] * m + j];
+    }
+    hzz[i * mz + j] = s / sigma2;
+    hzz[j * mz + i] = s / sigma2;
+  }
 }
 
 /** Design block of B'V^-2 B for a pattern: (hzz - gz hzz_R.) / sigma2, computed once. */

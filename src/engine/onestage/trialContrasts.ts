@@ -50,8 +50,9 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
   const b = new Float64Array(maxM);
   return frame.stats.trials.map((t, i) => {
     const q = frame.patternOf[i];
-    if (!designs.has(q)) designs.set(q, ownDesign(frame, i));
-    const own = designs.get(q)!;
+    const d = frame.designOf[i];
+    if (!designs.has(d)) designs.set(d, ownDesign(frame, i));
+    const own = designs.get(d)!;
     const m = t.m;
     const mz = m - 1;
     const nt = t.treatmentColumns.length;
