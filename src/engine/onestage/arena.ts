@@ -55,13 +55,6 @@ function ownI32(n: number): Int32Array {
   return new Int32Array(n);
 }
 
-/** A copy of `src` as a Float64Array from the arena. */
-export function f64From(src: ArrayLike<number>): Float64Array {
-  const out = f64(src.length);
-  for (let i = 0; i < src.length; i++) out[i] = src[i];
-  return out;
-}
-
 /** Reusable scratch of at least n doubles (contents undefined; not zeroed). Grows, never shrinks. */
 export class Scratch {
   private buf = new Float64Array(64);
