@@ -10,7 +10,7 @@
 // diagonal is positive), so its Cholesky factor doubles as the definiteness check the dense
 // route makes. Cost O(n (s + p)^2) instead of O(n^3) for n residual parameters.
 import { NotPositiveDefiniteError } from '../linalg/index.js';
-import { choleskyInPlace } from './smallSpd.js';
+import { choleskyInPlace } from '../linalg/inPlace.js';
 
 export type BorderedOutcome = { readonly x: Float64Array } | { readonly notPositiveDefinite: true } | null;
 

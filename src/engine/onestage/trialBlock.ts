@@ -6,7 +6,7 @@
 // Trials with the same design (same Z'Z) and the same residual parameter share M, W and the
 // design block of B'V^-1 B: that part is computed once per design pattern; the data enter
 // through the pattern's moments (patternMoments.ts).
-import { choleskyInPlace, inverseFromCholesky } from './smallSpd.js';
+import { choleskyInPlace, inverseFromCholesky } from '../linalg/inPlace.js';
 import type { TrialStatistics } from './sufficientStatistics.js';
 import { f64, Scratch } from './arena.js';
 

@@ -11,6 +11,7 @@
 import { cholesky, cholSolve, cholLogDet, cholInverse } from '../../linalg/cholesky.js';
 import type { Matrix } from '../../linalg/matrix.js';
 import type { MixedNetworkData, MixedTrialData } from './mixedData.js';
+import { choleskyInPlace } from '../../linalg/inPlace.js';
 
 export const FIXED = 3;
 
@@ -32,23 +33,6 @@ interface TrialPieces {
   /** θ of each indicator column (entries 0..2 unused). */
   readonly diag: Float64Array;
   readonly l: Float64Array;
-}
-
-/** In-place lower Cholesky of a q x q row-major matrix; false when not positive definite. */
-function cholInPlace(a: Float64Array, q: number): boolean {
-  for (let j = 0; j < q; j++) {
-    let d = a[j * q + j];
-    for (let k = 0; k < j; k++) d -= a[j * q + k] * a[j * q + k];
-    if (!(d > 0)) return false;
-    const ljj = Math.sqrt(d);
-    a[j * q + j] = ljj;
-    for (let i = j + 1; i < q; i++) {
-      let s = a[i * q + j];
-      for (let k = 0; k < j; k++) s -= a[i * q + k] * a[j * q + k];
-      a[i * q + j] = s / ljj;
-    }
-  }
-  return true;
 }
 
 function forwardSolve(l: Float64Array, q: number, b: Float64Array, stride: number, col: number): void {
@@ -88,7 +72,7 @@ function trialPieces(t: MixedTrialData, theta: ArrayLike<number>): TrialPieces {
     for (let j = 3; j <= i; j++) m[i * q + j] = ti * diag[j] * zz[i * q + j];
   }
   for (let i = 0; i < q; i++) m[i * q + i] += 1;
-  if (!cholInPlace(m, q)) throw new Error('mixed quadratic: M_t not positive definite');
+  choleskyInPlace(m, q); // throws NotPositiveDefiniteError
   // Λ'Z'X and Λ'Z'y, then forward-solve by the Cholesky factor.
   const cX = new Float64Array(q * 3);
   const cy = new Float64Array(q);

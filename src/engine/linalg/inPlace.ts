@@ -1,7 +1,7 @@
-// In-place Cholesky of small symmetric positive-definite blocks on plain arrays: the REML
-// iterations factor one r x r block per design pattern per evaluation, so allocation-free code
-// matters more here than generality. (The shared linalg module is used everywhere else.)
-import { NotPositiveDefiniteError } from '../linalg/index.js';
+// In-place Cholesky of small symmetric positive-definite blocks on plain arrays, for the hot
+// loops of the REML engines (one small block per design pattern or trial per evaluation), where
+// allocation-free code matters more than the Matrix type's convenience.
+import { NotPositiveDefiniteError } from './cholesky.js';
 
 /** Overwrite the lower triangle of a (n x n, row-major) with L, A = L L'. Returns log det A. */
 export function choleskyInPlace(a: Float64Array, n: number): number {
