@@ -13,6 +13,9 @@ const KNOWN_CODES = new Set(['invalid-argument', 'invalid-input', 'not-found', '
 
 export function toApiError(e: unknown): ApiError {
   if (e instanceof ManyfieldError) return { code: e.code, message: e.message, details: e.details };
+  // Engines signal cancellation with their own errors (AbortSignal.throwIfAborted, the REML loop).
+  if (e instanceof Error && (e.name === 'AbortError' || e.name === 'OneStageCancelledError'))
+    return { code: 'cancelled', message: 'cancelled by the user; nothing was stored' };
   if (e instanceof IntakeError) return { code: 'invalid-input', message: e.message, details: { problems: e.problems, truncated: e.truncated } };
   const coded = e as Partial<CodedError> | null;
   if (e instanceof Error && typeof coded?.code === 'string' && KNOWN_CODES.has(coded.code)) {

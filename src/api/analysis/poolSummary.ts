@@ -2,12 +2,12 @@
 // without a trial stage.
 import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
 import type { SummaryRow } from '../../intake/index.js';
-import type { AnalysisSpec } from '../../spec/analysisSpec.js';
+import { twoStageSchema, type AnalysisSpec } from '../../spec/analysisSpec.js';
 import type { AnalysisReport } from './report.js';
 
 export function poolSummaryRows(rows: readonly SummaryRow[], spec: AnalysisSpec): Omit<AnalysisReport, 'provenance'> {
   const name = spec.contrasts[0]?.name ?? spec.trait ?? 'estimate';
-  const options = spec.twoStage ?? { tau2: 'reml' as const, interval: 'hksj' as const, hksjFloor: false };
+  const options = spec.twoStage ?? twoStageSchema.parse({});
   const result = poolEstimates(
     rows.map((r) => ({ trial: r.trial, estimate: r.estimate, se: r.se, df: r.df, covariates: r.covariates })),
     { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators },

@@ -7,13 +7,13 @@ import { analyzeTrial } from '../../engine/trial/analyzeTrial.js';
 import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
 import { fitOneStage } from '../../engine/onestage/fitOneStage.js';
 import { analyzeRateResponse } from '../../engine/rate/analyzeRateResponse.js';
-import type { AnalysisSpec } from '../../spec/analysisSpec.js';
+import { oneStageSchema, twoStageSchema, type AnalysisSpec } from '../../spec/analysisSpec.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 import { compareStages } from './agreement.js';
 import { RECOMMENDATION_CAUTIONS } from './cautions.js';
 import { applyExclusions } from './exclusions.js';
-import { transformNetwork } from './transformNetwork.js';
+import { networkLogOffset, transformNetwork } from './transformNetwork.js';
 import type { AnalysisReport, TrialStageEntry, PooledEntry } from './report.js';
 
 export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Omit<AnalysisReport, 'provenance'> {
@@ -21,6 +21,8 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   const network = applyExclusions(input, spec.exclude, warnings);
   if (network.trials.length === 0) throw new ManyfieldError('invalid-input', `no trials hold data for trait "${network.trait}"`);
   const control = spec.control ?? network.control;
+  // One log offset for every trial and the one-stage model, so ratios mean the same everywhere.
+  const logOffset = networkLogOffset(network, spec);
   const contrasts = spec.contrasts.map((c) => {
     try {
       return resolveContrast(c, network.treatments, control);
@@ -35,7 +37,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
-    trials.push(analyseOneTrial(trial, network, contrasts, spec));
+    trials.push(analyseOneTrial(trial, network, contrasts, spec, logOffset));
   });
 
   const pooled = spec.twoStage === null ? [] : poolContrasts(trials, contrasts, network, spec, warnings);
@@ -43,8 +45,8 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   let oneStage: ReturnType<typeof fitOneStage> | null = null;
   if (spec.oneStage !== null) {
     throwIfCancelled(ctx);
-    const options = spec.oneStage ?? { random: ['trial', 'block', 'treatment:trial'] as const, residual: 'common' as const, df: 'satterthwaite' as const, covariates: [], lrt: true, profile: undefined };
-    const modelled = transformNetwork(network, spec);
+    const options = spec.oneStage ?? oneStageSchema.parse({});
+    const modelled = transformNetwork(network, spec.transform, logOffset);
     oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile }, {
       onProgress: (e) => ctx?.onProgress?.({ stage: 'one-stage', step: `iteration ${e.iteration}`, fraction: null }),
       signal: ctx?.signal,
@@ -76,10 +78,10 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   };
 }
 
-function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec): TrialStageEntry {
+function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec, logOffset: number | undefined): TrialStageEntry {
   const result = analyzeTrial(trial, network.treatments, contrasts, {
     transform: spec.transform,
-    logOffset: spec.logOffset,
+    logOffset,
     confidence: spec.confidence,
     pairwise: spec.pairwise,
     traitKind: network.traitKind,
@@ -88,7 +90,7 @@ function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: re
 }
 
 function poolContrasts(trials: readonly TrialStageEntry[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[]): PooledEntry[] {
-  const options = spec.twoStage ?? { tau2: 'reml' as const, interval: 'hksj' as const, hksjFloor: false };
+  const options = spec.twoStage ?? twoStageSchema.parse({});
   const covariatesByTrial = new Map(network.trials.map((t) => [t.trial, t.covariates ?? {}]));
   const yearByTrial = new Map(network.trials.map((t) => [t.trial, t.year ?? null]));
   return contrasts.map((contrast) => {

@@ -1,13 +1,24 @@
-// The one-stage model sees the response on the analysis scale chosen in the spec; the same
-// transform rules as the trial stage apply, with offsets decided over the whole network.
+// The one-stage model sees the response on the analysis scale chosen in the spec, with the
+// same transform rules as the trial stage; a log offset needed for zeros is decided once over
+// the whole network and shared by both stages.
 import type { NetworkInput } from '../../engine/types.js';
 import { makeTransform } from '../../engine/trial/transform.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 
-export function transformNetwork(network: NetworkInput, spec: AnalysisSpec): NetworkInput {
-  if (spec.transform === 'none') return network;
-  const values = network.trials.flatMap((t) => t.plots.filter((p) => p.value !== null && !p.excluded).map((p) => p.value as number));
-  const transform = makeTransform(spec.transform, values, 'all trials', spec.logOffset);
+function analysedValues(network: NetworkInput): number[] {
+  return network.trials.flatMap((t) => t.plots.filter((p) => p.value !== null && !p.excluded).map((p) => p.value as number));
+}
+
+/** The log offset every stage uses: the spec's, else the rule of the trial stage applied to all trials. */
+export function networkLogOffset(network: NetworkInput, spec: AnalysisSpec): number | undefined {
+  if (spec.transform !== 'log' || spec.logOffset !== undefined) return spec.logOffset;
+  // 0 means no zeros anywhere: leave each trial to say so itself.
+  return makeTransform('log', analysedValues(network), 'all trials').record.logOffset || undefined;
+}
+
+export function transformNetwork(network: NetworkInput, kind: AnalysisSpec['transform'], logOffset: number | undefined): NetworkInput {
+  if (kind === 'none') return network;
+  const transform = makeTransform(kind, analysedValues(network), 'all trials', logOffset);
   return {
     ...network,
     trials: network.trials.map((t) => ({ ...t, plots: t.plots.map((p) => (p.value === null ? p : { ...p, value: transform.forward(p.value) })) })),
