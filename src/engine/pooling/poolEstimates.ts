@@ -1,7 +1,7 @@
 // Entry point of two-stage pooling: per-trial estimates and SEs in, the pooled mean,
 // heterogeneity, new-site prediction, sensitivity and (optionally) meta-regression out.
 import { cochranQ, tau2BasedShares } from './heterogeneity.js';
-import { jsonSafe } from './jsonSafe.js';
+import { jsonSafe } from '../jsonSafe.js';
 import { metaRegression } from './metaRegression.js';
 import { intervalText, PREDICTION_TEXT, PROBABILITY_TEXT, tau2Text } from './methodText.js';
 import { poolCore } from './poolCore.js';

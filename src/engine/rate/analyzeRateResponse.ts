@@ -6,7 +6,7 @@
 import type { NetworkInput } from '../types.js';
 import { cappedOptimum, type Curve } from './curves.js';
 import { RateResponseInputError } from './errors.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 import { pooledOptimum, type PooledPoint } from './pooledOptimum.js';
 import { quadraticDeltaInterval } from './deltaMethod.js';
 import { bootstrapOptimum } from './bootstrap.js';

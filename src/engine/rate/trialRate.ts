@@ -2,7 +2,7 @@
 // is none), its own economic optimum, and the warnings a reader needs about it.
 import type { TrialInput } from '../types.js';
 import { cappedOptimum, netReturn, yieldGain, type Curve } from './curves.js';
-import { num, numRecord } from './jsonSafe.js';
+import { num, numRecord } from '../jsonSafe.js';
 import { chooseTrialModel } from './modelChoice.js';
 import { trialRateData } from './rateData.js';
 import type { OptimumFlag, RateResponseOptions, TrialRateResult } from './types.js';

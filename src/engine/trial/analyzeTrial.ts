@@ -17,7 +17,7 @@ import { brownForsythe } from './brownForsythe.js';
 import { spatialCheck } from './spatialCheck.js';
 import { buildFlags } from './flags.js';
 import { TrialInputError } from './errors.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 
 export { TrialInputError } from './errors.js';
 export type * from './types.js';

@@ -4,7 +4,7 @@
 // for a completely randomised trial this is exactly the classical test on the observations.
 import { fUpper } from '../stats/distributions.js';
 import type { FTestRecord } from './types.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 
 export function brownForsythe(values: ArrayLike<number>, groups: readonly string[]): FTestRecord {
   const byGroup = new Map<string, number[]>();

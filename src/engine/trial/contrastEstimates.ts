@@ -8,7 +8,7 @@ import { tQuantile, tTwoSidedP } from '../stats/distributions.js';
 import { estimate, isEstimable, unscaledCross, type LinearFit } from './linearFit.js';
 import type { MeanVectors } from './adjustedMeans.js';
 import type { RatioRecord, TrialContrast, TransformKind } from './types.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 
 export function contrastVector(c: ResolvedContrast, mv: MeanVectors, p: number): Float64Array | null {
   const l = new Float64Array(p);

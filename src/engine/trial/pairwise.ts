@@ -11,7 +11,7 @@ import type { PairwiseComparison, PairwiseResult } from './types.js';
 import { ptukeyUpper, qtukey } from './studentizedRange.js';
 import { holmAdjust } from './holm.js';
 import { ratioRecord } from './contrastEstimates.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 
 interface RawPair {
   readonly first: string;

@@ -6,7 +6,7 @@ import { fUpper, tQuantile } from '../stats/distributions.js';
 import type { AnovaRow, AnovaTable, LsdRecord } from './types.js';
 import type { DesignModel } from './modelMatrix.js';
 import type { LinearFit } from './linearFit.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 
 export function sequentialAnova(model: DesignModel, fit: LinearFit, y: ArrayLike<number>, lsd5: LsdRecord, transformed: boolean): AnovaTable {
   const { rank, pivot } = fit.qr;

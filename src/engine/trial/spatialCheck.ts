@@ -8,7 +8,7 @@ import { fUpper } from '../stats/distributions.js';
 import { fitLinear, type LinearFit } from './linearFit.js';
 import type { FTestRecord, SpatialCheck } from './types.js';
 import type { UsedPlot } from './usablePlots.js';
-import { num } from './jsonSafe.js';
+import { num } from '../jsonSafe.js';
 
 /** Flag threshold on the joint test. */
 export const SPATIAL_ALPHA = 0.01;

@@ -3,7 +3,7 @@
 // the predicted trial deviations. Plots are those the per-trial curves use.
 import type { NetworkInput } from '../../types.js';
 import { cappedOptimum, type Curve } from '../curves.js';
-import { num } from '../jsonSafe.js';
+import { num } from '../../jsonSafe.js';
 import { quantileType7 } from '../quantile.js';
 import type { Num, OptimumFlag } from '../types.js';
 import { fitMixedQuadratic, type MixedFitOptions } from './fitMixedQuadratic.js';

@@ -6,7 +6,7 @@
 // with a normal-quantile interval (the fixed effects' covariance is treated as known).
 import { normalQuantile } from '../../stats/distributions.js';
 import { cappedOptimum, type Curve } from '../curves.js';
-import { num } from '../jsonSafe.js';
+import { num } from '../../jsonSafe.js';
 import type { MixedPopulationOptimum } from './types.js';
 
 export interface QuadraticEstimate {
