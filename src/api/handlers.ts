@@ -7,9 +7,9 @@ import { importMappingSchema } from '../intake/types.js';
 import type { CallContext } from './context.js';
 import { fail, ok, type Result } from './result.js';
 import { toApiError } from './errors.js';
-import { buildDemo, type DemoSummary } from './workspace/demo.js';
-import { importFile, type ImportOutcome } from './workspace/importFile.js';
-import { listWorkspaceTrials, exportWorkspaceTrait, type ExportedTable } from './workspace/browse.js';
+import type { DemoSummary } from './workspace/demo.js';
+import type { ImportOutcome } from './workspace/importFile.js';
+import type { ExportedTable } from './workspace/browse.js';
 import { runAnalysisFromSource } from './analysis/fromSource.js';
 import type { AnalysisReport } from './analysis/report.js';
 import type { TrialListing } from '../store/index.js';
@@ -42,11 +42,13 @@ export type HandlerMap = { [K in HandlerName]: (args: HandlerArgs<K>, ctx?: Call
 
 type Implementations = { [K in HandlerName]: (args: z.output<(typeof handlerArgs)[K]>, ctx?: CallContext) => Promise<HandlerResults[K]> | HandlerResults[K] };
 
+// The workspace handlers are imported on first use: `analyze --data` never opens a workspace, and
+// a fresh process should not pay for loading the store (and its native SQLite module) it won't use.
 const implementations: Implementations = {
-  'demo.build': (a, ctx) => buildDemo(a.workspace, a.replace, ctx),
-  'data.import': (a, ctx) => importFile(a, ctx),
-  'trials.list': (a) => listWorkspaceTrials(a.workspace),
-  'data.export': (a) => exportWorkspaceTrait(a.workspace, a.trait),
+  'demo.build': async (a, ctx) => (await import('./workspace/demo.js')).buildDemo(a.workspace, a.replace, ctx),
+  'data.import': async (a, ctx) => (await import('./workspace/importFile.js')).importFile(a, ctx),
+  'trials.list': async (a) => (await import('./workspace/browse.js')).listWorkspaceTrials(a.workspace),
+  'data.export': async (a) => (await import('./workspace/browse.js')).exportWorkspaceTrait(a.workspace, a.trait),
   'analysis.run': (a, ctx) => runAnalysisFromSource(a, ctx),
 };
 

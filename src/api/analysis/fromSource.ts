@@ -2,7 +2,6 @@
 // where the data came from so any number can be traced and reproduced.
 import { createHash } from 'node:crypto';
 import { readDataForAnalysis, readNetworkForAnalysis, readSummaryFile, specHasOneRowPerPlot } from '../../intake/index.js';
-import { openWorkspace, loadNetwork, saveAnalysis } from '../../store/index.js';
 import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 import { APP_VERSION } from '../../version.js';
@@ -32,6 +31,8 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
     // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
     return withProvenance(runAnalysis(network, spec, ctx), { source: source.data, fingerprint: `sha256:${sha256}` });
   }
+  // Imported here, not at the top: the --data path above never needs the store or its native module.
+  const { openWorkspace, loadNetwork, saveAnalysis } = await import('../../store/index.js');
   const ws = openWorkspace(source.workspace!);
   try {
     const trait = spec.trait;
