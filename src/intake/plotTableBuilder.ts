@@ -1,14 +1,14 @@
 // Turns data rows into a validated, unit-converted plot table. Rows are fed one at a time
 // (cells read in place); per-trial and per-treatment state is kept with a one-entry cache,
 // since files are usually sorted by trial and often by treatment.
-import type { FactorInfo, TreatmentInfo, TrialDesign } from '../engine/types.js';
+import type { TrialDesign } from '../engine/types.js';
 import { parseDesignName, DESIGN_NAMES } from './designs.js';
 import { parseDecimal, type DecimalMode } from './numbers.js';
 import type { PlotColumns } from './plotColumns.js';
 import type { RowCells } from './rowCells.js';
 import type { ProblemList } from './problems.js';
 import type { PlotSink } from './plotSink.js';
-import type { ImportMapping, ParsedTrait, ParsedTrial } from './types.js';
+import type { ImportMapping, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
 import { covariateTable, factorsAndTreatments } from './plotTableLevels.js';
 import { toCanonical } from './units.js';
 
@@ -78,17 +78,7 @@ function smallPair(a: number, b: number): number | null {
 const DENSE_TREATMENTS = 256;
 
 /** A validated table without its plots and values (those went to the builder's sink). */
-export interface PlotTableSummary {
-  readonly rowsRead: number;
-  readonly protocol: string;
-  readonly control: string | null;
-  readonly traits: readonly ParsedTrait[];
-  readonly factors: readonly FactorInfo[];
-  readonly treatments: readonly TreatmentInfo[];
-  readonly trials: readonly ParsedTrial[];
-  readonly trialCovariates: Readonly<Record<string, Readonly<Record<string, number | string | null>>>>;
-  readonly mapping: ImportMapping;
-}
+export type PlotTableSummary = Omit<ParsedPlotTable, 'file' | 'sha256' | 'plots' | 'observations'>;
 
 function parseYear(text: string, mode: DecimalMode): number {
   const y = parseDecimal(text, mode);
