@@ -10,16 +10,9 @@ import { join } from 'node:path';
 import { manyfield, tempDir } from '../support/cli.js';
 import { runR, rVector, relDiff } from '../support/rscript.js';
 import { mulberry32, normalSampler } from '../../src/engine/stats/random.js';
+import { EXAMPLE_CONTRASTS, EXAMPLE_TREATMENTS } from '../support/exampleProtocol.js';
 
-const TREATMENTS: [string, number, string][] = [
-  ['CTL', 0, ''],
-  ['A1', 40, 'early'],
-  ['A2', 80, 'early'],
-  ['A4', 160, 'early'],
-  ['B1', 40, 'late'],
-  ['B2', 80, 'late'],
-  ['B4', 160, 'late'],
-];
+const TREATMENTS: [string, number, string][] = EXAMPLE_TREATMENTS.map((t) => [t.code, t.levels.rate as number, (t.levels.timing as string | null) ?? '']);
 
 describe('analyze --data: per-trial contrasts equal R lm', () => {
   it('treated_vs_control, early_vs_late and rate_linear on 12 unseen trials', () => {
@@ -49,11 +42,7 @@ describe('analyze --data: per-trial contrasts equal R lm', () => {
       columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
       control: 'CTL',
       transform: 'none',
-      contrasts: [
-        { name: 'treated_vs_control', coefficients: { CTL: -6, A1: 1, A2: 1, A4: 1, B1: 1, B2: 1, B4: 1 }, divisor: 6 },
-        { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-        { name: 'rate_linear', trend: 'rate', degree: 1 },
-      ],
+      contrasts: EXAMPLE_CONTRASTS,
       oneStage: null,
       twoStage: { tau2: 'reml', interval: 'hksj' },
     };

@@ -13,18 +13,11 @@ import type { PlotObservation, TreatmentInfo, TrialInput } from '../../../src/en
 import { runR, rVector, type RRun } from '../../support/rscript.js';
 import { shuffle, plotsCsv } from './simulate.js';
 import { expectClose } from './close.js';
+import { EXAMPLE_CONTRASTS, EXAMPLE_TREATMENTS } from '../../support/exampleProtocol.js';
 
 const REL = 1e-8;
 
-const treatments: TreatmentInfo[] = [
-  { code: 'CTL', levels: { rate: 0, timing: null } },
-  { code: 'A1', levels: { rate: 40, timing: 'early' } },
-  { code: 'A2', levels: { rate: 80, timing: 'early' } },
-  { code: 'A4', levels: { rate: 160, timing: 'early' } },
-  { code: 'B1', levels: { rate: 40, timing: 'late' } },
-  { code: 'B2', levels: { rate: 80, timing: 'late' } },
-  { code: 'B4', levels: { rate: 160, timing: 'late' } },
-];
+const treatments: TreatmentInfo[] = EXAMPLE_TREATMENTS;
 
 // The DESIGN §5 example spec, keys as written there (plus a quadratic trend).
 const spec = analysisSpecSchema.parse({
@@ -33,9 +26,7 @@ const spec = analysisSpecSchema.parse({
   control: 'CTL',
   transform: 'none',
   contrasts: [
-    { name: 'treated_vs_control', coefficients: { CTL: -6, A1: 1, A2: 1, A4: 1, B1: 1, B2: 1, B4: 1 }, divisor: 6 },
-    { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-    { name: 'rate_linear', trend: 'rate', degree: 1 },
+    ...EXAMPLE_CONTRASTS,
     { name: 'rate_quadratic', trend: 'rate', degree: 2 },
   ],
   oneStage: { random: ['trial', 'block', 'treatment:trial'], residual: 'common', df: 'satterthwaite' },

@@ -4,21 +4,14 @@ import { createHash } from 'node:crypto';
 import type { FactorInfo, TreatmentInfo } from '../../../src/engine/types.js';
 import type { ParsedObservation, ParsedPlot, ParsedPlotTable, ParsedTrial } from '../../../src/intake/types.js';
 import { mulberry32 } from '../../../src/engine/stats/random.js';
+import { EXAMPLE_TREATMENTS } from '../../support/exampleProtocol.js';
 
 export const SYNTH_FACTORS: FactorInfo[] = [
   { name: 'rate', kind: 'numeric', unit: 'kg/ha' },
   { name: 'timing', kind: 'categorical' },
 ];
 
-export const SYNTH_TREATMENTS: TreatmentInfo[] = [
-  { code: 'CTL', levels: { rate: 0, timing: null } },
-  { code: 'A1', levels: { rate: 40, timing: 'early' } },
-  { code: 'A2', levels: { rate: 80, timing: 'early' } },
-  { code: 'A4', levels: { rate: 160, timing: 'early' } },
-  { code: 'B1', levels: { rate: 40, timing: 'late' } },
-  { code: 'B2', levels: { rate: 80, timing: 'late' } },
-  { code: 'B4', levels: { rate: 160, timing: 'late' } },
-];
+export const SYNTH_TREATMENTS: TreatmentInfo[] = EXAMPLE_TREATMENTS;
 
 export interface SynthOptions {
   readonly trials: number;
