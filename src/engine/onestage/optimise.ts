@@ -7,7 +7,7 @@
 // DECREMENT_TOL (it estimates twice the remaining fall of -2 logLik), or an accepted step changes
 // the criterion by less than CRITERION_TOL and no parameter by more than PARAMETER_TOL relative.
 import { cholesky, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import { criterionOrInfinity, type Evaluation, type ModelFrame } from './remlCriterion.js';
+import { criterionOrInfinity, releaseEvaluation, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import { scoreAndInformation, type ScoreAndInformation } from './remlDerivatives.js';
 import { activeParameterTable, type ActiveParameter } from './trialParameters.js';
 import { OneStageCancelledError, type OneStageHooks, type RunRecord } from './types.js';
@@ -61,8 +61,12 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
     const sc = scoreAndInformation(frame, ev, active, false);
     const next = Float64Array.from(theta, (v, k) => (fixed[k] ? held[k] : Math.max(0, v - ((v * v) / dims[k]) * sc.gradient[k])));
     const c = criterionOrInfinity(frame, next);
-    if (!c.evaluation || c.value > ev.criterion) break;
+    if (!c.evaluation || c.value > ev.criterion) {
+      if (c.evaluation) releaseEvaluation(frame, c.evaluation);
+      break;
+    }
     theta = next;
+    releaseEvaluation(frame, ev);
     ev = c.evaluation;
     path.push(ev.criterion);
     hooks.onProgress?.({ stage: `${stage}:em`, iteration: it + 1, criterion: ev.criterion });
@@ -98,6 +102,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
         accepted = { theta: cand, ev: c.evaluation };
         break;
       }
+      if (c.evaluation) releaseEvaluation(frame, c.evaluation);
       alpha /= 2;
       halvings++;
     }
@@ -109,6 +114,8 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
     let maxRel = 0;
     for (let k = 0; k < nP; k++) maxRel = Math.max(maxRel, Math.abs(accepted.theta[k] - theta[k]) / Math.max(Math.abs(theta[k]), 1e-300));
     theta = accepted.theta;
+    // the score of the superseded iterate holds none of its buffers (only its C, allocated apart)
+    releaseEvaluation(frame, ev);
     ev = accepted.ev;
     sc = scoreAndInformation(frame, ev, active);
     path.push(ev.criterion);

@@ -8,7 +8,7 @@ import type { NetworkStatistics } from './sufficientStatistics.js';
 import type { ParameterLayout } from './parameters.js';
 import { designHash, evaluatePattern, sameDesign, randomColumnsOf, type PatternState } from './trialBlock.js';
 import { patternMoments, type PatternMoments } from './patternMoments.js';
-import { f64 } from './arena.js';
+import { EvaluationPool, type EvaluationBuffers } from './evaluationPool.js';
 
 export interface ModelFrame {
   readonly stats: NetworkStatistics;
@@ -25,6 +25,8 @@ export interface ModelFrame {
   readonly columnOffsets: Int32Array;
   /** Design group of each trial (identical design, any residual parameter): for design-only work. */
   readonly designOf: Int32Array;
+  /** Buffers of discarded evaluations, reused by the next ones (evaluationPool.ts). */
+  readonly pool: EvaluationPool;
 }
 
 export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): ModelFrame {
@@ -39,7 +41,14 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
   const moments = members.map(patternMoments);
   const columnOffsets = new Int32Array(patternTrial.length + 1);
   moments.forEach((mo, q) => (columnOffsets[q + 1] = columnOffsets[q] + mo.nColumns * (stats.trials[patternTrial[q]].m - 1)));
-  return { stats, layout, randomColumns: stats.trials.map(randomColumnsOf), patternOf, patternTrial, patternCount, moments, columnOffsets, designOf };
+  const randomColumns = stats.trials.map(randomColumnsOf);
+  const pool = new EvaluationPool({
+    representatives: patternTrial.map((i) => stats.trials[i]),
+    randomColumns: patternTrial.map((i) => randomColumns[i]),
+    hzyLength: columnOffsets[patternTrial.length],
+    nColumns: moments.reduce((s, mo) => s + mo.nColumns, 0),
+  });
+  return { stats, layout, randomColumns, patternOf, patternTrial, patternCount, moments, columnOffsets, designOf, pool };
 }
 
 /** Groups of trials with identical designs (and, if given, the same residual parameter), numbered in order of first appearance. */
@@ -87,6 +96,16 @@ export interface Evaluation {
   readonly hzySum: Float64Array[];
   readonly sumLogDetV: number;
   readonly logDetXVX: number;
+  /** The memory behind patterns, hzy, hyy and hzySum (returned to the frame's pool by releaseEvaluation). */
+  readonly buffers: EvaluationBuffers;
+}
+
+/**
+ * Hands an evaluation's memory to the next evaluation of the same frame. Only for an evaluation
+ * nothing reads again (the optimiser's rejected candidates and superseded iterates).
+ */
+export function releaseEvaluation(frame: ModelFrame, ev: Evaluation): void {
+  frame.pool.give(ev.buffers);
 }
 
 export function termVariances(frame: ModelFrame, theta: ArrayLike<number>): Float64Array {
@@ -104,31 +123,33 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   const xvy = new Float64Array(p);
   let yvy = 0;
   let sumLogDetV = 0;
-  const patterns: PatternState[] = new Array<PatternState>(nQ);
+  const buffers = frame.pool.take();
+  const { patterns, hzy, hyy, hzySum } = buffers;
   for (let q = 0; q < nQ; q++) {
     const i = frame.patternTrial[q];
-    patterns[q] = evaluatePattern(stats.trials[i], frame.randomColumns[i], gTerm, theta[layout.residualParameter[i]]);
+    evaluatePattern(stats.trials[i], gTerm, theta[layout.residualParameter[i]], patterns[q]);
   }
-  let nColumns = 0;
-  for (let q = 0; q < nQ; q++) nColumns += frame.moments[q].nColumns;
-  const hzy = new Float64Array(frame.columnOffsets[nQ]);
-  const hyy = new Float64Array(nColumns);
-  const hzySum: Float64Array[] = new Array<Float64Array>(nQ);
   let col = 0;
   for (let q = 0; q < nQ; q++) {
     sumLogDetV += accumulateXvx(frame, patterns[q], q, p, xvx);
-    yvy += patternDataTerms(frame, patterns[q], q, col, hzy, hyy, hzySum, xvy);
+    yvy += patternDataTerms(frame, patterns[q], q, col, hzy, hyy, hzySum[q], xvy);
     col += frame.moments[q].nColumns;
   }
   const xvxM: Matrix = { rows: p, cols: p, data: xvx };
-  const l = cholesky(xvxM);
+  let l: Matrix;
+  try {
+    l = cholesky(xvxM);
+  } catch (err) {
+    frame.pool.give(buffers);
+    throw err;
+  }
   const logDetXVX = cholLogDet(l);
   const beta = cholSolve(l, xvy);
   let rvr = yvy;
   for (let j = 0; j < p; j++) rvr -= xvy[j] * beta[j];
   const dfResidual = stats.nObservations - p;
   const criterion = dfResidual * Math.log(2 * Math.PI) + sumLogDetV + logDetXVX + rvr;
-  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, hzySum, sumLogDetV, logDetXVX };
+  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, hzySum, sumLogDetV, logDetXVX, buffers };
 }
 
 /** X'V^-1 X gains the pattern's treatment block times its number of trials; returns its part of sum log|V_i|. */
@@ -144,10 +165,10 @@ function accumulateXvx(frame: ModelFrame, pat: PatternState, q: number, p: numbe
 
 /**
  * The data terms of one pattern: per column the design rows of B'V^-1 y (into hzy) and the
- * quadratic part of y'V^-1 y (into hyy), the summed vector's design rows (hzySum[q]) and its
+ * quadratic part of y'V^-1 y (into hyy), the summed vector's design rows (into hs) and its
  * X'V^-1 y. Returns the pattern's part of y'V^-1 y.
  */
-function patternDataTerms(frame: ModelFrame, pat: PatternState, q: number, col0: number, hzy: Float64Array, hyy: Float64Array, hzySum: Float64Array[], xvy: Float64Array): number {
+function patternDataTerms(frame: ModelFrame, pat: PatternState, q: number, col0: number, hzy: Float64Array, hyy: Float64Array, hs: Float64Array, xvy: Float64Array): number {
   const t = frame.stats.trials[frame.patternTrial[q]];
   const mo = frame.moments[q];
   const m = t.m;
@@ -161,9 +182,7 @@ function patternDataTerms(frame: ModelFrame, pat: PatternState, q: number, col0:
     yvy += h;
   }
   yvy += mo.sumYy / pat.sigma2;
-  const hs = f64(mz);
   designRowsOfHyAt(mo.sum, 0, pat, mz, hs, 0);
-  hzySum[q] = hs;
   const tc = t.treatmentColumns;
   const tg = t.treatmentIndex;
   for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hs[tc[a]];

@@ -8,17 +8,21 @@
 // through the pattern's moments (patternMoments.ts).
 import { choleskyInPlace, inverseFromCholesky } from '../linalg/inPlace.js';
 import type { TrialStatistics } from './sufficientStatistics.js';
-import { f64, Scratch } from './arena.js';
+import { Scratch } from './arena.js';
 
 const dScratch = new Scratch();
 const mScratch = new Scratch();
 const invScratch = new Scratch();
 const workScratch = new Scratch();
 
-/** The part of a block shared by all trials of one design pattern. */
+/**
+ * The part of a block shared by all trials of one design pattern. Its arrays are views into an
+ * evaluation's buffers (evaluationPool.ts), filled in place by evaluatePattern and reused once
+ * the optimiser has discarded that evaluation.
+ */
 export interface PatternState {
-  readonly sigma2: number;
-  readonly logDetM: number;
+  sigma2: number;
+  logDetM: number;
   readonly randomColumns: Int32Array;
   /** W = D M^-1 D over the random columns (r x r). */
   readonly w: Float64Array;
@@ -26,10 +30,30 @@ export interface PatternState {
   readonly gz: Float64Array;
   /** Design block of B'V^-1 B, (m - 1) x (m - 1). */
   readonly hzz: Float64Array;
-  /** Design block of B'V^-2 B, filled on first use. */
-  h2zz: Float64Array | null;
-  readonly trWK: number;
-  readonly trWKWK: number;
+  /** Design block of B'V^-2 B, valid once h2Ready (ensurePatternH2). */
+  readonly h2zz: Float64Array;
+  h2Ready: boolean;
+  trWK: number;
+  trWKWK: number;
+}
+
+/** Doubles a pattern's state takes in an evaluation's buffer. */
+export function patternStateSize(stats: TrialStatistics, randomColumns: Int32Array): number {
+  const r = randomColumns.length;
+  const mz = stats.m - 1;
+  return r * r + mz * r + 2 * mz * mz;
+}
+
+/** A pattern state whose arrays are views of `slab` from `offset` on (patternStateSize doubles). */
+export function patternStateIn(stats: TrialStatistics, randomColumns: Int32Array, slab: Float64Array, offset: number): PatternState {
+  const r = randomColumns.length;
+  const mz = stats.m - 1;
+  const view = (n: number): Float64Array => {
+    const v = new Float64Array(slab.buffer, slab.byteOffset + offset * 8, n);
+    offset += n;
+    return v;
+  };
+  return { sigma2: NaN, logDetM: NaN, randomColumns, w: view(r * r), gz: view(mz * r), hzz: view(mz * mz), h2zz: view(mz * mz), h2Ready: false, trWK: NaN, trWKWK: NaN };
 }
 
 export function randomColumnsOf(stats: TrialStatistics): Int32Array {
@@ -64,12 +88,12 @@ export function sameDesign(a: TrialStatistics, b: TrialStatistics): boolean {
   return true;
 }
 
-/** Shared part for a representative trial, term variances `termVariance[term]` and sigma2. */
-export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Array, termVariance: ArrayLike<number>, sigma2: number): PatternState {
+/** Fills `out` with the shared part for a representative trial, term variances `termVariance[term]` and sigma2. */
+export function evaluatePattern(stats: TrialStatistics, termVariance: ArrayLike<number>, sigma2: number, out: PatternState): void {
   const m = stats.m;
   const mz = m - 1;
   const K = stats.gram;
-  const R = randomColumns;
+  const R = out.randomColumns;
   const r = R.length;
   const d = dScratch.get(r);
   for (let a = 0; a < r; a++) d[a] = Math.sqrt(Math.max(0, termVariance[stats.termOfColumn[R[a]]]));
@@ -82,21 +106,25 @@ export function evaluatePattern(stats: TrialStatistics, randomColumns: Int32Arra
   const logDetM = choleskyInPlace(mm, r);
   const minv = invScratch.get(r * r);
   inverseFromCholesky(mm, r, minv, workScratch.get(r * r));
-  const w = f64(r * r);
+  const w = out.w;
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) w[a * r + b] = d[a] * minv[a * r + b] * d[b];
   // K_ZR is an indicator Gram block, mostly zeros: list each design column's nonzero random
   // rows once and skip the zero products (adding them would not change any sum)
   const nz = nonzeroRandomRows(K, m, mz, R);
-  const gz = f64(mz * r);
+  const gz = out.gz;
   for (let i = 0; i < mz; i++) gzRow(K, i * m, R, nz, i, w, r, gz);
-  const hzz = f64(mz * mz);
+  const hzz = out.hzz;
   for (let i = 0; i < mz; i++) hzzRow(K, m, mz, i, gz, R, nz, sigma2, hzz);
   let trWK = 0;
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) trWK += w[a * r + b] * K[R[b] * m + R[a]];
   // tr(W K W K) = sum_ab (K W)_ab (K W)_ba over the random rows of gz
   let trWKWK = 0;
   for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) trWKWK += gz[R[a] * r + b] * gz[R[b] * r + a];
-  return { sigma2, logDetM, randomColumns: R, w, gz, hzz, h2zz: null, trWK, trWKWK };
+  out.sigma2 = sigma2;
+  out.logDetM = logDetM;
+  out.h2Ready = false;
+  out.trWK = trWK;
+  out.trWKWK = trWKWK;
 }
 
 interface NonzeroRows {
@@ -153,18 +181,18 @@ function hzzRow(K: Float64Array, m: number, mz: number, i: number, gz: Float64Ar
   }
 }
 
-/** Design block of B'V^-2 B for a pattern: (hzz - gz hzz_R.) / sigma2, computed once. */
+/** Design block of B'V^-2 B for a pattern: (hzz - gz hzz_R.) / sigma2, computed once per evaluation. */
 export function ensurePatternH2(pat: PatternState, mz: number): Float64Array {
-  if (pat.h2zz) return pat.h2zz;
+  const out = pat.h2zz;
+  if (pat.h2Ready) return out;
   const R = pat.randomColumns;
   const r = R.length;
-  const out = f64(mz * mz);
   for (let i = 0; i < mz; i++)
     for (let j = 0; j < mz; j++) {
       let v = pat.hzz[i * mz + j];
       for (let b = 0; b < r; b++) v -= pat.gz[i * r + b] * pat.hzz[R[b] * mz + j];
       out[i * mz + j] = v / pat.sigma2;
     }
-  pat.h2zz = out;
+  pat.h2Ready = true;
   return out;
 }
