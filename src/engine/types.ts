@@ -1,5 +1,6 @@
 // Engine-facing data shapes. The engine never reads files or the workspace: intake and the
 // store turn their sources into these plain values.
+import type { PlotColumns } from './plotColumns.js';
 
 /** How the plots of a trial were laid out; decides the stage-1 model. */
 export type TrialDesign = 'completely-randomised' | 'randomised-blocks' | 'latin-square' | 'row-column';
@@ -38,6 +39,11 @@ export interface TrialInput {
   readonly year?: number;
   readonly design: TrialDesign;
   readonly plots: readonly PlotObservation[];
+  /**
+   * The same plots column by column, when the trial was read that way (plotColumns.ts). Not
+   * enumerable: copies of the trial drop it, and engines that can read columns use it when present.
+   */
+  readonly plotColumns?: PlotColumns;
   /** Trial-level covariates (soil pH, rainfall, previous crop ...) for meta-regression. */
   readonly covariates?: Readonly<Record<string, number | string | null>>;
 }

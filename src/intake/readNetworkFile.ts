@@ -1,11 +1,11 @@
 // `manyfield analyze --data F --spec S` on a file with one row per plot: the rows go through
-// the same PlotTableBuilder checks as an import, but land directly in per-trial engine plots.
+// the same PlotTableBuilder checks as an import, but land directly in the engine's plot columns.
 import type { NetworkInput } from '../engine/types.js';
 import type { AnalysisSpec } from '../spec/analysisSpec.js';
 import { assembleNetwork } from './analysisNetwork.js';
 import { parseMapping } from './mapping.js';
 import { analysisMapping, readPlotRows, type ReadPlotOptions } from './readPlotFile.js';
-import { TrialPlotsSink } from './trialPlotsSink.js';
+import { ColumnarPlotsSink } from './columnarPlotsSink.js';
 
 /** True when the spec's file has one row per plot (no trait column), the case readNetworkForAnalysis reads. */
 export function specHasOneRowPerPlot(spec: AnalysisSpec): boolean {
@@ -19,8 +19,8 @@ export function specHasOneRowPerPlot(spec: AnalysisSpec): boolean {
 export async function readNetworkForAnalysis(filePath: string, spec: AnalysisSpec, options: ReadPlotOptions = {}): Promise<{ network: NetworkInput; sha256: string }> {
   if (!specHasOneRowPerPlot(spec)) throw new Error('readNetworkForAnalysis: a file with a trait column is read with readDataForAnalysis');
   const mapping = parseMapping(analysisMapping(filePath, spec), filePath);
-  const sink = new TrialPlotsSink();
+  const sink = new ColumnarPlotsSink();
   const { summary, sha256 } = await readPlotRows(filePath, mapping, sink, options);
   // Without a trait column the mapping declares exactly one trait, the one every row holds.
-  return { network: assembleNetwork(summary, summary.traits[0], sink.plotsByTrial), sha256 };
+  return { network: assembleNetwork(summary, summary.traits[0], sink.plotsByTrial()), sha256 };
 }

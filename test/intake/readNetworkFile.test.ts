@@ -94,6 +94,24 @@ describe('readNetworkForAnalysis gives what the table path gives', () => {
     await expect(readNetworkForAnalysis('x.csv', analysisSpecSchema.parse({}))).rejects.toBeInstanceOf(IntakeError);
   });
 
+  it('rows of the trials interleaved (grouped by trial at the end, file order kept within each trial)', async () => {
+    const rows = validRows(['North', 'South', 'East'], ['2021', '2022'], 3);
+    // deal the rows round-robin from the back so no trial's rows are adjacent
+    const dealt: string[][] = [];
+    for (let k = 0; k < 7; k++) for (let i = rows.length - 1 - k; i >= 0; i -= 7) dealt.push(rows[i]);
+    expect(dealt.length).toBe(rows.length);
+    setCell(dealt, 4, 'yield', 'NA');
+    const r = await bothAgree(writeTemp('interleaved.csv', toCsv(dealt)), SPEC);
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    const net = r.network as { trials: { trial: string; plots: { plotId: unknown; value: number | null }[] }[] };
+    expect(net.trials.length).toBe(6);
+    for (const t of net.trials) {
+      const ids = t.plots.map((p) => p.plotId as number);
+      expect(ids).toEqual([...ids].sort((a, b) => a - b));
+    }
+  });
+
   it('block+treatment plot keys beyond the first 256 treatments (kept in a map) catch duplicates too', async () => {
     const header = ['env', 'block', 'trt', 'y'];
     const rows: string[][] = [];

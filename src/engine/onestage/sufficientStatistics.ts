@@ -1,7 +1,8 @@
 // Per-trial sufficient statistics, computed once per fit. Each trial's plots are summarised by
 // the Gram matrix of B = [trial intercept?, block indicators, treatment indicators, y]; every
 // REML quantity later is a function of these small matrices, never of the plots themselves.
-import type { NetworkInput, PlotObservation } from '../types.js';
+import type { NetworkInput, PlotObservation, TrialInput } from '../types.js';
+import type { PlotColumns, PlotColumnTable } from '../plotColumns.js';
 import type { RandomTerm } from './types.js';
 import { RANDOM_TERMS } from './types.js';
 import { f64, i32 } from './arena.js';
@@ -46,26 +47,15 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
   const termIncluded = RANDOM_TERMS.map((t) => random.includes(t));
   const known = new Map(network.treatments.map((t, i) => [t.code, i]));
   const observed = new Array<boolean>(network.treatments.length).fill(false);
+  const tables = new Map<PlotColumnTable, Int32Array>();
   let dropped = 0;
-  // keep[k] = 1 + network treatment index of plot k, or 0 when the plot is dropped
-  const usable: { trial: string; plots: readonly PlotObservation[]; keep: Int32Array }[] = [];
+  // first pass: which treatments have a usable plot anywhere, and which trials have any
+  const usable: TrialInput[] = [];
   for (const trial of network.trials) {
-    const plots = trial.plots;
-    const keep = i32(plots.length);
-    let any = false;
-    for (let k = 0; k < plots.length; k++) {
-      const p = plots[k];
-      const t = known.get(p.treatment);
-      if (t === undefined) throw new OneStageDataError(`trial "${trial.trial}": plot treatment "${p.treatment}" is not one of the network's treatments`);
-      if (p.value === null || p.excluded || !Number.isFinite(p.value)) {
-        dropped++;
-        continue;
-      }
-      observed[t] = true;
-      keep[k] = t + 1;
-      any = true;
-    }
-    if (any) usable.push({ trial: trial.trial, plots, keep });
+    const c = trial.plotColumns;
+    const r = c ? scanColumns(trial.trial, c, networkTreatmentOf(c.table, tables, known), observed) : scanPlots(trial, known, observed);
+    dropped += r.dropped;
+    if (r.any) usable.push(trial);
   }
   const globalIndex = new Array<number>(network.treatments.length).fill(-1);
   const treatments: string[] = [];
@@ -76,10 +66,66 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
     }
   });
   const blocks: BlockNumbering = { ids: new Map(), local: [], stamp: [] };
-  const trials = usable.map((u, i) => trialStatistics(u.trial, u.plots, u.keep, globalIndex, termIncluded, blocks, i));
+  const trials = usable.map((trial, i) => {
+    const c = trial.plotColumns;
+    const n = c ? columnPlots(c, tables.get(c.table)!, globalIndex, blocks, i) : objectPlots(trial.plots, known, globalIndex, blocks, i);
+    return trialStatistics(trial.trial, n, globalIndex.length, termIncluded);
+  });
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
   if (trials.length === 0) throw new OneStageDataError('no usable plots: every value is missing or excluded');
   return { treatments, trials, nObservations, droppedPlots: dropped, termIncluded };
+}
+
+function unknownTreatment(trial: string, code: string): OneStageDataError {
+  return new OneStageDataError(`trial "${trial}": plot treatment "${code}" is not one of the network's treatments`);
+}
+
+function usableValue(p: PlotObservation): boolean {
+  return p.value !== null && !p.excluded && Number.isFinite(p.value);
+}
+
+function scanPlots(trial: TrialInput, known: ReadonlyMap<string, number>, observed: boolean[]): { dropped: number; any: boolean } {
+  let dropped = 0;
+  let any = false;
+  for (const p of trial.plots) {
+    const t = known.get(p.treatment);
+    if (t === undefined) throw unknownTreatment(trial.trial, p.treatment);
+    if (!usableValue(p)) {
+      dropped++;
+      continue;
+    }
+    observed[t] = true;
+    any = true;
+  }
+  return { dropped, any };
+}
+
+/** Network treatment index of each of a table's treatment ids (-1 = not in the network), made once per table. */
+function networkTreatmentOf(table: PlotColumnTable, cache: Map<PlotColumnTable, Int32Array>, known: ReadonlyMap<string, number>): Int32Array {
+  let map = cache.get(table);
+  if (!map) {
+    map = Int32Array.from(table.treatmentCodes, (code) => known.get(code) ?? -1);
+    cache.set(table, map);
+  }
+  return map;
+}
+
+function scanColumns(trial: string, c: PlotColumns, toNetwork: Int32Array, observed: boolean[]): { dropped: number; any: boolean } {
+  const { treatment, value } = c.table;
+  let dropped = 0;
+  let any = false;
+  for (let i = c.start; i < c.start + c.count; i++) {
+    const t = toNetwork[treatment[i]];
+    if (t < 0) throw unknownTreatment(trial, c.table.treatmentCodes[treatment[i]]);
+    // NaN marks a missing value in the columns; any other non-finite value is dropped as in scanPlots
+    if (!Number.isFinite(value[i])) {
+      dropped++;
+      continue;
+    }
+    observed[t] = true;
+    any = true;
+  }
+  return { dropped, any };
 }
 
 /** Block labels numbered once for the whole network; `local`/`stamp` give each trial's own numbering. */
@@ -89,60 +135,99 @@ interface BlockNumbering {
   readonly stamp: number[];
 }
 
-function trialStatistics(
-  trial: string,
-  plots: readonly PlotObservation[],
-  keep: Int32Array,
-  globalIndex: readonly number[],
-  termIncluded: readonly boolean[],
-  blocks: BlockNumbering,
-  trialNo: number,
-): TrialStatistics {
-  // one pass to number the blocks and find the treatments present
-  let nBlocks = 0;
-  const treatOf = plotScratch(0, plots.length);
-  const blockIdx = plotScratch(1, plots.length);
-  const presentFlag = plotScratch(2, globalIndex.length);
-  presentFlag.fill(0, 0, globalIndex.length);
-  let n = 0;
-  for (let k = 0; k < plots.length; k++) {
-    if (!keep[k]) continue;
-    n++;
-    const p = plots[k];
-    const label = p.block ?? '';
-    let id = blocks.ids.get(label);
-    if (id === undefined) {
-      id = blocks.ids.size;
-      blocks.ids.set(label, id);
-      blocks.stamp.push(-1);
-      blocks.local.push(0);
-    }
-    if (blocks.stamp[id] !== trialNo) {
-      blocks.stamp[id] = trialNo;
-      blocks.local[id] = nBlocks++;
-    }
-    blockIdx[k] = blocks.local[id];
-    const g = globalIndex[keep[k] - 1];
-    treatOf[k] = g;
-    presentFlag[g] = 1;
+/** The trial's local number for a block label, numbering blocks in order of first appearance within the trial. */
+function localBlock(blocks: BlockNumbering, label: string, trialNo: number, nBlocks: { n: number }): number {
+  let id = blocks.ids.get(label);
+  if (id === undefined) {
+    id = blocks.ids.size;
+    blocks.ids.set(label, id);
+    blocks.stamp.push(-1);
+    blocks.local.push(0);
   }
+  if (blocks.stamp[id] !== trialNo) {
+    blocks.stamp[id] = trialNo;
+    blocks.local[id] = nBlocks.n++;
+  }
+  return blocks.local[id];
+}
+
+// The usable plots of the trial being summarised, in plot order: compact treatment index,
+// local block number and value (reused from trial to trial).
+let plotTreat = new Int32Array(64);
+let plotBlock = new Int32Array(64);
+let plotY = new Float64Array(64);
+const blockCount = { n: 0 };
+
+function ensurePlotScratch(n: number): void {
+  if (plotY.length >= n) return;
+  const size = Math.max(n, 2 * plotY.length);
+  plotTreat = new Int32Array(size);
+  plotBlock = new Int32Array(size);
+  plotY = new Float64Array(size);
+}
+
+/** Fills the plot scratch from plot objects; returns the number of usable plots. */
+function objectPlots(plots: readonly PlotObservation[], known: ReadonlyMap<string, number>, globalIndex: readonly number[], blocks: BlockNumbering, trialNo: number): number {
+  ensurePlotScratch(plots.length);
+  blockCount.n = 0;
+  let n = 0;
+  for (const p of plots) {
+    if (!usableValue(p)) continue;
+    plotTreat[n] = globalIndex[known.get(p.treatment)!];
+    plotBlock[n] = localBlock(blocks, p.block ?? '', trialNo, blockCount);
+    plotY[n] = p.value as number;
+    n++;
+  }
+  return n;
+}
+
+/** Fills the plot scratch from a trial's columns; returns the number of usable plots. */
+function columnPlots(c: PlotColumns, toNetwork: Int32Array, globalIndex: readonly number[], blocks: BlockNumbering, trialNo: number): number {
+  const { treatment, block, value, blockLabels } = c.table;
+  ensurePlotScratch(c.count);
+  blockCount.n = 0;
+  let n = 0;
+  let lastBlock = -2;
+  let lastLocal = -1;
+  for (let i = c.start; i < c.start + c.count; i++) {
+    const y = value[i];
+    if (!Number.isFinite(y)) continue;
+    plotTreat[n] = globalIndex[toNetwork[treatment[i]]];
+    const b = block[i];
+    if (b !== lastBlock) {
+      lastBlock = b;
+      lastLocal = localBlock(blocks, b < 0 ? '' : blockLabels[b], trialNo, blockCount);
+    }
+    plotBlock[n] = lastLocal;
+    plotY[n] = y;
+    n++;
+  }
+  return n;
+}
+
+/** Statistics of the trial whose n usable plots are in the plot scratch (blockCount.n blocks). */
+function trialStatistics(trial: string, n: number, nTreatments: number, termIncluded: readonly boolean[]): TrialStatistics {
+  const nBlocks = blockCount.n;
+  const presentFlag = plotScratch(0, nTreatments);
+  presentFlag.fill(0, 0, nTreatments);
+  for (let k = 0; k < n; k++) presentFlag[plotTreat[k]] = 1;
   const present: number[] = [];
-  for (let g = 0; g < globalIndex.length; g++) if (presentFlag[g]) present.push(g);
+  for (let g = 0; g < nTreatments; g++) if (presentFlag[g]) present.push(g);
   const hasIntercept = termIncluded[0];
   const blockStart = hasIntercept ? 1 : 0;
   const treatStart = blockStart + nBlocks;
   const yColumn = treatStart + present.length;
   const m = yColumn + 1;
-  const treatCol = plotScratch(3, globalIndex.length);
+  const treatCol = plotScratch(1, nTreatments);
   for (let i = 0; i < present.length; i++) treatCol[present[i]] = treatStart + i;
   // B'B from per-cell counts and per-column sums of y (each sum in plot order, as a direct
   // accumulation of B'B would add them): a plot touches one block and one treatment
   const nT = present.length;
-  const counts = plotScratch(4, nBlocks * nT);
+  const counts = plotScratch(2, nBlocks * nT);
   counts.fill(0, 0, nBlocks * nT);
   const ySums = sumScratch(nBlocks + nT);
   ySums.fill(0, 0, nBlocks + nT);
-  const yAll = accumulatePlots(plots, keep, blockIdx, treatOf, treatCol, treatStart, nT, nBlocks, counts, ySums);
+  const yAll = accumulatePlots(n, treatCol, treatStart, nT, nBlocks, counts, ySums);
   const gram = f64(m * m);
   assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
   const termOfColumn = new Int8Array(m - 1).fill(-1);
@@ -160,26 +245,14 @@ function trialStatistics(
   return { trial, n, m, gram, termOfColumn, treatmentColumns, treatmentIndex, blockColumns, yColumn };
 }
 
-/** Per-cell plot counts (block x treatment) and y sums (blocks, then treatments); returns [sum y, sum y^2]. */
-function accumulatePlots(
-  plots: readonly PlotObservation[],
-  keep: Int32Array,
-  blockIdx: Int32Array,
-  treatOf: Int32Array,
-  treatCol: Int32Array,
-  treatStart: number,
-  nT: number,
-  nBlocks: number,
-  counts: Int32Array,
-  ySums: Float64Array,
-): Float64Array {
+/** Per-cell plot counts (block x treatment) and y sums (blocks, then treatments) of the plot scratch; returns [sum y, sum y^2]. */
+function accumulatePlots(n: number, treatCol: Int32Array, treatStart: number, nT: number, nBlocks: number, counts: Int32Array, ySums: Float64Array): Float64Array {
   let sum = 0;
   let sumSq = 0;
-  for (let k = 0; k < plots.length; k++) {
-    if (!keep[k]) continue;
-    const y = plots[k].value as number;
-    const b = blockIdx[k];
-    const t = treatCol[treatOf[k]] - treatStart;
+  for (let k = 0; k < n; k++) {
+    const y = plotY[k];
+    const b = plotBlock[k];
+    const t = treatCol[plotTreat[k]] - treatStart;
     counts[b * nT + t]++;
     ySums[b] += y;
     ySums[nBlocks + t] += y;
@@ -226,7 +299,7 @@ function assembleGram(gram: Float64Array, m: number, hasIntercept: boolean, bloc
 }
 
 // Per-plot working arrays of trialStatistics, reused from trial to trial (one trial at a time).
-const scratchInts: Int32Array[] = [new Int32Array(64), new Int32Array(64), new Int32Array(64), new Int32Array(64), new Int32Array(64)];
+const scratchInts: Int32Array[] = [new Int32Array(64), new Int32Array(64), new Int32Array(64)];
 let scratchSums = new Float64Array(64);
 function sumScratch(n: number): Float64Array {
   if (scratchSums.length < n) scratchSums = new Float64Array(Math.max(n, 2 * scratchSums.length));
