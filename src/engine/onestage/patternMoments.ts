@@ -6,7 +6,6 @@
 // trials into a sum over F's columns ("pseudo-trials" whose last coordinate c replaces the 1).
 // A pattern with few trials keeps the trials' own vectors as its columns.
 import type { TrialStatistics } from './sufficientStatistics.js';
-import { f64 } from './arena.js';
 
 export interface PatternMoments {
   /** Column vectors (u = Z'y over the design columns, then c), each of length m; row-major. */
@@ -17,33 +16,46 @@ export interface PatternMoments {
   readonly sumYy: number;
 }
 
-function dataVector(t: TrialStatistics): Float64Array {
+/** The trial's v = (Z'y, 1) into out[o ...]. */
+function dataVectorInto(t: TrialStatistics, out: Float64Array, o: number): void {
   const m = t.m;
   const mz = m - 1;
-  const v = f64(m);
-  for (let j = 0; j < mz; j++) v[j] = t.gram[j * m + mz];
-  v[mz] = 1;
-  return v;
+  for (let j = 0; j < mz; j++) out[o + j] = t.gram[j * m + mz];
+  out[o + mz] = 1;
 }
 
 export function patternMoments(trials: readonly TrialStatistics[]): PatternMoments {
   const m = trials[0].m;
+  const mz = m - 1;
   const sum = new Float64Array(m);
   let sumYy = 0;
-  const vs = trials.map(dataVector);
-  for (let i = 0; i < trials.length; i++) {
-    sumYy += trials[i].gram[m * m - 1];
-    for (let j = 0; j < m; j++) sum[j] += vs[i][j];
+  for (const t of trials) {
+    sumYy += t.gram[m * m - 1];
+    for (let j = 0; j < mz; j++) sum[j] += t.gram[j * m + mz];
+    sum[mz] += 1;
   }
   if (trials.length <= m) {
     const columns = new Float64Array(trials.length * m);
-    vs.forEach((v, i) => columns.set(v, i * m));
+    trials.forEach((t, i) => dataVectorInto(t, columns, i * m));
     return { columns, nColumns: trials.length, sum, sumYy };
   }
   const s = new Float64Array(m * m);
-  for (const v of vs) for (let a = 0; a < m; a++) for (let b = 0; b < m; b++) s[a * m + b] += v[a] * v[b];
+  const v = new Float64Array(m);
+  for (const t of trials) {
+    dataVectorInto(t, v, 0);
+    addOuter(s, v, m);
+  }
+  for (let a = 0; a < m; a++) for (let b = 0; b < a; b++) s[a * m + b] = s[b * m + a];
   const cols = pivotedCholesky(s, m);
   return { columns: cols.data, nColumns: cols.rank, sum, sumYy };
+}
+
+/** s += v v' (upper triangle, then mirrored: the same sums in the same order either way). */
+function addOuter(s: Float64Array, v: Float64Array, m: number): void {
+  for (let a = 0; a < m; a++) {
+    const va = v[a];
+    for (let b = a; b < m; b++) s[a * m + b] += va * v[b];
+  }
 }
 
 /** Columns f_k with sum_k f_k f_k' = S for a positive semi-definite S (outer-product form). */

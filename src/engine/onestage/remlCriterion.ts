@@ -30,10 +30,23 @@ export interface ModelFrame {
 }
 
 export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): ModelFrame {
-  // trials of one pattern: same residual parameter and identical design (hash, then exact check)
-  const { groupOf: patternOf, representative: patternTrial } = groupTrials(stats, layout.residualParameter);
-  // trials of one design, whatever their residual parameter (for design-only work)
-  const { groupOf: designOf } = groupTrials(stats, null);
+  // trials of one design (identical design blocks of the Gram matrix: hash, then exact check),
+  // whatever their residual parameter; then patterns: one design and one residual parameter
+  const { groupOf: designOf, representative: designTrial } = groupTrials(stats);
+  const patternOf = new Int32Array(stats.trials.length);
+  const patternTrial: number[] = [];
+  const patternKey = new Map<number, number>();
+  const nDesigns = designTrial.length;
+  for (let i = 0; i < stats.trials.length; i++) {
+    const key = layout.residualParameter[i] * nDesigns + designOf[i];
+    let q = patternKey.get(key);
+    if (q === undefined) {
+      q = patternTrial.length;
+      patternTrial.push(i);
+      patternKey.set(key, q);
+    }
+    patternOf[i] = q;
+  }
   const patternCount = new Int32Array(patternTrial.length);
   for (const q of patternOf) patternCount[q]++;
   const members: (typeof stats.trials)[number][][] = patternTrial.map(() => []);
@@ -41,7 +54,9 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
   const moments = members.map(patternMoments);
   const columnOffsets = new Int32Array(patternTrial.length + 1);
   moments.forEach((mo, q) => (columnOffsets[q + 1] = columnOffsets[q] + mo.nColumns * (stats.trials[patternTrial[q]].m - 1)));
-  const randomColumns = stats.trials.map(randomColumnsOf);
+  // random columns depend on the design only: one array per design, shared by its trials
+  const designColumns = designTrial.map((i) => randomColumnsOf(stats.trials[i]));
+  const randomColumns = Array.from(designOf, (d) => designColumns[d]);
   const pool = new EvaluationPool({
     representatives: patternTrial.map((i) => stats.trials[i]),
     randomColumns: patternTrial.map((i) => randomColumns[i]),
@@ -51,21 +66,19 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
   return { stats, layout, randomColumns, patternOf, patternTrial, patternCount, moments, columnOffsets, designOf, pool };
 }
 
-/** Groups of trials with identical designs (and, if given, the same residual parameter), numbered in order of first appearance. */
-function groupTrials(stats: NetworkStatistics, residualParameter: Int32Array | null): { groupOf: Int32Array; representative: number[] } {
+/** Groups of trials with identical designs, numbered in order of first appearance. */
+function groupTrials(stats: NetworkStatistics): { groupOf: Int32Array; representative: number[] } {
   const candidates = new Map<number, number[]>();
   const representative: number[] = [];
   const groupOf = new Int32Array(stats.trials.length);
   for (let i = 0; i < stats.trials.length; i++) {
     const t = stats.trials[i];
-    const res = residualParameter ? residualParameter[i] : -1;
-    const h = designHash(t, res);
+    const h = designHash(t);
     let list = candidates.get(h);
     if (!list) candidates.set(h, (list = []));
     let id = -1;
     for (const q of list) {
-      const rep = representative[q];
-      if ((!residualParameter || residualParameter[rep] === res) && sameDesign(stats.trials[rep], t)) {
+      if (sameDesign(stats.trials[representative[q]], t)) {
         id = q;
         break;
       }

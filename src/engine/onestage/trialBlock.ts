@@ -63,9 +63,9 @@ export function randomColumnsOf(stats: TrialStatistics): Int32Array {
 }
 
 /** Hash of what sameDesign compares (n, m, column terms, treatments, design block of the Gram matrix). */
-export function designHash(stats: TrialStatistics, residualParameter: number): number {
+export function designHash(stats: TrialStatistics): number {
   const mz = stats.m - 1;
-  let h = mix(mix(mix(0x811c9dc5, residualParameter), stats.n), stats.m);
+  let h = mix(mix(0x811c9dc5, stats.n), stats.m);
   for (let i = 0; i < mz; i++) h = mix(h, stats.termOfColumn[i]);
   for (let i = 0; i < stats.treatmentIndex.length; i++) h = mix(h, stats.treatmentIndex[i]);
   const K = stats.gram;
