@@ -56,18 +56,38 @@ export function plotsFromColumns(c: PlotColumns): PlotObservation[] {
 }
 
 /**
- * A TrialInput over columns: `plots` is an enumerable property built on first read (so copies
- * made with spread, JSON and structured clones see ordinary plots), while `plotColumns` is not
- * enumerable, so a copy whose plots were changed (a transform, an exclusion) never carries
- * columns that no longer match them.
+ * A TrialInput over columns: `plots` is an own enumerable property built on first read (so
+ * copies made with spread, JSON and structured clones see ordinary plots), while `plotColumns`
+ * lives on the prototype, so a copy whose plots were changed (a transform, an exclusion) never
+ * carries columns that no longer match them.
  */
 export function trialOverColumns(fields: Omit<TrialInput, 'plots' | 'plotColumns'>, columns: PlotColumns): TrialInput {
-  const trial = { ...fields } as TrialInput;
-  let plots: PlotObservation[] | null = null;
-  Object.defineProperty(trial, 'plots', {
-    enumerable: true,
-    get: () => (plots ??= plotsFromColumns(columns)),
-  });
-  Object.defineProperty(trial, 'plotColumns', { enumerable: false, value: columns });
-  return trial;
+  return new TrialOverColumns(fields, columns) as unknown as TrialInput;
 }
+
+class TrialOverColumns {
+  readonly #columns: PlotColumns;
+  #plots: PlotObservation[] | null = null;
+
+  constructor(fields: Omit<TrialInput, 'plots' | 'plotColumns'>, columns: PlotColumns) {
+    Object.assign(this, fields);
+    this.#columns = columns;
+    // one shared descriptor: no closure per trial
+    Object.defineProperty(this, 'plots', PLOTS);
+  }
+
+  get plotColumns(): PlotColumns {
+    return this.#columns;
+  }
+
+  plotsFromColumns(): PlotObservation[] {
+    return (this.#plots ??= plotsFromColumns(this.#columns));
+  }
+}
+
+const PLOTS: PropertyDescriptor = {
+  enumerable: true,
+  get(this: TrialOverColumns): PlotObservation[] {
+    return this.plotsFromColumns();
+  },
+};

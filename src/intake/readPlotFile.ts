@@ -60,7 +60,9 @@ export async function readPlotRows(filePath: string, mapping: ImportMapping, sin
     throw new Error('unreachable');
   }
   const builder = new PlotTableBuilder(cols, mapping, source.decimalMode, problems, sink);
-  let sinceReport = 0;
+  // The first report comes after the first row: the loop's optimised code then has seen the
+  // report branch, instead of being thrown away when the branch is first taken mid-file.
+  let sinceReport = PROGRESS_EVERY - 1;
   for (;;) {
     const rowNo = source.next();
     if (rowNo === 0) break;

@@ -82,8 +82,9 @@ interface WorkVectors {
 }
 
 function workVectors(frame: ModelFrame): WorkVectors {
+  // every trial has the size of its pattern's representative: a loop over patterns, not trials
   let maxM = 1;
-  for (const t of frame.stats.trials) if (t.m > maxM) maxM = t.m;
+  for (const i of frame.patternTrial) if (frame.stats.trials[i].m > maxM) maxM = frame.stats.trials[i].m;
   return { h: new Float64Array(maxM), h2: new Float64Array(maxM), h2y: new Float64Array(maxM), av: new Float64Array(maxM), kr: new Float64Array(maxM) };
 }
 

@@ -5,7 +5,7 @@ import type { NetworkInput, PlotObservation, TrialInput } from '../types.js';
 import type { PlotColumns, PlotColumnTable } from '../plotColumns.js';
 import type { RandomTerm } from './types.js';
 import { RANDOM_TERMS } from './types.js';
-import { f64, i32 } from './arena.js';
+import { f64 } from './arena.js';
 
 /** Term index of a column: 0 trial, 1 block, 2 treatment:trial (see RANDOM_TERMS). */
 export type TermIndex = 0 | 1 | 2;
@@ -17,6 +17,7 @@ export interface TrialStatistics {
   readonly m: number;
   /** B'B, m x m row-major. */
   readonly gram: Float64Array;
+  // The four role arrays below are shared by trials laid out alike: read them, never write.
   /** For each column except y: the random term it belongs to, or -1 (a fixed-only column). */
   readonly termOfColumn: Int8Array;
   /** Columns holding the treatments present in this trial, and their global treatment index. */
@@ -230,19 +231,50 @@ function trialStatistics(trial: string, n: number, nTreatments: number, termIncl
   const yAll = accumulatePlots(n, treatCol, treatStart, nT, nBlocks, counts, ySums);
   const gram = f64(m * m);
   assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
+  const { termOfColumn, treatmentColumns, treatmentIndex, blockColumns } = columnRoles(present, nBlocks, termIncluded);
+  return { trial, n, m, gram, termOfColumn, treatmentColumns, treatmentIndex, blockColumns, yColumn };
+}
+
+/** Which columns are which in a trial's B (read-only, shared by trials laid out alike). */
+interface ColumnRoles {
+  readonly termOfColumn: Int8Array;
+  readonly treatmentColumns: Int32Array;
+  readonly treatmentIndex: Int32Array;
+  readonly blockColumns: Int32Array;
+}
+
+// One-entry cache: trials in a network are mostly laid out alike (same blocks, same
+// treatments), and then share one set of role arrays instead of each allocating four.
+let lastRoles: { present: number[]; nBlocks: number; termIncluded: readonly boolean[]; roles: ColumnRoles } | null = null;
+
+function columnRoles(present: number[], nBlocks: number, termIncluded: readonly boolean[]): ColumnRoles {
+  const last = lastRoles;
+  if (last && last.nBlocks === nBlocks && last.termIncluded === termIncluded && sameList(last.present, present)) return last.roles;
+  const hasIntercept = termIncluded[0];
+  const blockStart = hasIntercept ? 1 : 0;
+  const treatStart = blockStart + nBlocks;
+  const m = treatStart + present.length + 1;
   const termOfColumn = new Int8Array(m - 1).fill(-1);
   if (hasIntercept) termOfColumn[0] = 0;
   if (termIncluded[1]) for (let i = 0; i < nBlocks; i++) termOfColumn[blockStart + i] = 1;
   if (termIncluded[2]) for (let i = 0; i < present.length; i++) termOfColumn[treatStart + i] = 2;
-  const treatmentColumns = i32(present.length);
-  const treatmentIndex = i32(present.length);
+  const treatmentColumns = new Int32Array(present.length);
+  const treatmentIndex = new Int32Array(present.length);
   for (let i = 0; i < present.length; i++) {
     treatmentColumns[i] = treatStart + i;
     treatmentIndex[i] = present[i];
   }
-  const blockColumns = i32(nBlocks);
+  const blockColumns = new Int32Array(nBlocks);
   for (let i = 0; i < nBlocks; i++) blockColumns[i] = blockStart + i;
-  return { trial, n, m, gram, termOfColumn, treatmentColumns, treatmentIndex, blockColumns, yColumn };
+  const roles = { termOfColumn, treatmentColumns, treatmentIndex, blockColumns };
+  lastRoles = { present, nBlocks, termIncluded, roles };
+  return roles;
+}
+
+function sameList(a: readonly number[], b: readonly number[]): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
 }
 
 /** Per-cell plot counts (block x treatment) and y sums (blocks, then treatments) of the plot scratch; returns [sum y, sum y^2]. */
