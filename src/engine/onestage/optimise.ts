@@ -160,7 +160,10 @@ function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number
   }
   if (!x && !notPositiveDefinite) x = denseSolve(sc, free, nP, g);
   // AI singular along some direction: fall back to a scaled gradient step on the diagonal.
-  if (!x) x = Float64Array.from(g, (gi, i) => gi / Math.max(sc.ai[free[i] * nP + free[i]], 1e-300));
+  if (!x) {
+    const ai = sc.ai;
+    x = Float64Array.from(g, (gi, i) => gi / Math.max(ai[free[i] * nP + free[i]], 1e-300));
+  }
   let decrement = 0;
   for (let i = 0; i < f; i++) {
     direction[free[i]] = -x[i];
@@ -173,7 +176,8 @@ function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number
 function denseSolve(sc: ScoreAndInformation, free: readonly number[], nP: number, g: Float64Array): Float64Array | null {
   const f = free.length;
   const a: Matrix = { rows: f, cols: f, data: new Float64Array(f * f) };
-  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a.data[i * f + j] = sc.ai[free[i] * nP + free[j]];
+  const ai = sc.ai; // a getter: read once, not per entry
+  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a.data[i * f + j] = ai[free[i] * nP + free[j]];
   try {
     return cholSolve(cholesky(a), g);
   } catch (err) {

@@ -5,12 +5,14 @@
 //   O_kl  = 2 y'P V_k P V_l P y - tr(P V_k P V_l)   observed Hessian of -2 logLik
 // with tr(P V_k P V_l) = tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) + tr(C P_k C P_l). All sums run
 // over the small blocks. They depend on the design only, so each design pattern is visited once
-// and weighted by its number of trials; Q_kl is only ever held per pattern.
+// and weighted by its number of trials; Q_kl is only ever held per pattern (for Kenward–Roger;
+// E takes its traces without forming it).
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensurePatternH2 } from './trialBlock.js';
-import { localBlock, type ActiveParameter } from './trialParameters.js';
-import { f64 } from './arena.js';
+import type { ActiveParameter } from './trialParameters.js';
+import { f64, Scratch } from './arena.js';
+import { gatherDot, rowsDot } from '../linalg/gatherDot.js';
 
 export interface SecondOrder {
   /** P_k for each parameter, p x p. */
@@ -38,13 +40,10 @@ function mul(a: Small, b: Small): Small {
   return { rows: a.rows, cols: b.cols, data: out };
 }
 
-/** Design-only pieces of one pattern (every trial of the pattern has the same ones). */
+/** Design-only pieces of one pattern (every trial of the pattern has the same ones), for Kenward–Roger. */
 interface PatternForms {
-  readonly pLocal: Map<number, Small>;
   /** Q_kl restricted to the pattern's treatments, for an active pair (k, l) in that order. */
   readonly q: (a: ActiveParameter, b: ActiveParameter) => Small;
-  /** tr(V_i^-1 V_k V_i^-1 V_l). */
-  readonly trVV: (a: ActiveParameter, b: ActiveParameter) => number;
 }
 
 function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[]): PatternForms {
@@ -55,8 +54,6 @@ function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonl
   const H = pat.hzz;
   const H2 = ensurePatternH2(pat, mz);
   let H3: Small | null = null;
-  const pLocal = new Map<number, Small>();
-  for (const a of act) pLocal.set(a.index, a.columns ? mul(sub(H, mz, T, a.columns), sub(H, mz, a.columns, T)) : sub(H2, mz, T, T));
   const third = (): Small => {
     // B'V^-3 B on the treatment block: (H2_TT - gz_T. H2_RT) / sigma2
     const R = pat.randomColumns;
@@ -78,29 +75,91 @@ function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonl
     H3 ??= third();
     return H3;
   };
-  const trVV = (a: ActiveParameter, b: ActiveParameter): number => {
-    let v = 0;
-    if (a.columns && b.columns) {
-      const ZA = a.columns;
-      const ZB = b.columns;
-      for (let xa = 0; xa < ZA.length; xa++) for (let yb = 0; yb < ZB.length; yb++) v += H[ZA[xa] * mz + ZB[yb]] ** 2;
-    } else if (a.columns || b.columns) {
-      const Z = (a.columns ?? b.columns)!;
-      for (let xz = 0; xz < Z.length; xz++) v += H2[Z[xz] * mz + Z[xz]];
-    } else {
-      v = (t.n - 2 * pat.trWK + pat.trWKWK) / (pat.sigma2 * pat.sigma2);
-    }
-    return v;
-  };
-  return { pLocal, q: qf, trVV };
+  return { q: qf };
 }
 
-function traceProduct(a: Float64Array, b: Small): number {
-  // tr(A B) for square A, B of the same size
-  const n = b.rows;
-  let s = 0;
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) s += a[i * n + j] * b.data[j * n + i];
-  return s;
+// Working arrays of patternExpected, reused from pattern to pattern.
+const clScratch = new Scratch();
+const wScratch = new Scratch();
+const rcScratch = new Scratch();
+const d2Scratch = new Scratch();
+
+/**
+ * One pattern's part of P_k and of E_kl = tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) (the tr(C P_k C P_l)
+ * part is added for the whole network afterwards), times its number of trials. The traces
+ * tr(C Q_kl) are taken without forming Q_kl: with W = C_TT H_TR and RC = H_RT W,
+ *   term-term      tr(C H_TA H_AB H_BT) = sum_{x in A, y in B} H_xy RC_yx
+ *   term-residual  tr(C H_TA H2_AT)     = sum_{x in A} (H2_xT W)_x
+ *   residual pair  tr(C H3_TT),          H3 = B'V^-3 B
+ * (T treatment columns, R random columns, H = B'V^-1 B, H2 = B'V^-2 B on the design columns).
+ */
+function patternExpected(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], P: Float64Array[], expected: Float64Array): void {
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const pat = ev.patterns[q];
+  const count = frame.patternCount[q];
+  const p = frame.stats.treatments.length;
+  const nP = frame.layout.parameters.length;
+  const mz = t.m - 1;
+  const T = t.treatmentColumns;
+  const tg = t.treatmentIndex;
+  const nt = T.length;
+  const R = pat.randomColumns;
+  const r = R.length;
+  const H = pat.hzz;
+  const H2 = ensurePatternH2(pat, mz);
+  const cl = clScratch.get(nt * nt);
+  for (let a = 0; a < nt; a++) for (let b = 0; b < nt; b++) cl[a * nt + b] = ev.c[tg[a] * p + tg[b]];
+  // P_k on this pattern's treatments (H, H2 symmetric: rows stand in for columns)
+  for (let ia = 0; ia < act.length; ia++) {
+    const a = act[ia];
+    const target = P[a.index];
+    for (let x = 0; x < nt; x++)
+      for (let y = 0; y < nt; y++) target[tg[x] * p + tg[y]] += count * (a.columns ? rowsDot(H, T[x] * mz, T[y] * mz, a.columns) : H2[T[x] * mz + T[y]]);
+  }
+  // W = C_TT H_TR (nt x r) and RC = H_RT W (r x r), by position in R; d2 = diag(H2_RT W)
+  const w = wScratch.get(nt * r);
+  for (let x = 0; x < nt; x++) for (let b = 0; b < r; b++) w[x * r + b] = gatherDot(H, R[b] * mz, T, cl, x * nt, 1);
+  const rc = rcScratch.get(r * r);
+  for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) rc[a * r + b] = gatherDot(H, R[a] * mz, T, w, b, r);
+  const d2 = d2Scratch.get(r);
+  for (let b = 0; b < r; b++) d2[b] = gatherDot(H2, R[b] * mz, T, w, b, r);
+  const positionInR = positionScratch(mz, R);
+  for (let ia = 0; ia < act.length; ia++)
+    for (let ib = ia; ib < act.length; ib++) {
+      const A = act[ia];
+      const B = act[ib];
+      let trVV = 0;
+      let trCQ = 0;
+      if (A.columns && B.columns) {
+        for (const xc of A.columns)
+          for (const yc of B.columns) {
+            const h = H[xc * mz + yc];
+            trVV += h * h;
+            trCQ += h * rc[positionInR[yc] * r + positionInR[xc]];
+          }
+      } else if (A.columns || B.columns) {
+        for (const zc of (A.columns ?? B.columns)!) {
+          trVV += H2[zc * mz + zc];
+          trCQ += d2[positionInR[zc]];
+        }
+      } else {
+        trVV = (t.n - 2 * pat.trWK + pat.trWKWK) / (pat.sigma2 * pat.sigma2);
+        // tr(C H3) with H3_yx = (H2_yx - gz_y. H2_Rx) / sigma2 on the treatment columns
+        for (let x = 0; x < nt; x++)
+          for (let y = 0; y < nt; y++) trCQ += (cl[x * nt + y] * (H2[T[y] * mz + T[x]] - gatherDot(H2, T[x] * mz, R, pat.gz, T[y] * r, 1))) / pat.sigma2;
+      }
+      const v = count * (trVV - 2 * trCQ);
+      expected[A.index * nP + B.index] += v;
+      if (A.index !== B.index) expected[B.index * nP + A.index] += v;
+    }
+}
+
+let positions = new Int32Array(64);
+/** Position of each random design column in R (other entries undefined). */
+function positionScratch(mz: number, R: Int32Array): Int32Array {
+  if (positions.length < mz) positions = new Int32Array(2 * mz);
+  for (let b = 0; b < R.length; b++) positions[R[b]] = b;
+  return positions;
 }
 
 export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndInformation, active: readonly ActiveParameter[][]): SecondOrder {
@@ -108,27 +167,7 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
   const p = frame.stats.treatments.length;
   const P = Array.from({ length: nP }, () => new Float64Array(p * p));
   const expected = new Float64Array(nP * nP);
-  for (let q = 0; q < frame.patternTrial.length; q++) {
-    const i0 = frame.patternTrial[q];
-    const count = frame.patternCount[q];
-    const tg = frame.stats.trials[i0].treatmentIndex;
-    const cl = localBlock(ev.c, p, tg);
-    const act = active[i0];
-    const f = patternForms(frame, ev, q, act);
-    for (const a of act) {
-      const pl = f.pLocal.get(a.index)!;
-      const target = P[a.index];
-      for (let x = 0; x < tg.length; x++) for (let y = 0; y < tg.length; y++) target[tg[x] * p + tg[y]] += count * pl.data[x * tg.length + y];
-    }
-    for (let ia = 0; ia < act.length; ia++)
-      for (let ib = ia; ib < act.length; ib++) {
-        const a = act[ia];
-        const b = act[ib];
-        const v = count * (f.trVV(a, b) - 2 * traceProduct(cl, f.q(a, b)));
-        expected[a.index * nP + b.index] += v;
-        if (a.index !== b.index) expected[b.index * nP + a.index] += v;
-      }
-  }
+  for (let q = 0; q < frame.patternTrial.length; q++) patternExpected(frame, ev, q, active[frame.patternTrial[q]], P, expected);
   // + tr(C P_k C P_l)
   // all C P_k in one array, and their transposes, so each pair is one contiguous dot product
   // (summed in the same order as the double loop over (a, b))
@@ -141,7 +180,8 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
   }
   for (let k = 0; k < nP; k++) addTraceRow(expected, cp, cpT, k, nP, pp);
   const observed = new Float64Array(nP * nP);
-  for (let j = 0; j < nP * nP; j++) observed[j] = 2 * score.ai[j] - expected[j];
+  const ai = score.ai; // a getter: read once, not per entry
+  for (let j = 0; j < nP * nP; j++) observed[j] = 2 * ai[j] - expected[j];
   return { p: P, expected, observed };
 }
 

@@ -137,7 +137,7 @@ interface BlockNumbering {
 }
 
 /** The trial's local number for a block label, numbering blocks in order of first appearance within the trial. */
-function localBlock(blocks: BlockNumbering, label: string, trialNo: number, nBlocks: { n: number }): number {
+function trialBlockNumber(blocks: BlockNumbering, label: string, trialNo: number, nBlocks: { n: number }): number {
   let id = blocks.ids.get(label);
   if (id === undefined) {
     id = blocks.ids.size;
@@ -175,7 +175,7 @@ function objectPlots(plots: readonly PlotObservation[], known: ReadonlyMap<strin
   for (const p of plots) {
     if (!usableValue(p)) continue;
     plotTreat[n] = globalIndex[known.get(p.treatment)!];
-    plotBlock[n] = localBlock(blocks, p.block ?? '', trialNo, blockCount);
+    plotBlock[n] = trialBlockNumber(blocks, p.block ?? '', trialNo, blockCount);
     plotY[n] = p.value as number;
     n++;
   }
@@ -197,7 +197,7 @@ function columnPlots(c: PlotColumns, toNetwork: Int32Array, globalIndex: readonl
     const b = block[i];
     if (b !== lastBlock) {
       lastBlock = b;
-      lastLocal = localBlock(blocks, b < 0 ? '' : blockLabels[b], trialNo, blockCount);
+      lastLocal = trialBlockNumber(blocks, b < 0 ? '' : blockLabels[b], trialNo, blockCount);
     }
     plotBlock[n] = lastLocal;
     plotY[n] = y;
