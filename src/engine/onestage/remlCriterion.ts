@@ -73,6 +73,11 @@ function groupTrials(stats: NetworkStatistics): { groupOf: Int32Array; represent
   const groupOf = new Int32Array(stats.trials.length);
   for (let i = 0; i < stats.trials.length; i++) {
     const t = stats.trials[i];
+    if (t.sameDesignAs >= 0) {
+      // known while the statistics were built: no need to compare Gram matrices
+      groupOf[i] = groupOf[t.sameDesignAs];
+      continue;
+    }
     const h = designHash(t);
     let list = candidates.get(h);
     if (!list) candidates.set(h, (list = []));

@@ -25,6 +25,8 @@ export interface TrialStatistics {
   readonly treatmentIndex: Int32Array;
   readonly blockColumns: Int32Array;
   readonly yColumn: number;
+  /** An earlier trial (index in NetworkStatistics.trials) known to have the identical design, or -1: saves comparing Gram matrices. */
+  readonly sameDesignAs: number;
 }
 
 export interface NetworkStatistics {
@@ -67,11 +69,13 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
     }
   });
   const blocks: BlockNumbering = { ids: new Map(), local: [], stamp: [] };
+  previousTrial = null;
   const trials = usable.map((trial, i) => {
     const c = trial.plotColumns;
     const n = c ? columnPlots(c, tables.get(c.table)!, globalIndex, blocks, i) : objectPlots(trial.plots, known, globalIndex, blocks, i);
-    return trialStatistics(trial.trial, n, globalIndex.length, termIncluded);
+    return trialStatistics(trial.trial, i, n, globalIndex.length, termIncluded);
   });
+  previousTrial = null;
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
   if (trials.length === 0) throw new OneStageDataError('no usable plots: every value is missing or excluded');
   return { treatments, trials, nObservations, droppedPlots: dropped, termIncluded };
@@ -207,7 +211,11 @@ function columnPlots(c: PlotColumns, toNetwork: Int32Array, globalIndex: readonl
 }
 
 /** Statistics of the trial whose n usable plots are in the plot scratch (blockCount.n blocks). */
-function trialStatistics(trial: string, n: number, nTreatments: number, termIncluded: readonly boolean[]): TrialStatistics {
+/** The trial summarised last in this network, for the shortcut in trialStatistics. */
+let previousTrial: { readonly stats: TrialStatistics; readonly index: number; readonly roles: ColumnRoles; readonly counts: Int32Array } | null = null;
+
+/** Statistics of the trial whose n usable plots are in the plot scratch (blockCount.n blocks). */
+function trialStatistics(trial: string, index: number, n: number, nTreatments: number, termIncluded: readonly boolean[]): TrialStatistics {
   const nBlocks = blockCount.n;
   const presentFlag = plotScratch(0, nTreatments);
   presentFlag.fill(0, 0, nTreatments);
@@ -229,10 +237,36 @@ function trialStatistics(trial: string, n: number, nTreatments: number, termIncl
   const ySums = sumScratch(nBlocks + nT);
   ySums.fill(0, 0, nBlocks + nT);
   const yAll = accumulatePlots(n, treatCol, treatStart, nT, nBlocks, counts, ySums);
+  const roles = columnRoles(present, nBlocks, termIncluded);
   const gram = f64(m * m);
-  assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
-  const { termOfColumn, treatmentColumns, treatmentIndex, blockColumns } = columnRoles(present, nBlocks, termIncluded);
-  return { trial, n, m, gram, termOfColumn, treatmentColumns, treatmentIndex, blockColumns, yColumn };
+  // Laid out like the trial before (same roles, plots and cell counts): its design block is
+  // this trial's too, copied whole; only the y row and column are new.
+  const prev = previousTrial;
+  const like = prev !== null && prev.roles === roles && prev.stats.n === n && sameCounts(prev.counts, counts, nBlocks * nT);
+  if (like) {
+    gram.set(prev.stats.gram);
+    yRowAndColumn(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, ySums, yAll);
+  } else assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
+  const sameDesignAs = like ? (prev.stats.sameDesignAs >= 0 ? prev.stats.sameDesignAs : prev.index) : -1;
+  const { termOfColumn, treatmentColumns, treatmentIndex, blockColumns } = roles;
+  const stats: TrialStatistics = { trial, n, m, gram, termOfColumn, treatmentColumns, treatmentIndex, blockColumns, yColumn, sameDesignAs };
+  previousTrial = { stats, index, roles, counts: like ? prev.counts : counts.slice(0, nBlocks * nT) };
+  return stats;
+}
+
+function sameCounts(a: Int32Array, b: Int32Array, n: number): boolean {
+  if (a.length !== n) return false;
+  for (let i = 0; i < n; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/** The y row and column of B'B (the rest is in place): sums of y by block, by treatment, in total, and y'y. */
+function yRowAndColumn(gram: Float64Array, m: number, hasIntercept: boolean, blockStart: number, treatStart: number, nBlocks: number, nT: number, ySums: Float64Array, yTotals: Float64Array): void {
+  const yc = m - 1;
+  for (let b = 0; b < nBlocks; b++) setPair(gram, m, blockStart + b, yc, ySums[b]);
+  for (let t = 0; t < nT; t++) setPair(gram, m, treatStart + t, yc, ySums[nBlocks + t]);
+  if (hasIntercept) setPair(gram, m, 0, yc, yTotals[0]);
+  gram[yc * m + yc] = yTotals[1];
 }
 
 /** Which columns are which in a trial's B (read-only, shared by trials laid out alike). */
@@ -299,35 +333,43 @@ const totals = new Float64Array(2);
 
 function assembleGram(gram: Float64Array, m: number, hasIntercept: boolean, blockStart: number, treatStart: number, nBlocks: number, nT: number, counts: Int32Array, ySums: Float64Array, yTotals: Float64Array): void {
   const yc = m - 1;
-  const set = (i: number, j: number, v: number): void => {
-    gram[i * m + j] = v;
-    gram[j * m + i] = v;
-  };
   let n = 0;
   for (let b = 0; b < nBlocks; b++) {
-    let nb = 0;
-    for (let t = 0; t < nT; t++) {
-      const c = counts[b * nT + t];
-      nb += c;
-      set(blockStart + b, treatStart + t, c);
-    }
-    set(blockStart + b, blockStart + b, nb);
-    set(blockStart + b, yc, ySums[b]);
-    if (hasIntercept) set(0, blockStart + b, nb);
+    const nb = blockRow(gram, m, blockStart + b, treatStart, counts, b * nT, nT);
+    setPair(gram, m, blockStart + b, blockStart + b, nb);
+    setPair(gram, m, blockStart + b, yc, ySums[b]);
+    if (hasIntercept) setPair(gram, m, 0, blockStart + b, nb);
     n += nb;
   }
   for (let t = 0; t < nT; t++) {
     let nt = 0;
     for (let b = 0; b < nBlocks; b++) nt += counts[b * nT + t];
-    set(treatStart + t, treatStart + t, nt);
-    set(treatStart + t, yc, ySums[nBlocks + t]);
-    if (hasIntercept) set(0, treatStart + t, nt);
+    setPair(gram, m, treatStart + t, treatStart + t, nt);
+    setPair(gram, m, treatStart + t, yc, ySums[nBlocks + t]);
+    if (hasIntercept) setPair(gram, m, 0, treatStart + t, nt);
   }
   if (hasIntercept) {
-    set(0, 0, n);
-    set(0, yc, yTotals[0]);
+    setPair(gram, m, 0, 0, n);
+    setPair(gram, m, 0, yc, yTotals[0]);
   }
   gram[yc * m + yc] = yTotals[1];
+}
+
+/** A block's row of plot counts by treatment (mirrored into the columns); returns the block's plot count. */
+function blockRow(gram: Float64Array, m: number, row: number, treatStart: number, counts: Int32Array, co: number, nT: number): number {
+  let nb = 0;
+  for (let t = 0; t < nT; t++) {
+    const c = counts[co + t];
+    nb += c;
+    gram[row * m + treatStart + t] = c;
+    gram[(treatStart + t) * m + row] = c;
+  }
+  return nb;
+}
+
+function setPair(gram: Float64Array, m: number, i: number, j: number, v: number): void {
+  gram[i * m + j] = v;
+  gram[j * m + i] = v;
 }
 
 // Per-plot working arrays of trialStatistics, reused from trial to trial (one trial at a time).
