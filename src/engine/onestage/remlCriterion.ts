@@ -220,18 +220,7 @@ function columnQuadratic(columns: Float64Array, off: number, pat: PatternState):
   return quad;
 }
 
-/** (u - gz u_R) / sigma2: the design rows of B'V^-1 y for data vector u = Z'y. */
-export function designRowsOfHy(u: ArrayLike<number>, pat: PatternState, mz: number, out: Float64Array): void {
-  const R = pat.randomColumns;
-  const r = R.length;
-  for (let j = 0; j < mz; j++) {
-    let s = u[j];
-    for (let b = 0; b < r; b++) s -= pat.gz[j * r + b] * u[R[b]];
-    out[j] = s / pat.sigma2;
-  }
-}
-
-/** designRowsOfHy on u = src[srcOff ...] into out[outOff ...], without making views. */
+/** (u - gz u_R) / sigma2, the design rows of B'V^-1 y for u = Z'y = src[srcOff ...], into out[outOff ...]. */
 function designRowsOfHyAt(src: Float64Array, srcOff: number, pat: PatternState, mz: number, out: Float64Array, outOff: number): void {
   const R = pat.randomColumns;
   const r = R.length;

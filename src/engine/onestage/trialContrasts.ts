@@ -3,7 +3,7 @@
 // and block effects cancel because contrast coefficients sum to zero) and the trial's own
 // fixed-effects estimate (blocks + treatments fitted to that trial alone, from its Gram matrix).
 import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import { designRowsOfHy, type Evaluation, type ModelFrame } from './remlCriterion.js';
+import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { TrialContrastReport } from './types.js';
 
 export interface ContrastVector {
@@ -38,75 +38,138 @@ function ownDesign(frame: ModelFrame, i: number): OwnDesign | null {
   }
 }
 
+/** A contrast's raw estimate in trials of one design: raw = a'b (b = Z'y on the own columns), Var = s2 v. */
+interface DesignContrast {
+  readonly a: Float64Array;
+  readonly v: number;
+}
+
+/** A contrast's BLUP in trials of one pattern: lb + sigma2_TxT (g'u - g0), u = Z'y; null where a treatment is absent. */
+interface PatternContrast {
+  readonly g: Float64Array;
+  readonly g0: number;
+  readonly estimable: boolean;
+}
+
+// Everything but the data is shared by the trials of a design (own fit) or a pattern (BLUP), so
+// it is worked out once per design or pattern as a linear function of the trial's Z'y; each
+// trial then costs a few dot products.
 export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: readonly ContrastVector[], treatmentTrialVariance: number): { trial: string; contrasts: TrialContrastReport[] }[] {
   const p = frame.stats.treatments.length;
-  const designs = new Map<number, OwnDesign | null>();
-  const local = new Int32Array(p);
+  const lb = contrasts.map((c) => (c.l ? dot(c.l, ev.beta, p) : 0));
+  const designs = new Map<number, { own: OwnDesign | null; byContrast: (DesignContrast | null)[] }>();
+  const patterns = new Map<number, (PatternContrast | null)[]>();
   const maxM = frame.stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1);
-  const u = new Float64Array(maxM);
-  const hzy = new Float64Array(maxM);
-  // per-trial working vectors, reused (a trial's values are consumed before the next trial)
-  const tau = new Float64Array(maxM);
   const b = new Float64Array(maxM);
   return frame.stats.trials.map((t, i) => {
-    const q = frame.patternOf[i];
     const d = frame.designOf[i];
-    if (!designs.has(d)) designs.set(d, ownDesign(frame, i));
-    const own = designs.get(d)!;
+    let design = designs.get(d);
+    if (!design) designs.set(d, (design = designContrasts(frame, i, contrasts)));
+    const q = frame.patternOf[i];
+    let pattern = patterns.get(q);
+    if (!pattern) patterns.set(q, (pattern = patternContrasts(frame, ev, q, contrasts)));
     const m = t.m;
     const mz = m - 1;
-    const nt = t.treatmentColumns.length;
-    // the trial's own estimates: tau (treatment 1 = 0), residual variance
-    tau.fill(0, 0, nt);
+    // the trial's own residual variance: (y'y - b'A^-1 b) / df
+    const own = design.own;
     let s2 = NaN;
     if (own) {
       const k = own.cols.length;
       for (let x = 0; x < k; x++) b[x] = t.gram[own.cols[x] * m + mz];
-      let rss = t.gram[mz * m + mz];
-      const nb = k - (nt - 1);
-      for (let x = 0; x < k; x++) {
-        let s = 0;
-        for (let y = 0; y < k; y++) s += own.inv[x * k + y] * b[y];
-        rss -= s * b[x];
-        if (x >= nb) tau[x - nb + 1] = s;
-      }
-      s2 = Math.max(rss, 0) / own.df;
+      s2 = Math.max(t.gram[mz * m + mz] - quadratic(own.inv, b, k), 0) / own.df;
     }
-    // h_T = (B'V^-1 r)_T, for the predicted treatment-by-trial effects
-    const pat = ev.patterns[q];
-    for (let j = 0; j < mz; j++) u[j] = t.gram[j * m + mz];
-    designRowsOfHy(u, pat, mz, hzy);
-    local.fill(-1);
-    for (let a = 0; a < nt; a++) local[t.treatmentIndex[a]] = a;
-    const out = contrasts.map((c): TrialContrastReport => {
-      if (!c.l) return { name: c.name, blup: null, raw: null, rawSe: null, rawDf: null };
-      let blup = 0;
-      let estimable = true;
-      for (let j = 0; j < p; j++) {
-        if (c.l[j] === 0) continue;
-        const a = local[j];
-        let u = 0;
-        if (a >= 0 && treatmentTrialVariance > 0) {
-          const col = t.treatmentColumns[a];
-          let h = hzy[col];
-          for (let x = 0; x < nt; x++) h -= pat.hzz[col * mz + t.treatmentColumns[x]] * ev.beta[t.treatmentIndex[x]];
-          u = treatmentTrialVariance * h;
-        }
-        blup += c.l[j] * (ev.beta[j] + u);
-        if (a < 0) estimable = false;
-      }
-      if (!estimable || !own) return { name: c.name, blup, raw: null, rawSe: null, rawDf: null };
-      const k = own.cols.length;
-      const nb = k - (nt - 1);
-      let raw = 0;
-      let v = 0;
-      for (let a = 1; a < nt; a++) {
-        const la = c.l[t.treatmentIndex[a]];
-        raw += la * tau[a];
-        for (let b = 1; b < nt; b++) v += la * own.inv[(nb + a - 1) * k + nb + b - 1] * c.l[t.treatmentIndex[b]];
-      }
-      return { name: c.name, blup, raw, rawSe: Math.sqrt(s2 * v), rawDf: own.df };
+    const out = contrasts.map((c, ci): TrialContrastReport => {
+      const pc = pattern[ci];
+      if (!c.l || !pc) return { name: c.name, blup: null, raw: null, rawSe: null, rawDf: null };
+      const blup = treatmentTrialVariance > 0 ? lb[ci] + treatmentTrialVariance * (columnDot(pc.g, t.gram, m, mz) - pc.g0) : lb[ci];
+      const dc = design.byContrast[ci];
+      if (!pc.estimable || !own || !dc) return { name: c.name, blup, raw: null, rawSe: null, rawDf: null };
+      return { name: c.name, blup, raw: dot(dc.a, b, own.cols.length), rawSe: Math.sqrt(s2 * dc.v), rawDf: own.df };
     });
     return { trial: t.trial, contrasts: out };
   });
+}
+
+/** The design's own fit and, per contrast, the raw estimate's coefficients on b and its variance factor. */
+function designContrasts(frame: ModelFrame, i: number, contrasts: readonly ContrastVector[]): { own: OwnDesign | null; byContrast: (DesignContrast | null)[] } {
+  const own = ownDesign(frame, i);
+  const t = frame.stats.trials[i];
+  const nt = t.treatmentColumns.length;
+  const byContrast = contrasts.map((c): DesignContrast | null => {
+    if (!own || !c.l) return null;
+    const k = own.cols.length;
+    const nb = k - (nt - 1);
+    // tau[a] = (A^-1 b)[nb + a - 1] for treatments a >= 1 (treatment 0 is absorbed): raw = sum_a l_a tau[a]
+    const a = new Float64Array(k);
+    let v = 0;
+    for (let x = 1; x < nt; x++) {
+      const lx = c.l[t.treatmentIndex[x]];
+      if (lx === 0) continue;
+      for (let y = 0; y < k; y++) a[y] += lx * own.inv[(nb + x - 1) * k + y];
+      for (let z = 1; z < nt; z++) v += lx * own.inv[(nb + x - 1) * k + nb + z - 1] * c.l[t.treatmentIndex[z]];
+    }
+    return { a, v };
+  });
+  return { own, byContrast };
+}
+
+/**
+ * Per contrast, the BLUP's dependence on u = Z'y in trials of pattern q: sum over the contrast's
+ * treatments present of l_j h_j, h = (B'V^-1 r) on the treatment column,
+ * h_col = (u_col - gz_col. u_R) / sigma2 - H_col,T beta_T.
+ */
+function patternContrasts(frame: ModelFrame, ev: Evaluation, q: number, contrasts: readonly ContrastVector[]): (PatternContrast | null)[] {
+  const t = frame.stats.trials[frame.patternTrial[q]];
+  const pat = ev.patterns[q];
+  const p = frame.stats.treatments.length;
+  const mz = t.m - 1;
+  const nt = t.treatmentColumns.length;
+  const R = pat.randomColumns;
+  const r = R.length;
+  const local = new Int32Array(p).fill(-1);
+  for (let a = 0; a < nt; a++) local[t.treatmentIndex[a]] = a;
+  return contrasts.map((c): PatternContrast | null => {
+    if (!c.l) return null;
+    const g = new Float64Array(mz);
+    let g0 = 0;
+    let estimable = true;
+    for (let j = 0; j < p; j++) {
+      const lj = c.l[j];
+      if (lj === 0) continue;
+      const a = local[j];
+      if (a < 0) {
+        estimable = false;
+        continue;
+      }
+      const col = t.treatmentColumns[a];
+      g[col] += lj / pat.sigma2;
+      for (let x = 0; x < r; x++) g[R[x]] -= (lj * pat.gz[col * r + x]) / pat.sigma2;
+      for (let x = 0; x < nt; x++) g0 += lj * pat.hzz[col * mz + t.treatmentColumns[x]] * ev.beta[t.treatmentIndex[x]];
+    }
+    return { g, g0, estimable };
+  });
+}
+
+function dot(a: ArrayLike<number>, b: ArrayLike<number>, n: number): number {
+  let s = 0;
+  for (let i = 0; i < n; i++) s += a[i] * b[i];
+  return s;
+}
+
+/** g'u with u the y column of the trial's Gram matrix (its first mz entries). */
+function columnDot(g: Float64Array, gram: Float64Array, m: number, mz: number): number {
+  let s = 0;
+  for (let j = 0; j < mz; j++) s += g[j] * gram[j * m + mz];
+  return s;
+}
+
+/** b'A b for a symmetric k x k A. */
+function quadratic(a: Float64Array, b: Float64Array, k: number): number {
+  let s = 0;
+  for (let x = 0; x < k; x++) {
+    let r = 0;
+    for (let y = 0; y < k; y++) r += a[x * k + y] * b[y];
+    s += b[x] * r;
+  }
+  return s;
 }
