@@ -1,7 +1,7 @@
 // The one contract between the core and every front end (CLI now; Electron IPC and the
 // browser server next). Each handler validates its arguments with zod at the boundary and
 // returns a Result value; nothing is thrown across it.
-import { z } from 'zod';
+import { z } from '../spec/zod.js';
 import { analysisSpecSchema } from '../spec/analysisSpec.js';
 import { importMappingSchema } from '../intake/types.js';
 import type { CallContext } from './context.js';

@@ -1,6 +1,6 @@
 // What intake hands to the store: a validated, unit-converted plot table. Intake reads and
 // checks; the store writes. Neither knows the other's internals.
-import { z } from 'zod';
+import { z } from '../spec/zod.js';
 import { columnsSchema } from '../spec/analysisSpec.js';
 import type { FactorInfo, TreatmentInfo, TrialDesign } from '../engine/types.js';
 

@@ -1,6 +1,6 @@
 // The declarative analysis spec: one JSON document drives the CLI, the screens and reports,
 // and is stored with every result so any number can be reproduced.
-import { z } from 'zod';
+import { z } from './zod.js';
 
 const contrastName = z.string().min(1).max(120);
 

@@ -26,18 +26,23 @@ export function startValues(frame: ModelFrame): Float64Array {
   // within-trial residual variances, computed once per design pattern's inverse
   let rssAll = 0;
   let dfAll = 0;
-  const factors = new Map<number, OwnFactor | null>();
+  // per design (numbered 0, 1, ... in frame.designOf): the factor of its own normal equations
+  const factors: (OwnFactor | null | undefined)[] = [];
   const work = new Float64Array(stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1));
-  const own = stats.trials.map((t, i) => {
-    const q = frame.designOf[i];
-    if (!factors.has(q)) factors.set(q, withinFactor(t));
-    const w = withinTrial(t, factors.get(q)!, work);
-    if (w) {
-      rssAll += w.rss;
-      dfAll += w.df;
-    }
-    return w;
-  });
+  // each trial's own residual sum of squares and df (df 0: no estimate)
+  const ownRss = new Float64Array(stats.trials.length);
+  const ownDf = new Float64Array(stats.trials.length);
+  for (let i = 0; i < stats.trials.length; i++) {
+    const t = stats.trials[i];
+    const d = frame.designOf[i];
+    let f = factors[d];
+    if (f === undefined) factors[d] = f = withinFactor(t);
+    if (!f) continue;
+    ownRss[i] = withinRss(t, f, work);
+    ownDf[i] = t.n - f.cols.length;
+    rssAll += ownRss[i];
+    dfAll += ownDf[i];
+  }
   const pooled = dfAll > 0 ? rssAll / dfAll : total / 2;
   const nTerms = layout.termParameter.filter((k) => k >= 0).length;
   const share = nTerms > 0 ? Math.max((total - pooled) / nTerms, 0.1 * pooled) : 0;
@@ -45,10 +50,7 @@ export function startValues(frame: ModelFrame): Float64Array {
   layout.parameters.forEach((par, k) => {
     if (par.kind === 'term') theta[k] = share;
     else if (par.trial < 0) theta[k] = pooled;
-    else {
-      const w = own[par.trial];
-      theta[k] = w && w.rss > 0 ? w.rss / w.df : pooled;
-    }
+    else theta[k] = ownDf[par.trial] > 0 && ownRss[par.trial] > 0 ? ownRss[par.trial] / ownDf[par.trial] : pooled;
   });
   return theta;
 }
@@ -77,17 +79,15 @@ function withinFactor(t: TrialStatistics): OwnFactor | null {
   }
 }
 
-function withinTrial(t: TrialStatistics, f: OwnFactor | null, work: Float64Array): { rss: number; df: number } | null {
-  if (!f) return null;
+/** The trial's own residual sum of squares y'y - b'A^-1 b (b its X'y on the factor's columns), at least 0. */
+function withinRss(t: TrialStatistics, f: OwnFactor, work: Float64Array): number {
   const cols = f.cols;
   const k = cols.length;
   const m = t.m;
-  // coef = A^-1 b with b the trial's X'y; rss = y'y - b'coef. `work` holds b, then L^-1 b.
+  // `work` holds b, then L^-1 b; b'A^-1 b = |L^-1 b|^2
   for (let x = 0; x < k; x++) work[x] = t.gram[cols[x] * m + t.yColumn];
   forwardSolveInPlace(f.l, work);
-  // b'A^-1 b = |L^-1 b|^2
   let fit = 0;
   for (let x = 0; x < k; x++) fit += work[x] * work[x];
-  const rss = t.gram[t.yColumn * m + t.yColumn] - fit;
-  return { rss: Math.max(rss, 0), df: t.n - k };
+  return Math.max(t.gram[t.yColumn * m + t.yColumn] - fit, 0);
 }
