@@ -7,7 +7,7 @@ import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
-const cli = fileURLToPath(new URL('../bin/manyfield.js', import.meta.url));
+const cli = fileURLToPath(new URL('../bin/manyfield.cjs', import.meta.url));
 const workspace = process.env.MANYFIELD_WORKSPACE ?? 'demo.manyfield';
 const spec = fileURLToPath(new URL('../examples/demo-analysis.json', import.meta.url));
 

@@ -85,7 +85,7 @@ const child = await compiled('fitCsv.ts');
 const childArgs = child.args;
 const childKind = child.kind;
 // The command as installed: `npm run bench:onestage` builds dist/ (and its bundle) first.
-const cliChild = { args: [join(here, 'cliChild.mjs')], kind: 'the build\'s own bundle, dist/cli/bundle.mjs, as bin/manyfield.js runs it' };
+const cliChild = { args: [join(here, 'cliChild.cjs')], kind: 'the build\'s own bundle, dist/cli/bundle.cjs, as bin/manyfield.cjs runs it' };
 // one-stage only: the trial stage always runs in `analyze`; two-stage pooling is switched off
 const specFile = join(dir, 'spec-onestage.json');
 writeFileSync(

@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
-const bin = join(root, 'bin', 'manyfield.js');
+const bin = join(root, 'bin', 'manyfield.cjs');
 
 export interface CliRun {
   readonly status: number;
