@@ -4,8 +4,10 @@
 //    plots each) written as CSV; each is fitted by a fresh `node` process running
 //    bench/onestage/fitCsv.ts (read the CSV, fit, print the JSON result) and by Rscript
 //    (read.csv + lme4::lmer). Both report their own read+fit time, excluding interpreter start-up
-//    (and loading lme4), and the wall time of the whole process; both ratios are printed.
-// 2. Per-trial residual at 200 trials vs glmmTMB (dispformula = ~env, REML = TRUE).
+//    (and loading lme4), and the wall time of the whole process; both ratios are printed. The
+//    installed command (`manyfield analyze --data F --spec S --json`) is timed on the same file.
+// 2. Per-trial residual at 200 trials vs glmmTMB (dispformula = ~env, REML = TRUE): with
+//    Satterthwaite df, like for like with glmmTMB's Wald output, and through the command.
 // 3. Kenward–Roger df for one contrast at the largest size, timed in-process after the fit.
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, writeFileSync } from 'node:fs';
@@ -57,23 +59,23 @@ function run(cmd: string, argv: string[]): { stdout: string; stderr: string; wal
   return { stdout: r.stdout, stderr: r.stderr, wall };
 }
 
-// Run the child as compiled JavaScript, as the installed CLI would be: bundle fitCsv.ts with the
-// esbuild that tsx already brings; fall back to running it through tsx.
+// Run the child as compiled JavaScript, as the installed CLI is (a CommonJS bundle): bundle
+// fitCsv.ts with the esbuild that tsx already brings; fall back to running it through tsx.
 async function compiled(name: string): Promise<{ args: string[]; kind: string }> {
   try {
     const esbuild = await import('esbuild');
     // inside the project (node_modules/.cache) so the bundle resolves native packages like better-sqlite3
     const outDir = join(root, 'node_modules', '.cache', 'manyfield-bench');
     mkdirSync(outDir, { recursive: true });
-    const outfile = join(outDir, name.replace(/\.ts$/, '.mjs'));
+    const outfile = join(outDir, name.replace(/\.ts$/, '.cjs'));
     await esbuild.build({
       entryPoints: [join(here, name)],
       bundle: true,
       platform: 'node',
-      format: 'esm',
+      format: 'cjs',
+      target: 'node20',
       outfile,
       external: ['better-sqlite3'],
-      banner: { js: "import { createRequire as benchCreateRequire } from 'module'; const require = benchCreateRequire(import.meta.url);" },
       logLevel: 'silent',
     });
     return { args: [outfile], kind: `node on an esbuild bundle of bench/onestage/${name}` };
@@ -86,25 +88,31 @@ const childArgs = child.args;
 const childKind = child.kind;
 // The command as installed: `npm run bench:onestage` builds dist/ (and its bundle) first.
 const cliChild = { args: [join(here, 'cliChild.cjs')], kind: 'the build\'s own bundle, dist/cli/bundle.cjs, as bin/manyfield.cjs runs it' };
-// one-stage only: the trial stage always runs in `analyze`; two-stage pooling is switched off
-const specFile = join(dir, 'spec-onestage.json');
-writeFileSync(
-  specFile,
-  JSON.stringify({
-    trait: 'y',
-    columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y' },
-    control: 'CTL',
-    contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' }],
-    twoStage: null,
-    // lme4's lmer fits the model only: no likelihood-ratio refits on our side either.
-    oneStage: { random: ['trial', 'block', 'treatment:trial'], residual: 'common', df: 'satterthwaite', lrt: false },
-  }),
-);
+// one-stage only: two-stage pooling (and with it the trial stage) is switched off
+function writeSpec(residual: 'common' | 'per-trial'): string {
+  const file = join(dir, `spec-onestage-${residual}.json`);
+  writeFileSync(
+    file,
+    JSON.stringify({
+      trait: 'y',
+      columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y' },
+      control: 'CTL',
+      contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' }],
+      twoStage: null,
+      // lme4 and glmmTMB fit the model only: no likelihood-ratio refits or likelihood profiles
+      // on our side either (both are on by default for networks of up to 200 trials).
+      oneStage: { random: ['trial', 'block', 'treatment:trial'], residual, df: 'satterthwaite', lrt: false, profile: false },
+    }),
+  );
+  return file;
+}
+const specFile = writeSpec('common');
+const perTrialSpecFile = writeSpec('per-trial');
 
 /** `manyfield analyze --data F --spec S --json` in a fresh process; null if the command fails. */
-function cli(file: string): { inner: number; cpu: number; wall: number } | string {
+function cli(file: string, spec = specFile): { inner: number; cpu: number; wall: number } | string {
   const t0 = performance.now();
-  const r = spawnSync(process.execPath, [...cliChild.args, file, specFile], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30 });
+  const r = spawnSync(process.execPath, [...cliChild.args, file, spec], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30 });
   const wall = performance.now() - t0;
   const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
   if (r.status !== 0 || !line) return `analyze failed (${r.status}): ${r.stderr.split('\n').slice(0, 3).join(' ')}`;
@@ -112,8 +120,8 @@ function cli(file: string): { inner: number; cpu: number; wall: number } | strin
   return { inner: b.totalMs, cpu: b.cpuMs, wall };
 }
 
-function ours(file: string, residual: 'common' | 'per-trial', lrt: boolean): Timing {
-  const r = run(process.execPath, [...childArgs, file, residual, 'satterthwaite', lrt ? 'lrt' : 'no-lrt']);
+function ours(file: string, residual: 'common' | 'per-trial', lrt: boolean, df: 'satterthwaite' | 'residual' = 'satterthwaite'): Timing {
+  const r = run(process.execPath, [...childArgs, file, residual, df, lrt ? 'lrt' : 'no-lrt']);
   const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
   if (!line) throw new Error(`fitCsv printed no BENCH line:\n${r.stderr}`);
   const b = JSON.parse(line.slice(6));
@@ -143,6 +151,19 @@ function warm(file: string, residual: 'common' | 'per-trial'): number {
   once();
   once();
   return Math.min(...Array.from({ length: repeats }, once));
+}
+
+/** The installed command on `file`, fastest of `repeats`, with its ratios against the reference run `ref`. */
+function commandLine(file: string, spec: string, ref: Timing | null): void {
+  const runs = Array.from({ length: repeats }, () => cli(file, spec));
+  const ok = runs.filter((r): r is { inner: number; cpu: number; wall: number } => typeof r !== 'string');
+  if (ok.length === 0) {
+    console.log(`  manyfield analyze --data --spec --json: ${runs[0] as string}`);
+    return;
+  }
+  const t = Math.min(...ok.map((r) => r.inner));
+  const wall = Math.min(...ok.map((r) => r.wall));
+  console.log(`  manyfield analyze --data F --spec S --json (${cliChild.kind}; intake + one-stage with Satterthwaite df, no LRT refits or profiles, pooling off): ${fmt(t)} in the command, ${fmt(wall)} process wall${ref ? `; reference/analyze ${(ref.inner / t).toFixed(1)}x (in-process), ${(ref.wall / wall).toFixed(1)}x (wall)` : ''}`);
 }
 
 function value(out: string, name: string): number {
@@ -208,14 +229,7 @@ for (const n of sizes) {
   console.log(`  warm engine (in-process, after two fits): manyfield read+fit+print ${fmt(w)}${b ? `; lme4/manyfield ${(b.inner / w).toFixed(1)}x` : ''}`);
   const c = best(() => ours(file, 'common', true));
   console.log(`  with the 3 likelihood-ratio refits: manyfield read+fit+print ${fmt(c.inner)}`);
-  const runs = Array.from({ length: repeats }, () => cli(file));
-  const ok = runs.filter((r): r is { inner: number; cpu: number; wall: number } => typeof r !== 'string');
-  if (ok.length === 0) console.log(`  manyfield analyze --data --spec --json: ${runs[0] as string}`);
-  else {
-    const t = Math.min(...ok.map((r) => r.inner));
-    const wall = Math.min(...ok.map((r) => r.wall));
-    console.log(`  manyfield analyze --data F --spec S --json (${cliChild.kind}; intake + one-stage with Satterthwaite df, no LRT refits, pooling off): ${fmt(t)} in the command, ${fmt(wall)} process wall${b ? `; lme4/analyze ${(b.inner / t).toFixed(1)}x (in-process), ${(b.wall / wall).toFixed(1)}x (wall)` : ''}`);
-  }
+  commandLine(file, specFile, b);
   console.log('');
 }
 if (perTrialMs.length > 1) {
@@ -235,6 +249,11 @@ if (perTrialSize > 0) {
   const w = warm(file, 'per-trial');
   console.log(`  warm engine (in-process, after two fits): manyfield read+fit+print ${fmt(w)}${b ? `; glmmTMB/manyfield ${(b.inner / w).toFixed(1)}x` : ''}`);
   if (b) console.log(`  logLik agreement within 1e-4: ${Math.abs(a.logLik - b.logLik) < 1e-4 ? 'yes' : 'NO'}`);
+  // glmmTMB reports Wald statistics (no small-sample df); the same output on our side skips the
+  // second-order terms that Satterthwaite df need (variance-component SEs and BLUPs stay)
+  const wald = best(() => ours(file, 'per-trial', false, 'residual'));
+  console.log(`  like for like with glmmTMB's output (no small-sample df): manyfield read+fit+print ${fmt(wald.inner)}, process wall ${fmt(wald.wall)}${b ? `; glmmTMB/manyfield ${(b.inner / wald.inner).toFixed(1)}x read+fit, ${(b.wall / wald.wall).toFixed(1)}x process wall` : ''}`);
+  commandLine(file, perTrialSpecFile, b);
   console.log('');
 }
 
