@@ -19,27 +19,16 @@ export class ColumnarPlotsSink implements PlotSink {
   private col: Float64Array | null = null;
   private plotText: (string | null)[] | null = null;
 
-  private readonly trialKeys: string[] = [];
-  private readonly trialIds = new Map<string, number>();
-  private readonly treatmentCodes: string[] = [];
-  private readonly treatmentIds = new Map<string, number>();
-  private readonly blockLabels: string[] = [];
-  private readonly blockIds = new Map<string, number>();
-  // Files are usually sorted by trial and the builder hands over one string per code and
-  // block: one-entry caches spare most map lookups.
-  private lastTrialKey: string | null = null;
-  private lastTrialId = -1;
-  private lastTreatment: string | null = null;
-  private lastTreatmentId = -1;
-  private lastBlock: string | null = null;
-  private lastBlockId = -1;
+  private readonly trials = new Numbering();
+  private readonly treatments = new Numbering();
+  private readonly blocks = new Numbering();
 
   addPlot(trialKey: string, treatment: string, block: string | null, row: number | null, col: number | null, plotId: string | null, sourceRow: number): number {
     const i = this.count++;
     if (i === this.sourceRow.length) this.grow();
-    this.trial[i] = this.trialId(trialKey);
-    this.treatment[i] = this.treatmentId(treatment);
-    this.block[i] = block === null ? -1 : this.blockId(block);
+    this.trial[i] = this.trials.id(trialKey);
+    this.treatment[i] = this.treatments.id(treatment);
+    this.block[i] = block === null ? -1 : this.blocks.id(block);
     this.value[i] = NaN;
     this.sourceRow[i] = sourceRow;
     if (row !== null) (this.row ??= nanFilled(this.sourceRow.length))[i] = row;
@@ -53,7 +42,7 @@ export class ColumnarPlotsSink implements PlotSink {
 
   plotAt(index: number): StoredPlot {
     const b = this.block[index];
-    return { treatment: this.treatmentCodes[this.treatment[index]], block: b < 0 ? null : this.blockLabels[b], sourceRow: this.sourceRow[index] };
+    return { treatment: this.treatments.names[this.treatment[index]], block: b < 0 ? null : this.blocks.names[b], sourceRow: this.sourceRow[index] };
   }
 
   addObservation(plot: number, _trait: string, value: number | null): void {
@@ -63,7 +52,7 @@ export class ColumnarPlotsSink implements PlotSink {
   /** Each trial's plots (keyed by trial key), contiguous in one table, in file order within the trial. */
   plotsByTrial(): Map<string, PlotColumns> {
     const n = this.count;
-    const nT = this.trialKeys.length;
+    const nT = this.trials.names.length;
     const counts = new Int32Array(nT + 1);
     let sorted = true;
     for (let i = 0; i < n; i++) {
@@ -73,16 +62,16 @@ export class ColumnarPlotsSink implements PlotSink {
     for (let t = 0; t < nT; t++) counts[t + 1] += counts[t];
     const table = sorted ? this.tableInFileOrder() : this.tableGroupedByTrial(counts);
     const out = new Map<string, PlotColumns>();
-    for (let t = 0; t < nT; t++) out.set(this.trialKeys[t], { table, start: counts[t], count: counts[t + 1] - counts[t] });
+    for (let t = 0; t < nT; t++) out.set(this.trials.names[t], { table, start: counts[t], count: counts[t + 1] - counts[t] });
     return out;
   }
 
   private tableInFileOrder(): PlotColumnTable {
     const n = this.count;
     return {
-      treatmentCodes: this.treatmentCodes,
+      treatmentCodes: this.treatments.names,
       treatment: this.treatment.subarray(0, n),
-      blockLabels: this.blockLabels,
+      blockLabels: this.blocks.names,
       block: this.block.subarray(0, n),
       value: this.value.subarray(0, n),
       row: this.row ? this.row.subarray(0, n) : null,
@@ -102,9 +91,9 @@ export class ColumnarPlotsSink implements PlotSink {
     const reals = (a: Float64Array | null): Float64Array | null => (a ? Float64Array.from(order, (i) => a[i]) : null);
     const text = this.plotText;
     return {
-      treatmentCodes: this.treatmentCodes,
+      treatmentCodes: this.treatments.names,
       treatment: ints(this.treatment),
-      blockLabels: this.blockLabels,
+      blockLabels: this.blocks.names,
       block: ints(this.block),
       value: reals(this.value)!,
       row: reals(this.row),
@@ -112,42 +101,6 @@ export class ColumnarPlotsSink implements PlotSink {
       plotText: text ? Array.from(order, (i) => text[i]) : null,
       sourceRow: ints(this.sourceRow),
     };
-  }
-
-  private trialId(key: string): number {
-    if (key === this.lastTrialKey) return this.lastTrialId;
-    let id = this.trialIds.get(key);
-    if (id === undefined) {
-      id = this.trialKeys.length;
-      this.trialKeys.push(key);
-      this.trialIds.set(key, id);
-    }
-    this.lastTrialKey = key;
-    return (this.lastTrialId = id);
-  }
-
-  private treatmentId(code: string): number {
-    if (code === this.lastTreatment) return this.lastTreatmentId;
-    let id = this.treatmentIds.get(code);
-    if (id === undefined) {
-      id = this.treatmentCodes.length;
-      this.treatmentCodes.push(code);
-      this.treatmentIds.set(code, id);
-    }
-    this.lastTreatment = code;
-    return (this.lastTreatmentId = id);
-  }
-
-  private blockId(label: string): number {
-    if (label === this.lastBlock) return this.lastBlockId;
-    let id = this.blockIds.get(label);
-    if (id === undefined) {
-      id = this.blockLabels.length;
-      this.blockLabels.push(label);
-      this.blockIds.set(label, id);
-    }
-    this.lastBlock = label;
-    return (this.lastBlockId = id);
   }
 
   private grow(): void {
@@ -159,6 +112,29 @@ export class ColumnarPlotsSink implements PlotSink {
     this.value = grownReals(this.value, size);
     if (this.row) this.row = grownReals(this.row, size);
     if (this.col) this.col = grownReals(this.col, size);
+  }
+}
+
+/**
+ * Strings numbered 0, 1, ... in order of first appearance. Files are usually sorted by trial and
+ * the builder hands over one string per code and block, so a one-entry cache spares most lookups.
+ */
+class Numbering {
+  readonly names: string[] = [];
+  private readonly ids = new Map<string, number>();
+  private last: string | null = null;
+  private lastId = -1;
+
+  id(name: string): number {
+    if (name === this.last) return this.lastId;
+    let id = this.ids.get(name);
+    if (id === undefined) {
+      id = this.names.length;
+      this.names.push(name);
+      this.ids.set(name, id);
+    }
+    this.last = name;
+    return (this.lastId = id);
   }
 }
 
