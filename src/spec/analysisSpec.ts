@@ -67,6 +67,7 @@ export const oneStageSchema = z
     random: z.array(z.enum(['trial', 'block', 'treatment:trial'])).default(['trial', 'block', 'treatment:trial']),
     residual: z.enum(['common', 'per-trial']).default('common'),
     df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
+    /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */
     covariates: z.array(z.string()).default([]),
     /** Likelihood-ratio test of each variance component (one refit per component). */
     lrt: z.boolean().default(true),

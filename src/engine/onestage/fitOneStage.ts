@@ -28,17 +28,20 @@ const PROFILE_DEFAULT_MAX_TRIALS = 200;
 export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: OneStageOptions, hooks: OneStageHooks = {}): OneStageResult {
   const began = Date.now();
   const random = RANDOM_TERMS.filter((t) => options.random.includes(t));
-  const stats = buildNetworkStatistics(network, random);
+  const covariateNames = [...(options.covariates ?? [])];
+  const stats = buildNetworkStatistics(network, random, covariateNames);
   const layout = parameterLayout(stats, options.residual);
   const frame = modelFrame(stats, layout);
   const warnings: string[] = [];
   const unobserved = network.treatments.map((t) => t.code).filter((c) => !stats.treatments.includes(c));
   if (unobserved.length > 0) warnings.push(`treatments with no usable plot are left out of the one-stage model: ${unobserved.join(', ')}`);
+  if (stats.trialsWithoutCovariates.length > 0)
+    warnings.push(`trials without a value for every covariate (${covariateNames.join(', ')}) are left out of the one-stage model: ${stats.trialsWithoutCovariates.join(', ')}`);
 
   const fit = optimiseReml(frame, startValues(frame), hooks, { stage: 'one-stage' });
   const ev = fit.evaluation;
   const nP = layout.parameters.length;
-  const p = stats.treatments.length;
+  const p = stats.fixed.length;
   const free = Array.from({ length: nP }, (_, k) => k).filter((k) => !fit.atZero[k]);
   if (fit.run.outcome !== 'converged') warnings.push(`one-stage REML did not meet its convergence criterion (${fit.run.outcome} after ${fit.run.iterations} iterations)`);
 
@@ -53,8 +56,13 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
     return f < 0 || !aiInvDiag ? null : Math.sqrt(2 * aiInvDiag[f]);
   };
 
-  const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments) }));
-  const contrastReports = contrastInference(frame, fit, so, free, vectors, options, active);
+  const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments, p) }));
+  // a covariate's slope is the contrast that picks its coefficient
+  const slopes: ContrastVector[] = stats.covariates.map((cv, a) => ({ name: cv.name, l: Float64Array.from({ length: p }, (_, j) => (j === stats.treatments.length + a ? 1 : 0)) }));
+  // one call: the Kenward–Roger pieces are worked out once for all of them
+  const reports = contrastInference(frame, fit, so, free, [...vectors, ...slopes], options, active);
+  const contrastReports = reports.slice(0, vectors.length);
+  const slopeReports = reports.slice(vectors.length);
 
   const lrtOn = options.lrt ?? true;
   const profileOn = options.profile ?? stats.trials.length <= PROFILE_DEFAULT_MAX_TRIALS;
@@ -91,19 +99,21 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
     variance,
     means,
     contrasts: contrastReports,
+    covariates: slopeReports.map(({ note: _note, ...r }, a) => ({ ...r, centre: stats.covariates[a].centre })),
     varianceComponents: components,
     trials: trialContrasts(frame, ev, vectors, ttParam >= 0 ? ev.theta[ttParam] : 0),
     nObservations: stats.nObservations,
     nTrials: stats.trials.length,
     droppedPlots: stats.droppedPlots,
-    options: { random: [...random], residual: options.residual, df: options.df, confidence: options.confidence },
+    options: { random: [...random], residual: options.residual, df: options.df, confidence: options.confidence, covariates: covariateNames },
     warnings,
     run,
   };
 }
 
-function contrastVector(c: ResolvedContrast, treatments: readonly string[]): Float64Array | null {
-  const l = new Float64Array(treatments.length);
+/** The contrast on the fixed effects (p of them: the treatments, then covariates with coefficient 0). */
+function contrastVector(c: ResolvedContrast, treatments: readonly string[], p: number): Float64Array | null {
+  const l = new Float64Array(p);
   for (const [code, v] of Object.entries(c.coefficients)) {
     if (v === 0) continue;
     const j = treatments.indexOf(code);
@@ -115,7 +125,7 @@ function contrastVector(c: ResolvedContrast, treatments: readonly string[]): Flo
 
 function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOrder | null, free: readonly number[], vectors: readonly ContrastVector[], options: OneStageOptions, active: ReturnType<typeof activeParameterTable>): ContrastReport[] {
   const ev = fit.evaluation;
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const nP = frame.layout.parameters.length;
   let kr: { pieces: ReturnType<typeof kenwardRogerCovariance>; u: Float64Array } | null = null;
   if (options.df === 'kenward-roger' && so) {

@@ -78,7 +78,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   let sc = scoreAndInformation(frame, ev, active);
   const atZero = new Array<boolean>(nP).fill(false);
   const residual = frame.layout.parameters.map((par) => par.kind === 'residual');
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   for (; iterations < MAX_ITERATIONS; iterations++) {
     checkCancelled(hooks);
     const free: number[] = [];

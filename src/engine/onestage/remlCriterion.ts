@@ -134,7 +134,7 @@ export function termVariances(frame: ModelFrame, theta: ArrayLike<number>): Floa
 // optimises early, instead of one large function running on on-stack-replaced code.
 export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evaluation {
   const { stats, layout } = frame;
-  const p = stats.treatments.length;
+  const p = stats.fixed.length;
   const nQ = frame.patternTrial.length;
   const gTerm = termVariances(frame, theta);
   const xvx = new Float64Array(p * p);
@@ -174,8 +174,8 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
 function accumulateXvx(frame: ModelFrame, pat: PatternState, q: number, p: number, xvx: Float64Array): number {
   const t = frame.stats.trials[frame.patternTrial[q]];
   const mz = t.m - 1;
-  const tc = t.treatmentColumns;
-  const tg = t.treatmentIndex;
+  const tc = t.fixedColumns;
+  const tg = t.fixedIndex;
   const count = frame.patternCount[q];
   for (let a = 0; a < tc.length; a++) for (let b = 0; b < tc.length; b++) xvx[tg[a] * p + tg[b]] += count * pat.hzz[tc[a] * mz + tc[b]];
   return count * ((t.n - pat.randomColumns.length) * Math.log(pat.sigma2) + pat.logDetM);
@@ -201,8 +201,8 @@ function patternDataTerms(frame: ModelFrame, pat: PatternState, q: number, col0:
   }
   yvy += mo.sumYy / pat.sigma2;
   designRowsOfHyAt(mo.sum, 0, pat, mz, hs, 0);
-  const tc = t.treatmentColumns;
-  const tg = t.treatmentIndex;
+  const tc = t.fixedColumns;
+  const tg = t.fixedIndex;
   for (let a = 0; a < tc.length; a++) xvy[tg[a]] += hs[tc[a]];
   return yvy;
 }

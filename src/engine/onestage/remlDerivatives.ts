@@ -54,7 +54,7 @@ class ScoreWithLazyInformation implements ScoreAndInformation {
 /** Score and average information. `withInformation` false (EM steps) skips the AI matrix (ai and v are then all zero). */
 export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: readonly ActiveParameter[][], withInformation = true): ScoreAndInformation {
   const nP = frame.layout.parameters.length;
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const trace = new Float64Array(nP);
   const quadratic = new Float64Array(nP);
   const ai = new Float64Array(withInformation ? nP * nP : 0);
@@ -92,10 +92,10 @@ function workVectors(frame: ModelFrame): WorkVectors {
 function patternTrace(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], trace: Float64Array): void {
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const mz = t.m - 1;
-  const tc = t.treatmentColumns;
-  const cl = localBlock(ev.c, p, t.treatmentIndex);
+  const tc = t.fixedColumns;
+  const cl = localBlock(ev.c, p, t.fixedIndex);
   const count = frame.patternCount[q];
   for (let ia = 0; ia < act.length; ia++) {
     const a = act[ia];
@@ -143,8 +143,8 @@ function patternQuadratic(frame: ModelFrame, ev: Evaluation, q: number, col0: nu
   const H = pat.hzz;
   const H2 = ensurePatternH2(pat, mz);
   const s2 = pat.sigma2;
-  const tc = t.treatmentColumns;
-  const tg = t.treatmentIndex;
+  const tc = t.fixedColumns;
+  const tg = t.fixedIndex;
   const { h, h2, h2y } = w;
   let col = col0;
   // Every term below is of degree two in (u, c): where a constant (beta) meets a data-linear
@@ -257,15 +257,15 @@ function residualInformation(K: Float64Array, pat: PatternState, u: Float64Array
 
 /** Linear terms of v_k = X'V^-1 V_k V^-1 r from the pattern's summed data vector (c = number of trials). */
 function patternLinear(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], v: Float64Array, w: WorkVectors): void {
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
   const mo = frame.moments[q];
   const mz = t.m - 1;
   const H = pat.hzz;
   const H2 = ensurePatternH2(pat, mz);
-  const tc = t.treatmentColumns;
-  const tg = t.treatmentIndex;
+  const tc = t.fixedColumns;
+  const tg = t.fixedIndex;
   const nt = tc.length;
   const { h, h2, h2y } = w;
   vectorsOf(H, H2, pat, ev.hzySum[q], 0, mo.sum[mz], ev.beta, tc, tg, mz, h, h2, h2y);

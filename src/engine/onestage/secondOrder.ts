@@ -50,7 +50,7 @@ function patternForms(frame: ModelFrame, ev: Evaluation, q: number, act: readonl
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
   const mz = t.m - 1;
-  const T = t.treatmentColumns;
+  const T = t.fixedColumns;
   const H = pat.hzz;
   const H2 = ensurePatternH2(pat, mz);
   let H3: Small | null = null;
@@ -97,11 +97,11 @@ function patternExpected(frame: ModelFrame, ev: Evaluation, q: number, act: read
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
   const count = frame.patternCount[q];
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const nP = frame.layout.parameters.length;
   const mz = t.m - 1;
-  const T = t.treatmentColumns;
-  const tg = t.treatmentIndex;
+  const T = t.fixedColumns;
+  const tg = t.fixedIndex;
   const nt = T.length;
   const R = pat.randomColumns;
   const r = R.length;
@@ -164,7 +164,7 @@ function positionScratch(mz: number, R: Int32Array): Int32Array {
 
 export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndInformation, active: readonly ActiveParameter[][]): SecondOrder {
   const nP = frame.layout.parameters.length;
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const P = Array.from({ length: nP }, () => new Float64Array(p * p));
   const expected = new Float64Array(nP * nP);
   for (let q = 0; q < frame.patternTrial.length; q++) patternExpected(frame, ev, q, active[frame.patternTrial[q]], P, expected);
@@ -191,12 +191,12 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
  */
 export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder, w: Float64Array, active: readonly ActiveParameter[][]): Float64Array {
   const nP = frame.layout.parameters.length;
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const u = new Float64Array(p * p);
   for (let qi = 0; qi < frame.patternTrial.length; qi++) {
     const i0 = frame.patternTrial[qi];
     const count = frame.patternCount[qi];
-    const tg = frame.stats.trials[i0].treatmentIndex;
+    const tg = frame.stats.trials[i0].fixedIndex;
     const act = active[i0];
     const f = patternForms(frame, ev, qi, act);
     for (const a of act)

@@ -15,10 +15,10 @@ export function startValues(frame: ModelFrame): Float64Array {
   for (const t of stats.trials) {
     const m = t.m;
     ss += t.gram[t.yColumn * m + t.yColumn];
-    for (let a = 0; a < t.treatmentColumns.length; a++) {
-      const c = t.treatmentColumns[a];
-      sum[t.treatmentIndex[a]] += t.gram[c * m + t.yColumn];
-      count[t.treatmentIndex[a]] += t.gram[c * m + c];
+    for (let a = 0; a < t.treatmentCount; a++) {
+      const c = t.fixedColumns[a];
+      sum[t.fixedIndex[a]] += t.gram[c * m + t.yColumn];
+      count[t.fixedIndex[a]] += t.gram[c * m + c];
     }
   }
   for (let j = 0; j < p; j++) if (count[j] > 0) ss -= (sum[j] * sum[j]) / count[j];
@@ -56,7 +56,7 @@ export function startValues(frame: ModelFrame): Float64Array {
 }
 
 function ownColumns(t: TrialStatistics): number[] {
-  return [...t.blockColumns, ...Array.from(t.treatmentColumns).slice(1)];
+  return [...t.blockColumns, ...Array.from(t.fixedColumns).slice(1, t.treatmentCount)];
 }
 
 /** Columns and Cholesky factor of a trial's own normal equations (blocks + treatments); design only. */

@@ -20,9 +20,13 @@ export interface TrialStatistics {
   // The four role arrays below are shared by trials laid out alike: read them, never write.
   /** For each column except y: the random term it belongs to, or -1 (a fixed-only column). */
   readonly termOfColumn: Int8Array;
-  /** Columns holding the treatments present in this trial, and their global treatment index. */
-  readonly treatmentColumns: Int32Array;
-  readonly treatmentIndex: Int32Array;
+  /**
+   * Columns of the fixed effects in this trial and their index among NetworkStatistics.fixed:
+   * first the treatments present (treatmentCount of them), then the covariates.
+   */
+  readonly fixedColumns: Int32Array;
+  readonly fixedIndex: Int32Array;
+  readonly treatmentCount: number;
   readonly blockColumns: Int32Array;
   readonly yColumn: number;
   /** An earlier trial (index in NetworkStatistics.trials) known to have the identical design, or -1: saves comparing Gram matrices. */
@@ -32,6 +36,12 @@ export interface TrialStatistics {
 export interface NetworkStatistics {
   /** Treatment codes in fixed-effect order (only treatments observed somewhere). */
   readonly treatments: string[];
+  /** Names of all fixed effects: the treatments (cell means), then the covariates. */
+  readonly fixed: string[];
+  /** Trial covariates with a fixed slope, centred at their mean over the trials used. */
+  readonly covariates: readonly { readonly name: string; readonly centre: number }[];
+  /** Trials left out because a covariate has no value there. */
+  readonly trialsWithoutCovariates: string[];
   readonly trials: TrialStatistics[];
   readonly nObservations: number;
   readonly droppedPlots: number;
@@ -46,15 +56,16 @@ export class OneStageDataError extends Error {
   }
 }
 
-export function buildNetworkStatistics(network: NetworkInput, random: readonly RandomTerm[]): NetworkStatistics {
+export function buildNetworkStatistics(network: NetworkInput, random: readonly RandomTerm[], covariateNames: readonly string[] = []): NetworkStatistics {
   const termIncluded = RANDOM_TERMS.map((t) => random.includes(t));
+  const { withValues, without } = trialsWithCovariates(network, covariateNames);
   const known = new Map(network.treatments.map((t, i) => [t.code, i]));
   const observed = new Array<boolean>(network.treatments.length).fill(false);
   const tables = new Map<PlotColumnTable, Int32Array>();
   let dropped = 0;
   // first pass: which treatments have a usable plot anywhere, and which trials have any
   const usable: TrialInput[] = [];
-  for (const trial of network.trials) {
+  for (const trial of withValues) {
     const c = trial.plotColumns;
     const r = c ? scanColumns(trial.trial, c, networkTreatmentOf(c.table, tables, known), observed) : scanPlots(trial, known, observed);
     dropped += r.dropped;
@@ -69,16 +80,39 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
     }
   });
   const blocks: BlockNumbering = { ids: new Map(), local: [], stamp: [] };
+  // covariates centred at their mean over the trials used: the treatment means are then the
+  // means at the average trial's covariate values
+  const covariates = covariateNames.map((name) => ({ name, centre: usable.reduce((sum, t) => sum + (t.covariates![name] as number), 0) / usable.length }));
+  const z = new Float64Array(covariates.length);
   previousTrial = null;
   const trials = usable.map((trial, i) => {
     const c = trial.plotColumns;
     const n = c ? columnPlots(c, tables.get(c.table)!, globalIndex, blocks, i) : objectPlots(trial.plots, known, globalIndex, blocks, i);
-    return trialStatistics(trial.trial, i, n, globalIndex.length, termIncluded);
+    covariates.forEach((cv, a) => (z[a] = (trial.covariates![cv.name] as number) - cv.centre));
+    return trialStatistics(trial.trial, i, n, globalIndex.length, treatments.length, z, termIncluded);
   });
   previousTrial = null;
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
   if (trials.length === 0) throw new OneStageDataError('no usable plots: every value is missing or excluded');
-  return { treatments, trials, nObservations, droppedPlots: dropped, termIncluded };
+  return { treatments, fixed: [...treatments, ...covariateNames], covariates, trialsWithoutCovariates: without, trials, nObservations, droppedPlots: dropped, termIncluded };
+}
+
+/** The trials with a number for every covariate; a covariate that is not a number somewhere is an error. */
+function trialsWithCovariates(network: NetworkInput, names: readonly string[]): { withValues: readonly TrialInput[]; without: string[] } {
+  if (names.length === 0) return { withValues: network.trials, without: [] };
+  const withValues: TrialInput[] = [];
+  const without: string[] = [];
+  for (const trial of network.trials) {
+    let complete = true;
+    for (const name of names) {
+      const v = trial.covariates?.[name];
+      if (v === undefined || v === null) complete = false;
+      else if (typeof v !== 'number' || !Number.isFinite(v)) throw new OneStageDataError(`trial "${trial.trial}": covariate "${name}" is ${JSON.stringify(v)}, not a number; a fixed covariate needs numeric values`);
+    }
+    if (complete) withValues.push(trial);
+    else without.push(trial.trial);
+  }
+  return { withValues, without };
 }
 
 function unknownTreatment(trial: string, code: string): OneStageDataError {
@@ -215,7 +249,7 @@ function columnPlots(c: PlotColumns, toNetwork: Int32Array, globalIndex: readonl
 let previousTrial: { readonly stats: TrialStatistics; readonly index: number; readonly roles: ColumnRoles; readonly counts: Int32Array } | null = null;
 
 /** Statistics of the trial whose n usable plots are in the plot scratch (blockCount.n blocks). */
-function trialStatistics(trial: string, index: number, n: number, nTreatments: number, termIncluded: readonly boolean[]): TrialStatistics {
+function trialStatistics(trial: string, index: number, n: number, nTreatments: number, nObserved: number, z: Float64Array, termIncluded: readonly boolean[]): TrialStatistics {
   const nBlocks = blockCount.n;
   const presentFlag = plotScratch(0, nTreatments);
   presentFlag.fill(0, 0, nTreatments);
@@ -225,7 +259,8 @@ function trialStatistics(trial: string, index: number, n: number, nTreatments: n
   const hasIntercept = termIncluded[0];
   const blockStart = hasIntercept ? 1 : 0;
   const treatStart = blockStart + nBlocks;
-  const yColumn = treatStart + present.length;
+  const covStart = treatStart + present.length;
+  const yColumn = covStart + z.length;
   const m = yColumn + 1;
   const treatCol = plotScratch(1, nTreatments);
   for (let i = 0; i < present.length; i++) treatCol[present[i]] = treatStart + i;
@@ -237,19 +272,23 @@ function trialStatistics(trial: string, index: number, n: number, nTreatments: n
   const ySums = sumScratch(nBlocks + nT);
   ySums.fill(0, 0, nBlocks + nT);
   const yAll = accumulatePlots(n, treatCol, treatStart, nT, nBlocks, counts, ySums);
-  const roles = columnRoles(present, nBlocks, termIncluded);
+  const roles = columnRoles(present, nBlocks, termIncluded, z.length, nObserved);
   const gram = f64(m * m);
-  // Laid out like the trial before (same roles, plots and cell counts): its design block is
-  // this trial's too, copied whole; only the y row and column are new.
+  // Laid out like the trial before (same roles, plots and cell counts, no covariate values that
+  // differ between trials): its design block is this trial's too, copied whole; only the y row
+  // and column are new.
   const prev = previousTrial;
-  const like = prev !== null && prev.roles === roles && prev.stats.n === n && sameCounts(prev.counts, counts, nBlocks * nT);
+  const like = z.length === 0 && prev !== null && prev.roles === roles && prev.stats.n === n && sameCounts(prev.counts, counts, nBlocks * nT);
   if (like) {
     gram.set(prev.stats.gram);
     yRowAndColumn(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, ySums, yAll);
-  } else assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
+  } else {
+    assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
+    if (z.length > 0) covariateColumns(gram, m, n, covStart, z, yAll[0]);
+  }
   const sameDesignAs = like ? (prev.stats.sameDesignAs >= 0 ? prev.stats.sameDesignAs : prev.index) : -1;
-  const { termOfColumn, treatmentColumns, treatmentIndex, blockColumns } = roles;
-  const stats: TrialStatistics = { trial, n, m, gram, termOfColumn, treatmentColumns, treatmentIndex, blockColumns, yColumn, sameDesignAs };
+  const { termOfColumn, fixedColumns, fixedIndex, blockColumns } = roles;
+  const stats: TrialStatistics = { trial, n, m, gram, termOfColumn, fixedColumns, fixedIndex, treatmentCount: nT, blockColumns, yColumn, sameDesignAs };
   previousTrial = { stats, index, roles, counts: like ? prev.counts : counts.slice(0, nBlocks * nT) };
   return stats;
 }
@@ -269,39 +308,66 @@ function yRowAndColumn(gram: Float64Array, m: number, hasIntercept: boolean, blo
   gram[yc * m + yc] = yTotals[1];
 }
 
+/**
+ * The columns of trial-level covariates (centred values z, constant within the trial): each is
+ * z_a times the all-ones column, so its products with the other columns are z_a times their
+ * plot counts (the diagonal of the block and treatment part, or n) and sum of y.
+ */
+function covariateColumns(gram: Float64Array, m: number, n: number, covStart: number, z: Float64Array, sumY: number): void {
+  const yc = m - 1;
+  for (let a = 0; a < z.length; a++) {
+    const col = covStart + a;
+    // block, treatment (and intercept) columns: their diagonal entry is their plot count
+    for (let j = 0; j < covStart; j++) setPair(gram, m, j, col, z[a] * countOf(gram, m, j));
+    for (let b = 0; b <= a; b++) setPair(gram, m, covStart + b, col, z[a] * z[b] * n);
+    setPair(gram, m, col, yc, z[a] * sumY);
+  }
+}
+
+/** Plot count of an indicator column (intercept, block or treatment): its diagonal entry of B'B. */
+function countOf(gram: Float64Array, m: number, j: number): number {
+  return gram[j * m + j];
+}
+
 /** Which columns are which in a trial's B (read-only, shared by trials laid out alike). */
 interface ColumnRoles {
   readonly termOfColumn: Int8Array;
-  readonly treatmentColumns: Int32Array;
-  readonly treatmentIndex: Int32Array;
+  readonly fixedColumns: Int32Array;
+  readonly fixedIndex: Int32Array;
   readonly blockColumns: Int32Array;
 }
 
 // One-entry cache: trials in a network are mostly laid out alike (same blocks, same
 // treatments), and then share one set of role arrays instead of each allocating four.
-let lastRoles: { present: number[]; nBlocks: number; termIncluded: readonly boolean[]; roles: ColumnRoles } | null = null;
+let lastRoles: { present: number[]; nBlocks: number; termIncluded: readonly boolean[]; nCovariates: number; roles: ColumnRoles } | null = null;
 
-function columnRoles(present: number[], nBlocks: number, termIncluded: readonly boolean[]): ColumnRoles {
+/** Roles for the treatments present (compact indices), nBlocks blocks and nCovariates covariates (indices after the nObserved treatments). */
+function columnRoles(present: number[], nBlocks: number, termIncluded: readonly boolean[], nCovariates: number, nObserved: number): ColumnRoles {
   const last = lastRoles;
-  if (last && last.nBlocks === nBlocks && last.termIncluded === termIncluded && sameList(last.present, present)) return last.roles;
+  if (last && last.nBlocks === nBlocks && last.termIncluded === termIncluded && last.nCovariates === nCovariates && sameList(last.present, present)) return last.roles;
   const hasIntercept = termIncluded[0];
   const blockStart = hasIntercept ? 1 : 0;
   const treatStart = blockStart + nBlocks;
-  const m = treatStart + present.length + 1;
+  const covStart = treatStart + present.length;
+  const m = covStart + nCovariates + 1;
   const termOfColumn = new Int8Array(m - 1).fill(-1);
   if (hasIntercept) termOfColumn[0] = 0;
   if (termIncluded[1]) for (let i = 0; i < nBlocks; i++) termOfColumn[blockStart + i] = 1;
   if (termIncluded[2]) for (let i = 0; i < present.length; i++) termOfColumn[treatStart + i] = 2;
-  const treatmentColumns = new Int32Array(present.length);
-  const treatmentIndex = new Int32Array(present.length);
+  const fixedColumns = new Int32Array(present.length + nCovariates);
+  const fixedIndex = new Int32Array(present.length + nCovariates);
   for (let i = 0; i < present.length; i++) {
-    treatmentColumns[i] = treatStart + i;
-    treatmentIndex[i] = present[i];
+    fixedColumns[i] = treatStart + i;
+    fixedIndex[i] = present[i];
+  }
+  for (let a = 0; a < nCovariates; a++) {
+    fixedColumns[present.length + a] = covStart + a;
+    fixedIndex[present.length + a] = nObserved + a;
   }
   const blockColumns = new Int32Array(nBlocks);
   for (let i = 0; i < nBlocks; i++) blockColumns[i] = blockStart + i;
-  const roles = { termOfColumn, treatmentColumns, treatmentIndex, blockColumns };
-  lastRoles = { present, nBlocks, termIncluded, roles };
+  const roles = { termOfColumn, fixedColumns, fixedIndex, blockColumns };
+  lastRoles = { present, nBlocks, termIncluded, nCovariates, roles };
   return roles;
 }
 

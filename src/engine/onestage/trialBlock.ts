@@ -67,7 +67,7 @@ export function designHash(stats: TrialStatistics): number {
   const mz = stats.m - 1;
   let h = mix(mix(0x811c9dc5, stats.n), stats.m);
   for (let i = 0; i < mz; i++) h = mix(h, stats.termOfColumn[i]);
-  for (let i = 0; i < stats.treatmentIndex.length; i++) h = mix(h, stats.treatmentIndex[i]);
+  for (let i = 0; i < stats.fixedIndex.length; i++) h = mix(h, stats.fixedIndex[i]);
   const K = stats.gram;
   for (let i = 0; i < mz; i++) for (let j = i; j < mz; j++) h = mix(h, K[i * stats.m + j] | 0);
   return h;
@@ -79,11 +79,11 @@ function mix(h: number, v: number): number {
 
 /** Whether two trials have identical design blocks of the Gram matrix (and the same treatments in X). */
 export function sameDesign(a: TrialStatistics, b: TrialStatistics): boolean {
-  if (a.n !== b.n || a.m !== b.m || a.treatmentIndex.length !== b.treatmentIndex.length) return false;
+  if (a.n !== b.n || a.m !== b.m || a.fixedIndex.length !== b.fixedIndex.length) return false;
   const m = a.m;
   const mz = m - 1;
   for (let i = 0; i < mz; i++) if (a.termOfColumn[i] !== b.termOfColumn[i]) return false;
-  for (let i = 0; i < a.treatmentIndex.length; i++) if (a.treatmentIndex[i] !== b.treatmentIndex[i]) return false;
+  for (let i = 0; i < a.fixedIndex.length; i++) if (a.fixedIndex[i] !== b.fixedIndex[i]) return false;
   for (let i = 0; i < mz; i++) for (let j = i; j < mz; j++) if (a.gram[i * m + j] !== b.gram[i * m + j]) return false;
   return true;
 }

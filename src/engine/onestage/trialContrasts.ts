@@ -24,10 +24,10 @@ function ownDesign(frame: ModelFrame, i: number): OwnDesign | null {
   const m = t.m;
   const K = t.gram;
   // columns: blocks, then treatments 2..t (treatment 1 absorbed by the block intercepts)
-  const cols = [...t.blockColumns, ...Array.from(t.treatmentColumns).slice(1)];
+  const cols = [...t.blockColumns, ...Array.from(t.fixedColumns).slice(1, t.treatmentCount)];
   const k = cols.length;
   const df = t.n - k;
-  if (t.treatmentColumns.length < 2 || df <= 0) return null;
+  if (t.treatmentCount < 2 || df <= 0) return null;
   const a: Matrix = { rows: k, cols: k, data: new Float64Array(k * k) };
   for (let x = 0; x < k; x++) for (let y = 0; y < k; y++) a.data[x * k + y] = K[cols[x] * m + cols[y]];
   try {
@@ -55,7 +55,7 @@ interface PatternContrast {
 // it is worked out once per design or pattern as a linear function of the trial's Z'y; each
 // trial then costs a few dot products.
 export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: readonly ContrastVector[], treatmentTrialVariance: number): { trial: string; contrasts: TrialContrastReport[] }[] {
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const lb = contrasts.map((c) => (c.l ? dot(c.l, ev.beta, p) : 0));
   const designs = new Map<number, { own: OwnDesign | null; byContrast: (DesignContrast | null)[] }>();
   const patterns = new Map<number, (PatternContrast | null)[]>();
@@ -94,7 +94,7 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
 function designContrasts(frame: ModelFrame, i: number, contrasts: readonly ContrastVector[]): { own: OwnDesign | null; byContrast: (DesignContrast | null)[] } {
   const own = ownDesign(frame, i);
   const t = frame.stats.trials[i];
-  const nt = t.treatmentColumns.length;
+  const nt = t.treatmentCount;
   const byContrast = contrasts.map((c): DesignContrast | null => {
     if (!own || !c.l) return null;
     const k = own.cols.length;
@@ -103,10 +103,10 @@ function designContrasts(frame: ModelFrame, i: number, contrasts: readonly Contr
     const a = new Float64Array(k);
     let v = 0;
     for (let x = 1; x < nt; x++) {
-      const lx = c.l[t.treatmentIndex[x]];
+      const lx = c.l[t.fixedIndex[x]];
       if (lx === 0) continue;
       for (let y = 0; y < k; y++) a[y] += lx * own.inv[(nb + x - 1) * k + y];
-      for (let z = 1; z < nt; z++) v += lx * own.inv[(nb + x - 1) * k + nb + z - 1] * c.l[t.treatmentIndex[z]];
+      for (let z = 1; z < nt; z++) v += lx * own.inv[(nb + x - 1) * k + nb + z - 1] * c.l[t.fixedIndex[z]];
     }
     return { a, v };
   });
@@ -121,13 +121,14 @@ function designContrasts(frame: ModelFrame, i: number, contrasts: readonly Contr
 function patternContrasts(frame: ModelFrame, ev: Evaluation, q: number, contrasts: readonly ContrastVector[]): (PatternContrast | null)[] {
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
-  const p = frame.stats.treatments.length;
+  const p = frame.stats.fixed.length;
   const mz = t.m - 1;
-  const nt = t.treatmentColumns.length;
+  const nt = t.treatmentCount;
+  const nf = t.fixedColumns.length;
   const R = pat.randomColumns;
   const r = R.length;
   const local = new Int32Array(p).fill(-1);
-  for (let a = 0; a < nt; a++) local[t.treatmentIndex[a]] = a;
+  for (let a = 0; a < nt; a++) local[t.fixedIndex[a]] = a;
   return contrasts.map((c): PatternContrast | null => {
     if (!c.l) return null;
     const g = new Float64Array(mz);
@@ -141,10 +142,11 @@ function patternContrasts(frame: ModelFrame, ev: Evaluation, q: number, contrast
         estimable = false;
         continue;
       }
-      const col = t.treatmentColumns[a];
+      const col = t.fixedColumns[a];
       g[col] += lj / pat.sigma2;
       for (let x = 0; x < r; x++) g[R[x]] -= (lj * pat.gz[col * r + x]) / pat.sigma2;
-      for (let x = 0; x < nt; x++) g0 += lj * pat.hzz[col * mz + t.treatmentColumns[x]] * ev.beta[t.treatmentIndex[x]];
+      // r = y - X beta over every fixed column (treatments and covariates)
+      for (let x = 0; x < nf; x++) g0 += lj * pat.hzz[col * mz + t.fixedColumns[x]] * ev.beta[t.fixedIndex[x]];
     }
     return { g, g0, estimable };
   });

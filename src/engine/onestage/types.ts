@@ -14,6 +14,11 @@ export interface OneStageOptions {
   readonly lrt?: boolean;
   /** Profile-likelihood intervals for the random-term variances. Default true. */
   readonly profile?: boolean;
+  /**
+   * Numeric trial covariates (names in TrialInput.covariates) with a fixed slope each, centred
+   * at their mean over the trials used; trials without a value are left out with a warning.
+   */
+  readonly covariates?: readonly string[];
 }
 
 export interface OneStageHooks {
@@ -74,6 +79,12 @@ export interface TrialContrastReport {
   rawDf: number | null;
 }
 
+/** A fixed covariate's slope: inference as for a contrast (the unit vector on its coefficient). */
+export interface CovariateReport extends Omit<ContrastReport, 'note'> {
+  /** The covariate's mean over the trials used: the treatment means are the means at this value. */
+  centre: number;
+}
+
 export interface RunRecord {
   method: string;
   start: Record<string, number>;
@@ -95,12 +106,14 @@ export interface OneStageResult {
   variance: VarianceSummary;
   means: MeanReport[];
   contrasts: ContrastReport[];
+  /** One per covariate in options.covariates (empty without covariates). */
+  covariates: CovariateReport[];
   varianceComponents: VarianceComponentReport[];
   trials: { trial: string; contrasts: TrialContrastReport[] }[];
   nObservations: number;
   nTrials: number;
   droppedPlots: number;
-  options: { random: RandomTerm[]; residual: OneStageOptions['residual']; df: OneStageOptions['df']; confidence: number };
+  options: { random: RandomTerm[]; residual: OneStageOptions['residual']; df: OneStageOptions['df']; confidence: number; covariates: string[] };
   warnings: string[];
   run: RunRecord;
 }

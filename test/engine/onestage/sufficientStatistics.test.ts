@@ -20,7 +20,7 @@ describe('network statistics', () => {
       const alone = buildNetworkStatistics({ ...network, trials: [network.trials[i]] }, [...random]).trials[0];
       expect(Array.from(t.gram)).toEqual(Array.from(alone.gram));
       expect(t.n).toBe(alone.n);
-      expect(Array.from(t.treatmentIndex)).toEqual(Array.from(alone.treatmentIndex));
+      expect(Array.from(t.fixedIndex)).toEqual(Array.from(alone.fixedIndex));
       if (t.sameDesignAs >= 0) {
         shared++;
         expect(t.sameDesignAs).toBeLessThan(i);
