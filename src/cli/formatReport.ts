@@ -38,6 +38,10 @@ export function formatReport(r: AnalysisReport): string {
     parts.push(textTable(['variance component', 'estimate'], variance));
     parts.push('');
     parts.push(textTable(['contrast', 'estimate', 'se', 'df', 'lower', 'upper', 'p'], o.contrasts.map((c) => [c.name, num(c.estimate), num(c.se), num(c.df, 4), num(c.lower), num(c.upper), pValue(c.p)])));
+    if (o.covariates.length > 0) {
+      parts.push('');
+      parts.push(textTable(['covariate slope', 'estimate', 'se', 'df', 'lower', 'upper', 'p', 'means at'], o.covariates.map((c) => [c.name, num(c.estimate), num(c.se), num(c.df, 4), num(c.lower), num(c.upper), pValue(c.p), num(c.centre)])));
+    }
   }
   if (r.agreement.length > 0) {
     parts.push('\nOne-stage vs two-stage');

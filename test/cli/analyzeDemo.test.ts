@@ -2,6 +2,7 @@
 // DESIGN §5 is complete, the designed quirks are flagged and kept, and the rate response gives
 // a pooled optimum with its interval, profitable range and the cautions — in JSON and as text.
 import { beforeAll, describe, expect, it } from 'vitest';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { manyfield, tempDir } from '../support/cli.js';
 import { DEMO_MODEL, DEMO_TREATMENTS } from '../../src/demo/scenario.js';
@@ -95,5 +96,26 @@ describe('analyze on the demo workspace', () => {
     expect(r.stdout).toMatch(/treated_vs_control/);
     const optimum = report.rateResponse.pooled.optimum;
     expect(r.stdout).toContain(Number(optimum.toPrecision(4)).toString());
+  });
+
+  it('fits a fixed rainfall slope in the one-stage model when the spec names it, in JSON and as text', () => {
+    const specFile = join(dir, 'covariate.json');
+    writeFileSync(
+      specFile,
+      JSON.stringify({ trait: 'yield', control: 'CTL', contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' }], twoStage: null, oneStage: { residual: 'common', covariates: ['rainfall'], lrt: false } }),
+    );
+    const r = manyfield(['analyze', '--workspace', ws, '--spec', specFile, '--json', '--no-save']);
+    expect(r.status).toBe(0);
+    const o = (JSON.parse(r.stdout) as { oneStage: { covariates: { name: string; estimate: number; se: number; df: number; centre: number }[]; options: { covariates: string[] } } }).oneStage;
+    expect(o.options.covariates).toEqual(['rainfall']);
+    expect(o.covariates.map((c) => c.name)).toEqual(['rainfall']);
+    const [slope] = o.covariates;
+    expect(slope.se).toBeGreaterThan(0);
+    expect(slope.df).toBeGreaterThan(1);
+    // the centre is the mean rainfall over the demo's 42 site-years (mm)
+    expect(slope.centre).toBeGreaterThan(100);
+    expect(slope.centre).toBeLessThan(1500);
+    const text = manyfield(['analyze', '--workspace', ws, '--spec', specFile, '--no-save']);
+    expect(text.stdout).toMatch(/covariate slope[\s\S]*rainfall/);
   });
 });
