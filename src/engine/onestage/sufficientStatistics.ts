@@ -49,7 +49,9 @@ export interface NetworkStatistics {
   readonly termIncluded: readonly boolean[];
 }
 
+/** Data the model cannot be fitted to; the api reports it as invalid input (its `code`). */
 export class OneStageDataError extends Error {
+  readonly code = 'invalid-input';
   constructor(message: string) {
     super(message);
     this.name = 'OneStageDataError';
@@ -83,6 +85,7 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
   // covariates centred at their mean over the trials used: the treatment means are then the
   // means at the average trial's covariate values
   const covariates = covariateNames.map((name) => ({ name, centre: usable.reduce((sum, t) => sum + (t.covariates![name] as number), 0) / usable.length }));
+  checkCovariatesVary(usable, covariates);
   const z = new Float64Array(covariates.length);
   previousTrial = null;
   const trials = usable.map((trial, i) => {
@@ -95,6 +98,36 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
   if (trials.length === 0) throw new OneStageDataError('no usable plots: every value is missing or excluded');
   return { treatments, fixed: [...treatments, ...covariateNames], covariates, trialsWithoutCovariates: without, trials, nObservations, droppedPlots: dropped, termIncluded };
+}
+
+/**
+ * Trial covariates must vary across the trials used, and none may be a linear combination of
+ * the others: otherwise a slope is not estimable (its column is a combination of the treatment
+ * columns). Checked on the centred trial-by-covariate matrix by a pivoted Gram elimination.
+ */
+function checkCovariatesVary(trials: readonly TrialInput[], covariates: readonly { name: string; centre: number }[]): void {
+  const k = covariates.length;
+  if (k === 0) return;
+  const s = new Float64Array(k * k);
+  for (const t of trials)
+    for (let a = 0; a < k; a++)
+      for (let b = 0; b < k; b++) s[a * k + b] += ((t.covariates![covariates[a].name] as number) - covariates[a].centre) * ((t.covariates![covariates[b].name] as number) - covariates[b].centre);
+  const scale = Array.from({ length: k }, (_, a) => s[a * k + a]);
+  for (let a = 0; a < k; a++) {
+    // what is left of covariate a after the ones before it, relative to its own spread
+    if (!(s[a * k + a] > 1e-10 * scale[a])) {
+      const which = covariates[a].name;
+      throw new OneStageDataError(
+        scale[a] > 0
+          ? `covariate "${which}" is a linear combination of ${covariates.slice(0, a).map((c) => `"${c.name}"`).join(', ')} over the trials used; its slope cannot be estimated: leave one of them out`
+          : `covariate "${which}" has the same value in every trial used (${covariates[a].centre}); its slope cannot be estimated`,
+      );
+    }
+    for (let b = a + 1; b < k; b++) {
+      const f = s[b * k + a] / s[a * k + a];
+      for (let c = a; c < k; c++) s[b * k + c] -= f * s[a * k + c];
+    }
+  }
 }
 
 /** The trials with a number for every covariate; a covariate that is not a number somewhere is an error. */

@@ -11,6 +11,7 @@ import { resolveContrast } from '../../../src/engine/contrasts/resolve.js';
 import { mulberry32 } from '../../../src/engine/stats/random.js';
 import type { NetworkInput } from '../../../src/engine/types.js';
 import { relDiff, runR, rVector } from '../../support/rscript.js';
+import { toApiError } from '../../../src/api/errors.js';
 import { simulateNetwork } from './support/simulateNetwork.js';
 
 /** The simulated network with a rainfall per trial (one trial without) whose slope is `slope` per mm. */
@@ -118,6 +119,21 @@ emit('fixef', fixef(g)$cond)
     // glmmTMB's own optimiser stops earlier than ours: its coefficients agree to about 1e-4
     const fixef = rVector(r, 'fixef');
     expect(Math.abs(fit.covariates[0].estimate! - fixef[codes.length])).toBeLessThan(1e-4 * Math.max(1, Math.abs(fixef[codes.length])));
+  });
+
+  it('a covariate without spread, or one the others determine, is a clear input error (no fit attempted)', () => {
+    const sim = simulateNetwork({ seed: 9, trials: 5 });
+    const fit = (cov: (i: number) => Record<string, number>, names: string[]) => () =>
+      fitOneStage({ ...sim.network, trials: sim.network.trials.map((t, i) => ({ ...t, covariates: cov(i) })) }, [], { random: [...random], residual: 'common', df: 'residual', confidence: 0.95, lrt: false, profile: false, covariates: names });
+    expect(fit(() => ({ ph: 6.5 }), ['ph'])).toThrow(/"ph" has the same value in every trial used \(6\.5\)/);
+    expect(fit((i) => ({ rain: 300 + 40 * i, et: 2 * (300 + 40 * i) + 3 }), ['rain', 'et'])).toThrow(/"et" is a linear combination of "rain"/);
+    let thrown: unknown = null;
+    try {
+      fit(() => ({ ph: 6.5 }), ['ph'])();
+    } catch (e) {
+      thrown = e;
+    }
+    expect(toApiError(thrown).code).toBe('invalid-input');
   });
 
   it('a covariate that is not a number is an error naming the trial', () => {
