@@ -312,13 +312,12 @@ function trialStatistics(trial: string, index: number, n: number, nTreatments: n
   // and column are new.
   const prev = previousTrial;
   const like = z.length === 0 && prev !== null && prev.roles === roles && prev.stats.n === n && sameCounts(prev.counts, counts, nBlocks * nT);
-  if (like) {
-    gram.set(prev.stats.gram);
-    yRowAndColumn(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, ySums, yAll);
-  } else {
-    assembleGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts, ySums, yAll);
+  if (like) gram.set(prev.stats.gram);
+  else {
+    designGram(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, counts);
     if (z.length > 0) covariateColumns(gram, m, n, covStart, z, yAll[0]);
   }
+  yRowAndColumn(gram, m, hasIntercept, blockStart, treatStart, nBlocks, nT, ySums, yAll);
   const sameDesignAs = like ? (prev.stats.sameDesignAs >= 0 ? prev.stats.sameDesignAs : prev.index) : -1;
   const { termOfColumn, fixedColumns, fixedIndex, blockColumns } = roles;
   const stats: TrialStatistics = { trial, n, m, gram, termOfColumn, fixedColumns, fixedIndex, treatmentCount: nT, blockColumns, yColumn, sameDesignAs };
@@ -332,7 +331,7 @@ function sameCounts(a: Int32Array, b: Int32Array, n: number): boolean {
   return true;
 }
 
-/** The y row and column of B'B (the rest is in place): sums of y by block, by treatment, in total, and y'y. */
+/** The y row and column of B'B: sums of y by block, by treatment, in total, and y'y (covariate entries are covariateColumns'). */
 function yRowAndColumn(gram: Float64Array, m: number, hasIntercept: boolean, blockStart: number, treatStart: number, nBlocks: number, nT: number, ySums: Float64Array, yTotals: Float64Array): void {
   const yc = m - 1;
   for (let b = 0; b < nBlocks; b++) setPair(gram, m, blockStart + b, yc, ySums[b]);
@@ -430,13 +429,12 @@ function accumulatePlots(n: number, treatCol: Int32Array, treatStart: number, nT
 }
 const totals = new Float64Array(2);
 
-function assembleGram(gram: Float64Array, m: number, hasIntercept: boolean, blockStart: number, treatStart: number, nBlocks: number, nT: number, counts: Int32Array, ySums: Float64Array, yTotals: Float64Array): void {
-  const yc = m - 1;
+/** The design part of B'B (intercept, block and treatment columns) from the cell counts. */
+function designGram(gram: Float64Array, m: number, hasIntercept: boolean, blockStart: number, treatStart: number, nBlocks: number, nT: number, counts: Int32Array): void {
   let n = 0;
   for (let b = 0; b < nBlocks; b++) {
     const nb = blockRow(gram, m, blockStart + b, treatStart, counts, b * nT, nT);
     setPair(gram, m, blockStart + b, blockStart + b, nb);
-    setPair(gram, m, blockStart + b, yc, ySums[b]);
     if (hasIntercept) setPair(gram, m, 0, blockStart + b, nb);
     n += nb;
   }
@@ -444,14 +442,9 @@ function assembleGram(gram: Float64Array, m: number, hasIntercept: boolean, bloc
     let nt = 0;
     for (let b = 0; b < nBlocks; b++) nt += counts[b * nT + t];
     setPair(gram, m, treatStart + t, treatStart + t, nt);
-    setPair(gram, m, treatStart + t, yc, ySums[nBlocks + t]);
     if (hasIntercept) setPair(gram, m, 0, treatStart + t, nt);
   }
-  if (hasIntercept) {
-    setPair(gram, m, 0, 0, n);
-    setPair(gram, m, 0, yc, yTotals[0]);
-  }
-  gram[yc * m + yc] = yTotals[1];
+  if (hasIntercept) setPair(gram, m, 0, 0, n);
 }
 
 /** A block's row of plot counts by treatment (mirrored into the columns); returns the block's plot count. */
