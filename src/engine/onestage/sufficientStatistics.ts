@@ -84,15 +84,15 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
   const blocks: BlockNumbering = { ids: new Map(), local: [], stamp: [] };
   // covariates centred at their mean over the trials used: the treatment means are then the
   // means at the average trial's covariate values
-  const covariates = covariateNames.map((name) => ({ name, centre: usable.reduce((sum, t) => sum + (t.covariates![name] as number), 0) / usable.length }));
-  checkCovariatesVary(usable, covariates);
-  const z = new Float64Array(covariates.length);
+  const k = covariateNames.length;
+  const centred = centredCovariates(usable, covariateNames);
+  const covariates = covariateNames.map((name, a) => ({ name, centre: centred.centres[a] }));
+  checkCovariatesVary(centred.values, covariates);
   previousTrial = null;
   const trials = usable.map((trial, i) => {
     const c = trial.plotColumns;
     const n = c ? columnPlots(c, tables.get(c.table)!, globalIndex, blocks, i) : objectPlots(trial.plots, known, globalIndex, blocks, i);
-    covariates.forEach((cv, a) => (z[a] = (trial.covariates![cv.name] as number) - cv.centre));
-    return trialStatistics(trial.trial, i, n, globalIndex.length, treatments.length, z, termIncluded);
+    return trialStatistics(trial.trial, i, n, globalIndex.length, treatments.length, centred.values.subarray(i * k, (i + 1) * k), termIncluded);
   });
   previousTrial = null;
   const nObservations = trials.reduce((s, t) => s + t.n, 0);
@@ -100,18 +100,30 @@ export function buildNetworkStatistics(network: NetworkInput, random: readonly R
   return { treatments, fixed: [...treatments, ...covariateNames], covariates, trialsWithoutCovariates: without, trials, nObservations, droppedPlots: dropped, termIncluded };
 }
 
+/** Each trial's covariate values (trials x covariates, row-major) centred at their means over the trials, and the means. */
+function centredCovariates(trials: readonly TrialInput[], names: readonly string[]): { values: Float64Array; centres: Float64Array } {
+  const k = names.length;
+  const values = new Float64Array(trials.length * k);
+  const centres = new Float64Array(k);
+  trials.forEach((t, i) => names.forEach((name, a) => (values[i * k + a] = t.covariates![name] as number)));
+  for (let a = 0; a < k; a++) {
+    for (let i = 0; i < trials.length; i++) centres[a] += values[i * k + a];
+    centres[a] /= trials.length;
+    for (let i = 0; i < trials.length; i++) values[i * k + a] -= centres[a];
+  }
+  return { values, centres };
+}
+
 /**
  * Trial covariates must vary across the trials used, and none may be a linear combination of
  * the others: otherwise a slope is not estimable (its column is a combination of the treatment
  * columns). Checked on the centred trial-by-covariate matrix by a pivoted Gram elimination.
  */
-function checkCovariatesVary(trials: readonly TrialInput[], covariates: readonly { name: string; centre: number }[]): void {
+function checkCovariatesVary(centred: Float64Array, covariates: readonly { name: string; centre: number }[]): void {
   const k = covariates.length;
   if (k === 0) return;
   const s = new Float64Array(k * k);
-  for (const t of trials)
-    for (let a = 0; a < k; a++)
-      for (let b = 0; b < k; b++) s[a * k + b] += ((t.covariates![covariates[a].name] as number) - covariates[a].centre) * ((t.covariates![covariates[b].name] as number) - covariates[b].centre);
+  for (let o = 0; o < centred.length; o += k) for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) s[a * k + b] += centred[o + a] * centred[o + b];
   const scale = Array.from({ length: k }, (_, a) => s[a * k + a]);
   for (let a = 0; a < k; a++) {
     // what is left of covariate a after the ones before it, relative to its own spread
