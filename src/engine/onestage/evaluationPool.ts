@@ -6,6 +6,7 @@
 // overwritten before it is read, so reused buffers need no clearing.
 import type { TrialStatistics } from './sufficientStatistics.js';
 import { patternStateIn, patternStateSize, type PatternState } from './trialBlock.js';
+import type { SpectralState } from './spectralEvaluation.js';
 
 export interface EvaluationBuffers {
   readonly patterns: PatternState[];
@@ -15,6 +16,8 @@ export interface EvaluationBuffers {
   readonly hyy: Float64Array;
   /** Per pattern: design rows of B'V^-1 y summed over its trials. */
   readonly hzySum: Float64Array[];
+  /** Per spectral group (spectralGroups.ts): its decomposition and trials' projections. */
+  readonly spectral: SpectralState[];
 }
 
 /** What the pool needs to know about each pattern: its representative trial, random columns and data columns. */
@@ -23,6 +26,7 @@ export interface PoolLayout {
   readonly randomColumns: readonly Int32Array[];
   readonly hzyLength: number;
   readonly nColumns: number;
+  readonly spectralStates: () => SpectralState[];
 }
 
 export class EvaluationPool {
@@ -54,6 +58,6 @@ export class EvaluationPool {
       hzySum.push(new Float64Array(slab.buffer, offset * 8, t.m - 1));
       offset += t.m - 1;
     }
-    return { patterns, hzy: new Float64Array(this.layout.hzyLength), hyy: new Float64Array(this.layout.nColumns), hzySum };
+    return { patterns, hzy: new Float64Array(this.layout.hzyLength), hyy: new Float64Array(this.layout.nColumns), hzySum, spectral: this.layout.spectralStates() };
   }
 }

@@ -6,7 +6,7 @@ import type { ResolvedContrast } from '../contrasts/resolve.js';
 import { chisqUpper } from '../stats/distributions.js';
 import { buildNetworkStatistics } from './sufficientStatistics.js';
 import { parameterLayout } from './parameters.js';
-import { modelFrame, type ModelFrame } from './remlCriterion.js';
+import { completeEvaluation, modelFrame, type ModelFrame } from './remlCriterion.js';
 import { optimiseReml, type OptimiseOutcome } from './optimise.js';
 import { startValues } from './startValues.js';
 import { activeParameterTable } from './trialParameters.js';
@@ -38,7 +38,9 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   if (stats.trialsWithoutCovariates.length > 0)
     warnings.push(`trials without a value for every covariate (${covariateNames.join(', ')}) are left out of the one-stage model: ${stats.trialsWithoutCovariates.join(', ')}`);
 
-  const fit = optimiseReml(frame, startValues(frame), hooks, { stage: 'one-stage' });
+  const optimised = optimiseReml(frame, startValues(frame), hooks, { stage: 'one-stage' });
+  // the second-order terms and per-trial contrasts read every pattern's block
+  const fit: OptimiseOutcome = { ...optimised, evaluation: completeEvaluation(frame, optimised.evaluation) };
   const ev = fit.evaluation;
   const nP = layout.parameters.length;
   const p = stats.fixed.length;

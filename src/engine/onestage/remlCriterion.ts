@@ -9,6 +9,8 @@ import type { ParameterLayout } from './parameters.js';
 import { designHash, evaluatePattern, sameDesign, randomColumnsOf, type PatternState } from './trialBlock.js';
 import { patternMoments, type PatternMoments } from './patternMoments.js';
 import { EvaluationPool, type EvaluationBuffers } from './evaluationPool.js';
+import { spectralGroups, type SpectralGroup } from './spectralGroups.js';
+import { accumulateGroup, decomposeLayout, spectralStateFor, type SpectralState } from './spectralEvaluation.js';
 
 export interface ModelFrame {
   readonly stats: NetworkStatistics;
@@ -25,6 +27,10 @@ export interface ModelFrame {
   readonly columnOffsets: Int32Array;
   /** Design group of each trial (identical design, any residual parameter): for design-only work. */
   readonly designOf: Int32Array;
+  /** Trials of one layout with residual variances of their own, evaluated through one decomposition (spectralGroups.ts). */
+  readonly spectral: readonly SpectralGroup[];
+  /** 1 for a pattern whose trial belongs to a spectral group. */
+  readonly spectralPattern: Uint8Array;
   /** Buffers of discarded evaluations, reused by the next ones (evaluationPool.ts). */
   readonly pool: EvaluationPool;
 }
@@ -57,13 +63,17 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
   // random columns depend on the design only: one array per design, shared by its trials
   const designColumns = designTrial.map((i) => randomColumnsOf(stats.trials[i]));
   const randomColumns = Array.from(designOf, (d) => designColumns[d]);
+  const spectral = spectralGroups(stats, layout, designOf, randomColumns);
+  const spectralPattern = new Uint8Array(patternTrial.length);
+  for (const g of spectral) for (const i of g.trials) spectralPattern[patternOf[i]] = 1;
   const pool = new EvaluationPool({
     representatives: patternTrial.map((i) => stats.trials[i]),
     randomColumns: patternTrial.map((i) => randomColumns[i]),
     hzyLength: columnOffsets[patternTrial.length],
     nColumns: moments.reduce((s, mo) => s + mo.nColumns, 0),
+    spectralStates: () => spectral.map((g) => spectralStateFor(stats, g)),
   });
-  return { stats, layout, randomColumns, patternOf, patternTrial, patternCount, moments, columnOffsets, designOf, pool };
+  return { stats, layout, randomColumns, patternOf, patternTrial, patternCount, moments, columnOffsets, designOf, spectral, spectralPattern, pool };
 }
 
 /** Groups of trials with identical designs, numbered in order of first appearance. */
@@ -105,7 +115,13 @@ export interface Evaluation {
   readonly beta: Float64Array;
   /** (X'V^-1 X)^-1, p x p. */
   readonly c: Float64Array;
+  /**
+   * Per pattern: its shared block; for a pattern of a spectral group only when `spectral` is
+   * null (a complete evaluation, see completeEvaluation).
+   */
   readonly patterns: PatternState[];
+  /** Per spectral group of the frame: its decomposition, or null when every pattern was filled instead. */
+  readonly spectral: readonly SpectralState[] | null;
   /** Per pattern column f (see patternMoments): the design rows of B'V^-1 y at
    *  frame.columnOffsets, and the quadratic part of y'V^-1 y (its y'y part is sumYy / sigma2). */
   readonly hzy: Float64Array;
@@ -132,7 +148,12 @@ export function termVariances(frame: ModelFrame, theta: ArrayLike<number>): Floa
 
 // evaluateReml is kept free of long loops: the per-pattern work sits in small functions that V8
 // optimises early, instead of one large function running on on-stack-replaced code.
-export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evaluation {
+/**
+ * The criterion and what the derivatives need at theta. Trials of spectral groups are evaluated
+ * through their group's decomposition unless `complete` asks for every pattern's block (which
+ * the second-order terms and the per-trial contrasts read).
+ */
+export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>, complete = false): Evaluation {
   const { stats, layout } = frame;
   const p = stats.fixed.length;
   const nQ = frame.patternTrial.length;
@@ -143,14 +164,32 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   let sumLogDetV = 0;
   const buffers = frame.pool.take();
   const { patterns, hzy, hyy, hzySum } = buffers;
-  for (let q = 0; q < nQ; q++) {
-    const i = frame.patternTrial[q];
-    evaluatePattern(stats.trials[i], gTerm, theta[layout.residualParameter[i]], patterns[q]);
+  const skip = complete ? null : frame.spectralPattern;
+  try {
+    for (let q = 0; q < nQ; q++) {
+      if (skip && skip[q]) continue;
+      const i = frame.patternTrial[q];
+      evaluatePattern(stats.trials[i], gTerm, theta[layout.residualParameter[i]], patterns[q]);
+    }
+    if (!complete) {
+      const sums = new Float64Array(2);
+      for (let g = 0; g < frame.spectral.length; g++) {
+        decomposeLayout(stats, frame.spectral[g], gTerm, buffers.spectral[g]);
+        accumulateGroup(stats, frame.spectral[g], theta, buffers.spectral[g], p, xvx, xvy, sums);
+      }
+      sumLogDetV += sums[0];
+      yvy += sums[1];
+    }
+  } catch (err) {
+    frame.pool.give(buffers);
+    throw err;
   }
   let col = 0;
   for (let q = 0; q < nQ; q++) {
-    sumLogDetV += accumulateXvx(frame, patterns[q], q, p, xvx);
-    yvy += patternDataTerms(frame, patterns[q], q, col, hzy, hyy, hzySum[q], xvy);
+    if (!(skip && skip[q])) {
+      sumLogDetV += accumulateXvx(frame, patterns[q], q, p, xvx);
+      yvy += patternDataTerms(frame, patterns[q], q, col, hzy, hyy, hzySum[q], xvy);
+    }
     col += frame.moments[q].nColumns;
   }
   const xvxM: Matrix = { rows: p, cols: p, data: xvx };
@@ -167,7 +206,18 @@ export function evaluateReml(frame: ModelFrame, theta: ArrayLike<number>): Evalu
   for (let j = 0; j < p; j++) rvr -= xvy[j] * beta[j];
   const dfResidual = stats.nObservations - p;
   const criterion = dfResidual * Math.log(2 * Math.PI) + sumLogDetV + logDetXVX + rvr;
-  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, hzy, hyy, hzySum, sumLogDetV, logDetXVX, buffers };
+  const spectral = complete || frame.spectral.length === 0 ? null : buffers.spectral;
+  return { theta: Float64Array.from(theta), criterion, beta, c: cholInverse(l).data, patterns, spectral, hzy, hyy, hzySum, sumLogDetV, logDetXVX, buffers };
+}
+
+/** For code that reads every pattern's block: a programming error if some were left to the spectral route. */
+export function assertComplete(ev: Evaluation, reader: string): void {
+  if (ev.spectral) throw new Error(`${reader} needs a complete evaluation (completeEvaluation)`);
+}
+
+/** `ev` itself if every pattern's block is filled, else a complete evaluation at its theta. */
+export function completeEvaluation(frame: ModelFrame, ev: Evaluation): Evaluation {
+  return ev.spectral ? evaluateReml(frame, ev.theta, true) : ev;
 }
 
 /** X'V^-1 X gains the pattern's treatment block times its number of trials; returns its part of sum log|V_i|. */

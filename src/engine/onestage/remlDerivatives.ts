@@ -10,6 +10,7 @@
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import { ensurePatternH2, type PatternState } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
+import { spectralScore } from './spectralDerivatives.js';
 
 export interface ScoreAndInformation {
   readonly gradient: Float64Array;
@@ -60,14 +61,18 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
   const ai = new Float64Array(withInformation ? nP * nP : 0);
   const v = new Float64Array(nP * p);
   const work = workVectors(frame);
+  const skip = ev.spectral ? frame.spectralPattern : null;
   let col = 0; // the pattern's first column in ev.hyy
   for (let q = 0; q < ev.patterns.length; q++) {
     const i0 = frame.patternTrial[q];
-    patternTrace(frame, ev, q, active[i0], trace);
-    patternQuadratic(frame, ev, q, col, active[i0], quadratic, withInformation ? ai : null, work);
-    if (withInformation) patternLinear(frame, ev, q, active[i0], v, work);
+    if (!(skip && skip[q])) {
+      patternTrace(frame, ev, q, active[i0], trace);
+      patternQuadratic(frame, ev, q, col, active[i0], quadratic, withInformation ? ai : null, work);
+      if (withInformation) patternLinear(frame, ev, q, active[i0], v, work);
+    }
     col += frame.moments[q].nColumns;
   }
+  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai: withInformation ? ai : null, v });
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
   return new ScoreWithLazyInformation(gradient, quadratic, trace, v, ai, ev.c, p);

@@ -7,7 +7,7 @@
 // over the small blocks. They depend on the design only, so each design pattern is visited once
 // and weighted by its number of trials; Q_kl is only ever held per pattern (for Kenward–Roger;
 // E takes its traces without forming it).
-import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import { assertComplete, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensurePatternH2 } from './trialBlock.js';
 import type { ActiveParameter } from './trialParameters.js';
@@ -163,6 +163,7 @@ function positionScratch(mz: number, R: Int32Array): Int32Array {
 }
 
 export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndInformation, active: readonly ActiveParameter[][]): SecondOrder {
+  assertComplete(ev, 'secondOrder');
   const nP = frame.layout.parameters.length;
   const p = frame.stats.fixed.length;
   const P = Array.from({ length: nP }, () => new Float64Array(p * p));
@@ -190,6 +191,7 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
  * asymptotic covariance of the variance parameters (as pbkrtest's vcovAdj builds it).
  */
 export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder, w: Float64Array, active: readonly ActiveParameter[][]): Float64Array {
+  assertComplete(ev, 'kenwardRogerU');
   const nP = frame.layout.parameters.length;
   const p = frame.stats.fixed.length;
   const u = new Float64Array(p * p);

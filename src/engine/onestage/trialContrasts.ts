@@ -3,7 +3,7 @@
 // and block effects cancel because contrast coefficients sum to zero) and the trial's own
 // fixed-effects estimate (blocks + treatments fitted to that trial alone, from its Gram matrix).
 import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import { assertComplete, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import type { TrialContrastReport } from './types.js';
 
 export interface ContrastVector {
@@ -55,6 +55,7 @@ interface PatternContrast {
 // it is worked out once per design or pattern as a linear function of the trial's Z'y; each
 // trial then costs a few dot products.
 export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: readonly ContrastVector[], treatmentTrialVariance: number): { trial: string; contrasts: TrialContrastReport[] }[] {
+  assertComplete(ev, 'trialContrasts');
   const p = frame.stats.fixed.length;
   const lb = contrasts.map((c) => (c.l ? dot(c.l, ev.beta, p) : 0));
   const designs = new Map<number, { own: OwnDesign | null; byContrast: (DesignContrast | null)[] }>();

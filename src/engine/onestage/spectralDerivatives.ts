@@ -1,0 +1,348 @@
+// Score and average-information terms (remlDerivatives.ts) for the trials of one spectral
+// group, from the group's decomposition (spectralEvaluation.ts). With s the trial's residual
+// variance, rho = (-beta_T, 1) and e_a = g_a - F_Ta'beta (the trial's residual projected on q_a):
+//   h   = Z'V^-1 r = (K rho) / s   + sum_a c1_a F_a e_a        (random rows)
+//   h2  = Z'V^-2 r = (K rho) / s^2 + sum_a c2_a F_a e_a
+//   r'V^-k r      = rho'K rho / s^k + sum_a ck_a e_a^2
+//   tr(V^-1)      = (n - r) / s + sum_a 1 / (s + lambda_a)
+// with ck_a = ((s + lambda_a)^-k - s^-k) / lambda_a written without the division (finite at
+// lambda_a = 0). The random terms' traces tr(C X'V^-1 V_k V^-1 X) are sums over trials of
+// quadratics in c1, so the trials contribute sums of 1/s^2, c1_a/s and c1_a c1_b and the
+// design matrices enter once per group.
+import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import type { SpectralGroup } from './spectralGroups.js';
+import type { SpectralState } from './spectralEvaluation.js';
+import { Scratch } from './arena.js';
+
+export interface ScoreTargets {
+  readonly trace: Float64Array;
+  readonly quadratic: Float64Array;
+  /** a0 (nP x nP), or null for the score alone. */
+  readonly ai: Float64Array | null;
+  readonly v: Float64Array;
+}
+
+/** Design-level pieces of one group at one evaluation (depend on beta and C, not on a trial). */
+interface GroupPieces {
+  readonly r: number;
+  readonly nt: number;
+  /** F_Ta'beta (r), K_RT beta (r), K_TT beta (nt), beta'K_TT beta. */
+  readonly fb: Float64Array;
+  readonly kbR: Float64Array;
+  readonly kbT: Float64Array;
+  readonly bKb: number;
+  /** phi_a = F_Ta' C F_Ta (r) and kappa = tr(C K_TT). */
+  readonly phi: Float64Array;
+  readonly kappa: number;
+}
+
+const pieceScratch = new Scratch();
+const clScratch = new Scratch();
+const fcScratch = new Scratch();
+const trialScratch = new Scratch();
+const sumScratch = new Scratch();
+const termScratch = new Scratch();
+
+export function spectralScore(frame: ModelFrame, ev: Evaluation, gi: number, out: ScoreTargets): void {
+  const group = frame.spectral[gi];
+  const state = (ev.spectral as readonly SpectralState[])[gi];
+  const stats = frame.stats;
+  const t0 = stats.trials[group.representative];
+  const p = stats.fixed.length;
+  const r = group.randomColumns.length;
+  const nt = t0.fixedColumns.length;
+  const cl = clScratch.get(nt * nt);
+  for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) cl[x * nt + y] = ev.c[t0.fixedIndex[x] * p + t0.fixedIndex[y]];
+  const fc = fcScratch.get(r * nt);
+  const pieces = groupPieces(frame, group, state, ev.beta, cl, fc);
+  // sums over trials: [S1, S2, alpha (r), psi (r), Gamma (r x r), vh (r), vw (terms x r)]
+  const nTerms = group.terms.length;
+  const sums = sumScratch.get(2 + 3 * r + r * r + nTerms * r);
+  sums.fill(0, 0, 2 + 3 * r + r * r + nTerms * r);
+  const work = trialScratch.get(9 * r + 2 * nTerms * r + nt);
+  for (let e = 0; e < group.trials.length; e++) trialTerms(frame, ev, group, state, pieces, e, work, sums, out);
+  termTraces(frame, group, state, pieces, cl, fc, sums, out.trace);
+  if (out.ai) termLinear(frame, group, state, sums, out.v);
+}
+
+function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralState, beta: Float64Array, cl: Float64Array, fc: Float64Array): GroupPieces {
+  const t0 = frame.stats.trials[group.representative];
+  const m = t0.m;
+  const K = t0.gram;
+  const R = group.randomColumns;
+  const r = R.length;
+  const T = t0.fixedColumns;
+  const tg = t0.fixedIndex;
+  const nt = T.length;
+  const f = state.f;
+  const buf = pieceScratch.get(3 * r + nt);
+  const fb = buf.subarray(0, r);
+  const kbR = buf.subarray(r, 2 * r);
+  const phi = buf.subarray(2 * r, 3 * r);
+  const kbT = buf.subarray(3 * r, 3 * r + nt);
+  for (let a = 0; a < r; a++) {
+    let s = 0;
+    for (let x = 0; x < nt; x++) s += f[T[x] * r + a] * beta[tg[x]];
+    fb[a] = s;
+  }
+  for (let b = 0; b < r; b++) {
+    let s = 0;
+    for (let x = 0; x < nt; x++) s += K[R[b] * m + T[x]] * beta[tg[x]];
+    kbR[b] = s;
+  }
+  let bKb = 0;
+  for (let x = 0; x < nt; x++) {
+    let s = 0;
+    for (let y = 0; y < nt; y++) s += K[T[x] * m + T[y]] * beta[tg[y]];
+    kbT[x] = s;
+    bKb += beta[tg[x]] * s;
+  }
+  // fc = F_T' C (r x nt); phi_a = (F_T' C F_T)_aa; kappa = tr(C K_TT)
+  for (let a = 0; a < r; a++)
+    for (let x = 0; x < nt; x++) {
+      let s = 0;
+      for (let y = 0; y < nt; y++) s += f[T[y] * r + a] * cl[y * nt + x];
+      fc[a * nt + x] = s;
+    }
+  for (let a = 0; a < r; a++) {
+    let s = 0;
+    for (let x = 0; x < nt; x++) s += fc[a * nt + x] * f[T[x] * r + a];
+    phi[a] = s;
+  }
+  let kappa = 0;
+  for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) kappa += cl[x * nt + y] * K[T[y] * m + T[x]];
+  return { r, nt, fb, kbR, kbT, bKb, phi, kappa };
+}
+
+/**
+ * One trial's terms: its residual parameter's trace, quadratic, AI entries and v row; its part
+ * of the random terms' quadratics and AI entries; and its share of the group sums.
+ */
+function trialTerms(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, state: SpectralState, pc: GroupPieces, e: number, work: Float64Array, sums: Float64Array, out: ScoreTargets): void {
+  const stats = frame.stats;
+  const ti = stats.trials[group.trials[e]];
+  const m = ti.m;
+  const mz = m - 1;
+  const K = ti.gram;
+  const R = group.randomColumns;
+  const r = pc.r;
+  const T = ti.fixedColumns;
+  const tg = ti.fixedIndex;
+  const nt = pc.nt;
+  const nP = frame.layout.parameters.length;
+  const p = stats.fixed.length;
+  const { lambda, f, g } = state;
+  const beta = ev.beta;
+  const s = ev.theta[group.residualParameter[e]];
+  const sig = group.residualParameter[e];
+  const nTerms = group.terms.length;
+  // work: c1, c2, c3, ea (r each), h, h2 (r each), w, kh (terms x r), hT (nt)
+  const C1 = 0;
+  const C2 = r;
+  const C3 = 2 * r;
+  const EA = 3 * r;
+  const H = 4 * r;
+  const H2 = 5 * r;
+  const W = 6 * r;
+  let rKr = K[m * m - 1] + pc.bKb;
+  for (let x = 0; x < nt; x++) rKr -= 2 * K[T[x] * m + mz] * beta[tg[x]];
+  let quadRes = rKr / (s * s);
+  let cubeRes = rKr / (s * s * s);
+  let traceRes = (ti.n - r) / s - pc.kappa / (s * s);
+  for (let a = 0; a < r; a++) {
+    const l = lambda[a];
+    const sl = s + l;
+    const c1 = -1 / (s * sl);
+    const c2 = -(2 * s + l) / (s * s * sl * sl);
+    const c3 = -(3 * s * s + 3 * s * l + l * l) / (s * s * s * sl * sl * sl);
+    work[C1 + a] = c1;
+    work[C2 + a] = c2;
+    work[C3 + a] = c3;
+    const ea = g[e * r + a] - pc.fb[a];
+    work[EA + a] = ea;
+    quadRes += c2 * ea * ea;
+    cubeRes += c3 * ea * ea;
+    traceRes += 1 / sl - c2 * pc.phi[a];
+  }
+  out.quadratic[sig] += quadRes;
+  out.trace[sig] += traceRes;
+  // h and h2 on the random rows
+  for (let j = 0; j < r; j++) {
+    const kr = K[R[j] * m + mz] - pc.kbR[j];
+    let h = kr / s;
+    let h2 = kr / (s * s);
+    const fo = R[j] * r;
+    for (let a = 0; a < r; a++) {
+      const fe = f[fo + a] * work[EA + a];
+      h += work[C1 + a] * fe;
+      h2 += work[C2 + a] * fe;
+    }
+    work[H + j] = h;
+    work[H2 + j] = h2;
+  }
+  for (let k = 0; k < nTerms; k++) {
+    const pos = group.terms[k].positions;
+    let q = 0;
+    for (let x = 0; x < pos.length; x++) q += work[H + pos[x]] * work[H + pos[x]];
+    out.quadratic[group.terms[k].parameter] += q;
+  }
+  accumulateSums(lambda, s, r, work, sums);
+  if (!out.ai) return;
+  trialInformation(frame, group, state, e, s, work, W, W + nTerms * r, sums, out.ai);
+  out.ai[sig * nP + sig] += cubeRes;
+  // v of the residual parameter: X_i'V_i^-2 r_i = (K rho)_T / s^2 + sum_a c2_a F_Ta e_a
+  for (let x = 0; x < nt; x++) {
+    let v = (K[T[x] * m + mz] - pc.kbT[x]) / (s * s);
+    const fo = T[x] * r;
+    for (let a = 0; a < r; a++) v += work[C2 + a] * f[fo + a] * work[EA + a];
+    out.v[sig * p + tg[x]] += v;
+  }
+}
+
+/** S1 += 1/s, S2 += 1/s^2, alpha += c1, psi += c1 / s, Gamma += c1 c1' (Gamma's upper triangle). */
+function accumulateSums(lambda: Float64Array, s: number, r: number, work: Float64Array, sums: Float64Array): void {
+  sums[0] += 1 / s;
+  sums[1] += 1 / (s * s);
+  const alpha = 2;
+  const psi = 2 + r;
+  const gamma = 2 + 2 * r;
+  for (let a = 0; a < r; a++) {
+    const c1 = work[a];
+    sums[alpha + a] += c1;
+    sums[psi + a] += c1 / s;
+    for (let b = a; b < r; b++) sums[gamma + a * r + b] += c1 * work[b];
+  }
+  void lambda;
+}
+
+/** The trial's AI entries among the random terms and with its residual; its share of v's sums. */
+function trialInformation(frame: ModelFrame, group: SpectralGroup, state: SpectralState, e: number, s: number, work: Float64Array, wo: number, kho: number, sums: Float64Array, ai: Float64Array): void {
+  const ti = frame.stats.trials[group.trials[e]];
+  const m = ti.m;
+  const K = ti.gram;
+  const R = group.randomColumns;
+  const r = R.length;
+  const nP = frame.layout.parameters.length;
+  const f = state.f;
+  const terms = group.terms;
+  const nTerms = terms.length;
+  const H = 4 * r;
+  const H2 = 5 * r;
+  const sig = group.residualParameter[e];
+  // w[k][a] = F_ka . h_k ; kh[l][j] = (K_R,l h_l)_j
+  for (let k = 0; k < nTerms; k++) {
+    const pos = terms[k].positions;
+    for (let a = 0; a < r; a++) {
+      let sw = 0;
+      for (let x = 0; x < pos.length; x++) sw += f[R[pos[x]] * r + a] * work[H + pos[x]];
+      work[wo + k * r + a] = sw;
+    }
+    for (let j = 0; j < r; j++) {
+      let sk = 0;
+      for (let x = 0; x < pos.length; x++) sk += K[R[j] * m + R[pos[x]]] * work[H + pos[x]];
+      work[kho + k * r + j] = sk;
+    }
+  }
+  const vh = 2 + 2 * r + r * r;
+  const vw = vh + r;
+  for (let j = 0; j < r; j++) sums[vh + j] += work[H + j] / s;
+  for (let k = 0; k < nTerms; k++) {
+    const A = terms[k].parameter;
+    const pk = terms[k].positions;
+    for (let a = 0; a < r; a++) sums[vw + k * r + a] += work[a] * work[wo + k * r + a];
+    for (let l = k; l < nTerms; l++) {
+      const B = terms[l].parameter;
+      let val = 0;
+      for (let x = 0; x < pk.length; x++) val += work[H + pk[x]] * work[kho + l * r + pk[x]];
+      val /= s;
+      for (let a = 0; a < r; a++) val += work[a] * work[wo + k * r + a] * work[wo + l * r + a];
+      ai[A * nP + B] += val;
+      if (A !== B) ai[B * nP + A] += val;
+    }
+    let hr = 0;
+    for (let x = 0; x < pk.length; x++) hr += work[H + pk[x]] * work[H2 + pk[x]];
+    ai[A * nP + sig] += hr;
+    ai[sig * nP + A] += hr;
+  }
+}
+
+/**
+ * The random terms' traces tr(P V_k) = tr(V^-1 V_k) - tr(C X'V^-1 V_k V^-1 X), summed over the
+ * group's trials: with H_Tj = K_Tj / s + sum_a c1_a F_ja F_Ta,
+ *   sum_j in k  H_Tj' C H_Tj = tau0_k / s^2 + 2 sum_a (c1_a / s) tau1_ka + sum_ab c1_a c1_b tau2_kab.
+ */
+function termTraces(frame: ModelFrame, group: SpectralGroup, state: SpectralState, pc: GroupPieces, cl: Float64Array, fc: Float64Array, sums: Float64Array, trace: Float64Array): void {
+  const t0 = frame.stats.trials[group.representative];
+  const m = t0.m;
+  const K = t0.gram;
+  const R = group.randomColumns;
+  const r = pc.r;
+  const T = t0.fixedColumns;
+  const nt = pc.nt;
+  const f = state.f;
+  const alpha = 2;
+  const psi = 2 + r;
+  const gamma = 2 + 2 * r;
+  const ck = termScratch.get(nt + r * r);
+  // fcf = F_T' C F_T (r x r) after the nt entries of ck's head
+  const FCF = nt;
+  for (let a = 0; a < r; a++)
+    for (let b = 0; b < r; b++) {
+      let s = 0;
+      for (let x = 0; x < nt; x++) s += fc[a * nt + x] * f[T[x] * r + b];
+      ck[FCF + a * r + b] = s;
+    }
+  for (const term of group.terms) {
+    const pos = term.positions;
+    let trVk = 0;
+    let tau0 = 0;
+    let tau1 = 0;
+    let tau2 = 0;
+    for (let x = 0; x < pos.length; x++) {
+      const j = R[pos[x]];
+      trVk += K[j * m + j] * sums[0];
+      for (let a = 0; a < r; a++) trVk += sums[alpha + a] * f[j * r + a] * f[j * r + a];
+      // C K_Tj into ck[0 .. nt)
+      for (let y = 0; y < nt; y++) {
+        let s = 0;
+        for (let z = 0; z < nt; z++) s += cl[y * nt + z] * K[T[z] * m + j];
+        ck[y] = s;
+      }
+      for (let y = 0; y < nt; y++) tau0 += K[T[y] * m + j] * ck[y];
+      for (let a = 0; a < r; a++) {
+        let fcK = 0;
+        for (let y = 0; y < nt; y++) fcK += f[T[y] * r + a] * ck[y];
+        tau1 += sums[psi + a] * f[j * r + a] * fcK;
+        for (let b = a; b < r; b++) {
+          const v = sums[gamma + a * r + b] * f[j * r + a] * f[j * r + b] * ck[FCF + a * r + b];
+          tau2 += a === b ? v : 2 * v;
+        }
+      }
+    }
+    trace[term.parameter] += trVk - (tau0 * sums[1] + 2 * tau1 + tau2);
+  }
+}
+
+/** v of the random terms: sum over trials of K_T,k h_k / s + sum_a c1_a (F_ka . h_k) F_Ta. */
+function termLinear(frame: ModelFrame, group: SpectralGroup, state: SpectralState, sums: Float64Array, v: Float64Array): void {
+  const t0 = frame.stats.trials[group.representative];
+  const m = t0.m;
+  const K = t0.gram;
+  const R = group.randomColumns;
+  const r = R.length;
+  const T = t0.fixedColumns;
+  const tg = t0.fixedIndex;
+  const p = frame.stats.fixed.length;
+  const f = state.f;
+  const vh = 2 + 2 * r + r * r;
+  const vw = vh + r;
+  group.terms.forEach((term, k) => {
+    const pos = term.positions;
+    for (let x = 0; x < T.length; x++) {
+      let s = 0;
+      for (let y = 0; y < pos.length; y++) s += K[T[x] * m + R[pos[y]]] * sums[vh + pos[y]];
+      for (let a = 0; a < r; a++) s += f[T[x] * r + a] * sums[vw + k * r + a];
+      v[term.parameter * p + tg[x]] += s;
+    }
+  });
+}

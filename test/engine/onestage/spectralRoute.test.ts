@@ -1,0 +1,107 @@
+// The spectral route (trials of one layout with their own residual variances, evaluated through
+// one eigen-decomposition per layout) against the pattern route, which forms every trial's
+// block by Cholesky: both are exact algebra, so they must agree to rounding. Tolerances:
+// 1e-10 relative to each quantity's largest entry (the routes round differently).
+import { describe, expect, it } from 'vitest';
+import { simulateNetwork, type SimulationSettings } from './support/simulateNetwork.js';
+import { buildNetworkStatistics } from '../../../src/engine/onestage/sufficientStatistics.js';
+import { parameterLayout } from '../../../src/engine/onestage/parameters.js';
+import { evaluateReml, modelFrame } from '../../../src/engine/onestage/remlCriterion.js';
+import { startValues } from '../../../src/engine/onestage/startValues.js';
+import { scoreAndInformation } from '../../../src/engine/onestage/remlDerivatives.js';
+import { activeParameterTable } from '../../../src/engine/onestage/trialParameters.js';
+import { symmetricEigenInPlace } from '../../../src/engine/linalg/symmetricEigen.js';
+import type { NetworkInput } from '../../../src/engine/types.js';
+import { mulberry32 } from '../../../src/engine/stats/random.js';
+import type { RandomTerm } from '../../../src/engine/onestage/types.js';
+
+function close(a: ArrayLike<number>, b: ArrayLike<number>, rel = 1e-10): void {
+  let scale = 0;
+  for (let i = 0; i < a.length; i++) scale = Math.max(scale, Math.abs(a[i]), Math.abs(b[i]));
+  expect(a.length).toBe(b.length);
+  for (let i = 0; i < a.length; i++) expect(Math.abs(a[i] - b[i])).toBeLessThanOrEqual(rel * scale);
+}
+
+/** Every other trial loses the same two plots, so two unbalanced layouts are shared by many trials. */
+function withSharedHoles(net: NetworkInput): NetworkInput {
+  return {
+    ...net,
+    trials: net.trials.map((t, i) =>
+      i % 2 === 0 ? t : { ...t, plots: t.plots.filter((pl) => !((pl.block === t.plots[0].block && pl.treatment === 'T3') || (pl.block === t.plots[t.plots.length - 1].block && pl.treatment === 'CTL'))) },
+    ),
+  };
+}
+
+function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (start: Float64Array) => Float64Array): { groups: number } {
+  const stats = buildNetworkStatistics(net, random);
+  const frame = modelFrame(stats, parameterLayout(stats, 'per-trial'));
+  const start = startValues(frame);
+  const th = theta ? theta(start) : start;
+  const fast = evaluateReml(frame, th);
+  const full = evaluateReml(frame, th, true);
+  expect(fast.spectral).not.toBeNull();
+  expect(full.spectral).toBeNull();
+  expect(Math.abs(fast.criterion - full.criterion)).toBeLessThan(1e-11 * Math.abs(full.criterion));
+  close(fast.beta, full.beta);
+  close(fast.c, full.c);
+  const active = activeParameterTable(frame);
+  for (const withInformation of [false, true]) {
+    const a = scoreAndInformation(frame, fast, active, withInformation);
+    const b = scoreAndInformation(frame, full, active, withInformation);
+    close(a.trace, b.trace);
+    close(a.quadratic, b.quadratic);
+    close(a.gradient, b.gradient, 1e-9);
+    close(a.v, b.v);
+    close(a.a0, b.a0);
+    if (withInformation) close(a.ai, b.ai);
+  }
+  return { groups: frame.spectral.length };
+}
+
+describe('spectral route for trials sharing a layout, each with its own residual', () => {
+  const base: SimulationSettings = { seed: 11, trials: 24, residualSpread: [0.4, 2.5] };
+  it('balanced trials: one group; criterion, fixed effects, score and AI match the pattern route', () => {
+    expect(compare(simulateNetwork(base).network, ['trial', 'block', 'treatment:trial']).groups).toBe(1);
+  });
+  it('two shared unbalanced layouts', () => {
+    expect(compare(withSharedHoles(simulateNetwork({ ...base, seed: 12 }).network), ['trial', 'block', 'treatment:trial']).groups).toBe(2);
+  });
+  it('away from the start values, with one term at zero and another tiny', () => {
+    const net = simulateNetwork({ ...base, seed: 13 }).network;
+    compare(net, ['trial', 'block', 'treatment:trial'], (s) => Float64Array.from(s, (v, k) => (k === 1 ? 0 : k === 2 ? 1e-9 : v * (1 + 0.3 * Math.sin(k)))));
+  });
+  it('other choices of random terms', () => {
+    const net = withSharedHoles(simulateNetwork({ ...base, seed: 14, blocks: 3, treatments: 5 }).network);
+    compare(net, ['block']);
+    compare(net, ['treatment:trial']);
+    compare(net, ['trial', 'treatment:trial']);
+  });
+});
+
+describe('symmetric eigen-decomposition', () => {
+  it('reconstructs a rank-deficient matrix with orthonormal vectors (1e-13 of its norm)', () => {
+    const n = 9;
+    const uniform = mulberry32(5);
+    const b = Array.from({ length: n * 4 }, () => uniform() - 0.5);
+    const a = new Float64Array(n * n);
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) for (let k = 0; k < 4; k++) a[i * n + j] += b[i * 4 + k] * b[j * 4 + k];
+    const copy = Float64Array.from(a);
+    const values = new Float64Array(n);
+    const q = new Float64Array(n * n);
+    symmetricEigenInPlace(copy, n, values, q);
+    const norm = Math.sqrt(a.reduce((s, x) => s + x * x, 0));
+    for (let i = 0; i < n; i++)
+      for (let j = 0; j < n; j++) {
+        let rec = 0;
+        let dot = 0;
+        for (let k = 0; k < n; k++) {
+          rec += q[i * n + k] * values[k] * q[j * n + k];
+          dot += q[k * n + i] * q[k * n + j];
+        }
+        expect(Math.abs(rec - a[i * n + j])).toBeLessThan(1e-13 * norm);
+        expect(Math.abs(dot - (i === j ? 1 : 0))).toBeLessThan(1e-13);
+      }
+    // rank 4: five eigenvalues at zero
+    expect(Array.from(values).filter((v) => Math.abs(v) < 1e-12 * norm).length).toBe(5);
+  });
+});
