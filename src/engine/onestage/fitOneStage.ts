@@ -38,9 +38,7 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   if (stats.trialsWithoutCovariates.length > 0)
     warnings.push(`trials without a value for every covariate (${covariateNames.join(', ')}) are left out of the one-stage model: ${stats.trialsWithoutCovariates.join(', ')}`);
 
-  const optimised = optimiseReml(frame, startValues(frame), hooks, { stage: 'one-stage' });
-  // the second-order terms and per-trial contrasts read every pattern's block
-  const fit: OptimiseOutcome = { ...optimised, evaluation: completeEvaluation(frame, optimised.evaluation) };
+  const fit = optimiseReml(frame, startValues(frame), hooks, { stage: 'one-stage' });
   const ev = fit.evaluation;
   const nP = layout.parameters.length;
   const p = stats.fixed.length;
@@ -132,7 +130,8 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
   let kr: { pieces: ReturnType<typeof kenwardRogerCovariance>; u: Float64Array } | null = null;
   if (options.df === 'kenward-roger' && so) {
     const pieces = kenwardRogerCovariance(so, fit.atZero);
-    kr = { pieces, u: kenwardRogerU(frame, ev, so, expandW(pieces, nP), active) };
+    // Kenward–Roger's Q_kl are read from every pattern's block
+    kr = { pieces, u: kenwardRogerU(frame, completeEvaluation(frame, ev), so, expandW(pieces, nP), active) };
   }
   const oFactor = options.df === 'satterthwaite' && so ? observedFactor(so, free) : null;
   return vectors.map((v): ContrastReport => {

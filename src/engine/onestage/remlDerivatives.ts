@@ -72,7 +72,7 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
     }
     col += frame.moments[q].nColumns;
   }
-  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai: withInformation ? ai : null, v });
+  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai, v });
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
   return new ScoreWithLazyInformation(gradient, quadratic, trace, v, ai, ev.c, p);

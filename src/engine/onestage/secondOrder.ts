@@ -12,6 +12,7 @@ import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensurePatternH2 } from './trialBlock.js';
 import type { ActiveParameter } from './trialParameters.js';
 import { f64, Scratch } from './arena.js';
+import { spectralExpected } from './spectralSecondOrder.js';
 import { gatherDot, rowsDot } from '../linalg/gatherDot.js';
 
 export interface SecondOrder {
@@ -163,12 +164,13 @@ function positionScratch(mz: number, R: Int32Array): Int32Array {
 }
 
 export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndInformation, active: readonly ActiveParameter[][]): SecondOrder {
-  assertComplete(ev, 'secondOrder');
   const nP = frame.layout.parameters.length;
   const p = frame.stats.fixed.length;
   const P = Array.from({ length: nP }, () => new Float64Array(p * p));
   const expected = new Float64Array(nP * nP);
-  for (let q = 0; q < frame.patternTrial.length; q++) patternExpected(frame, ev, q, active[frame.patternTrial[q]], P, expected);
+  const skip = ev.spectral ? frame.spectralPattern : null;
+  for (let q = 0; q < frame.patternTrial.length; q++) if (!(skip && skip[q])) patternExpected(frame, ev, q, active[frame.patternTrial[q]], P, expected);
+  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralExpected(frame, ev, g, P, expected);
   // + tr(C P_k C P_l)
   // all C P_k in one array, and their transposes, so each pair is one contiguous dot product
   // (summed in the same order as the double loop over (a, b))

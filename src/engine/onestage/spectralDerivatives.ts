@@ -17,8 +17,8 @@ import { Scratch } from './arena.js';
 export interface ScoreTargets {
   readonly trace: Float64Array;
   readonly quadratic: Float64Array;
-  /** a0 (nP x nP), or null for the score alone. */
-  readonly ai: Float64Array | null;
+  /** a0 (nP x nP), or empty for the score alone (always an array: one shape for V8). */
+  readonly ai: Float64Array;
   readonly v: Float64Array;
 }
 
@@ -59,10 +59,14 @@ export function spectralScore(frame: ModelFrame, ev: Evaluation, gi: number, out
   const nTerms = group.terms.length;
   const sums = sumScratch.get(2 + 3 * r + r * r + nTerms * r);
   sums.fill(0, 0, 2 + 3 * r + r * r + nTerms * r);
-  const work = trialScratch.get(9 * r + 2 * nTerms * r + nt);
-  for (let e = 0; e < group.trials.length; e++) trialTerms(frame, ev, group, state, pieces, e, work, sums, out);
+  const work = trialScratch.get((W + 2 * nTerms) * r + 1);
+  const information = out.ai.length > 0;
+  for (let e = 0; e < group.trials.length; e++) {
+    trialScore(frame, ev, group, state, pieces, e, work, sums, out);
+    if (information) trialInformation(frame, ev, group, state, pieces, e, work, sums, out);
+  }
   termTraces(frame, group, state, pieces, cl, fc, sums, out.trace);
-  if (out.ai) termLinear(frame, group, state, sums, out.v);
+  if (information) termLinear(frame, group, state, sums, out.v);
 }
 
 function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralState, beta: Float64Array, cl: Float64Array, fc: Float64Array): GroupPieces {
@@ -114,13 +118,19 @@ function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralSta
   return { r, nt, fb, kbR, kbT, bKb, phi, kappa };
 }
 
-/**
- * One trial's terms: its residual parameter's trace, quadratic, AI entries and v row; its part
- * of the random terms' quadratics and AI entries; and its share of the group sums.
- */
-function trialTerms(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, state: SpectralState, pc: GroupPieces, e: number, work: Float64Array, sums: Float64Array, out: ScoreTargets): void {
-  const stats = frame.stats;
-  const ti = stats.trials[group.trials[e]];
+// Layout of a trial's working array: c1, c2, c3, e (r each), h, h2 (r each), then w and kh
+// (terms x r each), then r'V^-3 r.
+const C1 = 0;
+const C2 = 1;
+const C3 = 2;
+const EA = 3;
+const H = 4;
+const H2 = 5;
+const W = 6;
+
+/** One trial's score terms: its residual's trace and quadratic, the random terms' quadratics, its share of the group sums. */
+function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, state: SpectralState, pc: GroupPieces, e: number, work: Float64Array, sums: Float64Array, out: ScoreTargets): void {
+  const ti = frame.stats.trials[group.trials[e]];
   const m = ti.m;
   const mz = m - 1;
   const K = ti.gram;
@@ -129,21 +139,11 @@ function trialTerms(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   const T = ti.fixedColumns;
   const tg = ti.fixedIndex;
   const nt = pc.nt;
-  const nP = frame.layout.parameters.length;
-  const p = stats.fixed.length;
   const { lambda, f, g } = state;
   const beta = ev.beta;
   const s = ev.theta[group.residualParameter[e]];
   const sig = group.residualParameter[e];
   const nTerms = group.terms.length;
-  // work: c1, c2, c3, ea (r each), h, h2 (r each), w, kh (terms x r), hT (nt)
-  const C1 = 0;
-  const C2 = r;
-  const C3 = 2 * r;
-  const EA = 3 * r;
-  const H = 4 * r;
-  const H2 = 5 * r;
-  const W = 6 * r;
   let rKr = K[m * m - 1] + pc.bKb;
   for (let x = 0; x < nt; x++) rKr -= 2 * K[T[x] * m + mz] * beta[tg[x]];
   let quadRes = rKr / (s * s);
@@ -155,52 +155,47 @@ function trialTerms(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
     const c1 = -1 / (s * sl);
     const c2 = -(2 * s + l) / (s * s * sl * sl);
     const c3 = -(3 * s * s + 3 * s * l + l * l) / (s * s * s * sl * sl * sl);
-    work[C1 + a] = c1;
-    work[C2 + a] = c2;
-    work[C3 + a] = c3;
+    work[C1 * r + a] = c1;
+    work[C2 * r + a] = c2;
+    work[C3 * r + a] = c3;
     const ea = g[e * r + a] - pc.fb[a];
-    work[EA + a] = ea;
+    work[EA * r + a] = ea;
     quadRes += c2 * ea * ea;
     cubeRes += c3 * ea * ea;
     traceRes += 1 / sl - c2 * pc.phi[a];
   }
+  work[(W + 2 * nTerms) * r] = cubeRes;
   out.quadratic[sig] += quadRes;
   out.trace[sig] += traceRes;
-  // h and h2 on the random rows
+  randomRows(K, m, mz, R, f, r, s, pc.kbR, work);
+  for (let k = 0; k < nTerms; k++) {
+    const pos = group.terms[k].positions;
+    let q = 0;
+    for (let x = 0; x < pos.length; x++) q += work[H * r + pos[x]] * work[H * r + pos[x]];
+    out.quadratic[group.terms[k].parameter] += q;
+  }
+  accumulateSums(s, r, work, sums);
+}
+
+/** h = Z_R'V^-1 r and h2 = Z_R'V^-2 r on the random rows, into the working array. */
+function randomRows(K: Float64Array, m: number, mz: number, R: Int32Array, f: Float64Array, r: number, s: number, kbR: Float64Array, work: Float64Array): void {
   for (let j = 0; j < r; j++) {
-    const kr = K[R[j] * m + mz] - pc.kbR[j];
+    const kr = K[R[j] * m + mz] - kbR[j];
     let h = kr / s;
     let h2 = kr / (s * s);
     const fo = R[j] * r;
     for (let a = 0; a < r; a++) {
-      const fe = f[fo + a] * work[EA + a];
-      h += work[C1 + a] * fe;
-      h2 += work[C2 + a] * fe;
+      const fe = f[fo + a] * work[EA * r + a];
+      h += work[C1 * r + a] * fe;
+      h2 += work[C2 * r + a] * fe;
     }
-    work[H + j] = h;
-    work[H2 + j] = h2;
-  }
-  for (let k = 0; k < nTerms; k++) {
-    const pos = group.terms[k].positions;
-    let q = 0;
-    for (let x = 0; x < pos.length; x++) q += work[H + pos[x]] * work[H + pos[x]];
-    out.quadratic[group.terms[k].parameter] += q;
-  }
-  accumulateSums(lambda, s, r, work, sums);
-  if (!out.ai) return;
-  trialInformation(frame, group, state, e, s, work, W, W + nTerms * r, sums, out.ai);
-  out.ai[sig * nP + sig] += cubeRes;
-  // v of the residual parameter: X_i'V_i^-2 r_i = (K rho)_T / s^2 + sum_a c2_a F_Ta e_a
-  for (let x = 0; x < nt; x++) {
-    let v = (K[T[x] * m + mz] - pc.kbT[x]) / (s * s);
-    const fo = T[x] * r;
-    for (let a = 0; a < r; a++) v += work[C2 + a] * f[fo + a] * work[EA + a];
-    out.v[sig * p + tg[x]] += v;
+    work[H * r + j] = h;
+    work[H2 * r + j] = h2;
   }
 }
 
 /** S1 += 1/s, S2 += 1/s^2, alpha += c1, psi += c1 / s, Gamma += c1 c1' (Gamma's upper triangle). */
-function accumulateSums(lambda: Float64Array, s: number, r: number, work: Float64Array, sums: Float64Array): void {
+function accumulateSums(s: number, r: number, work: Float64Array, sums: Float64Array): void {
   sums[0] += 1 / s;
   sums[1] += 1 / (s * s);
   const alpha = 2;
@@ -212,12 +207,13 @@ function accumulateSums(lambda: Float64Array, s: number, r: number, work: Float6
     sums[psi + a] += c1 / s;
     for (let b = a; b < r; b++) sums[gamma + a * r + b] += c1 * work[b];
   }
-  void lambda;
 }
 
 /** The trial's AI entries among the random terms and with its residual; its share of v's sums. */
-function trialInformation(frame: ModelFrame, group: SpectralGroup, state: SpectralState, e: number, s: number, work: Float64Array, wo: number, kho: number, sums: Float64Array, ai: Float64Array): void {
+function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, state: SpectralState, pc: GroupPieces, e: number, work: Float64Array, sums: Float64Array, out: ScoreTargets): void {
   const ti = frame.stats.trials[group.trials[e]];
+  const s = ev.theta[group.residualParameter[e]];
+  const ai = out.ai;
   const m = ti.m;
   const K = ti.gram;
   const R = group.randomColumns;
@@ -226,26 +222,28 @@ function trialInformation(frame: ModelFrame, group: SpectralGroup, state: Spectr
   const f = state.f;
   const terms = group.terms;
   const nTerms = terms.length;
-  const H = 4 * r;
-  const H2 = 5 * r;
+  const wo = W * r;
+  const kho = (W + nTerms) * r;
+  const h = H * r;
+  const h2 = H2 * r;
   const sig = group.residualParameter[e];
   // w[k][a] = F_ka . h_k ; kh[l][j] = (K_R,l h_l)_j
   for (let k = 0; k < nTerms; k++) {
     const pos = terms[k].positions;
     for (let a = 0; a < r; a++) {
       let sw = 0;
-      for (let x = 0; x < pos.length; x++) sw += f[R[pos[x]] * r + a] * work[H + pos[x]];
+      for (let x = 0; x < pos.length; x++) sw += f[R[pos[x]] * r + a] * work[h + pos[x]];
       work[wo + k * r + a] = sw;
     }
     for (let j = 0; j < r; j++) {
       let sk = 0;
-      for (let x = 0; x < pos.length; x++) sk += K[R[j] * m + R[pos[x]]] * work[H + pos[x]];
+      for (let x = 0; x < pos.length; x++) sk += K[R[j] * m + R[pos[x]]] * work[h + pos[x]];
       work[kho + k * r + j] = sk;
     }
   }
   const vh = 2 + 2 * r + r * r;
   const vw = vh + r;
-  for (let j = 0; j < r; j++) sums[vh + j] += work[H + j] / s;
+  for (let j = 0; j < r; j++) sums[vh + j] += work[h + j] / s;
   for (let k = 0; k < nTerms; k++) {
     const A = terms[k].parameter;
     const pk = terms[k].positions;
@@ -253,16 +251,33 @@ function trialInformation(frame: ModelFrame, group: SpectralGroup, state: Spectr
     for (let l = k; l < nTerms; l++) {
       const B = terms[l].parameter;
       let val = 0;
-      for (let x = 0; x < pk.length; x++) val += work[H + pk[x]] * work[kho + l * r + pk[x]];
+      for (let x = 0; x < pk.length; x++) val += work[h + pk[x]] * work[kho + l * r + pk[x]];
       val /= s;
       for (let a = 0; a < r; a++) val += work[a] * work[wo + k * r + a] * work[wo + l * r + a];
       ai[A * nP + B] += val;
       if (A !== B) ai[B * nP + A] += val;
     }
     let hr = 0;
-    for (let x = 0; x < pk.length; x++) hr += work[H + pk[x]] * work[H2 + pk[x]];
+    for (let x = 0; x < pk.length; x++) hr += work[h + pk[x]] * work[h2 + pk[x]];
     ai[A * nP + sig] += hr;
     ai[sig * nP + A] += hr;
+  }
+  ai[sig * nP + sig] += work[(W + 2 * nTerms) * r];
+  residualLinear(ti, state, r, pc, s, work, out.v, sig * frame.stats.fixed.length);
+}
+
+/** v of the trial's residual: X_i'V_i^-2 r_i = (K rho)_T / s^2 + sum_a c2_a F_Ta e_a. */
+function residualLinear(ti: ModelFrame['stats']['trials'][number], state: SpectralState, r: number, pc: GroupPieces, s: number, work: Float64Array, v: Float64Array, vo: number): void {
+  const m = ti.m;
+  const K = ti.gram;
+  const T = ti.fixedColumns;
+  const tg = ti.fixedIndex;
+  const f = state.f;
+  for (let x = 0; x < T.length; x++) {
+    let sum = (K[T[x] * m + m - 1] - pc.kbT[x]) / (s * s);
+    const fo = T[x] * r;
+    for (let a = 0; a < r; a++) sum += work[C2 * r + a] * f[fo + a] * work[EA * r + a];
+    v[vo + tg[x]] += sum;
   }
 }
 

@@ -3,7 +3,8 @@
 // and block effects cancel because contrast coefficients sum to zero) and the trial's own
 // fixed-effects estimate (blocks + treatments fitted to that trial alone, from its Gram matrix).
 import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
-import { assertComplete, type Evaluation, type ModelFrame } from './remlCriterion.js';
+import type { Evaluation, ModelFrame } from './remlCriterion.js';
+import { spectralTreatmentResiduals } from './spectralContrasts.js';
 import type { TrialContrastReport } from './types.js';
 
 export interface ContrastVector {
@@ -55,20 +56,22 @@ interface PatternContrast {
 // it is worked out once per design or pattern as a linear function of the trial's Z'y; each
 // trial then costs a few dot products.
 export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: readonly ContrastVector[], treatmentTrialVariance: number): { trial: string; contrasts: TrialContrastReport[] }[] {
-  assertComplete(ev, 'trialContrasts');
   const p = frame.stats.fixed.length;
   const lb = contrasts.map((c) => (c.l ? dot(c.l, ev.beta, p) : 0));
   const designs = new Map<number, { own: OwnDesign | null; byContrast: (DesignContrast | null)[] }>();
   const patterns = new Map<number, (PatternContrast | null)[]>();
   const maxM = frame.stats.trials.reduce((mx, t) => Math.max(mx, t.m), 1);
   const b = new Float64Array(maxM);
+  // trials evaluated through their layout's decomposition carry l'h_T directly
+  const spectral = spectralTreatmentResiduals(frame, ev);
   return frame.stats.trials.map((t, i) => {
     const d = frame.designOf[i];
     let design = designs.get(d);
     if (!design) designs.set(d, (design = designContrasts(frame, i, contrasts)));
     const q = frame.patternOf[i];
+    const hT = spectral.get(i);
     let pattern = patterns.get(q);
-    if (!pattern) patterns.set(q, (pattern = patternContrasts(frame, ev, q, contrasts)));
+    if (!pattern) patterns.set(q, (pattern = hT ? estimability(t, contrasts, p) : patternContrasts(frame, ev, q, contrasts)));
     const m = t.m;
     const mz = m - 1;
     // the trial's own residual variance: (y'y - b'A^-1 b) / df
@@ -82,7 +85,8 @@ export function trialContrasts(frame: ModelFrame, ev: Evaluation, contrasts: rea
     const out = contrasts.map((c, ci): TrialContrastReport => {
       const pc = pattern[ci];
       if (!c.l || !pc) return { name: c.name, blup: null, raw: null, rawSe: null, rawDf: null };
-      const blup = treatmentTrialVariance > 0 ? lb[ci] + treatmentTrialVariance * (columnDot(pc.g, t.gram, m, mz) - pc.g0) : lb[ci];
+      const deviation = hT ? fixedDot(c.l, hT, t) : columnDot(pc.g, t.gram, m, mz) - pc.g0;
+      const blup = treatmentTrialVariance > 0 ? lb[ci] + treatmentTrialVariance * deviation : lb[ci];
       const dc = design.byContrast[ci];
       if (!pc.estimable || !own || !dc) return { name: c.name, blup, raw: null, rawSe: null, rawDf: null };
       return { name: c.name, blup, raw: dot(dc.a, b, own.cols.length), rawSe: Math.sqrt(s2 * dc.v), rawDf: own.df };
@@ -151,6 +155,20 @@ function patternContrasts(frame: ModelFrame, ev: Evaluation, q: number, contrast
     }
     return { g, g0, estimable };
   });
+}
+
+/** For trials without a pattern block: only whether each contrast's treatments are all present. */
+function estimability(t: ModelFrame['stats']['trials'][number], contrasts: readonly ContrastVector[], p: number): (PatternContrast | null)[] {
+  const present = new Uint8Array(p);
+  for (let a = 0; a < t.treatmentCount; a++) present[t.fixedIndex[a]] = 1;
+  return contrasts.map((c) => (c.l ? { g: new Float64Array(0), g0: 0, estimable: c.l.every((v, j) => v === 0 || present[j] === 1) } : null));
+}
+
+/** l'h over the trial's treatments (h indexed like its fixed columns). */
+function fixedDot(l: Float64Array, h: Float64Array, t: ModelFrame['stats']['trials'][number]): number {
+  let s = 0;
+  for (let a = 0; a < t.treatmentCount; a++) s += l[t.fixedIndex[a]] * h[a];
+  return s;
 }
 
 function dot(a: ArrayLike<number>, b: ArrayLike<number>, n: number): number {
