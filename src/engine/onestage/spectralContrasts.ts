@@ -17,10 +17,10 @@ export function spectralTreatmentResiduals(frame: ModelFrame, ev: Evaluation): M
     const T = t0.fixedColumns;
     const tg = t0.fixedIndex;
     const nt = T.length;
-    const r = group.randomColumns.length;
+    const ne = state.rank;
     const f = state.f;
-    const fb = new Float64Array(r);
-    for (let a = 0; a < r; a++) for (let x = 0; x < nt; x++) fb[a] += f[T[x] * r + a] * ev.beta[tg[x]];
+    const fb = new Float64Array(ne);
+    for (let a = 0; a < ne; a++) for (let x = 0; x < nt; x++) fb[a] += f[T[x] * ne + a] * ev.beta[tg[x]];
     const kbT = new Float64Array(nt);
     for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) kbT[x] += t0.gram[T[x] * m + T[y]] * ev.beta[tg[y]];
     group.trials.forEach((i, e) => {
@@ -29,7 +29,7 @@ export function spectralTreatmentResiduals(frame: ModelFrame, ev: Evaluation): M
       const h = new Float64Array(nt);
       for (let x = 0; x < nt; x++) {
         let v = (K[T[x] * m + mz] - kbT[x]) / s;
-        for (let a = 0; a < r; a++) v += (-1 / (s * (s + state.lambda[a]))) * f[T[x] * r + a] * (state.g[e * r + a] - fb[a]);
+        for (let a = 0; a < ne; a++) v += (-1 / (s * (s + state.lambda[a]))) * f[T[x] * ne + a] * (state.g[e * ne + a] - fb[a]);
         h[x] = v;
       }
       out.set(i, h);

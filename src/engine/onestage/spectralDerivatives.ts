@@ -24,14 +24,16 @@ export interface ScoreTargets {
 
 /** Design-level pieces of one group at one evaluation (depend on beta and C, not on a trial). */
 interface GroupPieces {
+  /** Random columns and eigen-directions kept (SpectralState.rank). */
   readonly r: number;
+  readonly ne: number;
   readonly nt: number;
-  /** F_Ta'beta (r), K_RT beta (r), K_TT beta (nt), beta'K_TT beta. */
+  /** F_Ta'beta (ne), K_RT beta (r), K_TT beta (nt), beta'K_TT beta. */
   readonly fb: Float64Array;
   readonly kbR: Float64Array;
   readonly kbT: Float64Array;
   readonly bKb: number;
-  /** phi_a = F_Ta' C F_Ta (r) and kappa = tr(C K_TT). */
+  /** phi_a = F_Ta' C F_Ta (ne) and kappa = tr(C K_TT). */
   readonly phi: Float64Array;
   readonly kappa: number;
 }
@@ -43,6 +45,16 @@ const trialScratch = new Scratch();
 const sumScratch = new Scratch();
 const termScratch = new Scratch();
 
+// Layout of the group sums: S1 = sum 1/s, S2 = sum 1/s^2, alpha = sum c1, psi = sum c1/s,
+// Gamma = sum c1 c1' (upper triangle), then for v: vh = sum h/s (r), vw = sum c1 w (terms x ne).
+const S1 = 0;
+const S2 = 1;
+const ALPHA = 2;
+const psiAt = (ne: number): number => 2 + ne;
+const gammaAt = (ne: number): number => 2 + 2 * ne;
+const vhAt = (ne: number): number => 2 + 2 * ne + ne * ne;
+const vwAt = (ne: number, r: number): number => vhAt(ne) + r;
+
 export function spectralScore(frame: ModelFrame, ev: Evaluation, gi: number, out: ScoreTargets): void {
   const group = frame.spectral[gi];
   const state = (ev.spectral as readonly SpectralState[])[gi];
@@ -50,16 +62,17 @@ export function spectralScore(frame: ModelFrame, ev: Evaluation, gi: number, out
   const t0 = stats.trials[group.representative];
   const p = stats.fixed.length;
   const r = group.randomColumns.length;
+  const ne = state.rank;
   const nt = t0.fixedColumns.length;
   const cl = clScratch.get(nt * nt);
   for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) cl[x * nt + y] = ev.c[t0.fixedIndex[x] * p + t0.fixedIndex[y]];
-  const fc = fcScratch.get(r * nt);
+  const fc = fcScratch.get(ne * nt);
   const pieces = groupPieces(frame, group, state, ev.beta, cl, fc);
-  // sums over trials: [S1, S2, alpha (r), psi (r), Gamma (r x r), vh (r), vw (terms x r)]
   const nTerms = group.terms.length;
-  const sums = sumScratch.get(2 + 3 * r + r * r + nTerms * r);
-  sums.fill(0, 0, 2 + 3 * r + r * r + nTerms * r);
-  const work = trialScratch.get((W + 2 * nTerms) * r + 1);
+  const nSums = vwAt(ne, r) + nTerms * ne;
+  const sums = sumScratch.get(nSums);
+  sums.fill(0, 0, nSums);
+  const work = trialScratch.get(workSize(ne, r, nTerms));
   const information = out.ai.length > 0;
   for (let e = 0; e < group.trials.length; e++) {
     trialScore(frame, ev, group, state, pieces, e, work, sums, out);
@@ -75,18 +88,19 @@ function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralSta
   const K = t0.gram;
   const R = group.randomColumns;
   const r = R.length;
+  const ne = state.rank;
   const T = t0.fixedColumns;
   const tg = t0.fixedIndex;
   const nt = T.length;
   const f = state.f;
-  const buf = pieceScratch.get(3 * r + nt);
-  const fb = buf.subarray(0, r);
-  const kbR = buf.subarray(r, 2 * r);
-  const phi = buf.subarray(2 * r, 3 * r);
-  const kbT = buf.subarray(3 * r, 3 * r + nt);
-  for (let a = 0; a < r; a++) {
+  const buf = pieceScratch.get(2 * ne + r + nt);
+  const fb = buf.subarray(0, ne);
+  const phi = buf.subarray(ne, 2 * ne);
+  const kbR = buf.subarray(2 * ne, 2 * ne + r);
+  const kbT = buf.subarray(2 * ne + r, 2 * ne + r + nt);
+  for (let a = 0; a < ne; a++) {
     let s = 0;
-    for (let x = 0; x < nt; x++) s += f[T[x] * r + a] * beta[tg[x]];
+    for (let x = 0; x < nt; x++) s += f[T[x] * ne + a] * beta[tg[x]];
     fb[a] = s;
   }
   for (let b = 0; b < r; b++) {
@@ -101,32 +115,35 @@ function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralSta
     kbT[x] = s;
     bKb += beta[tg[x]] * s;
   }
-  // fc = F_T' C (r x nt); phi_a = (F_T' C F_T)_aa; kappa = tr(C K_TT)
-  for (let a = 0; a < r; a++)
+  // fc = F_T' C (ne x nt); phi_a = (F_T' C F_T)_aa; kappa = tr(C K_TT)
+  for (let a = 0; a < ne; a++)
     for (let x = 0; x < nt; x++) {
       let s = 0;
-      for (let y = 0; y < nt; y++) s += f[T[y] * r + a] * cl[y * nt + x];
+      for (let y = 0; y < nt; y++) s += f[T[y] * ne + a] * cl[y * nt + x];
       fc[a * nt + x] = s;
     }
-  for (let a = 0; a < r; a++) {
+  for (let a = 0; a < ne; a++) {
     let s = 0;
-    for (let x = 0; x < nt; x++) s += fc[a * nt + x] * f[T[x] * r + a];
+    for (let x = 0; x < nt; x++) s += fc[a * nt + x] * f[T[x] * ne + a];
     phi[a] = s;
   }
   let kappa = 0;
   for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) kappa += cl[x * nt + y] * K[T[y] * m + T[x]];
-  return { r, nt, fb, kbR, kbT, bKb, phi, kappa };
+  return { r, ne, nt, fb, kbR, kbT, bKb, phi, kappa };
 }
 
-// Layout of a trial's working array: c1, c2, c3, e (r each), h, h2 (r each), then w and kh
-// (terms x r each), then r'V^-3 r.
+// Layout of a trial's working array: c1, c2, c3, e (ne each), h, h2 (r each), w (terms x ne),
+// kh (terms x r), then r'V^-3 r.
 const C1 = 0;
-const C2 = 1;
-const C3 = 2;
-const EA = 3;
-const H = 4;
-const H2 = 5;
-const W = 6;
+const c2At = (ne: number): number => ne;
+const c3At = (ne: number): number => 2 * ne;
+const eAt = (ne: number): number => 3 * ne;
+const hAt = (ne: number): number => 4 * ne;
+const h2At = (ne: number, r: number): number => 4 * ne + r;
+const wAt = (ne: number, r: number): number => 4 * ne + 2 * r;
+const khAt = (ne: number, r: number, nTerms: number): number => wAt(ne, r) + nTerms * ne;
+const cubeAt = (ne: number, r: number, nTerms: number): number => khAt(ne, r, nTerms) + nTerms * r;
+const workSize = (ne: number, r: number, nTerms: number): number => cubeAt(ne, r, nTerms) + 1;
 
 /** One trial's score terms: its residual's trace and quadratic, the random terms' quadratics, its share of the group sums. */
 function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, state: SpectralState, pc: GroupPieces, e: number, work: Float64Array, sums: Float64Array, out: ScoreTargets): void {
@@ -135,10 +152,9 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   const mz = m - 1;
   const K = ti.gram;
   const R = group.randomColumns;
-  const r = pc.r;
+  const { r, ne, nt } = pc;
   const T = ti.fixedColumns;
   const tg = ti.fixedIndex;
-  const nt = pc.nt;
   const { lambda, f, g } = state;
   const beta = ev.beta;
   const s = ev.theta[group.residualParameter[e]];
@@ -148,64 +164,64 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   for (let x = 0; x < nt; x++) rKr -= 2 * K[T[x] * m + mz] * beta[tg[x]];
   let quadRes = rKr / (s * s);
   let cubeRes = rKr / (s * s * s);
-  let traceRes = (ti.n - r) / s - pc.kappa / (s * s);
-  for (let a = 0; a < r; a++) {
+  let traceRes = (ti.n - ne) / s - pc.kappa / (s * s);
+  const c2o = c2At(ne);
+  const c3o = c3At(ne);
+  const eo = eAt(ne);
+  for (let a = 0; a < ne; a++) {
     const l = lambda[a];
     const sl = s + l;
     const c1 = -1 / (s * sl);
     const c2 = -(2 * s + l) / (s * s * sl * sl);
     const c3 = -(3 * s * s + 3 * s * l + l * l) / (s * s * s * sl * sl * sl);
-    work[C1 * r + a] = c1;
-    work[C2 * r + a] = c2;
-    work[C3 * r + a] = c3;
-    const ea = g[e * r + a] - pc.fb[a];
-    work[EA * r + a] = ea;
+    work[C1 + a] = c1;
+    work[c2o + a] = c2;
+    work[c3o + a] = c3;
+    const ea = g[e * ne + a] - pc.fb[a];
+    work[eo + a] = ea;
     quadRes += c2 * ea * ea;
     cubeRes += c3 * ea * ea;
     traceRes += 1 / sl - c2 * pc.phi[a];
   }
-  work[(W + 2 * nTerms) * r] = cubeRes;
+  work[cubeAt(ne, r, nTerms)] = cubeRes;
   out.quadratic[sig] += quadRes;
   out.trace[sig] += traceRes;
-  randomRows(K, m, mz, R, f, r, s, pc.kbR, work);
+  randomRows(K, m, mz, R, f, ne, pc.kbR, work, C1, hAt(ne), 1 / s);
+  const ho = hAt(ne);
   for (let k = 0; k < nTerms; k++) {
     const pos = group.terms[k].positions;
     let q = 0;
-    for (let x = 0; x < pos.length; x++) q += work[H * r + pos[x]] * work[H * r + pos[x]];
+    for (let x = 0; x < pos.length; x++) q += work[ho + pos[x]] * work[ho + pos[x]];
     out.quadratic[group.terms[k].parameter] += q;
   }
-  accumulateSums(s, r, work, sums);
+  accumulateSums(s, ne, work, sums);
 }
 
-/** h = Z_R'V^-1 r and h2 = Z_R'V^-2 r on the random rows, into the working array. */
-function randomRows(K: Float64Array, m: number, mz: number, R: Int32Array, f: Float64Array, r: number, s: number, kbR: Float64Array, work: Float64Array): void {
-  for (let j = 0; j < r; j++) {
-    const kr = K[R[j] * m + mz] - kbR[j];
-    let h = kr / s;
-    let h2 = kr / (s * s);
-    const fo = R[j] * r;
-    for (let a = 0; a < r; a++) {
-      const fe = f[fo + a] * work[EA * r + a];
-      h += work[C1 * r + a] * fe;
-      h2 += work[C2 * r + a] * fe;
-    }
-    work[H * r + j] = h;
-    work[H2 * r + j] = h2;
+/**
+ * Z_R'V^-k r on the random rows into work[out ...]: (K rho)_R * scale + sum_a c_a F_Ra e_a with
+ * c = work[co ...] (c1 and 1/s for h, c2 and 1/s^2 for h2).
+ */
+function randomRows(K: Float64Array, m: number, mz: number, R: Int32Array, f: Float64Array, ne: number, kbR: Float64Array, work: Float64Array, co: number, out: number, scale: number): void {
+  const eo = eAt(ne);
+  for (let j = 0; j < R.length; j++) {
+    let h = (K[R[j] * m + mz] - kbR[j]) * scale;
+    const fo = R[j] * ne;
+    for (let a = 0; a < ne; a++) h += work[co + a] * f[fo + a] * work[eo + a];
+    work[out + j] = h;
   }
 }
 
 /** S1 += 1/s, S2 += 1/s^2, alpha += c1, psi += c1 / s, Gamma += c1 c1' (Gamma's upper triangle). */
-function accumulateSums(s: number, r: number, work: Float64Array, sums: Float64Array): void {
-  sums[0] += 1 / s;
-  sums[1] += 1 / (s * s);
-  const alpha = 2;
-  const psi = 2 + r;
-  const gamma = 2 + 2 * r;
-  for (let a = 0; a < r; a++) {
-    const c1 = work[a];
-    sums[alpha + a] += c1;
+function accumulateSums(s: number, ne: number, work: Float64Array, sums: Float64Array): void {
+  sums[S1] += 1 / s;
+  sums[S2] += 1 / (s * s);
+  const psi = psiAt(ne);
+  const gamma = gammaAt(ne);
+  for (let a = 0; a < ne; a++) {
+    const c1 = work[C1 + a];
+    sums[ALPHA + a] += c1;
     sums[psi + a] += c1 / s;
-    for (let b = a; b < r; b++) sums[gamma + a * r + b] += c1 * work[b];
+    for (let b = a; b < ne; b++) sums[gamma + a * ne + b] += c1 * work[C1 + b];
   }
 }
 
@@ -217,23 +233,24 @@ function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGrou
   const m = ti.m;
   const K = ti.gram;
   const R = group.randomColumns;
-  const r = R.length;
+  const { r, ne } = pc;
   const nP = frame.layout.parameters.length;
   const f = state.f;
   const terms = group.terms;
   const nTerms = terms.length;
-  const wo = W * r;
-  const kho = (W + nTerms) * r;
-  const h = H * r;
-  const h2 = H2 * r;
+  const h = hAt(ne);
+  const h2 = h2At(ne, r);
+  const wo = wAt(ne, r);
+  const kho = khAt(ne, r, nTerms);
   const sig = group.residualParameter[e];
+  randomRows(K, m, m - 1, R, f, ne, pc.kbR, work, c2At(ne), h2, 1 / (s * s));
   // w[k][a] = F_ka . h_k ; kh[l][j] = (K_R,l h_l)_j
   for (let k = 0; k < nTerms; k++) {
     const pos = terms[k].positions;
-    for (let a = 0; a < r; a++) {
+    for (let a = 0; a < ne; a++) {
       let sw = 0;
-      for (let x = 0; x < pos.length; x++) sw += f[R[pos[x]] * r + a] * work[h + pos[x]];
-      work[wo + k * r + a] = sw;
+      for (let x = 0; x < pos.length; x++) sw += f[R[pos[x]] * ne + a] * work[h + pos[x]];
+      work[wo + k * ne + a] = sw;
     }
     for (let j = 0; j < r; j++) {
       let sk = 0;
@@ -241,19 +258,19 @@ function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGrou
       work[kho + k * r + j] = sk;
     }
   }
-  const vh = 2 + 2 * r + r * r;
-  const vw = vh + r;
+  const vh = vhAt(ne);
+  const vw = vwAt(ne, r);
   for (let j = 0; j < r; j++) sums[vh + j] += work[h + j] / s;
   for (let k = 0; k < nTerms; k++) {
     const A = terms[k].parameter;
     const pk = terms[k].positions;
-    for (let a = 0; a < r; a++) sums[vw + k * r + a] += work[a] * work[wo + k * r + a];
+    for (let a = 0; a < ne; a++) sums[vw + k * ne + a] += work[C1 + a] * work[wo + k * ne + a];
     for (let l = k; l < nTerms; l++) {
       const B = terms[l].parameter;
       let val = 0;
       for (let x = 0; x < pk.length; x++) val += work[h + pk[x]] * work[kho + l * r + pk[x]];
       val /= s;
-      for (let a = 0; a < r; a++) val += work[a] * work[wo + k * r + a] * work[wo + l * r + a];
+      for (let a = 0; a < ne; a++) val += work[C1 + a] * work[wo + k * ne + a] * work[wo + l * ne + a];
       ai[A * nP + B] += val;
       if (A !== B) ai[B * nP + A] += val;
     }
@@ -262,21 +279,24 @@ function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGrou
     ai[A * nP + sig] += hr;
     ai[sig * nP + A] += hr;
   }
-  ai[sig * nP + sig] += work[(W + 2 * nTerms) * r];
-  residualLinear(ti, state, r, pc, s, work, out.v, sig * frame.stats.fixed.length);
+  ai[sig * nP + sig] += work[cubeAt(ne, r, nTerms)];
+  residualLinear(ti, state, pc, s, work, out.v, sig * frame.stats.fixed.length);
 }
 
 /** v of the trial's residual: X_i'V_i^-2 r_i = (K rho)_T / s^2 + sum_a c2_a F_Ta e_a. */
-function residualLinear(ti: ModelFrame['stats']['trials'][number], state: SpectralState, r: number, pc: GroupPieces, s: number, work: Float64Array, v: Float64Array, vo: number): void {
+function residualLinear(ti: ModelFrame['stats']['trials'][number], state: SpectralState, pc: GroupPieces, s: number, work: Float64Array, v: Float64Array, vo: number): void {
   const m = ti.m;
   const K = ti.gram;
   const T = ti.fixedColumns;
   const tg = ti.fixedIndex;
   const f = state.f;
+  const ne = pc.ne;
+  const c2o = c2At(ne);
+  const eo = eAt(ne);
   for (let x = 0; x < T.length; x++) {
     let sum = (K[T[x] * m + m - 1] - pc.kbT[x]) / (s * s);
-    const fo = T[x] * r;
-    for (let a = 0; a < r; a++) sum += work[C2 * r + a] * f[fo + a] * work[EA * r + a];
+    const fo = T[x] * ne;
+    for (let a = 0; a < ne; a++) sum += work[c2o + a] * f[fo + a] * work[eo + a];
     v[vo + tg[x]] += sum;
   }
 }
@@ -291,21 +311,19 @@ function termTraces(frame: ModelFrame, group: SpectralGroup, state: SpectralStat
   const m = t0.m;
   const K = t0.gram;
   const R = group.randomColumns;
-  const r = pc.r;
+  const { ne, nt } = pc;
   const T = t0.fixedColumns;
-  const nt = pc.nt;
   const f = state.f;
-  const alpha = 2;
-  const psi = 2 + r;
-  const gamma = 2 + 2 * r;
-  const ck = termScratch.get(nt + r * r);
-  // fcf = F_T' C F_T (r x r) after the nt entries of ck's head
+  const psi = psiAt(ne);
+  const gamma = gammaAt(ne);
+  const ck = termScratch.get(nt + ne * ne);
+  // fcf = F_T' C F_T (ne x ne) after the nt entries of ck's head
   const FCF = nt;
-  for (let a = 0; a < r; a++)
-    for (let b = 0; b < r; b++) {
+  for (let a = 0; a < ne; a++)
+    for (let b = 0; b < ne; b++) {
       let s = 0;
-      for (let x = 0; x < nt; x++) s += fc[a * nt + x] * f[T[x] * r + b];
-      ck[FCF + a * r + b] = s;
+      for (let x = 0; x < nt; x++) s += fc[a * nt + x] * f[T[x] * ne + b];
+      ck[FCF + a * ne + b] = s;
     }
   for (const term of group.terms) {
     const pos = term.positions;
@@ -315,8 +333,8 @@ function termTraces(frame: ModelFrame, group: SpectralGroup, state: SpectralStat
     let tau2 = 0;
     for (let x = 0; x < pos.length; x++) {
       const j = R[pos[x]];
-      trVk += K[j * m + j] * sums[0];
-      for (let a = 0; a < r; a++) trVk += sums[alpha + a] * f[j * r + a] * f[j * r + a];
+      trVk += K[j * m + j] * sums[S1];
+      for (let a = 0; a < ne; a++) trVk += sums[ALPHA + a] * f[j * ne + a] * f[j * ne + a];
       // C K_Tj into ck[0 .. nt)
       for (let y = 0; y < nt; y++) {
         let s = 0;
@@ -324,17 +342,17 @@ function termTraces(frame: ModelFrame, group: SpectralGroup, state: SpectralStat
         ck[y] = s;
       }
       for (let y = 0; y < nt; y++) tau0 += K[T[y] * m + j] * ck[y];
-      for (let a = 0; a < r; a++) {
+      for (let a = 0; a < ne; a++) {
         let fcK = 0;
-        for (let y = 0; y < nt; y++) fcK += f[T[y] * r + a] * ck[y];
-        tau1 += sums[psi + a] * f[j * r + a] * fcK;
-        for (let b = a; b < r; b++) {
-          const v = sums[gamma + a * r + b] * f[j * r + a] * f[j * r + b] * ck[FCF + a * r + b];
+        for (let y = 0; y < nt; y++) fcK += f[T[y] * ne + a] * ck[y];
+        tau1 += sums[psi + a] * f[j * ne + a] * fcK;
+        for (let b = a; b < ne; b++) {
+          const v = sums[gamma + a * ne + b] * f[j * ne + a] * f[j * ne + b] * ck[FCF + a * ne + b];
           tau2 += a === b ? v : 2 * v;
         }
       }
     }
-    trace[term.parameter] += trVk - (tau0 * sums[1] + 2 * tau1 + tau2);
+    trace[term.parameter] += trVk - (tau0 * sums[S2] + 2 * tau1 + tau2);
   }
 }
 
@@ -345,18 +363,19 @@ function termLinear(frame: ModelFrame, group: SpectralGroup, state: SpectralStat
   const K = t0.gram;
   const R = group.randomColumns;
   const r = R.length;
+  const ne = state.rank;
   const T = t0.fixedColumns;
   const tg = t0.fixedIndex;
   const p = frame.stats.fixed.length;
   const f = state.f;
-  const vh = 2 + 2 * r + r * r;
-  const vw = vh + r;
+  const vh = vhAt(ne);
+  const vw = vwAt(ne, r);
   group.terms.forEach((term, k) => {
     const pos = term.positions;
     for (let x = 0; x < T.length; x++) {
       let s = 0;
       for (let y = 0; y < pos.length; y++) s += K[T[x] * m + R[pos[y]]] * sums[vh + pos[y]];
-      for (let a = 0; a < r; a++) s += f[T[x] * r + a] * sums[vw + k * r + a];
+      for (let a = 0; a < ne; a++) s += f[T[x] * ne + a] * sums[vw + k * ne + a];
       v[term.parameter * p + tg[x]] += s;
     }
   });
