@@ -9,7 +9,7 @@ import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '..
 import { tQuantile, tTwoSidedP } from '../stats/distributions.js';
 import type { Evaluation } from './remlCriterion.js';
 import type { SecondOrder } from './secondOrder.js';
-import { inverseQuadratic, subCholesky } from './spdSolve.js';
+import type { InverseOnFree } from './informationSolver.js';
 
 export function quadraticForm(a: Float64Array, n: number, x: ArrayLike<number>, y: ArrayLike<number> = x): number {
   let s = 0;
@@ -46,20 +46,16 @@ function cTimes(ev: Evaluation, p: number, l: ArrayLike<number>): Float64Array {
   return out;
 }
 
-/** Cholesky factor of O on the free parameters, computed once per fit and shared by every contrast. */
-export function observedFactor(so: SecondOrder, free: readonly number[]): Matrix | null {
-  return subCholesky(so.observed, so.p.length, free);
-}
-
-export function satterthwaiteDf(ev: Evaluation, so: SecondOrder, free: readonly number[], oFactor: Matrix | null, l: ArrayLike<number>): number {
+/** `observed`: O^-1 on the free parameters (informationSolver.ts), worked out once per fit and shared by every contrast. */
+export function satterthwaiteDf(ev: Evaluation, so: SecondOrder, free: readonly number[], observed: InverseOnFree | null, l: ArrayLike<number>): number {
   const p = ev.beta.length;
   const cl = cTimes(ev, p, l);
   let v = 0;
   for (let i = 0; i < p; i++) v += l[i] * cl[i];
   const g = free.map((k) => quadraticForm(so.p[k], p, cl));
-  if (!oFactor) return NaN;
+  if (!observed) return NaN;
   // g' A g with A = 2 O^-1
-  const gag = 2 * inverseQuadratic(oFactor, g);
+  const gag = 2 * observed.quadratic(g);
   return (2 * v * v) / gag;
 }
 

@@ -11,8 +11,8 @@ import { optimiseReml, type OptimiseOutcome } from './optimise.js';
 import { startValues } from './startValues.js';
 import { activeParameterTable } from './trialParameters.js';
 import { secondOrder, kenwardRogerU, type SecondOrder } from './secondOrder.js';
-import { expandW, kenwardRogerContrast, kenwardRogerCovariance, observedFactor, satterthwaiteDf, tInterval, quadraticForm } from './contrastInference.js';
-import { inverseDiagonal, subCholesky } from './spdSolve.js';
+import { expandW, kenwardRogerContrast, kenwardRogerCovariance, satterthwaiteDf, tInterval, quadraticForm } from './contrastInference.js';
+import { averageInformationInverse, observedInformationInverse } from './informationSolver.js';
 import { trialContrasts, type ContrastVector } from './trialContrasts.js';
 import { profileInterval } from './profile.js';
 import { RANDOM_TERMS } from './types.js';
@@ -49,8 +49,8 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   const needSecond = options.df !== 'residual';
   const so: SecondOrder | null = needSecond ? secondOrder(frame, ev, fit.score, active) : null;
 
-  const aiFactor = subCholesky(fit.score.ai, nP, free);
-  const aiInvDiag = aiFactor ? inverseDiagonal(aiFactor) : null;
+  const aiInverse = averageInformationInverse(fit.score, ev.c, p, layout, free);
+  const aiInvDiag = aiInverse ? aiInverse.inverseDiagonal() : null;
   const seOf = (k: number): number | null => {
     const f = free.indexOf(k);
     return f < 0 || !aiInvDiag ? null : Math.sqrt(2 * aiInvDiag[f]);
@@ -133,7 +133,7 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
     // Kenward–Roger's Q_kl are read from every pattern's block
     kr = { pieces, u: kenwardRogerU(frame, completeEvaluation(frame, ev), so, expandW(pieces, nP), active) };
   }
-  const oFactor = options.df === 'satterthwaite' && so ? observedFactor(so, free) : null;
+  const observed = options.df === 'satterthwaite' && so ? observedInformationInverse(fit.score, so, ev.c, p, frame.layout, free) : null;
   return vectors.map((v): ContrastReport => {
     const empty = { name: v.name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: options.df, seUnadjusted: null };
     if (!v.l) return { ...empty, note: 'not estimable: a treatment in the contrast has no usable plot' };
@@ -143,7 +143,7 @@ function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOr
     let se = seUnadjusted;
     let df: number;
     if (options.df === 'residual') df = frame.stats.nObservations - p;
-    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, oFactor, v.l);
+    else if (options.df === 'satterthwaite') df = satterthwaiteDf(ev, so!, free, observed, v.l);
     else {
       const r = kenwardRogerContrast(ev, so!, kr!.pieces, kr!.u, v.l);
       df = r.df;

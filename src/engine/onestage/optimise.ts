@@ -11,7 +11,8 @@ import { criterionOrInfinity, releaseEvaluation, type Evaluation, type ModelFram
 import { scoreAndInformation, type ScoreAndInformation } from './remlDerivatives.js';
 import { activeParameterTable, type ActiveParameter } from './trialParameters.js';
 import { OneStageCancelledError, type OneStageHooks, type RunRecord } from './types.js';
-import { borderedSolve } from './borderedSolve.js';
+import { borderedFactor, lowRankFactor } from './borderedSolve.js';
+import { BORDERED_MIN_FREE } from './informationSolver.js';
 
 export const DECREMENT_TOL = 1e-10;
 export const CRITERION_TOL = 1e-12;
@@ -19,8 +20,6 @@ export const PARAMETER_TOL = 1e-10;
 const MAX_ITERATIONS = 200;
 const MAX_HALVINGS = 40;
 const EM_ITERATIONS = 3;
-/** With more free parameters than this the Newton step uses the bordered solve (borderedSolve.ts). */
-const BORDERED_MIN_FREE = 16;
 
 export interface OptimiseOptions {
   /** Parameters held at zero throughout (reduced models for likelihood-ratio tests). */
@@ -154,8 +153,9 @@ function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number
   let x: Float64Array | null = null;
   let notPositiveDefinite = false;
   if (f > BORDERED_MIN_FREE) {
-    const b = borderedSolve(sc.a0, sc.v, c, nP, p, free, residual, g);
-    if (b && 'x' in b) x = b.x;
+    const w = lowRankFactor(sc.v, c, nP, p);
+    const b = w ? borderedFactor(sc.a0, w, p, nP, free, residual) : null;
+    if (b && 'solve' in b) x = b.solve(g);
     else if (b) notPositiveDefinite = true;
   }
   if (!x && !notPositiveDefinite) x = denseSolve(sc, free, nP, g);

@@ -12,14 +12,59 @@ import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensurePatternH2 } from './trialBlock.js';
 import type { ActiveParameter } from './trialParameters.js';
 import { f64, Scratch } from './arena.js';
+import { choleskyInPlace } from '../linalg/inPlace.js';
 import { spectralExpected } from './spectralSecondOrder.js';
 import { gatherDot, rowsDot } from '../linalg/gatherDot.js';
 
 export interface SecondOrder {
   /** P_k for each parameter, p x p. */
   readonly p: Float64Array[];
+  /** The per-block part of E: tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) (nP x nP; arrowhead with one residual per trial). */
+  readonly blockExpected: Float64Array;
+  /** U (nP x uCols) with tr(C P_k C P_l) = U_k . U_l: the vech of L'P_k L (C = L L', off-diagonal entries times sqrt 2). */
+  readonly u: Float64Array;
+  readonly uCols: number;
+  /** E = blockExpected + U U', and the observed O = 2 AI - E (dense nP x nP, formed on first use). */
   readonly expected: Float64Array;
   readonly observed: Float64Array;
+}
+
+class SecondOrderTerms implements SecondOrder {
+  private denseExpected: Float64Array | null = null;
+  private denseObserved: Float64Array | null = null;
+  constructor(
+    readonly p: Float64Array[],
+    readonly blockExpected: Float64Array,
+    readonly u: Float64Array,
+    readonly uCols: number,
+    private readonly score: ScoreAndInformation,
+  ) {}
+
+  get expected(): Float64Array {
+    if (!this.denseExpected) {
+      const nP = this.p.length;
+      const q = this.uCols;
+      const e = Float64Array.from(this.blockExpected);
+      for (let k = 0; k < nP; k++)
+        for (let l = k; l < nP; l++) {
+          let s = 0;
+          for (let a = 0; a < q; a++) s += this.u[k * q + a] * this.u[l * q + a];
+          e[k * nP + l] += s;
+          if (l !== k) e[l * nP + k] += s;
+        }
+      this.denseExpected = e;
+    }
+    return this.denseExpected;
+  }
+
+  get observed(): Float64Array {
+    if (!this.denseObserved) {
+      const e = this.expected;
+      const ai = this.score.ai; // a getter: read once, not per entry
+      this.denseObserved = Float64Array.from(e, (x, j) => 2 * ai[j] - x);
+    }
+    return this.denseObserved;
+  }
 }
 
 type Small = { rows: number; cols: number; data: Float64Array };
@@ -171,21 +216,37 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
   const skip = ev.spectral ? frame.spectralPattern : null;
   for (let q = 0; q < frame.patternTrial.length; q++) if (!(skip && skip[q])) patternExpected(frame, ev, q, active[frame.patternTrial[q]], P, expected);
   if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralExpected(frame, ev, g, P, expected);
-  // + tr(C P_k C P_l)
-  // all C P_k in one array, and their transposes, so each pair is one contiguous dot product
-  // (summed in the same order as the double loop over (a, b))
-  const pp = p * p;
-  const cp = new Float64Array(nP * pp);
-  const cpT = new Float64Array(nP * pp);
-  for (let k = 0; k < nP; k++) {
-    cp.set(matMul(ev.c, P[k], p), k * pp);
-    transposeInto(cp, k * pp, cpT, p);
-  }
-  for (let k = 0; k < nP; k++) addTraceRow(expected, cp, cpT, k, nP, pp);
-  const observed = new Float64Array(nP * nP);
-  const ai = score.ai; // a getter: read once, not per entry
-  for (let j = 0; j < nP * nP; j++) observed[j] = 2 * ai[j] - expected[j];
-  return { p: P, expected, observed };
+  const uCols = (p * (p + 1)) / 2;
+  return new SecondOrderTerms(P, expected, traceFactor(P, ev.c, p, uCols), uCols, score);
+}
+
+/** U with U_k . U_l = tr(C P_k C P_l): the vech of S_k = L'P_k L (C = L L'), off-diagonal entries times sqrt 2. */
+function traceFactor(P: readonly Float64Array[], c: Float64Array, p: number, uCols: number): Float64Array {
+  const l = Float64Array.from(c);
+  choleskyInPlace(l, p); // C is the inverse of a positive definite X'V^-1 X
+  for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) l[a * p + b] = 0;
+  const u = new Float64Array(P.length * uCols);
+  const pl = new Float64Array(p * p);
+  for (let k = 0; k < P.length; k++) vechOfCongruence(P[k], l, p, pl, u, k * uCols);
+  return u;
+}
+
+/** u[o ...] = vech(L'P L) with off-diagonal entries times sqrt 2; pl is scratch. */
+function vechOfCongruence(pk: Float64Array, l: Float64Array, p: number, pl: Float64Array, u: Float64Array, o: number): void {
+  // pl = P L (L lower triangular: column b has entries from row b down)
+  for (let i = 0; i < p; i++)
+    for (let b = 0; b < p; b++) {
+      let s = 0;
+      for (let j = b; j < p; j++) s += pk[i * p + j] * l[j * p + b];
+      pl[i * p + b] = s;
+    }
+  let at = o;
+  for (let a = 0; a < p; a++)
+    for (let b = a; b < p; b++) {
+      let s = 0;
+      for (let i = a; i < p; i++) s += l[i * p + a] * pl[i * p + b];
+      u[at++] = a === b ? s : Math.SQRT2 * s;
+    }
 }
 
 /**
@@ -221,22 +282,6 @@ export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder
       for (let j = 0; j < p * p; j++) u[j] -= wkl * pcp[j];
     }
   return u;
-}
-
-function transposeInto(src: Float64Array, o: number, dst: Float64Array, p: number): void {
-  for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) dst[o + a * p + b] = src[o + b * p + a];
-}
-
-/** expected[k, l] (and [l, k]) += tr(C P_k C P_l) for l >= k. */
-function addTraceRow(expected: Float64Array, cp: Float64Array, cpT: Float64Array, k: number, nP: number, pp: number): void {
-  const ok = k * pp;
-  for (let l = k; l < nP; l++) {
-    const ol = l * pp;
-    let s = 0;
-    for (let j = 0; j < pp; j++) s += cp[ok + j] * cpT[ol + j];
-    expected[k * nP + l] += s;
-    if (l !== k) expected[l * nP + k] += s;
-  }
 }
 
 export function matMul(a: Float64Array, b: Float64Array, n: number): Float64Array {
