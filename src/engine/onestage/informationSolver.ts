@@ -58,6 +58,8 @@ export function observedInformationInverse(score: ScoreAndInformation, so: Secon
     for (let a = 0; a < p; a++) y[k * q + a] = Math.SQRT2 * w[k * p + a];
     for (let a = 0; a < so.uCols; a++) y[k * q + p + a] = so.u[k * so.uCols + a];
   }
-  const delta = Float64Array.from(score.a0, (x, j) => 2 * x - so.blockExpected[j]);
+  // a plain loop: a typed-array `from` with a callback runs the callback unoptimised per entry
+  const delta = new Float64Array(nP * nP);
+  for (let j = 0; j < nP * nP; j++) delta[j] = 2 * score.a0[j] - so.blockExpected[j];
   return structured(delta, y, q, () => so.observed, nP, free, layout);
 }

@@ -61,7 +61,9 @@ class SecondOrderTerms implements SecondOrder {
     if (!this.denseObserved) {
       const e = this.expected;
       const ai = this.score.ai; // a getter: read once, not per entry
-      this.denseObserved = Float64Array.from(e, (x, j) => 2 * ai[j] - x);
+      const o = new Float64Array(e.length);
+      for (let j = 0; j < e.length; j++) o[j] = 2 * ai[j] - e[j];
+      this.denseObserved = o;
     }
     return this.denseObserved;
   }
