@@ -3,10 +3,12 @@
 //   Q_kl  = X'V^-1 V_k V^-1 V_l V^-1 X              (p x p)
 //   E_kl  = tr(P V_k P V_l)                          expected information of -2 logLik (x2)
 //   O_kl  = 2 y'P V_k P V_l P y - tr(P V_k P V_l)   observed Hessian of -2 logLik
-// with tr(P V_k P V_l) = tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) + tr(C P_k C P_l). All sums run
-// over the small blocks. They depend on the design only, so each design pattern is visited once
-// and weighted by its number of trials; Q_kl is only ever held per pattern (for Kenward–Roger;
-// E takes its traces without forming it).
+// with tr(P V_k P V_l) = tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) + tr(C P_k C P_l). The first two
+// terms are sums over the small blocks; they depend on the design only, so each design pattern
+// is visited once and weighted by its number of trials (trials of spectral groups through their
+// layout's decomposition, spectralSecondOrder.ts); Q_kl is only ever held per pattern (for
+// Kenward–Roger; E takes its traces without forming it). The last term is kept as a low-rank
+// factor, so with one residual per trial E never needs forming (informationSolver.ts).
 import { assertComplete, type Evaluation, type ModelFrame } from './remlCriterion.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
 import { ensurePatternH2 } from './trialBlock.js';

@@ -132,17 +132,18 @@ function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralSta
   return { r, ne, nt, fb, kbR, kbT, bKb, phi, kappa };
 }
 
-// Layout of a trial's working array: c1, c2, c3, e (ne each), h, h2 (r each), w (terms x ne),
-// kh (terms x r), then r'V^-3 r.
+// Layout of a trial's working array: c1, c2, c3, e, c1 e (ne each), h, K rho (r each on the
+// random rows), w (terms x ne), the terms' K-products (terms x terms), then r'V^-3 r.
 const C1 = 0;
 const c2At = (ne: number): number => ne;
 const c3At = (ne: number): number => 2 * ne;
 const eAt = (ne: number): number => 3 * ne;
-const hAt = (ne: number): number => 4 * ne;
-const h2At = (ne: number, r: number): number => 4 * ne + r;
-const wAt = (ne: number, r: number): number => 4 * ne + 2 * r;
-const khAt = (ne: number, r: number, nTerms: number): number => wAt(ne, r) + nTerms * ne;
-const cubeAt = (ne: number, r: number, nTerms: number): number => khAt(ne, r, nTerms) + nTerms * r;
+const ceAt = (ne: number): number => 4 * ne;
+const hAt = (ne: number): number => 5 * ne;
+const krAt = (ne: number, r: number): number => 5 * ne + r;
+const wAt = (ne: number, r: number): number => 5 * ne + 2 * r;
+const ttAt = (ne: number, r: number, nTerms: number): number => wAt(ne, r) + nTerms * ne;
+const cubeAt = (ne: number, r: number, nTerms: number): number => ttAt(ne, r, nTerms) + nTerms * nTerms;
 const workSize = (ne: number, r: number, nTerms: number): number => cubeAt(ne, r, nTerms) + 1;
 
 /** One trial's score terms: its residual's trace and quadratic, the random terms' quadratics, its share of the group sums. */
@@ -168,6 +169,7 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   const c2o = c2At(ne);
   const c3o = c3At(ne);
   const eo = eAt(ne);
+  const ceo = ceAt(ne);
   for (let a = 0; a < ne; a++) {
     const l = lambda[a];
     const sl = s + l;
@@ -179,6 +181,7 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
     work[c3o + a] = c3;
     const ea = g[e * ne + a] - pc.fb[a];
     work[eo + a] = ea;
+    work[ceo + a] = c1 * ea;
     quadRes += c2 * ea * ea;
     cubeRes += c3 * ea * ea;
     traceRes += 1 / sl - c2 * pc.phi[a];
@@ -186,7 +189,7 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   work[cubeAt(ne, r, nTerms)] = cubeRes;
   out.quadratic[sig] += quadRes;
   out.trace[sig] += traceRes;
-  randomRows(K, m, mz, R, f, ne, pc.kbR, work, C1, hAt(ne), 1 / s);
+  randomRows(K, m, mz, R, f, ne, r, s, pc.kbR, work);
   const ho = hAt(ne);
   for (let k = 0; k < nTerms; k++) {
     const pos = group.terms[k].positions;
@@ -197,17 +200,18 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   accumulateSums(s, ne, work, sums);
 }
 
-/**
- * Z_R'V^-k r on the random rows into work[out ...]: (K rho)_R * scale + sum_a c_a F_Ra e_a with
- * c = work[co ...] (c1 and 1/s for h, c2 and 1/s^2 for h2).
- */
-function randomRows(K: Float64Array, m: number, mz: number, R: Int32Array, f: Float64Array, ne: number, kbR: Float64Array, work: Float64Array, co: number, out: number, scale: number): void {
-  const eo = eAt(ne);
-  for (let j = 0; j < R.length; j++) {
-    let h = (K[R[j] * m + mz] - kbR[j]) * scale;
+/** K rho and h = Z_R'V^-1 r = (K rho) / s + sum_a F_Ra c1_a e_a on the random rows, into the working array. */
+function randomRows(K: Float64Array, m: number, mz: number, R: Int32Array, f: Float64Array, ne: number, r: number, s: number, kbR: Float64Array, work: Float64Array): void {
+  const ceo = ceAt(ne);
+  const ho = hAt(ne);
+  const kro = krAt(ne, r);
+  for (let j = 0; j < r; j++) {
+    const kr = K[R[j] * m + mz] - kbR[j];
+    let h = kr / s;
     const fo = R[j] * ne;
-    for (let a = 0; a < ne; a++) h += work[co + a] * f[fo + a] * work[eo + a];
-    work[out + j] = h;
+    for (let a = 0; a < ne; a++) h += f[fo + a] * work[ceo + a];
+    work[ho + j] = h;
+    work[kro + j] = kr;
   }
 }
 
@@ -225,13 +229,16 @@ function accumulateSums(s: number, ne: number, work: Float64Array, sums: Float64
   }
 }
 
-/** The trial's AI entries among the random terms and with its residual; its share of v's sums. */
+/**
+ * The trial's AI entries among the random terms and with its residual, and its share of v's
+ * sums. With w_ka = F_ka . h_k (F on term k's rows):
+ *   h_k'H_kl h_l = h_k'K_kl h_l / s + sum_a c1_a w_ka w_la,
+ *   h_k . h2_k   = h_k . (K rho)_k / s^2 + sum_a c2_a e_a w_ka   (h2 = Z'V^-2 r).
+ */
 function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, state: SpectralState, pc: GroupPieces, e: number, work: Float64Array, sums: Float64Array, out: ScoreTargets): void {
   const ti = frame.stats.trials[group.trials[e]];
   const s = ev.theta[group.residualParameter[e]];
   const ai = out.ai;
-  const m = ti.m;
-  const K = ti.gram;
   const R = group.randomColumns;
   const { r, ne } = pc;
   const nP = frame.layout.parameters.length;
@@ -239,24 +246,27 @@ function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGrou
   const terms = group.terms;
   const nTerms = terms.length;
   const h = hAt(ne);
-  const h2 = h2At(ne, r);
+  const kro = krAt(ne, r);
   const wo = wAt(ne, r);
-  const kho = khAt(ne, r, nTerms);
+  const tt = ttAt(ne, r, nTerms);
+  const c2o = c2At(ne);
+  const eo = eAt(ne);
   const sig = group.residualParameter[e];
-  randomRows(K, m, m - 1, R, f, ne, pc.kbR, work, c2At(ne), h2, 1 / (s * s));
-  // w[k][a] = F_ka . h_k ; kh[l][j] = (K_R,l h_l)_j
-  for (let k = 0; k < nTerms; k++) {
-    const pos = terms[k].positions;
-    for (let a = 0; a < ne; a++) {
-      let sw = 0;
-      for (let x = 0; x < pos.length; x++) sw += f[R[pos[x]] * ne + a] * work[h + pos[x]];
-      work[wo + k * ne + a] = sw;
-    }
-    for (let j = 0; j < r; j++) {
-      let sk = 0;
-      for (let x = 0; x < pos.length; x++) sk += K[R[j] * m + R[pos[x]]] * work[h + pos[x]];
-      work[kho + k * r + j] = sk;
-    }
+  for (let i = 0; i < nTerms * ne; i++) work[wo + i] = 0;
+  for (let i = 0; i < nTerms * nTerms; i++) work[tt + i] = 0;
+  const termOf = group.termOfPosition;
+  for (let x = 0; x < r; x++) {
+    const hx = work[h + x];
+    const o = wo + termOf[x] * ne;
+    const fo = R[x] * ne;
+    for (let a = 0; a < ne; a++) work[o + a] += f[fo + a] * hx;
+  }
+  // h_k'K_kl h_l over the nonzero entries of K_RR
+  const nz = group.kNonzero;
+  for (let z = 0; z < nz.value.length; z++) {
+    const x = nz.x[z];
+    const y = nz.y[z];
+    work[tt + termOf[x] * nTerms + termOf[y]] += work[h + x] * nz.value[z] * work[h + y];
   }
   const vh = vhAt(ne);
   const vw = vwAt(ne, r);
@@ -267,15 +277,15 @@ function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGrou
     for (let a = 0; a < ne; a++) sums[vw + k * ne + a] += work[C1 + a] * work[wo + k * ne + a];
     for (let l = k; l < nTerms; l++) {
       const B = terms[l].parameter;
-      let val = 0;
-      for (let x = 0; x < pk.length; x++) val += work[h + pk[x]] * work[kho + l * r + pk[x]];
-      val /= s;
+      let val = work[tt + k * nTerms + l] / s;
       for (let a = 0; a < ne; a++) val += work[C1 + a] * work[wo + k * ne + a] * work[wo + l * ne + a];
       ai[A * nP + B] += val;
       if (A !== B) ai[B * nP + A] += val;
     }
-    let hr = 0;
-    for (let x = 0; x < pk.length; x++) hr += work[h + pk[x]] * work[h2 + pk[x]];
+    let hk = 0;
+    for (let x = 0; x < pk.length; x++) hk += work[h + pk[x]] * work[kro + pk[x]];
+    let hr = hk / (s * s);
+    for (let a = 0; a < ne; a++) hr += work[c2o + a] * work[eo + a] * work[wo + k * ne + a];
     ai[A * nP + sig] += hr;
     ai[sig * nP + A] += hr;
   }

@@ -19,6 +19,10 @@ export interface SpectralGroup {
   readonly randomColumns: Int32Array;
   /** For each random term in the model with columns here: its parameter and its positions in randomColumns. */
   readonly terms: readonly { readonly parameter: number; readonly positions: Int32Array }[];
+  /** Index into `terms` of each random column (by position). */
+  readonly termOfPosition: Int32Array;
+  /** The nonzero entries of K_RR (positions x, y and value; both triangles): an indicator Gram block is sparse. */
+  readonly kNonzero: { readonly x: Int32Array; readonly y: Int32Array; readonly value: Float64Array };
 }
 
 /**
@@ -48,13 +52,32 @@ export function spectralGroups(stats: NetworkStatistics, layout: ParameterLayout
       for (let b = 0; b < R.length; b++) if (t.termOfColumn[R[b]] === term) positions.push(b);
       if (positions.length > 0) terms.push({ parameter: k, positions: Int32Array.from(positions) });
     });
+    const termOfPosition = new Int32Array(R.length);
+    terms.forEach((term, k) => term.positions.forEach((b) => (termOfPosition[b] = k)));
     groups.push({
       representative: i0,
       trials: Int32Array.from(list),
       residualParameter: Int32Array.from(list, (i) => layout.residualParameter[i]),
       randomColumns: R,
       terms,
+      termOfPosition,
+      kNonzero: nonzeros(t.gram, t.m, R),
     });
   }
   return groups;
+}
+
+function nonzeros(K: Float64Array, m: number, R: Int32Array): SpectralGroup['kNonzero'] {
+  const x: number[] = [];
+  const y: number[] = [];
+  const value: number[] = [];
+  for (let a = 0; a < R.length; a++)
+    for (let b = 0; b < R.length; b++) {
+      const v = K[R[a] * m + R[b]];
+      if (v === 0) continue;
+      x.push(a);
+      y.push(b);
+      value.push(v);
+    }
+  return { x: Int32Array.from(x), y: Int32Array.from(y), value: Float64Array.from(value) };
 }

@@ -251,7 +251,7 @@ function termTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState
   const R = group.randomColumns;
   const T = t0.fixedColumns;
   const tg = t0.fixedIndex;
-  const { nt, ne, r } = dp;
+  const { nt, ne } = dp;
   const f = state.f;
   const p = frame.stats.fixed.length;
   const nP = frame.layout.parameters.length;
@@ -297,7 +297,6 @@ function termTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState
       expected[A * nP + B] += v;
       if (A !== B) expected[B * nP + A] += v;
     }
-  void r;
 }
 
 /** E_kl for random terms k, l (see termTerms). */
