@@ -12,6 +12,7 @@
 // Cost O(n (s + q)^2) instead of O(n^3) for n residual parameters.
 import { NotPositiveDefiniteError } from '../linalg/index.js';
 import { choleskyInPlace } from '../linalg/inPlace.js';
+import type { SymmetricArrowhead } from './arrowhead.js';
 
 export type BorderedOutcome = BorderedFactor | { readonly notPositiveDefinite: true } | null;
 
@@ -72,11 +73,11 @@ export class BorderedFactor {
 }
 
 /**
- * Factor of A = delta - Y Y' on `free` (delta nP x nP, Y nP x q, row-major). `residual[k]` marks
- * residual parameters. Null when the arrowhead structure does not hold (a residual diagonal entry
- * that is not positive), so the caller can take the dense route.
+ * Factor of A = delta - Y Y' on `free` (Y nP x q, row-major). `residual[k]` marks residual
+ * parameters. Null when the arrowhead structure does not hold (a residual diagonal entry that is
+ * not positive), so the caller can take the dense route.
  */
-export function borderedFactor(delta: Float64Array, y: Float64Array, q: number, nP: number, free: readonly number[], residual: readonly boolean[]): BorderedOutcome {
+export function borderedFactor(delta: SymmetricArrowhead, y: Float64Array, q: number, nP: number, free: readonly number[], residual: readonly boolean[]): BorderedOutcome {
   const shared: number[] = [];
   const local: number[] = [];
   for (let i = 0; i < free.length; i++) (residual[free[i]] ? local : shared).push(i);
@@ -87,17 +88,17 @@ export function borderedFactor(delta: Float64Array, y: Float64Array, q: number, 
   const border = new Float64Array(n * t);
   for (let r = 0; r < n; r++) {
     const k = free[local[r]];
-    const dk = delta[k * nP + k];
+    const dk = delta.get(k, k);
     if (!(dk > 0)) return null;
     d[r] = dk;
-    for (let a = 0; a < s; a++) border[r * t + a] = delta[free[shared[a]] * nP + k];
+    for (let a = 0; a < s; a++) border[r * t + a] = delta.get(free[shared[a]], k);
     for (let a = 0; a < q; a++) border[r * t + s + a] = y[k * q + a];
   }
   // M = [[Delta_SS, Y_S], [Y_S', I]] - sum_i col_i col_i' / d_i
   const m = new Float64Array(t * t);
   for (let a = 0; a < s; a++) {
     const ja = free[shared[a]];
-    for (let b = 0; b < s; b++) m[a * t + b] = delta[ja * nP + free[shared[b]]];
+    for (let b = 0; b < s; b++) m[a * t + b] = delta.get(ja, free[shared[b]]);
     for (let b = 0; b < q; b++) {
       m[a * t + s + b] = y[ja * q + b];
       m[(s + b) * t + a] = y[ja * q + b];

@@ -51,8 +51,11 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
 
   const aiInverse = averageInformationInverse(fit.score, ev.c, p, layout, free);
   const aiInvDiag = aiInverse ? aiInverse.inverseDiagonal() : null;
+  // position of each parameter among the free ones (-1 at zero); indexOf per parameter would be quadratic
+  const freePosition = new Int32Array(nP).fill(-1);
+  free.forEach((k, f) => (freePosition[k] = f));
   const seOf = (k: number): number | null => {
-    const f = free.indexOf(k);
+    const f = freePosition[k];
     return f < 0 || !aiInvDiag ? null : Math.sqrt(2 * aiInvDiag[f]);
   };
 

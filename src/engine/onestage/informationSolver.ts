@@ -8,6 +8,7 @@ import { inverseDiagonal, inverseQuadratic, subCholesky } from './spdSolve.js';
 import type { ScoreAndInformation } from './remlDerivatives.js';
 import type { SecondOrder } from './secondOrder.js';
 import type { ParameterLayout } from './parameters.js';
+import type { SymmetricArrowhead } from './arrowhead.js';
 
 /** With more free parameters than this the bordered route is taken. */
 export const BORDERED_MIN_FREE = 16;
@@ -19,7 +20,7 @@ export interface InverseOnFree {
   quadratic(g: ArrayLike<number>): number;
 }
 
-function structured(delta: Float64Array, y: Float64Array | null, q: number, dense: () => Float64Array, nP: number, free: readonly number[], layout: ParameterLayout): InverseOnFree | null {
+function structured(delta: SymmetricArrowhead, y: Float64Array | null, q: number, dense: () => Float64Array, nP: number, free: readonly number[], layout: ParameterLayout): InverseOnFree | null {
   if (free.length > BORDERED_MIN_FREE && y) {
     const residual = layout.parameters.map((par) => par.kind === 'residual');
     const b = borderedFactor(delta, y, q, nP, free, residual);
@@ -49,7 +50,7 @@ export function averageInformationInverse(score: ScoreAndInformation, c: Float64
 /** The observed information O = 2 AI - E = (2 a0 - E_block) - [sqrt2 V L, U][sqrt2 V L, U]'. */
 export function observedInformationInverse(score: ScoreAndInformation, so: SecondOrder, c: Float64Array, p: number, layout: ParameterLayout, free: readonly number[]): InverseOnFree | null {
   const nP = layout.parameters.length;
-  if (free.length <= BORDERED_MIN_FREE || score.a0.length !== nP * nP) return structured(score.a0, null, 0, () => so.observed, nP, free, layout);
+  if (free.length <= BORDERED_MIN_FREE) return structured(score.a0, null, 0, () => so.observed, nP, free, layout);
   const w = lowRankFactor(score.v, c, nP, p);
   if (!w) return structured(score.a0, null, 0, () => so.observed, nP, free, layout);
   const q = p + so.uCols;
@@ -58,8 +59,5 @@ export function observedInformationInverse(score: ScoreAndInformation, so: Secon
     for (let a = 0; a < p; a++) y[k * q + a] = Math.SQRT2 * w[k * p + a];
     for (let a = 0; a < so.uCols; a++) y[k * q + p + a] = so.u[k * so.uCols + a];
   }
-  // a plain loop: a typed-array `from` with a callback runs the callback unoptimised per entry
-  const delta = new Float64Array(nP * nP);
-  for (let j = 0; j < nP * nP; j++) delta[j] = 2 * score.a0[j] - so.blockExpected[j];
-  return structured(delta, y, q, () => so.observed, nP, free, layout);
+  return structured(score.a0.combine(2, so.blockExpected, -1), y, q, () => so.observed, nP, free, layout);
 }

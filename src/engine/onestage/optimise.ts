@@ -161,8 +161,9 @@ function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number
   if (!x && !notPositiveDefinite) x = denseSolve(sc, free, nP, g);
   // AI singular along some direction: fall back to a scaled gradient step on the diagonal.
   if (!x) {
-    const ai = sc.ai;
-    x = Float64Array.from(g, (gi, i) => gi / Math.max(ai[free[i] * nP + free[i]], 1e-300));
+    const step = new Float64Array(f);
+    for (let i = 0; i < f; i++) step[i] = g[i] / Math.max(sc.informationEntry(free[i], free[i]), 1e-300);
+    x = step;
   }
   let decrement = 0;
   for (let i = 0; i < f; i++) {

@@ -10,6 +10,7 @@ import { designHash, evaluatePattern, sameDesign, randomColumnsOf, type PatternS
 import { patternMoments, type PatternMoments } from './patternMoments.js';
 import { EvaluationPool, type EvaluationBuffers } from './evaluationPool.js';
 import { spectralGroups, type SpectralGroup } from './spectralGroups.js';
+import { sharedParameterCount } from './arrowhead.js';
 import { accumulateGroup, decomposeLayout, spectralStateFor, type SpectralState } from './spectralEvaluation.js';
 
 export interface ModelFrame {
@@ -31,6 +32,8 @@ export interface ModelFrame {
   readonly spectral: readonly SpectralGroup[];
   /** 1 for a pattern whose trial belongs to a spectral group. */
   readonly spectralPattern: Uint8Array;
+  /** Leading parameters that meet every other in the per-block terms (arrowhead.ts). */
+  readonly sharedParameters: number;
   /** Buffers of discarded evaluations, reused by the next ones (evaluationPool.ts). */
   readonly pool: EvaluationPool;
 }
@@ -73,7 +76,8 @@ export function modelFrame(stats: NetworkStatistics, layout: ParameterLayout): M
     nColumns: moments.reduce((s, mo) => s + mo.nColumns, 0),
     spectralStates: () => spectral.map((g) => spectralStateFor(stats, g)),
   });
-  return { stats, layout, randomColumns, patternOf, patternTrial, patternCount, moments, columnOffsets, designOf, spectral, spectralPattern, pool };
+  const sharedParameters = sharedParameterCount(layout.parameters);
+  return { stats, layout, randomColumns, patternOf, patternTrial, patternCount, moments, columnOffsets, designOf, spectral, spectralPattern, sharedParameters, pool };
 }
 
 /** Groups of trials with identical designs, numbered in order of first appearance. */

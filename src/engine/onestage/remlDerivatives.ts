@@ -11,6 +11,7 @@ import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import { ensurePatternH2, type PatternState } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
 import { spectralScore } from './spectralDerivatives.js';
+import { SymmetricArrowhead } from './arrowhead.js';
 
 export interface ScoreAndInformation {
   readonly gradient: Float64Array;
@@ -21,8 +22,10 @@ export interface ScoreAndInformation {
   readonly trace: Float64Array;
   /** v_k = X'V^-1 V_k V^-1 r, nParameters x p: ai = a0 - V C V'. */
   readonly v: Float64Array;
-  /** The sum of the per-block terms of the AI matrix (nParameters x nParameters; empty without information). */
-  readonly a0: Float64Array;
+  /** The sum of the per-block terms of the AI matrix (all zero without information). */
+  readonly a0: SymmetricArrowhead;
+  /** One entry of the AI matrix, without forming it. */
+  informationEntry(k: number, l: number): number;
 }
 
 /** The dense AI matrix is formed from a0 and V on first use only: the bordered Newton step does not need it. */
@@ -33,7 +36,7 @@ class ScoreWithLazyInformation implements ScoreAndInformation {
     readonly quadratic: Float64Array,
     readonly trace: Float64Array,
     readonly v: Float64Array,
-    readonly a0: Float64Array,
+    readonly a0: SymmetricArrowhead,
     private readonly c: Float64Array,
     private readonly p: number,
   ) {}
@@ -41,10 +44,17 @@ class ScoreWithLazyInformation implements ScoreAndInformation {
   get ai(): Float64Array {
     if (!this.dense) {
       const nP = this.gradient.length;
-      this.dense = this.a0.length === nP * nP ? Float64Array.from(this.a0) : new Float64Array(nP * nP);
-      if (this.a0.length === nP * nP) subtractLowRank(this.dense, this.v, this.c, nP, this.p);
+      this.dense = this.a0.toDense();
+      subtractLowRank(this.dense, this.v, this.c, nP, this.p);
     }
     return this.dense;
+  }
+
+  informationEntry(k: number, l: number): number {
+    const { v, c, p } = this;
+    let s = 0;
+    for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) s += v[k * p + a] * c[a * p + b] * v[l * p + b];
+    return this.a0.get(k, l) - s;
   }
 }
 
@@ -58,7 +68,7 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
   const p = frame.stats.fixed.length;
   const trace = new Float64Array(nP);
   const quadratic = new Float64Array(nP);
-  const ai = new Float64Array(withInformation ? nP * nP : 0);
+  const ai = new SymmetricArrowhead(nP, frame.sharedParameters);
   const v = new Float64Array(nP * p);
   const work = workVectors(frame);
   const skip = ev.spectral ? frame.spectralPattern : null;
@@ -72,7 +82,7 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
     }
     col += frame.moments[q].nColumns;
   }
-  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai, v });
+  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai, v, information: withInformation });
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
   return new ScoreWithLazyInformation(gradient, quadratic, trace, v, ai, ev.c, p);
@@ -138,7 +148,7 @@ function residualTrace(pat: PatternState, n: number, tc: Int32Array, cl: Float64
 }
 
 /** Quadratic terms y'P V_k P y and (if ai is given) the block part of the AI matrix, column by column. */
-function patternQuadratic(frame: ModelFrame, ev: Evaluation, q: number, col0: number, act: readonly ActiveParameter[], quadratic: Float64Array, ai: Float64Array | null, w: WorkVectors): void {
+function patternQuadratic(frame: ModelFrame, ev: Evaluation, q: number, col0: number, act: readonly ActiveParameter[], quadratic: Float64Array, ai: SymmetricArrowhead | null, w: WorkVectors): void {
   const nP = frame.layout.parameters.length;
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
@@ -175,8 +185,7 @@ function patternQuadratic(frame: ModelFrame, ev: Evaluation, q: number, col0: nu
         if (A.columns && B.columns) val = termTermInformation(H, h, A.columns, B.columns, mz);
         else if (A.columns || B.columns) val = dotOn(h, h2, (A.columns ?? B.columns)!);
         else val = residualInformation(t.gram, pat, u, uo, c, ev.beta, tc, tg, h2, m, w);
-        ai[A.index * nP + B.index] += val;
-        if (A.index !== B.index) ai[B.index * nP + A.index] += val;
+        ai.addSymmetric(A.index, B.index, val);
       }
     }
   }
@@ -185,7 +194,7 @@ function patternQuadratic(frame: ModelFrame, ev: Evaluation, q: number, col0: nu
     const a = act[ia];
     if (a.columns) continue;
     quadratic[a.index] += mo.sumYy / (s2 * s2);
-    if (ai) ai[a.index * nP + a.index] += mo.sumYy / (s2 * s2 * s2);
+    if (ai) ai.addSymmetric(a.index, a.index, mo.sumYy / (s2 * s2 * s2));
   }
 }
 

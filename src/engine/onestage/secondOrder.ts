@@ -15,14 +15,15 @@ import { ensurePatternH2 } from './trialBlock.js';
 import type { ActiveParameter } from './trialParameters.js';
 import { f64, Scratch } from './arena.js';
 import { choleskyInPlace } from '../linalg/inPlace.js';
+import { SymmetricArrowhead } from './arrowhead.js';
 import { spectralExpected } from './spectralSecondOrder.js';
 import { gatherDot, rowsDot } from '../linalg/gatherDot.js';
 
 export interface SecondOrder {
   /** P_k for each parameter, p x p. */
   readonly p: Float64Array[];
-  /** The per-block part of E: tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) (nP x nP; arrowhead with one residual per trial). */
-  readonly blockExpected: Float64Array;
+  /** The per-block part of E: tr(V^-1 V_k V^-1 V_l) - 2 tr(C Q_kl) (an arrowhead with one residual per trial). */
+  readonly blockExpected: SymmetricArrowhead;
   /** U (nP x uCols) with tr(C P_k C P_l) = U_k . U_l: the vech of L'P_k L (C = L L', off-diagonal entries times sqrt 2). */
   readonly u: Float64Array;
   readonly uCols: number;
@@ -36,7 +37,7 @@ class SecondOrderTerms implements SecondOrder {
   private denseObserved: Float64Array | null = null;
   constructor(
     readonly p: Float64Array[],
-    readonly blockExpected: Float64Array,
+    readonly blockExpected: SymmetricArrowhead,
     readonly u: Float64Array,
     readonly uCols: number,
     private readonly score: ScoreAndInformation,
@@ -46,7 +47,7 @@ class SecondOrderTerms implements SecondOrder {
     if (!this.denseExpected) {
       const nP = this.p.length;
       const q = this.uCols;
-      const e = Float64Array.from(this.blockExpected);
+      const e = this.blockExpected.toDense();
       for (let k = 0; k < nP; k++)
         for (let l = k; l < nP; l++) {
           let s = 0;
@@ -143,7 +144,7 @@ const d2Scratch = new Scratch();
  *   residual pair  tr(C H3_TT),          H3 = B'V^-3 B
  * (T treatment columns, R random columns, H = B'V^-1 B, H2 = B'V^-2 B on the design columns).
  */
-function patternExpected(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], P: Float64Array[], expected: Float64Array): void {
+function patternExpected(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], P: Float64Array[], expected: SymmetricArrowhead): void {
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
   const count = frame.patternCount[q];
@@ -199,8 +200,7 @@ function patternExpected(frame: ModelFrame, ev: Evaluation, q: number, act: read
           for (let y = 0; y < nt; y++) trCQ += (cl[x * nt + y] * (H2[T[y] * mz + T[x]] - gatherDot(H2, T[x] * mz, R, pat.gz, T[y] * r, 1))) / pat.sigma2;
       }
       const v = count * (trVV - 2 * trCQ);
-      expected[A.index * nP + B.index] += v;
-      if (A.index !== B.index) expected[B.index * nP + A.index] += v;
+      expected.addSymmetric(A.index, B.index, v);
     }
 }
 
@@ -216,7 +216,7 @@ export function secondOrder(frame: ModelFrame, ev: Evaluation, score: ScoreAndIn
   const nP = frame.layout.parameters.length;
   const p = frame.stats.fixed.length;
   const P = Array.from({ length: nP }, () => new Float64Array(p * p));
-  const expected = new Float64Array(nP * nP);
+  const expected = new SymmetricArrowhead(nP, frame.sharedParameters);
   const skip = ev.spectral ? frame.spectralPattern : null;
   for (let q = 0; q < frame.patternTrial.length; q++) if (!(skip && skip[q])) patternExpected(frame, ev, q, active[frame.patternTrial[q]], P, expected);
   if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralExpected(frame, ev, g, P, expected);

@@ -13,12 +13,14 @@ import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { SpectralGroup } from './spectralGroups.js';
 import type { SpectralState } from './spectralEvaluation.js';
 import { Scratch } from './arena.js';
+import type { SymmetricArrowhead } from './arrowhead.js';
 
 export interface ScoreTargets {
   readonly trace: Float64Array;
   readonly quadratic: Float64Array;
-  /** a0 (nP x nP), or empty for the score alone (always an array: one shape for V8). */
-  readonly ai: Float64Array;
+  /** a0, filled when `information` (the EM steps take the score alone). */
+  readonly ai: SymmetricArrowhead;
+  readonly information: boolean;
   readonly v: Float64Array;
 }
 
@@ -73,7 +75,7 @@ export function spectralScore(frame: ModelFrame, ev: Evaluation, gi: number, out
   const sums = sumScratch.get(nSums);
   sums.fill(0, 0, nSums);
   const work = trialScratch.get(workSize(ne, r, nTerms));
-  const information = out.ai.length > 0;
+  const information = out.information;
   for (let e = 0; e < group.trials.length; e++) {
     trialScore(frame, ev, group, state, pieces, e, work, sums, out);
     if (information) trialInformation(frame, ev, group, state, pieces, e, work, sums, out);
@@ -279,17 +281,15 @@ function trialInformation(frame: ModelFrame, ev: Evaluation, group: SpectralGrou
       const B = terms[l].parameter;
       let val = work[tt + k * nTerms + l] / s;
       for (let a = 0; a < ne; a++) val += work[C1 + a] * work[wo + k * ne + a] * work[wo + l * ne + a];
-      ai[A * nP + B] += val;
-      if (A !== B) ai[B * nP + A] += val;
+      ai.addSymmetric(A, B, val);
     }
     let hk = 0;
     for (let x = 0; x < pk.length; x++) hk += work[h + pk[x]] * work[kro + pk[x]];
     let hr = hk / (s * s);
     for (let a = 0; a < ne; a++) hr += work[c2o + a] * work[eo + a] * work[wo + k * ne + a];
-    ai[A * nP + sig] += hr;
-    ai[sig * nP + A] += hr;
+    ai.addSymmetric(A, sig, hr);
   }
-  ai[sig * nP + sig] += work[cubeAt(ne, r, nTerms)];
+  ai.addSymmetric(sig, sig, work[cubeAt(ne, r, nTerms)]);
   residualLinear(ti, state, pc, s, work, out.v, sig * frame.stats.fixed.length);
 }
 

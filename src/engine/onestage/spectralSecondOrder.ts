@@ -15,6 +15,7 @@ import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { SpectralState } from './spectralEvaluation.js';
 import type { SpectralGroup } from './spectralGroups.js';
 import { Scratch } from './arena.js';
+import type { SymmetricArrowhead } from './arrowhead.js';
 
 /** Sums over a group's trials, laid out in one array (see sumLayout). */
 interface SumLayout {
@@ -63,7 +64,7 @@ interface DesignPieces {
 const sumScratch = new Scratch();
 const coefScratch = new Scratch();
 
-export function spectralExpected(frame: ModelFrame, ev: Evaluation, gi: number, P: Float64Array[], expected: Float64Array): void {
+export function spectralExpected(frame: ModelFrame, ev: Evaluation, gi: number, P: Float64Array[], expected: SymmetricArrowhead): void {
   const group = frame.spectral[gi];
   const state = (ev.spectral as readonly SpectralState[])[gi];
   const pieces = designPieces(frame, group, state, ev.c);
@@ -149,7 +150,7 @@ function designPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralSt
  *   tr(Z_k'V^-2 Z_k)           = trK_k / s^2 + sum_a c2_a N^k_aa
  *   sum_z H2_zT C H_Tz         = tau0_k / s^3 + sum_b (c1_b / s^2 + c2_b / s) tau1_kb + sum_ab c2_a c1_b N^k_ab FCF_ab.
  */
-function residualTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState, dp: DesignPieces, e: number, s: number, coef: Float64Array, P: Float64Array[], expected: Float64Array): void {
+function residualTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState, dp: DesignPieces, e: number, s: number, coef: Float64Array, P: Float64Array[], expected: SymmetricArrowhead): void {
   const t = frame.stats.trials[group.trials[e]];
   const m = t.m;
   const K = t.gram;
@@ -174,7 +175,7 @@ function residualTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralS
     const sl = s + state.lambda[a];
     ess += 1 / (sl * sl) - 2 * coef[2 * ne + a] * dp.fcf[a * ne + a];
   }
-  expected[sig * nP + sig] += ess;
+  expected.addSymmetric(sig, sig, ess);
   group.terms.forEach((term, k) => {
     const nk = dp.n[k];
     const t1 = dp.tau1[k];
@@ -188,8 +189,7 @@ function residualTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralS
       cq += coef[ne + a] * row;
     }
     const v = trV2 - 2 * cq;
-    expected[term.parameter * nP + sig] += v;
-    expected[sig * nP + term.parameter] += v;
+    expected.addSymmetric(term.parameter, sig, v);
   });
 }
 
@@ -244,7 +244,7 @@ function symmetriseSums(L: SumLayout, ne: number, sums: Float64Array): void {
  *            + sum_abc Gamma3_abc FCF_bc N^k_ac N^l_ab,
  *   A2_b     = sum_{x in k} KCF_xb (K_kl F_l)_xb + sum_{y in l} KCF_yb (K_lk F_k)_yb.
  */
-function termTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState, dp: DesignPieces, L: SumLayout, sums: Float64Array, P: Float64Array[], expected: Float64Array): void {
+function termTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState, dp: DesignPieces, L: SumLayout, sums: Float64Array, P: Float64Array[], expected: SymmetricArrowhead): void {
   const t0 = frame.stats.trials[group.representative];
   const m = t0.m;
   const K = t0.gram;
@@ -294,8 +294,7 @@ function termTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState
       const v = pairExpected(group, state, dp, L, sums, K, m, k, l, gk);
       const A = terms[k].parameter;
       const B = terms[l].parameter;
-      expected[A * nP + B] += v;
-      if (A !== B) expected[B * nP + A] += v;
+      expected.addSymmetric(A, B, v);
     }
 }
 

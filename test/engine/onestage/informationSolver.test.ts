@@ -14,6 +14,7 @@ import { startValues } from '../../../src/engine/onestage/startValues.js';
 import { activeParameterTable } from '../../../src/engine/onestage/trialParameters.js';
 import { secondOrder } from '../../../src/engine/onestage/secondOrder.js';
 import { mulberry32 } from '../../../src/engine/stats/random.js';
+import { SymmetricArrowhead } from '../../../src/engine/onestage/arrowhead.js';
 
 function expectRelative(a: ArrayLike<number>, b: ArrayLike<number>, rel: number): void {
   expect(a.length).toBe(b.length);
@@ -22,19 +23,18 @@ function expectRelative(a: ArrayLike<number>, b: ArrayLike<number>, rel: number)
 
 describe('bordered factor of an arrowhead matrix less a low-rank one', () => {
   // s shared parameters, n residual ones, rank q: delta = arrowhead, A = delta - Y Y'
-  function random(seed: number, s: number, n: number, q: number, shrink: number): { delta: Float64Array; y: Float64Array; a: Float64Array; nP: number; residual: boolean[] } {
+  function random(seed: number, s: number, n: number, q: number, shrink: number): { delta: SymmetricArrowhead; y: Float64Array; a: Float64Array; nP: number; residual: boolean[] } {
     const u = mulberry32(seed);
     const nP = s + n;
-    const delta = new Float64Array(nP * nP);
+    const delta = new SymmetricArrowhead(nP, s);
     // a positive definite shared block, positive diagonal, small borders
-    for (let i = 0; i < s; i++) for (let j = 0; j < s; j++) delta[i * nP + j] = (i === j ? 4 + u() : 0) + 0.3 * (u() - 0.5) * (i === j ? 0 : 1);
-    for (let i = 0; i < s; i++) for (let j = 0; j < i; j++) delta[i * nP + j] = delta[j * nP + i];
+    for (let i = 0; i < s; i++) for (let j = 0; j <= i; j++) delta.addSymmetric(i, j, i === j ? 4 + u() : 0.3 * (u() - 0.5));
     for (let k = s; k < nP; k++) {
-      delta[k * nP + k] = 1 + u();
-      for (let i = 0; i < s; i++) delta[i * nP + k] = delta[k * nP + i] = 0.2 * (u() - 0.5);
+      delta.addSymmetric(k, k, 1 + u());
+      for (let i = 0; i < s; i++) delta.addSymmetric(i, k, 0.2 * (u() - 0.5));
     }
     const y = Float64Array.from({ length: nP * q }, () => shrink * (u() - 0.5));
-    const a = Float64Array.from(delta);
+    const a = delta.toDense();
     for (let i = 0; i < nP; i++) for (let j = 0; j < nP; j++) for (let c = 0; c < q; c++) a[i * nP + j] -= y[i * q + c] * y[j * q + c];
     return { delta, y, a, nP, residual: Array.from({ length: nP }, (_, k) => k >= s) };
   }

@@ -76,7 +76,7 @@ function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (star
     // v = X'V^-1 V_k V^-1 r and P_k below are sums of parts that cancel (r is a residual; H2 =
     // K / s^2 less a correction), so they are held to the size of the whole array
     close(a.v, b.v, 1e-10, 1e6 * largest(a.v, b.v));
-    close(a.a0, b.a0, 1e-9);
+    close(a.a0.toDense(), b.a0.toDense(), 1e-9);
     if (withInformation) close(a.ai, b.ai, 1e-9);
   }
   return { groups: frame.spectral.length };
