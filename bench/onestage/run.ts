@@ -1,5 +1,5 @@
 // Bench for issue 4: one-stage REML at network scale against R in the same run.
-//   npx tsx bench/onestage/run.ts [--sizes 250,1000,4000] [--per-trial 200] [--repeats 2] [--skip-r]
+//   npx tsx bench/onestage/run.ts [--sizes 250,1000,4000] [--per-trial 200] [--per-trial-growth 1000,4000] [--repeats 2] [--skip-r]
 // 1. Common residual: networks of 250, 1,000 and 4,000 trials (7 treatments x 4 blocks, 28
 //    plots each) written as CSV; each is fitted by a fresh `node` process running
 //    bench/onestage/fitCsv.ts (read the CSV, fit, print the JSON result) and by Rscript
@@ -8,6 +8,8 @@
 //    installed command (`manyfield analyze --data F --spec S --json`) is timed on the same file.
 // 2. Per-trial residual at 200 trials vs glmmTMB (dispformula = ~env, REML = TRUE): with
 //    Satterthwaite df, like for like with glmmTMB's Wald output, and through the command.
+//    Then the per-trial model on larger networks (ours only: glmmTMB needs minutes there), to
+//    show its time growing linearly with trials.
 // 3. Kenward–Roger df for one contrast at the largest size, timed in-process after the fit.
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, writeFileSync } from 'node:fs';
@@ -36,6 +38,7 @@ const arg = (name: string): string | undefined => {
 };
 const sizes = (arg('--sizes') ?? '250,1000,4000').split(',').map(Number);
 const perTrialSize = Number(arg('--per-trial') ?? 200);
+const perTrialGrowth = (arg('--per-trial-growth') ?? '1000,4000').split(',').filter(Boolean).map(Number);
 const skipR = args.includes('--skip-r');
 /** Each timing is the fastest of this many runs, for both sides alike (the machine is shared). */
 const repeats = Number(arg('--repeats') ?? 2);
@@ -254,6 +257,16 @@ if (perTrialSize > 0) {
   const wald = best(() => ours(file, 'per-trial', false, 'residual'));
   console.log(`  like for like with glmmTMB's output (no small-sample df): manyfield read+fit+print ${fmt(wald.inner)}, process wall ${fmt(wald.wall)}${b ? `; glmmTMB/manyfield ${(b.inner / wald.inner).toFixed(1)}x read+fit, ${(b.wall / wald.wall).toFixed(1)}x process wall` : ''}`);
   commandLine(file, perTrialSpecFile, b);
+  const growth = [{ trials: perTrialSize, ms: a.inner }];
+  for (const n of perTrialGrowth) {
+    const big = simulateNetwork({ seed: 77 + n, trials: n, residualSpread: [0.5, 2] });
+    const bigFile = join(dir, `network-${n}-hetero.csv`);
+    writeFileSync(bigFile, big.csv);
+    const t = best(() => ours(bigFile, 'per-trial', false));
+    growth.push({ trials: n, ms: t.inner });
+    console.log(`  ${n} trials, one residual per trial: manyfield read+fit+print ${fmt(t.inner)} (${t.note})`);
+  }
+  if (growth.length > 1) console.log(`  growth: ${growth.map((g) => `${g.trials} trials ${(g.ms / g.trials).toFixed(3)} ms/trial`).join(', ')}`);
   console.log('');
 }
 

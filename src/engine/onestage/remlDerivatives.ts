@@ -26,6 +26,12 @@ export interface ScoreAndInformation {
   readonly a0: SymmetricArrowhead;
   /** One entry of the AI matrix, without forming it. */
   informationEntry(k: number, l: number): number;
+  /**
+   * For residual parameters of trials in spectral groups: tr(V_i^-2) - 2 tr(C X_i'V_i^-3 X_i),
+   * the expected information E_kk less its tr(C P_k C P_k) part (of order 1/trials); 0 where not
+   * known. The Newton step uses it to correct the AI matrix's residual diagonal (optimise.ts).
+   */
+  readonly residualExpected: Float64Array;
 }
 
 /** The dense AI matrix is formed from a0 and V on first use only: the bordered Newton step does not need it. */
@@ -37,6 +43,7 @@ class ScoreWithLazyInformation implements ScoreAndInformation {
     readonly trace: Float64Array,
     readonly v: Float64Array,
     readonly a0: SymmetricArrowhead,
+    readonly residualExpected: Float64Array,
     private readonly c: Float64Array,
     private readonly p: number,
   ) {}
@@ -82,10 +89,11 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
     }
     col += frame.moments[q].nColumns;
   }
-  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai, v, information: withInformation });
+  const residualExpected = new Float64Array(nP);
+  if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai, v, information: withInformation, residualExpected });
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
-  return new ScoreWithLazyInformation(gradient, quadratic, trace, v, ai, ev.c, p);
+  return new ScoreWithLazyInformation(gradient, quadratic, trace, v, ai, residualExpected, ev.c, p);
 }
 
 interface WorkVectors {

@@ -21,6 +21,8 @@ export interface ScoreTargets {
   /** a0, filled when `information` (the EM steps take the score alone). */
   readonly ai: SymmetricArrowhead;
   readonly information: boolean;
+  /** Per residual parameter, its expected information less tr(C P_k C P_k) (see ScoreAndInformation.residualExpected). */
+  readonly residualExpected: Float64Array;
   readonly v: Float64Array;
 }
 
@@ -168,6 +170,8 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
   let quadRes = rKr / (s * s);
   let cubeRes = rKr / (s * s * s);
   let traceRes = (ti.n - ne) / s - pc.kappa / (s * s);
+  // tr(V^-2) - 2 tr(C X'V^-3 X), the expected information's own part
+  let expectedRes = (ti.n - ne) / (s * s) - (2 * pc.kappa) / (s * s * s);
   const c2o = c2At(ne);
   const c3o = c3At(ne);
   const eo = eAt(ne);
@@ -187,7 +191,9 @@ function trialScore(frame: ModelFrame, ev: Evaluation, group: SpectralGroup, sta
     quadRes += c2 * ea * ea;
     cubeRes += c3 * ea * ea;
     traceRes += 1 / sl - c2 * pc.phi[a];
+    expectedRes += 1 / (sl * sl) - 2 * c3 * pc.phi[a];
   }
+  out.residualExpected[sig] = expectedRes;
   work[cubeAt(ne, r, nTerms)] = cubeRes;
   out.quadratic[sig] += quadRes;
   out.trace[sig] += traceRes;
