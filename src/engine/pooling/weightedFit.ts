@@ -28,6 +28,7 @@ export function interceptDesign(k: number): Matrix {
 export function weightedFit(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, tau2: number): WeightedFit {
   const k = x.rows;
   const p = x.cols;
+  if (p === 1 && isAllOnes(x.data)) return interceptFit(y, v, tau2);
   const weights = new Float64Array(k);
   const xs = zeros(k, p);
   const ys = new Float64Array(k);
@@ -52,4 +53,37 @@ export function weightedFit(y: ArrayLike<number>, v: ArrayLike<number>, x: Matri
   let logDetXtWX = 0;
   for (let j = 0; j < f.rank; j++) logDetXtWX += 2 * Math.log(Math.abs(f.qr.data[j * p + j]));
   return { tau2, weights, beta, covariance, residuals, weightedRss, logDetXtWX, rank: f.rank, aliased: aliasedColumns(f) };
+}
+
+function isAllOnes(x: Float64Array): boolean {
+  for (let i = 0; i < x.length; i++) if (x[i] !== 1) return false;
+  return true;
+}
+
+/**
+ * The same fit for the intercept-only pool (fitted thousands of times by the leave-one-out
+ * and cumulative analyses) in closed form: the weighted mean, its variance 1 / sum w.
+ */
+function interceptFit(y: ArrayLike<number>, v: ArrayLike<number>, tau2: number): WeightedFit {
+  const k = y.length;
+  const weights = new Float64Array(k);
+  let sxx = 0;
+  let sxy = 0;
+  for (let i = 0; i < k; i++) {
+    const w = 1 / (v[i] + tau2);
+    weights[i] = w;
+    sxx += w;
+    sxy += w * y[i];
+  }
+  const b = sxy / sxx;
+  const residuals = new Float64Array(k);
+  let weightedRss = 0;
+  for (let i = 0; i < k; i++) {
+    const r = y[i] - b;
+    residuals[i] = r;
+    weightedRss += weights[i] * r * r;
+  }
+  const covariance = zeros(1, 1);
+  covariance.data[0] = 1 / sxx;
+  return { tau2, weights, beta: Float64Array.of(b), covariance, residuals, weightedRss, logDetXtWX: Math.log(sxx), rank: 1, aliased: [] };
 }
