@@ -39,8 +39,9 @@ export interface ModelFit {
   readonly notes: string[];
 }
 
-export function fitModel(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, s: FitSettings): ModelFit {
-  const tau = estimateTau2(y, v, x, s.tau2);
+/** `tau2Start`: see estimateTau2. */
+export function fitModel(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, s: FitSettings, tau2Start?: number): ModelFit {
+  const tau = estimateTau2(y, v, x, s.tau2, tau2Start);
   const fit = tau.fit;
   const k = x.rows;
   const dfResidual = k - fit.rank;

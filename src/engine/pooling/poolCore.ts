@@ -29,10 +29,11 @@ export interface CorePool {
   notes: string[];
 }
 
-export function poolCore(y: ArrayLike<number>, v: ArrayLike<number>, settings: FitSettings, threshold: number, singleTrialDf: number | null = null): CorePool {
+/** `tau2Start`: a nearby tau² to start ML/REML from (see estimateTau2). */
+export function poolCore(y: ArrayLike<number>, v: ArrayLike<number>, settings: FitSettings, threshold: number, singleTrialDf: number | null = null, tau2Start?: number): CorePool {
   const k = y.length;
   if (k === 1) return singleTrial(y[0], Math.sqrt(v[0]), settings, singleTrialDf);
-  const model = fitModel(y, v, interceptDesign(k), settings);
+  const model = fitModel(y, v, interceptDesign(k), settings, tau2Start);
   const c = model.coefficients[0];
   if (c === null) throw new Error('poolCore: intercept aliased (cannot happen with k >= 1)');
   const tau2 = model.tau.tau2;

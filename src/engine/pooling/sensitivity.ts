@@ -5,13 +5,15 @@ import { poolCore, CorePool } from './poolCore.js';
 import type { FitSettings } from './modelFit.js';
 import type { CumulativeRow, InfluenceRow, LeaveOneOutRow, PoolingItem, Sensitivity } from './types.js';
 
-function poolItems(items: readonly PoolingItem[], settings: FitSettings, threshold: number): CorePool {
+/** `tau2Start`: a nearby pool's tau² (the full pool for leave-one-out, the previous row for cumulative). */
+function poolItems(items: readonly PoolingItem[], settings: FitSettings, threshold: number, tau2Start?: number): CorePool {
   return poolCore(
     items.map((it) => it.estimate),
     items.map((it) => it.se * it.se),
     settings,
     threshold,
     items.length === 1 ? (items[0].df ?? null) : null,
+    tau2Start,
   );
 }
 
@@ -28,7 +30,7 @@ export function sensitivityAnalyses(items: readonly PoolingItem[], full: CorePoo
     for (const w of full.weights) sumW += w;
     items.forEach((it, i) => {
       const rest = items.filter((_, j) => j !== i);
-      const loo = poolItems(rest, settings, threshold);
+      const loo = poolItems(rest, settings, threshold, full.tau2 ?? undefined);
       leaveOneOut.push({ trial: it.trial, estimate: loo.estimate, se: loo.se, tau2: loo.tau2, lower: loo.lower, upper: loo.upper });
       const v = it.se * it.se;
       const residualVariance = v + tau2 - varMu;
@@ -45,10 +47,15 @@ export function sensitivityAnalyses(items: readonly PoolingItem[], full: CorePoo
     if (k === 2) notes.push('With two trials each leave-one-out pool is a single trial: tau² is not estimable there.');
   }
   const dated = items.filter((it) => typeof it.year === 'number' && Number.isFinite(it.year));
-  if (dated.length < items.length) notes.push(`Cumulative pooling leaves out trials without a year: ${items.filter((it) => !dated.includes(it)).map((it) => it.trial).join(', ')}.`);
+  if (dated.length < items.length) {
+    const datedSet = new Set(dated);
+    notes.push(`Cumulative pooling leaves out trials without a year: ${items.filter((it) => !datedSet.has(it)).map((it) => it.trial).join(', ')}.`);
+  }
   const ordered = [...dated].sort((a, b) => (a.year as number) - (b.year as number) || (a.trial < b.trial ? -1 : a.trial > b.trial ? 1 : 0));
+  let previousTau2: number | undefined;
   const cumulative: CumulativeRow[] = ordered.map((it, j) => {
-    const pool = poolItems(ordered.slice(0, j + 1), settings, threshold);
+    const pool = poolItems(ordered.slice(0, j + 1), settings, threshold, previousTau2);
+    previousTau2 = pool.tau2 ?? undefined;
     return { trial: it.trial, year: it.year as number, k: j + 1, estimate: pool.estimate, se: pool.se, tau2: pool.tau2, lower: pool.lower, upper: pool.upper };
   });
   if (ordered.length) notes.push('Cumulative rows add trials in order of year (ties by trial name); each row pools all trials up to and including it.');

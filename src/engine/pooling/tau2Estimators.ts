@@ -3,7 +3,8 @@
 // then a bracketed root of the score; tau² kept >= 0 and a zero-boundary estimate reported
 // as such), or fixed at zero.
 import { Matrix } from '../linalg/matrix.js';
-import { weightedFit, WeightedFit } from './weightedFit.js';
+import { isInterceptOnly, weightedFit, WeightedFit } from './weightedFit.js';
+import { interceptLogLik, interceptTau2Root } from './interceptTau2.js';
 import { brentRoot, decreasingRootFromZero } from './rootFinding.js';
 import type { Tau2Method } from './types.js';
 
@@ -15,7 +16,14 @@ export interface Tau2Estimate {
   readonly fit: WeightedFit;
 }
 
-export function estimateTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, method: Tau2Method): Tau2Estimate {
+/**
+ * `start`: where ML/REML begin instead of the DL estimate (a nearby solution, e.g. the full pool's
+ * tau² for a leave-one-out pool); the estimate is the same root either way, found sooner.
+ */
+export function estimateTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, method: Tau2Method, start?: number): Tau2Estimate {
+  const warm = start !== undefined && Number.isFinite(start) && start >= 0;
+  // a warm-started intercept-only pool needs neither the fixed-effect fit nor the DL start
+  if (warm && (method === 'reml' || method === 'ml') && x.rows >= 2 && isInterceptOnly(x)) return interceptLikelihoodTau2(y, v, x, method === 'reml', start);
   const fe = weightedFit(y, v, x, 0);
   const dfResidual = x.rows - fe.rank;
   if (method === 'fixed' || dfResidual <= 0) return boundary(y, v, x, 0, 0, method === 'fixed' ? false : true);
@@ -30,7 +38,17 @@ export function estimateTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matr
     if (root === null) throw new Error('Paule–Mandel: generalised Q did not fall to its df (estimates far too dispersed for their SEs)');
     return { tau2: root, converged: true, iterations: 0, atBoundary: false, fit: weightedFit(y, v, x, root) };
   }
-  return likelihoodTau2(y, v, x, method === 'reml', dlTau2(x, fe, dfResidual));
+  const from = warm ? start : dlTau2(x, fe, dfResidual);
+  if (isInterceptOnly(x)) return interceptLikelihoodTau2(y, v, x, method === 'reml', from);
+  return likelihoodTau2(y, v, x, method === 'reml', from);
+}
+
+/** The intercept-only pool: the same root by safeguarded Newton (interceptTau2.ts), with the same multimodality guard. */
+function interceptLikelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate {
+  const root = interceptTau2Root(y, v, reml, start);
+  if (!root.atBoundary && interceptLogLik(y, v, 0, reml) > interceptLogLik(y, v, root.tau2, reml))
+    return { tau2: 0, converged: true, iterations: root.iterations, atBoundary: true, fit: weightedFit(y, v, x, 0) };
+  return { tau2: root.tau2, converged: root.converged, iterations: root.iterations, atBoundary: root.atBoundary, fit: weightedFit(y, v, x, root.tau2) };
 }
 
 function boundary(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, tau2: number, iterations: number, atBoundary: boolean): Tau2Estimate {
@@ -133,8 +151,11 @@ function likelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, r
   let lo = t0;
   let hi = t0;
   if (t0 === 0 && s0 <= 0) return { tau2: 0, converged: true, iterations: fisher.iterations, atBoundary: true, fit: fisher.fit };
+  // After converged Fisher steps the root is within a few last steps of t0: bracket from there
+  // (a tight bracket leaves Brent a few evaluations; the leave-one-out pools run this thousands of times).
+  const near = fisher.converged ? Math.max(4 * fisher.lastChange, 1e-12 * (t0 + meanOf(v))) : null;
   if (s0 > 0) {
-    let step = Math.max(t0, 1e-6 * meanOf(v));
+    let step = near ?? Math.max(t0, 1e-6 * meanOf(v));
     hi = t0 + step;
     for (let j = 0; score(hi) > 0; j++) {
       if (j > 2000) return { ...fisher, converged: false };
@@ -142,6 +163,15 @@ function likelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, r
       step *= 2;
       hi = t0 + step;
     }
+  } else if (near !== null) {
+    let step = near;
+    lo = Math.max(0, t0 - step);
+    while (lo > 0 && score(lo) <= 0) {
+      hi = lo;
+      step *= 2;
+      lo = Math.max(0, t0 - step);
+    }
+    if (lo === 0 && score(0) <= 0) return boundaryAtZero(y, v, x, fisher.iterations);
   } else {
     lo = t0 / 2;
     for (let j = 0; score(lo) <= 0; j++) {
@@ -169,15 +199,15 @@ function meanOf(v: ArrayLike<number>): number {
   return s / v.length;
 }
 
-/** Fisher scoring with step-halving on the (restricted) log-likelihood, tau² kept >= 0. */
-function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate {
+/** Fisher scoring with step-halving on the (restricted) log-likelihood, tau² kept >= 0; lastChange: the last accepted step's size. */
+function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate & { readonly lastChange: number } {
   let fit = weightedFit(y, v, x, start);
   let ll = logLikTau2(v, fit, reml);
   const maxIterations = 50;
   const scale = meanOf(v);
   for (let it = 1; it <= maxIterations; it++) {
     const { score, information } = scoreAndInformation(x, fit, reml);
-    if (fit.tau2 === 0 && score <= 0) return { tau2: 0, converged: true, iterations: it, atBoundary: true, fit };
+    if (fit.tau2 === 0 && score <= 0) return { tau2: 0, converged: true, iterations: it, atBoundary: true, fit, lastChange: 0 };
     let step = score / information;
     let accepted = false;
     let candidate = fit;
@@ -188,11 +218,11 @@ function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, re
       accepted = candidateLl >= ll - 1e-12 * Math.abs(ll);
       if (!accepted) step /= 2;
     }
-    if (!accepted) return { tau2: fit.tau2, converged: false, iterations: it, atBoundary: fit.tau2 === 0, fit };
+    if (!accepted) return { tau2: fit.tau2, converged: false, iterations: it, atBoundary: fit.tau2 === 0, fit, lastChange: Infinity };
     const change = Math.abs(candidate.tau2 - fit.tau2);
     fit = candidate;
     ll = candidateLl;
-    if (change <= 1e-10 * (fit.tau2 + 1e-6 * scale)) return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit };
+    if (change <= 1e-10 * (fit.tau2 + 1e-6 * scale)) return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit, lastChange: change };
   }
-  return { tau2: fit.tau2, converged: false, iterations: maxIterations, atBoundary: fit.tau2 === 0, fit };
+  return { tau2: fit.tau2, converged: false, iterations: maxIterations, atBoundary: fit.tau2 === 0, fit, lastChange: Infinity };
 }

@@ -19,16 +19,23 @@ export interface WeightedFit {
   readonly aliased: number[];
 }
 
+// Intercept designs are views of one shared buffer of ones (pools are refitted thousands of
+// times by the sensitivity analyses); nothing writes to a design matrix.
+let ones = new Float64Array(0);
+const interceptDesigns = new WeakSet<Matrix>();
+
+/** The k x 1 design of ones. Read-only: its data is shared with every other intercept design. */
 export function interceptDesign(k: number): Matrix {
-  const x = zeros(k, 1);
-  x.data.fill(1);
+  if (ones.length < k) ones = new Float64Array(Math.max(k, 2 * ones.length)).fill(1);
+  const x: Matrix = { rows: k, cols: 1, data: ones.subarray(0, k) };
+  interceptDesigns.add(x);
   return x;
 }
 
 export function weightedFit(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, tau2: number): WeightedFit {
   const k = x.rows;
   const p = x.cols;
-  if (p === 1 && isAllOnes(x.data)) return interceptFit(y, v, tau2);
+  if (p === 1 && isInterceptOnly(x)) return interceptFit(y, v, tau2);
   const weights = new Float64Array(k);
   const xs = zeros(k, p);
   const ys = new Float64Array(k);
@@ -53,6 +60,11 @@ export function weightedFit(y: ArrayLike<number>, v: ArrayLike<number>, x: Matri
   let logDetXtWX = 0;
   for (let j = 0; j < f.rank; j++) logDetXtWX += 2 * Math.log(Math.abs(f.qr.data[j * p + j]));
   return { tau2, weights, beta, covariance, residuals, weightedRss, logDetXtWX, rank: f.rank, aliased: aliasedColumns(f) };
+}
+
+/** Whether a design is the intercept alone (one column of ones). */
+export function isInterceptOnly(x: Matrix): boolean {
+  return interceptDesigns.has(x) || (x.cols === 1 && isAllOnes(x.data));
 }
 
 function isAllOnes(x: Float64Array): boolean {
