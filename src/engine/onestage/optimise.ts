@@ -79,6 +79,8 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   }
   let halvings = 0;
   let iterations = 0;
+  /** Newton steps that used the residuals' observed curvature (newtonResidualDiagonal). */
+  let curvatureSteps = 0;
   let outcome: RunRecord['outcome'] = 'max-iterations';
   let decrement = NaN;
   let sc = scoreAndInformation(frame, ev, active);
@@ -93,6 +95,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
       if (!atZero[k] && !fixed[k]) free.push(k);
     }
     const step = newtonStep(sc, free, nP, residual, ev.c, p);
+    if (step.curvature) curvatureSteps++;
     decrement = step.decrement;
     if (decrement < DECREMENT_TOL) {
       outcome = 'converged';
@@ -138,13 +141,16 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
     score: sc,
     atZero,
     run: {
-      method: 'average-information REML, EM warm start, projected step-halving',
+      method:
+        curvatureSteps > 0
+          ? 'average-information REML (residual variances of trials laid out alike at their observed curvature), EM warm start, projected step-halving'
+          : 'average-information REML, EM warm start, projected step-halving',
       start: Object.fromEntries(frame.layout.parameters.map((p, k) => [p.name, start[k]])),
       iterations,
       emIterations,
       criterionPath: path,
       stepHalvings: halvings,
-      convergence: `AI Newton decrement g'AI^-1 g < ${DECREMENT_TOL} on the free parameters (components at zero with non-negative score held there), or an accepted step changing -2 logLik by < ${CRITERION_TOL} relative and every parameter by < ${PARAMETER_TOL} relative`,
+      convergence: `AI Newton decrement g'AI^-1 g < ${DECREMENT_TOL} on the free parameters (components at zero with non-negative score held there), or an accepted step changing -2 logLik by < ${CRITERION_TOL} relative and every parameter by < ${PARAMETER_TOL} relative; a step is accepted unless it raises -2 logLik by more than ${ROUNDING_SLACK} relative (its rounding)`,
       outcome,
       finalDecrement: decrement,
       elapsedMs: Date.now() - began,
@@ -152,18 +158,26 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
   };
 }
 
-function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number, residual: readonly boolean[], c: Float64Array, p: number): { direction: Float64Array; decrement: number } {
+function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number, residual: readonly boolean[], c: Float64Array, p: number): { direction: Float64Array; decrement: number; curvature: boolean } {
   const f = free.length;
   const direction = new Float64Array(nP);
-  if (f === 0) return { direction, decrement: 0 };
+  if (f === 0) return { direction, decrement: 0, curvature: false };
+  let curvature = false;
   const g = Float64Array.from(free, (k) => sc.gradient[k]);
   let x: Float64Array | null = null;
   let notPositiveDefinite = false;
-  if (f > BORDERED_MIN_FREE) {
-    const w = lowRankFactor(sc.v, c, nP, p);
-    const b = w ? borderedFactor(w ? newtonResidualDiagonal(sc, w, p) : sc.a0, w, p, nP, free, residual) : null;
-    if (b && 'solve' in b) x = b.solve(g);
-    else if (b) notPositiveDefinite = true;
+  const w = f > BORDERED_MIN_FREE ? lowRankFactor(sc.v, c, nP, p) : null;
+  if (w) {
+    // the residuals' observed curvature first; where that is not positive definite, plain AI
+    const corrected = borderedFactor(newtonResidualDiagonal(sc, w, p), w, p, nP, free, residual);
+    if (corrected && 'solve' in corrected) {
+      x = corrected.solve(g);
+      curvature = sc.residualExpected.some((e) => e > 0);
+    } else {
+      const b = borderedFactor(sc.a0, w, p, nP, free, residual);
+      if (b && 'solve' in b) x = b.solve(g);
+      else if (b) notPositiveDefinite = true;
+    }
   }
   if (!x && !notPositiveDefinite) x = denseSolve(sc, free, nP, g);
   // AI singular along some direction: fall back to a scaled gradient step on the diagonal.
@@ -177,7 +191,7 @@ function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number
     direction[free[i]] = -x[i];
     decrement += g[i] * x[i];
   }
-  return { direction, decrement };
+  return { direction, decrement, curvature };
 }
 
 /**
