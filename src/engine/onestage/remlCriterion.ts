@@ -2,7 +2,9 @@
 //   -2 logLik_REML = (N - p) log(2 pi) + sum_i log|V_i| + log|X'V^-1 X| + r'V^-1 r,
 // r = y - X beta_hat (the scale lme4 reports as its REML criterion). X holds the treatment
 // cell means, whose columns are the treatment columns of B in each trial. Trials of one design
-// pattern share the design block of B'V^-1 B; per trial only B'V^-1 y is computed.
+// pattern share the design block of B'V^-1 B; per trial only B'V^-1 y is computed. Trials laid
+// out alike with residual variances of their own share one eigen-decomposition instead
+// (spectralGroups.ts, spectralEvaluation.ts).
 import { cholesky, cholInverse, cholLogDet, cholSolve, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
 import type { NetworkStatistics } from './sufficientStatistics.js';
 import type { ParameterLayout } from './parameters.js';

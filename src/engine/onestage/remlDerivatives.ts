@@ -6,7 +6,9 @@
 // bilinear form on B: P y = V^-1 r, r = B rho with rho = (-beta on the treatment columns, 1 on y).
 // The trace terms depend on the design only, so they are computed once per design pattern;
 // the data enter through each pattern's moments (patternMoments.ts), so an iteration costs
-// O(patterns), not O(trials) — for networks of identically laid-out trials, O(1).
+// O(patterns), not O(trials) — for networks of identically laid-out trials, O(1). Trials laid
+// out alike but with residual variances of their own go through their layout's decomposition
+// instead (spectralDerivatives.ts), O(r^2) each.
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import { ensurePatternH2, type PatternState } from './trialBlock.js';
 import { localBlock, type ActiveParameter } from './trialParameters.js';
