@@ -9,22 +9,9 @@ import { estimateTau2 } from '../../../src/engine/pooling/tau2Estimators.js';
 import { interceptDesign } from '../../../src/engine/pooling/weightedFit.js';
 import { interceptScore } from '../../../src/engine/pooling/interceptTau2.js';
 import { zeros } from '../../../src/engine/linalg/matrix.js';
+import { generatedSets } from './support/generatedSets.js';
 
-const dataset = fc
-  .record({
-    k: fc.integer({ min: 2, max: 60 }),
-    logScale: fc.double({ min: -4, max: 4, noNaN: true }),
-    seed: fc.integer({ min: 1, max: 1_000_000 }),
-    spread: fc.double({ min: 0, max: 20, noNaN: true }),
-  })
-  .map(({ k, logScale, seed, spread }) => {
-    let a = seed;
-    const u = () => ((a = (a * 16807) % 2147483647) / 2147483647);
-    const scale = 10 ** logScale;
-    const v = Array.from({ length: k }, () => (scale * (0.05 + 3 * u())) ** 2);
-    const y = v.map((vi) => scale * spread * (u() - 0.5) + Math.sqrt(vi) * (u() - 0.5) * 3);
-    return { y, v };
-  });
+const dataset = generatedSets({ maxK: 60, maxLogScale: 4, maxSpread: 20 });
 
 function twos(k: number) {
   const x = zeros(k, 1);

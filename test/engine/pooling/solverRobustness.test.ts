@@ -6,22 +6,9 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { estimateTau2, logLikTau2 } from '../../../src/engine/pooling/tau2Estimators.js';
 import { interceptDesign, weightedFit } from '../../../src/engine/pooling/weightedFit.js';
+import { generatedSets } from './support/generatedSets.js';
 
-const dataset = fc
-  .record({
-    k: fc.integer({ min: 2, max: 40 }),
-    logScale: fc.double({ min: -6, max: 6, noNaN: true }),
-    seed: fc.integer({ min: 1, max: 1_000_000 }),
-    spread: fc.double({ min: 0, max: 50, noNaN: true }),
-  })
-  .map(({ k, logScale, seed, spread }) => {
-    let a = seed;
-    const u = () => ((a = (a * 16807) % 2147483647) / 2147483647);
-    const scale = 10 ** logScale;
-    const v = Array.from({ length: k }, () => (scale * (0.05 + 3 * u())) ** 2);
-    const y = v.map((vi) => scale * spread * (u() - 0.5) + Math.sqrt(vi) * (u() - 0.5) * 3);
-    return { y, v };
-  });
+const dataset = generatedSets({ maxK: 40, maxLogScale: 6, maxSpread: 50 });
 
 describe('tau² solvers', () => {
   it('REML and ML converge to a maximum on every generated data set (300 runs, seed 42)', () => {
