@@ -54,8 +54,8 @@ function withSharedHoles(net: NetworkInput): NetworkInput {
   };
 }
 
-function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (start: Float64Array) => Float64Array): { groups: number } {
-  const stats = buildNetworkStatistics(net, random);
+function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (start: Float64Array) => Float64Array, covariates: readonly string[] = []): { groups: number } {
+  const stats = buildNetworkStatistics(net, random, covariates);
   const frame = modelFrame(stats, parameterLayout(stats, 'per-trial'));
   const start = startValues(frame);
   const th = theta ? theta(start) : start;
@@ -64,8 +64,9 @@ function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (star
   expect(fast.spectral).not.toBeNull();
   expect(full.spectral).toBeNull();
   expect(Math.abs(fast.criterion - full.criterion)).toBeLessThan(1e-11 * Math.abs(full.criterion));
-  close(fast.beta, full.beta);
-  close(fast.c, full.c);
+  // a covariate's slope can be small beside the means: fixed effects held to the largest of them
+  close(fast.beta, full.beta, 1e-10, 1e6 * largest(fast.beta, full.beta));
+  close(fast.c, full.c, 1e-10, 1e6 * largest(fast.c, full.c));
   const active = activeParameterTable(frame);
   for (const withInformation of [false, true]) {
     const a = scoreAndInformation(frame, fast, active, withInformation);
@@ -75,8 +76,9 @@ function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (star
     // the gradient is their difference, which cancels near the optimum: held to the parts' size
     differenceClose(a.gradient, b.gradient, b.trace, b.quadratic);
     // v = X'V^-1 V_k V^-1 r and P_k below are sums of parts that cancel (r is a residual; H2 =
-    // K / s^2 less a correction), so they are held to the size of the whole array
-    close(a.v, b.v, 1e-10, 1e6 * largest(a.v, b.v));
+    // K / s^2 less a correction), so they are held to the size of the whole array (1e-9: a
+    // covariate's Gram entries are 1e5 times a treatment's here)
+    close(a.v, b.v, 1e-9, 1e6 * largest(a.v, b.v));
     close(a.a0.toDense(), b.a0.toDense(), 1e-9);
     if (withInformation) close(a.ai, b.ai, 1e-9);
   }
@@ -94,6 +96,11 @@ describe('spectral route for trials sharing a layout, each with its own residual
   it('away from the start values, with one term at zero and another tiny', () => {
     const net = simulateNetwork({ ...base, seed: 13 }).network;
     compare(net, ['trial', 'block', 'treatment:trial'], (s) => Float64Array.from(s, (v, k) => (k === 1 ? 0 : k === 2 ? 1e-9 : v * (1 + 0.3 * Math.sin(k)))));
+  });
+  it('a fixed trial covariate with few distinct values: trials sharing a value share a layout', () => {
+    const sim = simulateNetwork({ ...base, seed: 15 }).network;
+    const net = { ...sim, trials: sim.trials.map((t, i) => ({ ...t, covariates: { rain: [310, 450, 520][i % 3] } })) };
+    expect(compare(net, ['trial', 'block', 'treatment:trial'], undefined, ['rain']).groups).toBe(3);
   });
   it('other choices of random terms', () => {
     const net = withSharedHoles(simulateNetwork({ ...base, seed: 14, blocks: 3, treatments: 5 }).network);
