@@ -22,6 +22,15 @@ export type { OneStageOptions, OneStageResult, OneStageHooks } from './types.js'
 export { OneStageCancelledError } from './types.js';
 export { OneStageDataError } from './sufficientStatistics.js';
 
+/** With a residual per trial, trials with fewer residual df of their own than this are flagged. */
+const THIN_RESIDUAL_DF = 3;
+
+/** Trials whose own fit (blocks + treatments) leaves fewer than THIN_RESIDUAL_DF residual df. */
+function thinResidualTrials(trials: readonly { trial: string; n: number; blockColumns: Int32Array; treatmentCount: number }[]): string[] {
+  // blocks + treatments - 1 parameters for a connected layout (one treatment absorbed by the block intercepts)
+  return trials.filter((t) => t.n - (Math.max(t.blockColumns.length, 1) + t.treatmentCount - 1) < THIN_RESIDUAL_DF).map((t) => t.trial);
+}
+
 /** Networks up to this many trials get profile-likelihood intervals unless options.profile says otherwise. */
 const PROFILE_DEFAULT_MAX_TRIALS = 200;
 
@@ -35,6 +44,13 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   const warnings: string[] = [];
   const unobserved = network.treatments.map((t) => t.code).filter((c) => !stats.treatments.includes(c));
   if (unobserved.length > 0) warnings.push(`treatments with no usable plot are left out of the one-stage model: ${unobserved.join(', ')}`);
+  if (options.residual === 'per-trial') {
+    const thin = thinResidualTrials(stats.trials);
+    if (thin.length > 0)
+      warnings.push(
+        `${thin.length} trial(s) have fewer than ${THIN_RESIDUAL_DF} residual degrees of freedom of their own (${thin.slice(0, 10).join(', ')}${thin.length > 10 ? ', ...' : ''}): a residual variance per trial is barely identifiable there, so the fit can settle on one of several near-equal solutions; a common residual is the safer model for them`,
+      );
+  }
   if (stats.trialsWithoutCovariates.length > 0)
     warnings.push(`trials without a value for every covariate (${covariateNames.join(', ')}) are left out of the one-stage model: ${stats.trialsWithoutCovariates.join(', ')}`);
 

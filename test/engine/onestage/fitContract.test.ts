@@ -47,4 +47,12 @@ describe('fitOneStage contract', () => {
     expect(() => fitOneStage(bad, [], options)).toThrow(OneStageDataError);
     expect(() => fitOneStage(bad, [], options)).toThrow(/E0001.*ZZ9/);
   });
+
+  it('warns when a residual per trial rests on fewer than 3 residual df of a trial (2 treatments x 2 blocks: 1 df)', () => {
+    const thin = simulateNetwork({ seed: 15, trials: 12, treatments: 2, blocks: 2, residualSpread: [0.5, 2] });
+    const warned = fitOneStage(thin.network, [], { ...options, residual: 'per-trial' });
+    expect(warned.warnings.some((w) => /12 trial\(s\) have fewer than 3 residual degrees of freedom/.test(w))).toBe(true);
+    const ample = simulateNetwork({ seed: 15, trials: 12, residualSpread: [0.5, 2] });
+    expect(fitOneStage(ample.network, [], { ...options, residual: 'per-trial' }).warnings.some((w) => /residual degrees of freedom/.test(w))).toBe(false);
+  });
 });
