@@ -3,13 +3,13 @@
 // l'C P_k C l, A = 2 O^-1 the asymptotic covariance of the variance parameters from the observed
 // Hessian O of -2 logLik (lmerTest differentiates numerically in its own parametrisation; at an
 // interior optimum the two agree, and a component at zero drops out of both). Kenward–Roger as
-// pbkrtest's vcovAdj/Lb_ddf: W = 2 E^-1 from the expected information, adjusted covariance
-// C + 2 C U C, and the df of Kenward & Roger (1997) for a single contrast (q = 1).
-import { cholesky, cholInverse, NotPositiveDefiniteError, type Matrix } from '../linalg/index.js';
+// pbkrtest's vcovAdj/Lb_ddf: W = 2 E^-1 from the expected information (kenwardRogerWeights.ts),
+// adjusted covariance C + 2 C U C, and the df of Kenward & Roger (1997) for a single contrast (q = 1).
 import { tQuantile, tTwoSidedP } from '../stats/distributions.js';
 import type { Evaluation } from './remlCriterion.js';
 import type { SecondOrder } from './secondOrder.js';
 import type { InverseOnFree } from './informationSolver.js';
+import type { KenwardRogerWeights } from './kenwardRogerWeights.js';
 
 export function quadraticForm(a: Float64Array, n: number, x: ArrayLike<number>, y: ArrayLike<number> = x): number {
   let s = 0;
@@ -20,19 +20,6 @@ export function quadraticForm(a: Float64Array, n: number, x: ArrayLike<number>, 
     s += x[i] * r;
   }
   return s;
-}
-
-/** Inverse of the principal submatrix on `idx`; null when it is not positive definite. */
-export function subInverse(a: Float64Array, n: number, idx: readonly number[]): Float64Array | null {
-  const f = idx.length;
-  const m: Matrix = { rows: f, cols: f, data: new Float64Array(f * f) };
-  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) m.data[i * f + j] = a[idx[i] * n + idx[j]];
-  try {
-    return cholInverse(cholesky(m)).data;
-  } catch (err) {
-    if (err instanceof NotPositiveDefiniteError) return null;
-    throw err;
-  }
 }
 
 /** C l: the contrast's direction in coefficient space. */
@@ -59,43 +46,19 @@ export function satterthwaiteDf(ev: Evaluation, so: SecondOrder, free: readonly 
   return (2 * v * v) / gag;
 }
 
-export interface KenwardRogerPieces {
-  /** W = 2 E^-1 over `index`, the parameters kept. */
-  readonly w: Float64Array;
-  readonly index: readonly number[];
-}
-
-/** pbkrtest keeps every variance parameter; if E is singular, drop the ones at zero. */
-export function kenwardRogerCovariance(so: SecondOrder, atZero: readonly boolean[]): KenwardRogerPieces {
-  const nP = so.p.length;
-  let index = Array.from({ length: nP }, (_, k) => k);
-  let inv = subInverse(so.expected, nP, index);
-  if (!inv) {
-    index = index.filter((k) => !atZero[k]);
-    inv = subInverse(so.expected, nP, index);
-    if (!inv) throw new Error('Kenward–Roger: the expected information of the variance parameters is singular');
-  }
-  return { w: inv.map((x) => 2 * x), index };
-}
-
-/** Full nP x nP W with zeros outside the kept parameters (the shape kenwardRogerU expects). */
-export function expandW(kr: KenwardRogerPieces, nP: number): Float64Array {
-  const w = new Float64Array(nP * nP);
-  const f = kr.index.length;
-  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) w[kr.index[i] * nP + kr.index[j]] = kr.w[i * f + j];
-  return w;
-}
-
-export function kenwardRogerContrast(ev: Evaluation, so: SecondOrder, kr: KenwardRogerPieces, u: Float64Array, l: ArrayLike<number>): { df: number; variance: number } {
+export function kenwardRogerContrast(ev: Evaluation, so: SecondOrder, kr: KenwardRogerWeights, u: Float64Array, l: ArrayLike<number>): { df: number; variance: number } {
   const p = ev.beta.length;
   const cl = cTimes(ev, p, l);
   let v0 = 0;
   for (let i = 0; i < p; i++) v0 += l[i] * cl[i];
   const variance = v0 + 2 * quadraticForm(u, p, cl);
-  const a = kr.index.map((k) => quadraticForm(so.p[k], p, cl) / v0);
-  const f = a.length;
+  // a_k = l'C P_k C l / v0 over the kept parameters; A1 = a'W a
+  const nP = so.p.length;
+  const a = new Float64Array(nP);
+  for (const k of kr.index) a[k] = quadraticForm(so.p[k], p, cl) / v0;
+  const wa = kr.apply(a, 1);
   let a1 = 0;
-  for (let i = 0; i < f; i++) for (let j = 0; j < f; j++) a1 += kr.w[i * f + j] * a[i] * a[j];
+  for (let k = 0; k < nP; k++) a1 += a[k] * wa[k];
   // For one contrast (q = 1) Theta is rank one, so pbkrtest's A1 and A2 coincide.
   const a2 = a1;
   const q = 1;

@@ -11,7 +11,8 @@ import { optimiseReml, type OptimiseOutcome } from './optimise.js';
 import { startValues } from './startValues.js';
 import { activeParameterTable } from './trialParameters.js';
 import { secondOrder, kenwardRogerU, type SecondOrder } from './secondOrder.js';
-import { expandW, kenwardRogerContrast, kenwardRogerCovariance, satterthwaiteDf, tInterval, quadraticForm } from './contrastInference.js';
+import { kenwardRogerContrast, satterthwaiteDf, tInterval, quadraticForm } from './contrastInference.js';
+import { kenwardRogerWeights, type KenwardRogerWeights } from './kenwardRogerWeights.js';
 import { averageInformationInverse, observedInformationInverse } from './informationSolver.js';
 import { trialContrasts, type ContrastVector } from './trialContrasts.js';
 import { profileInterval } from './profile.js';
@@ -145,12 +146,11 @@ function contrastVector(c: ResolvedContrast, treatments: readonly string[], p: n
 function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOrder | null, free: readonly number[], vectors: readonly ContrastVector[], options: OneStageOptions, active: ReturnType<typeof activeParameterTable>): ContrastReport[] {
   const ev = fit.evaluation;
   const p = frame.stats.fixed.length;
-  const nP = frame.layout.parameters.length;
-  let kr: { pieces: ReturnType<typeof kenwardRogerCovariance>; u: Float64Array } | null = null;
+  let kr: { pieces: KenwardRogerWeights; u: Float64Array } | null = null;
   if (options.df === 'kenward-roger' && so) {
-    const pieces = kenwardRogerCovariance(so, fit.atZero);
+    const pieces = kenwardRogerWeights(so, fit.atZero, frame.sharedParameters);
     // Kenward–Roger's Q_kl are read from every pattern's block
-    kr = { pieces, u: kenwardRogerU(frame, completeEvaluation(frame, ev), so, expandW(pieces, nP), active) };
+    kr = { pieces, u: kenwardRogerU(frame, completeEvaluation(frame, ev), so, pieces, active) };
   }
   const observed = options.df === 'satterthwaite' && so ? observedInformationInverse(fit.score, so, ev.c, p, frame.layout, free) : null;
   return vectors.map((v): ContrastReport => {

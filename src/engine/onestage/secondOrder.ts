@@ -16,6 +16,7 @@ import type { ActiveParameter } from './trialParameters.js';
 import { f64, Scratch } from './arena.js';
 import { choleskyInPlace } from '../linalg/inPlace.js';
 import { SymmetricArrowhead } from './arrowhead.js';
+import type { KenwardRogerWeights } from './kenwardRogerWeights.js';
 import { spectralExpected } from './spectralSecondOrder.js';
 import { gatherDot, rowsDot } from '../linalg/gatherDot.js';
 
@@ -257,11 +258,12 @@ function vechOfCongruence(pk: Float64Array, l: Float64Array, p: number, pl: Floa
  * Kenward–Roger bias correction term U = sum_kl W_kl (Q_kl - P_k C P_l) (p x p), where W is the
  * asymptotic covariance of the variance parameters (as pbkrtest's vcovAdj builds it).
  */
-export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder, w: Float64Array, active: readonly ActiveParameter[][]): Float64Array {
+export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder, w: KenwardRogerWeights, active: readonly ActiveParameter[][]): Float64Array {
   assertComplete(ev, 'kenwardRogerU');
   const nP = frame.layout.parameters.length;
   const p = frame.stats.fixed.length;
   const u = new Float64Array(p * p);
+  // sum_kl W_kl Q_kl: Q_kl is nonzero only for parameters acting in one trial block
   for (let qi = 0; qi < frame.patternTrial.length; qi++) {
     const i0 = frame.patternTrial[qi];
     const count = frame.patternCount[qi];
@@ -270,21 +272,25 @@ export function kenwardRogerU(frame: ModelFrame, ev: Evaluation, so: SecondOrder
     const f = patternForms(frame, ev, qi, act);
     for (const a of act)
       for (const b of act) {
-        const wab = w[a.index * nP + b.index];
+        const wab = w.entry(a.index, b.index);
         if (wab === 0) continue;
         const q = f.q(a, b);
         for (let x = 0; x < tg.length; x++) for (let y = 0; y < tg.length; y++) u[tg[x] * p + tg[y]] += count * wab * q.data[x * tg.length + y];
       }
   }
-  const cp = so.p.map((pk) => matMul(ev.c, pk, p));
-  for (let k = 0; k < nP; k++)
-    for (let l = 0; l < nP; l++) {
-      const wkl = w[k * nP + l];
-      if (wkl === 0) continue;
-      // P_k C P_l = P_k (C P_l)
-      const pcp = matMul(so.p[k], cp[l], p);
-      for (let j = 0; j < p * p; j++) u[j] -= wkl * pcp[j];
-    }
+  // - sum_kl W_kl P_k C P_l = - sum_k P_k C (sum_l W_kl P_l): W applied to the stacked P_l
+  const pp = p * p;
+  const stacked = new Float64Array(nP * pp);
+  for (let k = 0; k < nP; k++) stacked.set(so.p[k], k * pp);
+  const wp = w.apply(stacked, pp);
+  for (let k = 0; k < nP; k++) {
+    const mix = wp.subarray(k * pp, (k + 1) * pp);
+    let any = false;
+    for (let j = 0; j < pp; j++) if (mix[j] !== 0) any = true;
+    if (!any) continue;
+    const pcm = matMul(so.p[k], matMul(ev.c, mix, p), p);
+    for (let j = 0; j < pp; j++) u[j] -= pcm[j];
+  }
   return u;
 }
 
