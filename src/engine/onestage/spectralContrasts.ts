@@ -4,6 +4,7 @@
 // the same quantity trialContrasts reads from a pattern's block.
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { SpectralState } from './spectralEvaluation.js';
+import { groupLayout } from './spectralGroups.js';
 
 /** For each trial of a spectral group (by trial index), its h_T; other trials are absent. */
 export function spectralTreatmentResiduals(frame: ModelFrame, ev: Evaluation): Map<number, Float64Array> {
@@ -11,18 +12,13 @@ export function spectralTreatmentResiduals(frame: ModelFrame, ev: Evaluation): M
   if (!ev.spectral) return out;
   frame.spectral.forEach((group, gi) => {
     const state = (ev.spectral as readonly SpectralState[])[gi];
-    const t0 = frame.stats.trials[group.representative];
-    const m = t0.m;
+    const { m, K: gram, T, tg, nt } = groupLayout(frame.stats, group);
     const mz = m - 1;
-    const T = t0.fixedColumns;
-    const tg = t0.fixedIndex;
-    const nt = T.length;
-    const ne = state.rank;
-    const f = state.f;
+    const { rank: ne, f } = state;
     const fb = new Float64Array(ne);
     for (let a = 0; a < ne; a++) for (let x = 0; x < nt; x++) fb[a] += f[T[x] * ne + a] * ev.beta[tg[x]];
     const kbT = new Float64Array(nt);
-    for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) kbT[x] += t0.gram[T[x] * m + T[y]] * ev.beta[tg[y]];
+    for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) kbT[x] += gram[T[x] * m + T[y]] * ev.beta[tg[y]];
     group.trials.forEach((i, e) => {
       const K = frame.stats.trials[i].gram;
       const s = ev.theta[group.residualParameter[e]];

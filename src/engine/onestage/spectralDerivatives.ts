@@ -10,7 +10,7 @@
 // quadratics in c1, so the trials contribute sums of 1/s^2, c1_a/s and c1_a c1_b and the
 // design matrices enter once per group.
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
-import type { SpectralGroup } from './spectralGroups.js';
+import { groupLayout, type SpectralGroup } from './spectralGroups.js';
 import type { SpectralState } from './spectralEvaluation.js';
 import { Scratch } from './arena.js';
 import type { SymmetricArrowhead } from './arrowhead.js';
@@ -87,16 +87,8 @@ export function spectralScore(frame: ModelFrame, ev: Evaluation, gi: number, out
 }
 
 function groupPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralState, beta: Float64Array, cl: Float64Array, fc: Float64Array): GroupPieces {
-  const t0 = frame.stats.trials[group.representative];
-  const m = t0.m;
-  const K = t0.gram;
-  const R = group.randomColumns;
-  const r = R.length;
-  const ne = state.rank;
-  const T = t0.fixedColumns;
-  const tg = t0.fixedIndex;
-  const nt = T.length;
-  const f = state.f;
+  const { m, K, R, r, T, tg, nt } = groupLayout(frame.stats, group);
+  const { rank: ne, f } = state;
   const buf = pieceScratch.get(2 * ne + r + nt);
   const fb = buf.subarray(0, ne);
   const phi = buf.subarray(ne, 2 * ne);
@@ -323,13 +315,8 @@ function residualLinear(ti: ModelFrame['stats']['trials'][number], state: Spectr
  *   sum_j in k  H_Tj' C H_Tj = tau0_k / s^2 + 2 sum_a (c1_a / s) tau1_ka + sum_ab c1_a c1_b tau2_kab.
  */
 function termTraces(frame: ModelFrame, group: SpectralGroup, state: SpectralState, pc: GroupPieces, cl: Float64Array, fc: Float64Array, sums: Float64Array, trace: Float64Array): void {
-  const t0 = frame.stats.trials[group.representative];
-  const m = t0.m;
-  const K = t0.gram;
-  const R = group.randomColumns;
-  const { ne, nt } = pc;
-  const T = t0.fixedColumns;
-  const f = state.f;
+  const { m, K, R, T, nt } = groupLayout(frame.stats, group);
+  const { rank: ne, f } = state;
   const psi = psiAt(ne);
   const gamma = gammaAt(ne);
   const ck = termScratch.get(nt + ne * ne);
@@ -374,16 +361,9 @@ function termTraces(frame: ModelFrame, group: SpectralGroup, state: SpectralStat
 
 /** v of the random terms: sum over trials of K_T,k h_k / s + sum_a c1_a (F_ka . h_k) F_Ta. */
 function termLinear(frame: ModelFrame, group: SpectralGroup, state: SpectralState, sums: Float64Array, v: Float64Array): void {
-  const t0 = frame.stats.trials[group.representative];
-  const m = t0.m;
-  const K = t0.gram;
-  const R = group.randomColumns;
-  const r = R.length;
-  const ne = state.rank;
-  const T = t0.fixedColumns;
-  const tg = t0.fixedIndex;
+  const { m, K, R, r, T, tg } = groupLayout(frame.stats, group);
+  const { rank: ne, f } = state;
   const p = frame.stats.fixed.length;
-  const f = state.f;
   const vh = vhAt(ne);
   const vw = vwAt(ne, r);
   group.terms.forEach((term, k) => {

@@ -13,7 +13,7 @@
 import { NotPositiveDefiniteError } from '../linalg/index.js';
 import { symmetricEigenInPlace } from '../linalg/symmetricEigen.js';
 import type { NetworkStatistics } from './sufficientStatistics.js';
-import type { SpectralGroup } from './spectralGroups.js';
+import { groupLayout, type SpectralGroup } from './spectralGroups.js';
 import { Scratch } from './arena.js';
 
 /** One group's decomposition at one evaluation, and each trial's g. */
@@ -94,15 +94,9 @@ function layoutRow(K: Float64Array, ko: number, R: Int32Array, dq: Float64Array,
  * variance is not positive (outside the parameter space, as the pattern route's Cholesky does).
  */
 export function accumulateGroup(stats: NetworkStatistics, group: SpectralGroup, theta: ArrayLike<number>, state: SpectralState, p: number, xvx: Float64Array, xvy: Float64Array, sums: Float64Array): void {
-  const t0 = stats.trials[group.representative];
-  const m = t0.m;
+  const { m, K, R, T, tg, nt } = groupLayout(stats, group);
   const mz = m - 1;
-  const R = group.randomColumns;
-  const ne = state.rank;
-  const T = t0.fixedColumns;
-  const tg = t0.fixedIndex;
-  const nt = T.length;
-  const { lambda, dq, g } = state;
+  const { rank: ne, lambda, dq, g } = state;
   // per-group sums over trials: S1 = sum 1/s, alpha_a = sum c1_a, beta_a = sum c1_a g_a, uT = sum u_T / s
   const coef = coefScratch.get(2 * ne + nt + 1);
   coef.fill(0, 0, 2 * ne + nt + 1);
@@ -116,11 +110,11 @@ export function accumulateGroup(stats: NetworkStatistics, group: SpectralGroup, 
     const ti = stats.trials[group.trials[e]];
     const s = theta[group.residualParameter[e]];
     if (!(s > 0)) throw new NotPositiveDefiniteError(e, s);
-    const K = ti.gram;
+    const Ki = ti.gram;
     const go = e * ne;
-    trialProjection(K, m, mz, R, dq, ne, g, go);
+    trialProjection(Ki, m, mz, R, dq, ne, g, go);
     logDet += (ti.n - ne) * Math.log(s);
-    yvy += K[m * m - 1] / s;
+    yvy += Ki[m * m - 1] / s;
     for (let a = 0; a < ne; a++) {
       const sl = s + lambda[a];
       logDet += Math.log(sl);
@@ -130,10 +124,9 @@ export function accumulateGroup(stats: NetworkStatistics, group: SpectralGroup, 
       coef[beta + a] += c1 * ga;
       yvy += c1 * ga * ga;
     }
-    for (let x = 0; x < nt; x++) coef[uT + x] += K[T[x] * m + mz] / s;
+    for (let x = 0; x < nt; x++) coef[uT + x] += Ki[T[x] * m + mz] / s;
     coef[s1] += 1 / s;
   }
-  const K = t0.gram;
   const f = state.f;
   for (let x = 0; x < nt; x++) {
     const fx = T[x] * ne;

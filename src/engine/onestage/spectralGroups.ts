@@ -81,3 +81,19 @@ function nonzeros(K: Float64Array, m: number, R: Int32Array): SpectralGroup['kNo
     }
   return { x: Int32Array.from(x), y: Int32Array.from(y), value: Float64Array.from(value) };
 }
+
+/** A group's shared layout as the per-group steps read it: its Gram matrix (design part) and columns. */
+export interface GroupLayout {
+  readonly m: number;
+  readonly K: Float64Array;
+  readonly R: Int32Array;
+  readonly r: number;
+  readonly T: Int32Array;
+  readonly tg: Int32Array;
+  readonly nt: number;
+}
+
+export function groupLayout(stats: NetworkStatistics, group: SpectralGroup): GroupLayout {
+  const t0 = stats.trials[group.representative];
+  return { m: t0.m, K: t0.gram, R: group.randomColumns, r: group.randomColumns.length, T: t0.fixedColumns, tg: t0.fixedIndex, nt: t0.fixedColumns.length };
+}

@@ -13,7 +13,7 @@
 // products in the coefficients are written out next to each piece below.
 import type { Evaluation, ModelFrame } from './remlCriterion.js';
 import type { SpectralState } from './spectralEvaluation.js';
-import type { SpectralGroup } from './spectralGroups.js';
+import { groupLayout, type SpectralGroup } from './spectralGroups.js';
 import { Scratch } from './arena.js';
 import type { SymmetricArrowhead } from './arrowhead.js';
 
@@ -95,16 +95,8 @@ function trialCoefficients(state: SpectralState, s: number, coef: Float64Array):
 }
 
 function designPieces(frame: ModelFrame, group: SpectralGroup, state: SpectralState, c: Float64Array): DesignPieces {
-  const t0 = frame.stats.trials[group.representative];
-  const m = t0.m;
-  const K = t0.gram;
-  const R = group.randomColumns;
-  const r = R.length;
-  const T = t0.fixedColumns;
-  const tg = t0.fixedIndex;
-  const nt = T.length;
-  const ne = state.rank;
-  const f = state.f;
+  const { m, K, R, r, T, tg, nt } = groupLayout(frame.stats, group);
+  const { rank: ne, f } = state;
   const p = frame.stats.fixed.length;
   const cl = new Float64Array(nt * nt);
   for (let x = 0; x < nt; x++) for (let y = 0; y < nt; y++) cl[x * nt + y] = c[tg[x] * p + tg[y]];
@@ -245,14 +237,8 @@ function symmetriseSums(L: SumLayout, ne: number, sums: Float64Array): void {
  *   A2_b     = sum_{x in k} KCF_xb (K_kl F_l)_xb + sum_{y in l} KCF_yb (K_lk F_k)_yb.
  */
 function termTerms(frame: ModelFrame, group: SpectralGroup, state: SpectralState, dp: DesignPieces, L: SumLayout, sums: Float64Array, P: Float64Array[], expected: SymmetricArrowhead): void {
-  const t0 = frame.stats.trials[group.representative];
-  const m = t0.m;
-  const K = t0.gram;
-  const R = group.randomColumns;
-  const T = t0.fixedColumns;
-  const tg = t0.fixedIndex;
-  const { nt, ne } = dp;
-  const f = state.f;
+  const { m, K, R, T, tg, nt } = groupLayout(frame.stats, group);
+  const { rank: ne, f } = state;
   const p = frame.stats.fixed.length;
   const nP = frame.layout.parameters.length;
   const terms = group.terms;
