@@ -42,6 +42,13 @@ export class SymmetricArrowhead {
     return a < this.shared ? this.rows[a * this.n + b] : 0;
   }
 
+  clone(): SymmetricArrowhead {
+    const out = new SymmetricArrowhead(this.n, this.shared);
+    out.rows.set(this.rows);
+    out.diagonal.set(this.diagonal);
+    return out;
+  }
+
   /** alpha * this + beta * other (same layout). */
   combine(alpha: number, other: SymmetricArrowhead, beta: number): SymmetricArrowhead {
     const out = new SymmetricArrowhead(this.n, this.shared);

@@ -203,7 +203,7 @@ function newtonStep(sc: ScoreAndInformation, free: readonly number[], nP: number
  * (the curvature can turn negative far from the optimum); step-halving still guards the step.
  */
 function newtonResidualDiagonal(sc: ScoreAndInformation, w: Float64Array, p: number): SymmetricArrowhead {
-  const a = sc.a0.combine(1, sc.a0, 0);
+  const a = sc.a0.clone();
   for (let k = a.shared; k < a.n; k++) {
     const e = sc.residualExpected[k];
     if (!(e > 0)) continue;

@@ -24,6 +24,10 @@ describe('symmetric arrowhead store', () => {
     for (let k = 0; k < n; k++) for (let l = 0; l < n; l++) expect(a.get(k, l)).toBe(dense[k * n + l]);
     const c = a.combine(3, b, -1); // 3a - 2a = a
     expect(Array.from(c.toDense())).toEqual(Array.from(dense));
+    const copy = a.clone();
+    copy.addSymmetric(0, 0, 1);
+    expect(a.get(0, 0)).toBe(dense[0]);
+    expect(copy.get(0, 0)).toBe(dense[0] + 1);
   });
 
   it('refuses two trial-level parameters meeting each other', () => {
