@@ -151,11 +151,8 @@ function likelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, r
   let lo = t0;
   let hi = t0;
   if (t0 === 0 && s0 <= 0) return { tau2: 0, converged: true, iterations: fisher.iterations, atBoundary: true, fit: fisher.fit };
-  // After converged Fisher steps the root is within a few last steps of t0: bracket from there
-  // (a tight bracket leaves Brent a few evaluations; the leave-one-out pools run this thousands of times).
-  const near = fisher.converged ? Math.max(4 * fisher.lastChange, 1e-12 * (t0 + meanOf(v))) : null;
   if (s0 > 0) {
-    let step = near ?? Math.max(t0, 1e-6 * meanOf(v));
+    let step = Math.max(t0, 1e-6 * meanOf(v));
     hi = t0 + step;
     for (let j = 0; score(hi) > 0; j++) {
       if (j > 2000) return { ...fisher, converged: false };
@@ -163,15 +160,6 @@ function likelihoodTau2(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, r
       step *= 2;
       hi = t0 + step;
     }
-  } else if (near !== null) {
-    let step = near;
-    lo = Math.max(0, t0 - step);
-    while (lo > 0 && score(lo) <= 0) {
-      hi = lo;
-      step *= 2;
-      lo = Math.max(0, t0 - step);
-    }
-    if (lo === 0 && score(0) <= 0) return boundaryAtZero(y, v, x, fisher.iterations);
   } else {
     lo = t0 / 2;
     for (let j = 0; score(lo) <= 0; j++) {
@@ -199,15 +187,15 @@ function meanOf(v: ArrayLike<number>): number {
   return s / v.length;
 }
 
-/** Fisher scoring with step-halving on the (restricted) log-likelihood, tau² kept >= 0; lastChange: the last accepted step's size. */
-function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate & { readonly lastChange: number } {
+/** Fisher scoring with step-halving on the (restricted) log-likelihood, tau² kept >= 0. */
+function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, reml: boolean, start: number): Tau2Estimate {
   let fit = weightedFit(y, v, x, start);
   let ll = logLikTau2(v, fit, reml);
   const maxIterations = 50;
   const scale = meanOf(v);
   for (let it = 1; it <= maxIterations; it++) {
     const { score, information } = scoreAndInformation(x, fit, reml);
-    if (fit.tau2 === 0 && score <= 0) return { tau2: 0, converged: true, iterations: it, atBoundary: true, fit, lastChange: 0 };
+    if (fit.tau2 === 0 && score <= 0) return { tau2: 0, converged: true, iterations: it, atBoundary: true, fit };
     let step = score / information;
     let accepted = false;
     let candidate = fit;
@@ -218,11 +206,11 @@ function fisherScoring(y: ArrayLike<number>, v: ArrayLike<number>, x: Matrix, re
       accepted = candidateLl >= ll - 1e-12 * Math.abs(ll);
       if (!accepted) step /= 2;
     }
-    if (!accepted) return { tau2: fit.tau2, converged: false, iterations: it, atBoundary: fit.tau2 === 0, fit, lastChange: Infinity };
+    if (!accepted) return { tau2: fit.tau2, converged: false, iterations: it, atBoundary: fit.tau2 === 0, fit };
     const change = Math.abs(candidate.tau2 - fit.tau2);
     fit = candidate;
     ll = candidateLl;
-    if (change <= 1e-10 * (fit.tau2 + 1e-6 * scale)) return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit, lastChange: change };
+    if (change <= 1e-10 * (fit.tau2 + 1e-6 * scale)) return { tau2: fit.tau2, converged: true, iterations: it, atBoundary: fit.tau2 === 0, fit };
   }
-  return { tau2: fit.tau2, converged: false, iterations: maxIterations, atBoundary: fit.tau2 === 0, fit, lastChange: Infinity };
+  return { tau2: fit.tau2, converged: false, iterations: maxIterations, atBoundary: fit.tau2 === 0, fit };
 }
