@@ -143,7 +143,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
     run: {
       method:
         curvatureSteps > 0
-          ? 'average-information REML (residual variances of trials laid out alike at their observed curvature), EM warm start, projected step-halving'
+          ? 'average-information REML (each trial residual variance at its observed curvature), EM warm start, projected step-halving'
           : 'average-information REML, EM warm start, projected step-halving',
       start: Object.fromEntries(frame.layout.parameters.map((p, k) => [p.name, start[k]])),
       iterations,

@@ -29,9 +29,10 @@ export interface ScoreAndInformation {
   /** One entry of the AI matrix, without forming it. */
   informationEntry(k: number, l: number): number;
   /**
-   * For residual parameters of trials in spectral groups: tr(V_i^-2) - 2 tr(C X_i'V_i^-3 X_i),
-   * the expected information E_kk less its tr(C P_k C P_k) part (of order 1/trials); 0 where not
-   * known. The Newton step uses it to correct the AI matrix's residual diagonal (optimise.ts).
+   * With one residual per trial, for each residual parameter (filled with the information):
+   * tr(V_i^-2) - 2 tr(C X_i'V_i^-3 X_i), the expected information E_kk less its tr(C P_k C P_k)
+   * part (of order 1/trials); 0 elsewhere. The Newton step uses it to correct the AI matrix's
+   * residual diagonal (optimise.ts).
    */
   readonly residualExpected: Float64Array;
 }
@@ -81,17 +82,17 @@ export function scoreAndInformation(frame: ModelFrame, ev: Evaluation, active: r
   const v = new Float64Array(nP * p);
   const work = workVectors(frame);
   const skip = ev.spectral ? frame.spectralPattern : null;
+  const residualExpected = new Float64Array(nP);
   let col = 0; // the pattern's first column in ev.hyy
   for (let q = 0; q < ev.patterns.length; q++) {
     const i0 = frame.patternTrial[q];
     if (!(skip && skip[q])) {
-      patternTrace(frame, ev, q, active[i0], trace);
+      patternTrace(frame, ev, q, active[i0], trace, withInformation ? residualExpected : null);
       patternQuadratic(frame, ev, q, col, active[i0], quadratic, withInformation ? ai : null, work);
       if (withInformation) patternLinear(frame, ev, q, active[i0], v, work);
     }
     col += frame.moments[q].nColumns;
   }
-  const residualExpected = new Float64Array(nP);
   if (ev.spectral) for (let g = 0; g < frame.spectral.length; g++) spectralScore(frame, ev, g, { trace, quadratic, ai, v, information: withInformation, residualExpected });
   const gradient = new Float64Array(nP);
   for (let k = 0; k < nP; k++) gradient[k] = trace[k] - quadratic[k];
@@ -114,7 +115,7 @@ function workVectors(frame: ModelFrame): WorkVectors {
 }
 
 /** Design-only trace terms tr(P V_k) of one pattern, times its number of trials. */
-function patternTrace(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], trace: Float64Array): void {
+function patternTrace(frame: ModelFrame, ev: Evaluation, q: number, act: readonly ActiveParameter[], trace: Float64Array, residualExpected: Float64Array | null): void {
   const t = frame.stats.trials[frame.patternTrial[q]];
   const pat = ev.patterns[q];
   const p = frame.stats.fixed.length;
@@ -126,7 +127,27 @@ function patternTrace(frame: ModelFrame, ev: Evaluation, q: number, act: readonl
     const a = act[ia];
     const tr = a.columns ? termTrace(pat.hzz, a.columns, tc, cl, mz) : residualTrace(pat, t.n, tc, cl, mz);
     trace[a.index] += count * tr;
+    // a trial's own residual parameter (one residual per trial): its expected information's own part
+    if (!a.columns && residualExpected && count === 1 && a.index >= frame.sharedParameters) residualExpected[a.index] = residualOwnExpected(pat, t.n, tc, cl, mz);
   }
+}
+
+/** tr(V^-2) - 2 tr(C X'V^-3 X) for one trial block (as secondOrder's residual pair, without tr(C P C P)). */
+function residualOwnExpected(pat: PatternState, n: number, tc: Int32Array, cl: Float64Array, mz: number): number {
+  const H2 = ensurePatternH2(pat, mz);
+  const R = pat.randomColumns;
+  const r = R.length;
+  const nt = tc.length;
+  const s2 = pat.sigma2;
+  let trCH3 = 0;
+  for (let x = 0; x < nt; x++)
+    for (let y = 0; y < nt; y++) {
+      // H3_yx = (H2_yx - gz_y. H2_Rx) / sigma2
+      let h3 = H2[tc[y] * mz + tc[x]];
+      for (let b = 0; b < r; b++) h3 -= pat.gz[tc[y] * r + b] * H2[R[b] * mz + tc[x]];
+      trCH3 += (cl[x * nt + y] * h3) / s2;
+    }
+  return (n - 2 * pat.trWK + pat.trWKWK) / (s2 * s2) - 2 * trCH3;
 }
 
 function termTrace(H: Float64Array, Z: Int32Array, tc: Int32Array, cl: Float64Array, mz: number): number {

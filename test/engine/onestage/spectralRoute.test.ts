@@ -80,7 +80,12 @@ function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (star
     // covariate's Gram entries are 1e5 times a treatment's here)
     close(a.v, b.v, 1e-9, 1e6 * largest(a.v, b.v));
     close(a.a0.toDense(), b.a0.toDense(), 1e-9);
-    if (withInformation) close(a.ai, b.ai, 1e-9);
+    if (withInformation) {
+      close(a.ai, b.ai, 1e-9);
+      // each residual's own expected information (the Newton step's correction), by both routes
+      close(a.residualExpected, b.residualExpected, 1e-9);
+      expect(b.residualExpected.filter((e) => e > 0).length).toBe(frame.layout.parameters.length - frame.sharedParameters);
+    }
   }
   return { groups: frame.spectral.length };
 }
