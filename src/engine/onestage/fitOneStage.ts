@@ -103,7 +103,7 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
 
   const variance: VarianceSummary = {};
   layout.parameters.forEach((par, k) => {
-    if (par.kind === 'term') variance[par.name as 'trial' | 'block' | 'treatment:trial'] = ev.theta[k];
+    if (par.kind === 'term') variance[par.name as 'trial' | 'block' | 'treatment-by-trial'] = ev.theta[k];
     else if (par.trial < 0) variance.residual = ev.theta[k];
     else (variance.residualByTrial ??= {})[stats.trials[par.trial].trial] = ev.theta[k];
   });
@@ -112,7 +112,7 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]) }));
   const run = { ...fit.run, elapsedMs: Date.now() - began };
   return {
-    remlCriterion: ev.criterion,
+    minusTwoLogLik: ev.criterion,
     logLik: -ev.criterion / 2,
     converged: fit.run.outcome === 'converged',
     iterations: fit.run.iterations,
@@ -179,7 +179,7 @@ function likelihoodRatio(frame: ModelFrame, fit: OptimiseOutcome, k: number, hoo
   if (fit.atZero[k]) return { statistic: 0, p: 1, reducedLogLik: -full / 2 };
   const start = Float64Array.from(fit.evaluation.theta);
   start[k] = 0;
-  const reduced = optimiseReml(frame, start, hooks, { fixedZero: [k], emIterations: 0, stage: `lrt:${frame.layout.parameters[k].name}` });
+  const reduced = optimiseReml(frame, start, hooks, { fixedZero: [k], emIterations: 0, stage: `likelihood-ratio test of ${frame.layout.parameters[k].name}` });
   const statistic = Math.max(0, reduced.evaluation.criterion - full);
   return { statistic, p: statistic > 0 ? 0.5 * chisqUpper(statistic, 1) : 1, reducedLogLik: -reduced.evaluation.criterion / 2 };
 }

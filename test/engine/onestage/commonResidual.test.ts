@@ -36,17 +36,17 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
       const codes = sim.network.treatments.map((t) => t.code);
       const contrasts = contrastsFor(codes, sim.network);
       const r = runLme4(sim.csv, contrastCsv(codes, rows(contrasts, codes)), { kenwardRoger: setting.kr, randTests: true, trialRaw: true });
-      const opts = { random: ['trial', 'block', 'treatment:trial'] as const, residual: 'common' as const, confidence: 0.95, profile: false };
+      const opts = { random: ['trial', 'block', 'treatment-by-trial'] as const, residual: 'common' as const, confidence: 0.95, profile: false };
       const fit = fitOneStage(sim.network, contrasts, { ...opts, random: [...opts.random], df: 'satterthwaite' });
       expect(fit.converged).toBe(true);
       // lme4's REMLcrit is -2 logLik on the same scale (constant (n - p) log 2 pi included)
-      expect(relDiff(fit.remlCriterion, r.values.remlcrit)).toBeLessThan(1e-6);
+      expect(relDiff(fit.minusTwoLogLik, r.values.remlcrit)).toBeLessThan(1e-6);
       expect(relDiff(fit.logLik, r.values.loglik)).toBeLessThan(1e-6);
       // never worse than lme4 with its default stopping rule (1e-9 slack for rounding)
-      expect(fit.remlCriterion).toBeLessThanOrEqual(r.values.remlcrit_default + 1e-9);
+      expect(fit.minusTwoLogLik).toBeLessThanOrEqual(r.values.remlcrit_default + 1e-9);
       expect(relDiff(fit.variance.trial!, r.values.v_trial)).toBeLessThan(1e-4);
       expect(relDiff(fit.variance.block!, r.values.v_block)).toBeLessThan(1e-4);
-      expect(relDiff(fit.variance['treatment:trial']!, r.values.v_tt)).toBeLessThan(1e-4);
+      expect(relDiff(fit.variance['treatment-by-trial']!, r.values.v_tt)).toBeLessThan(1e-4);
       expect(relDiff(fit.variance.residual!, r.values.v_res)).toBeLessThan(1e-4);
       const fixef = rVector(r, 'fixef');
       const fixse = rVector(r, 'fixse');
@@ -62,7 +62,7 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
       });
       // likelihood-ratio statistics per term, as lmerTest::rand (refit without the term)
       const lrt = rVector(r, 'lrt');
-      ['trial', 'block', 'treatment:trial'].forEach((name, k) => {
+      ['trial', 'block', 'treatment-by-trial'].forEach((name, k) => {
         const comp = fit.varianceComponents.find((v) => v.name === name)!;
         expect(Math.abs(comp.lrt!.statistic - lrt[k])).toBeLessThan(1e-5 * Math.max(1, lrt[k]));
       });
