@@ -79,10 +79,13 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments, p) }));
   // a covariate's slope is the contrast that picks its coefficient
   const slopes: ContrastVector[] = stats.covariates.map((cv, a) => ({ name: cv.name, l: Float64Array.from({ length: p }, (_, j) => (j === stats.treatments.length + a ? 1 : 0)) }));
+  // each treatment mean is the contrast that picks its cell mean: its df and interval come the same way
+  const meanVectors: ContrastVector[] = stats.treatments.map((t, j) => ({ name: t, l: Float64Array.from({ length: p }, (_, i) => (i === j ? 1 : 0)) }));
   // one call: the Kenward–Roger pieces are worked out once for all of them
-  const reports = contrastInference(frame, fit, so, free, [...vectors, ...slopes], options, active);
+  const reports = contrastInference(frame, fit, so, free, [...vectors, ...slopes, ...meanVectors], options, active);
   const contrastReports = reports.slice(0, vectors.length);
-  const slopeReports = reports.slice(vectors.length);
+  const slopeReports = reports.slice(vectors.length, vectors.length + slopes.length);
+  const meanReports = reports.slice(vectors.length + slopes.length);
 
   const lrtOn = options.lrt ?? true;
   const profileOn = options.profile ?? stats.trials.length <= PROFILE_DEFAULT_MAX_TRIALS;
@@ -109,7 +112,7 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   });
 
   const ttParam = layout.termParameter[2];
-  const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]) }));
+  const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]), df: meanReports[j].df, lower: meanReports[j].lower, upper: meanReports[j].upper }));
   const run = { ...fit.run, elapsedMs: Date.now() - began };
   return {
     minusTwoLogLik: ev.criterion,

@@ -52,6 +52,10 @@ export interface MeanReport {
   treatment: string;
   estimate: number;
   se: number;
+  /** df of the mean by the fit's df method, and its interval (with Kenward–Roger, from the adjusted SE). */
+  df: number | null;
+  lower: number | null;
+  upper: number | null;
 }
 
 export interface ContrastReport {

@@ -35,7 +35,9 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
       const sim = simulateNetwork({ seed: setting.seed, trials: setting.trials, missing: setting.missing });
       const codes = sim.network.treatments.map((t) => t.code);
       const contrasts = contrastsFor(codes, sim.network);
-      const r = runLme4(sim.csv, contrastCsv(codes, rows(contrasts, codes)), { kenwardRoger: setting.kr, randTests: true, trialRaw: true });
+      // after the contrasts, the unit rows of the first two treatments: the means' own df
+      const unitRows = [0, 1].map((j) => Float64Array.from(codes, (_, i) => (i === j ? 1 : 0)));
+      const r = runLme4(sim.csv, contrastCsv(codes, [...rows(contrasts, codes), ...unitRows]), { kenwardRoger: setting.kr, randTests: true, trialRaw: true });
       const opts = { random: ['trial', 'block', 'treatment-by-trial'] as const, residual: 'common' as const, confidence: 0.95, profile: false };
       const fit = fitOneStage(sim.network, contrasts, { ...opts, random: [...opts.random], df: 'satterthwaite' });
       expect(fit.converged).toBe(true);
@@ -55,6 +57,8 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
         expect(relDiff(m.estimate, fixef[j])).toBeLessThan(1e-5);
         expect(relDiff(m.se, fixse[j])).toBeLessThan(1e-5);
       });
+      // the treatment means' Satterthwaite df (lmerTest contest on a unit row), 1e-3 relative as for contrasts
+      [0, 1].forEach((j) => expect(relDiff(fit.means[j].df!, r.values[`sdf${contrasts.length + j + 1}`])).toBeLessThan(1e-3));
       fit.contrasts.forEach((c, i) => {
         expect(relDiff(c.estimate!, r.values[`est${i + 1}`])).toBeLessThan(1e-5);
         expect(relDiff(c.se!, r.values[`se${i + 1}`])).toBeLessThan(1e-5);
@@ -84,6 +88,7 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
           expect(relDiff(c.df!, r.values[`krdf${i + 1}`])).toBeLessThan(1e-3);
           expect(relDiff(c.se!, r.values[`krse${i + 1}`])).toBeLessThan(1e-5);
         });
+        [0, 1].forEach((j) => expect(relDiff(kr.means[j].df!, r.values[`krdf${contrasts.length + j + 1}`])).toBeLessThan(1e-3));
       }
     });
   }
