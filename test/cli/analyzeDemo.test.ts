@@ -90,12 +90,16 @@ describe('analyze on the demo workspace', () => {
   it('prints the same as a readable table with the cautions when --json is not given', () => {
     const r = manyfield(['analyze', '--workspace', ws, '--spec', spec, '--no-save']);
     expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/Economic optimum/);
-    expect(r.stdout).toMatch(/profitable range/);
+    expect(r.stdout).toMatch(/Recommended rate: /);
+    expect(r.stdout).toMatch(/Rates whose mean net return is within 0\.02 t\/ha of the best: /);
     expect(r.stdout).toMatch(/label limits/);
     expect(r.stdout).toMatch(/treated_vs_control/);
     const optimum = report.rateResponse.pooled.optimum;
-    expect(r.stdout).toContain(Number(optimum.toPrecision(4)).toString());
+    expect(r.stdout).toContain(`Recommended rate: ${optimum.toFixed(1)} kg/ha`);
+    // the one-stage model in the trade's words, its terms named in words
+    expect(r.stdout).toMatch(/Restricted \(REML\) log-likelihood/);
+    expect(r.stdout).toMatch(/treatment × trial/);
+    expect(r.stdout).not.toMatch(/REML criterion|singular fit|residualByTrial|treatment:trial/);
   });
 
   it('fits a fixed rainfall slope in the one-stage model when the spec names it, in JSON and as text', () => {
