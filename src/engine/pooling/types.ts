@@ -53,8 +53,8 @@ export interface InfluenceRow {
   cooksDistance: number | null;
   /** tau²(-i) - tau². */
   tau2Change: number | null;
-  /** Weight share (the hat value of the intercept-only model). */
-  hat: number | null;
+  /** Leverage: the trial's weight share (the diagonal of the intercept-only model's hat matrix). */
+  leverage: number | null;
 }
 
 export interface CumulativeRow {
