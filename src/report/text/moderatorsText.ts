@@ -46,7 +46,7 @@ function summaryLines(m: MetaRegression): string[] {
   const t = m.moderatorTest;
   if (t)
     out.push(`  All moderators together: ${t.distribution === 'F' ? 'F' : 'chi-square'} = ${sig(t.statistic, 4)} on ${t.df}${t.dfDenominator === null ? '' : ` and ${sig(t.dfDenominator, 4)}`} df, ${pPhrase(t.p)}.`);
-  if (m.residualTau2 !== null) out.push(`  Share of the between-trial variance (tau²) they explain: ${percent(m.tau2Explained)}; tau² left: ${sig(m.residualTau2)}.`);
+  if (m.residualTau2 !== null) out.push(`  Share of the between-trial variance (tau²) they explain: ${m.tau2Explained === null ? 'not defined (tau² without the moderators is 0)' : percent(m.tau2Explained)}; tau² left: ${sig(m.residualTau2)}.`);
   const h = m.residualHeterogeneity;
   if (h) out.push(`  Heterogeneity left unexplained: Q ${sig(h.Q, 4)} on ${h.df} df, ${pPhrase(h.p)}.`);
   return out;
