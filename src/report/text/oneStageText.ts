@@ -29,7 +29,8 @@ export function oneStageLines(r: AnalysisReport): string[] {
   const slopes =
     o.covariates.length === 0
       ? ''
-      : textTable(
+      : '\n' +
+        textTable(
           ['covariate slope', `per unit of the covariate (${level} interval)`, 'SE', 'df', 'p', 'means at'],
           o.covariates.map((c) => [c.name, effectCell(c.estimate, c.lower, c.upper, r.unit, c.se), seText(c.se), dfText(c.df), pText(c.p), sig(c.centre, 4)]),
         );
