@@ -34,6 +34,7 @@ export function sig(x: Maybe, digits = 3): string {
 
 /** "1.37 (1.29 to 1.46) t/ha": the effect with its interval in one cell, then the unit. */
 export function effectCell(estimate: Maybe, lower: Maybe, upper: Maybe, unit: string | null, se?: Maybe): string {
+  if (!finite(estimate)) return '-';
   const d = decimalsFromSe(se ?? (finite(lower) && finite(upper) ? (upper - lower) / 4 : null));
   const interval = finite(lower) && finite(upper) ? ` (${fixed(lower, d)} to ${fixed(upper, d)})` : '';
   return `${fixed(estimate, d)}${interval}${unit ? ` ${unit}` : ''}`;
