@@ -20,7 +20,7 @@ const contrast: ResolvedContrast = {
   meaning: 'mean of the treated minus the control',
 };
 const result = fitOneStage(network, [contrast], {
-  random: ['trial', 'block', 'treatment:trial'],
+  random: ['trial', 'block', 'treatment-by-trial'],
   residual: residual === 'per-trial' ? 'per-trial' : 'common',
   df: df === 'kenward-roger' ? 'kenward-roger' : df === 'residual' ? 'residual' : 'satterthwaite',
   confidence: 0.95,

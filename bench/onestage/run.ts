@@ -105,7 +105,7 @@ function writeSpec(residual: 'common' | 'per-trial'): string {
       twoStage: null,
       // lme4 and glmmTMB fit the model only: no likelihood-ratio refits or likelihood profiles
       // on our side either (both are on by default for networks of up to 200 trials).
-      oneStage: { random: ['trial', 'block', 'treatment:trial'], residual, df: 'satterthwaite', lrt: false, profile: false },
+      oneStage: { random: ['trial', 'block', 'treatment-by-trial'], residual, df: 'satterthwaite', lrt: false, profile: false },
     }),
   );
   return file;
@@ -148,7 +148,7 @@ function warm(file: string, residual: 'common' | 'per-trial'): number {
   const once = (): number => {
     const t0 = performance.now();
     const network = networkFromCsv(readFileSync(file, 'utf8'));
-    const r = fitOneStage(network, [], { random: ['trial', 'block', 'treatment:trial'], residual, df: 'satterthwaite', confidence: 0.95, lrt: false, profile: false });
+    const r = fitOneStage(network, [], { random: ['trial', 'block', 'treatment-by-trial'], residual, df: 'satterthwaite', confidence: 0.95, lrt: false, profile: false });
     JSON.stringify(r);
     return performance.now() - t0;
   };
@@ -215,7 +215,7 @@ function report(label: string, a: Timing, b: Timing | null, refName: string): vo
 }
 
 console.log(`one-stage REML bench — ${new Date().toISOString()} — node ${process.version}`);
-console.log('model: y = treatment means + trial + block(trial) + treatment:trial + residual, REML');
+console.log('model: y = treatment means + trial + block within trial + treatment by trial + residual, REML');
 console.log(`manyfield side: ${childKind}; times are wall clock inside each process (read+fit+print, R: read.csv+fit), its CPU time, and the whole process; fastest of ${repeats} runs each side\n`);
 
 const perTrialMs: { trials: number; ms: number }[] = [];
@@ -275,7 +275,7 @@ if (perTrialSize > 0) {
   // Kenward–Roger df for one contrast on the largest network, after the REML fit
   const n = sizes[sizes.length - 1];
   const sim = simulateNetwork({ seed: 4000 + n, trials: n });
-  const stats = buildNetworkStatistics(sim.network, ['trial', 'block', 'treatment:trial']);
+  const stats = buildNetworkStatistics(sim.network, ['trial', 'block', 'treatment-by-trial']);
   const frame = modelFrame(stats, parameterLayout(stats, 'common'));
   const fit = optimiseReml(frame, startValues(frame));
   const p = stats.treatments.length;

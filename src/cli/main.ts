@@ -22,6 +22,12 @@ Commands:
                                                  run the trial stage, pooling, the one-stage model
                                                  and the rate response the spec asks for
 
+The spec (JSON) names the trait, contrasts, the one-stage model, pooling and the rate response;
+the README lists every key. One-stage random terms are named in words: trial, block,
+treatment-by-trial. Without --json, analyze prints a summary to read: the effect of each contrast
+with its interval and unit, treatment means, each trial's effects and CV, moderators, one
+recommended rate with the reason for it, warnings and cautions. --json prints every number.
+
 Exit codes: 0 done, 1 the operation failed (message on stderr), 2 the command line is wrong.`;
 
 interface Output {

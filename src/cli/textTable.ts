@@ -1,10 +1,5 @@
-// Fixed-width columns for terminal tables; numbers right-aligned, text left-aligned.
-export function textTable(header: readonly string[], rows: readonly (readonly string[])[]): string {
-  const widths = header.map((h, j) => Math.max(h.length, ...rows.map((r) => (r[j] ?? '').length)));
-  const numeric = header.map((_, j) => rows.length > 0 && rows.every((r) => /^[-+]?[\d.,eE%<>−]*$/.test(r[j] ?? '')));
-  const line = (cells: readonly string[]) => cells.map((c, j) => (numeric[j] ? c.padStart(widths[j]) : c.padEnd(widths[j]))).join('  ').trimEnd();
-  return [line(header), widths.map((w) => '-'.repeat(w)).join('  '), ...rows.map(line)].join('\n');
-}
+// Fixed-width terminal tables (shared with the text summary) and the number formats of the listings.
+export { textTable } from '../report/text/table.js';
 
 /** A number for a table: significant digits, no trailing noise; missing as a dash. */
 export function num(v: number | null | undefined, digits = 4): string {

@@ -1,6 +1,7 @@
 // The declarative analysis spec: one JSON document drives the CLI, the screens and reports,
 // and is stored with every result so any number can be reproduced.
 import { z } from './zod.js';
+import { randomTermSchema } from './randomTerms.js';
 
 const contrastName = z.string().min(1).max(120);
 
@@ -64,7 +65,7 @@ export const transformSchema = z.enum(['none', 'log', 'logit', 'arcsine-sqrt', '
 
 export const oneStageSchema = z
   .object({
-    random: z.array(z.enum(['trial', 'block', 'treatment:trial'])).default(['trial', 'block', 'treatment:trial']),
+    random: z.array(randomTermSchema).default(['trial', 'block', 'treatment-by-trial']),
     residual: z.enum(['common', 'per-trial']).default('common'),
     df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */

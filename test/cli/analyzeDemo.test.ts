@@ -11,7 +11,7 @@ const POOLED_KEYS = ['name', 'estimate', 'se', 'lower', 'upper', 'p', 'tau2', 't
 
 interface Flag { code: string; plotId?: string | number | null }
 interface Report {
-  oneStage: { remlCriterion: number; logLik: number; converged: boolean; iterations: number; variance: Record<string, unknown>; means: { treatment: string; estimate: number; se: number }[]; contrasts: { name: string; estimate: number; se: number; df: number; lower: number; upper: number; p: number }[] };
+  oneStage: { minusTwoLogLik: number; logLik: number; converged: boolean; iterations: number; variance: Record<string, unknown>; means: { treatment: string; estimate: number; se: number }[]; contrasts: { name: string; estimate: number; se: number; df: number; lower: number; upper: number; p: number }[] };
   twoStage: { trials: { trial: string; model: { n: number }; flags: Flag[]; contrasts: { name: string }[] }[]; pooled: (Record<string, unknown> & { metaRegression?: { coefficients: { term: string; estimate: number; se: number }[] } })[] };
   rateResponse: { pooled: { optimum: number; optimumLower: number; optimumUpper: number; profitableLower: number; profitableUpper: number; netReturnAtOptimum: number; yieldGainAtOptimum: number }; trials: { trial: string; model: string; optimum: number | null; converged: boolean }[]; cautions: string[] };
   warnings: string[];
@@ -38,8 +38,8 @@ describe('analyze on the demo workspace', () => {
     const o = report.oneStage;
     expect(o.converged).toBe(true);
     expect(Number.isFinite(o.logLik)).toBe(true);
-    expect(o.remlCriterion).toBeCloseTo(-2 * o.logLik, 6);
-    expect(Object.keys(o.variance)).toEqual(expect.arrayContaining(['trial', 'block', 'treatment:trial', 'residualByTrial']));
+    expect(o.minusTwoLogLik).toBeCloseTo(-2 * o.logLik, 6);
+    expect(Object.keys(o.variance)).toEqual(expect.arrayContaining(['trial', 'block', 'treatment-by-trial', 'residualByTrial']));
     expect(o.means).toHaveLength(7);
     expect(o.contrasts.map((c) => c.name)).toEqual(['treated_vs_control', 'early_vs_late', 'rate_linear']);
     expect(report.twoStage.trials).toHaveLength(42);
@@ -90,12 +90,16 @@ describe('analyze on the demo workspace', () => {
   it('prints the same as a readable table with the cautions when --json is not given', () => {
     const r = manyfield(['analyze', '--workspace', ws, '--spec', spec, '--no-save']);
     expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/Economic optimum/);
-    expect(r.stdout).toMatch(/profitable range/);
+    expect(r.stdout).toMatch(/Recommended rate: /);
+    expect(r.stdout).toMatch(/Rates whose mean net return is within 0\.02 t\/ha of the best: /);
     expect(r.stdout).toMatch(/label limits/);
     expect(r.stdout).toMatch(/treated_vs_control/);
     const optimum = report.rateResponse.pooled.optimum;
-    expect(r.stdout).toContain(Number(optimum.toPrecision(4)).toString());
+    expect(r.stdout).toContain(`Recommended rate: ${optimum.toFixed(1)} kg/ha`);
+    // the one-stage model in the trade's words, its terms named in words
+    expect(r.stdout).toMatch(/Restricted \(REML\) log-likelihood/);
+    expect(r.stdout).toMatch(/treatment × trial/);
+    expect(r.stdout).not.toMatch(/REML criterion|singular fit|residualByTrial|treatment:trial/);
   });
 
   it('fits a fixed rainfall slope in the one-stage model when the spec names it, in JSON and as text', () => {

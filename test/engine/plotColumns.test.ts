@@ -84,7 +84,7 @@ describe('plot columns', () => {
     const holed: NetworkInput = { ...network, trials: network.trials.map((t, i) => ({ ...t, plots: t.plots.map((p, k) => ((k + i) % 9 === 0 ? { ...p, value: null } : p)) })) };
     const columnar = toColumns(holed);
     for (const residual of ['common', 'per-trial'] as const) {
-      const options = { random: ['trial', 'block', 'treatment:trial'] as const, residual, df: 'satterthwaite' as const, confidence: 0.95, lrt: false, profile: false };
+      const options = { random: ['trial', 'block', 'treatment-by-trial'] as const, residual, df: 'satterthwaite' as const, confidence: 0.95, lrt: false, profile: false };
       const a = fitOneStage(holed, [], { ...options, random: [...options.random] });
       const b = fitOneStage(columnar, [], { ...options, random: [...options.random] });
       expect(b.droppedPlots).toBeGreaterThan(0);

@@ -15,6 +15,8 @@ export function poolSummaryRows(rows: readonly SummaryRow[], spec: AnalysisSpec)
   return {
     trait: spec.trait ?? name,
     unit: null,
+    settings: { transform: spec.transform, confidence: spec.confidence, threshold: spec.threshold },
+    contrastUnits: { [name]: null },
     trialsAnalysed: rows.length,
     oneStage: null,
     twoStage: {

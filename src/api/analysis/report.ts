@@ -33,10 +33,21 @@ export interface Provenance {
   readonly createdAt: string;
 }
 
+/** The spec's settings every reader of the numbers needs beside them. */
+export interface ReportSettings {
+  readonly transform: string;
+  readonly confidence: number;
+  /** Break-even effect for the probability above the threshold, in the effects' units. */
+  readonly threshold: number;
+}
+
 export interface AnalysisReport {
   readonly provenance: Provenance;
   readonly trait: string;
   readonly unit: string | null;
+  readonly settings: ReportSettings;
+  /** Unit of each contrast's effect (null when the trait has no unit recorded). */
+  readonly contrastUnits: Readonly<Record<string, string | null>>;
   readonly trialsAnalysed: number;
   readonly oneStage: OneStageResult | null;
   readonly twoStage: { readonly trials: readonly (TrialStageEntry | SummaryTrialEntry)[]; readonly pooled: readonly PooledEntry[] };

@@ -13,6 +13,7 @@ import { ManyfieldError } from '../result.js';
 import { compareStages } from './agreement.js';
 import { RECOMMENDATION_CAUTIONS } from './cautions.js';
 import { applyExclusions } from './exclusions.js';
+import { contrastUnits } from './contrastUnits.js';
 import { networkLogOffset, transformNetwork } from './transformNetwork.js';
 import type { AnalysisReport, TrialStageEntry, PooledEntry } from './report.js';
 
@@ -68,6 +69,8 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   return {
     trait: network.trait,
     unit: network.unit ?? null,
+    settings: { transform: spec.transform, confidence: spec.confidence, threshold: spec.threshold },
+    contrastUnits: contrastUnits(spec, network),
     trialsAnalysed: network.trials.length,
     oneStage,
     twoStage: { trials, pooled },

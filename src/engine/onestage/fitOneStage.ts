@@ -79,10 +79,13 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments, p) }));
   // a covariate's slope is the contrast that picks its coefficient
   const slopes: ContrastVector[] = stats.covariates.map((cv, a) => ({ name: cv.name, l: Float64Array.from({ length: p }, (_, j) => (j === stats.treatments.length + a ? 1 : 0)) }));
+  // each treatment mean is the contrast that picks its cell mean: its df and interval come the same way
+  const meanVectors: ContrastVector[] = stats.treatments.map((t, j) => ({ name: t, l: Float64Array.from({ length: p }, (_, i) => (i === j ? 1 : 0)) }));
   // one call: the Kenward–Roger pieces are worked out once for all of them
-  const reports = contrastInference(frame, fit, so, free, [...vectors, ...slopes], options, active);
+  const reports = contrastInference(frame, fit, so, free, [...vectors, ...slopes, ...meanVectors], options, active);
   const contrastReports = reports.slice(0, vectors.length);
-  const slopeReports = reports.slice(vectors.length);
+  const slopeReports = reports.slice(vectors.length, vectors.length + slopes.length);
+  const meanReports = reports.slice(vectors.length + slopes.length);
 
   const lrtOn = options.lrt ?? true;
   const profileOn = options.profile ?? stats.trials.length <= PROFILE_DEFAULT_MAX_TRIALS;
@@ -103,16 +106,16 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
 
   const variance: VarianceSummary = {};
   layout.parameters.forEach((par, k) => {
-    if (par.kind === 'term') variance[par.name as 'trial' | 'block' | 'treatment:trial'] = ev.theta[k];
+    if (par.kind === 'term') variance[par.name as 'trial' | 'block' | 'treatment-by-trial'] = ev.theta[k];
     else if (par.trial < 0) variance.residual = ev.theta[k];
     else (variance.residualByTrial ??= {})[stats.trials[par.trial].trial] = ev.theta[k];
   });
 
   const ttParam = layout.termParameter[2];
-  const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]) }));
+  const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]), df: meanReports[j].df, lower: meanReports[j].lower, upper: meanReports[j].upper }));
   const run = { ...fit.run, elapsedMs: Date.now() - began };
   return {
-    remlCriterion: ev.criterion,
+    minusTwoLogLik: ev.criterion,
     logLik: -ev.criterion / 2,
     converged: fit.run.outcome === 'converged',
     iterations: fit.run.iterations,
@@ -179,7 +182,7 @@ function likelihoodRatio(frame: ModelFrame, fit: OptimiseOutcome, k: number, hoo
   if (fit.atZero[k]) return { statistic: 0, p: 1, reducedLogLik: -full / 2 };
   const start = Float64Array.from(fit.evaluation.theta);
   start[k] = 0;
-  const reduced = optimiseReml(frame, start, hooks, { fixedZero: [k], emIterations: 0, stage: `lrt:${frame.layout.parameters[k].name}` });
+  const reduced = optimiseReml(frame, start, hooks, { fixedZero: [k], emIterations: 0, stage: `likelihood-ratio test of ${frame.layout.parameters[k].name}` });
   const statistic = Math.max(0, reduced.evaluation.criterion - full);
   return { statistic, p: statistic > 0 ? 0.5 * chisqUpper(statistic, 1) : 1, reducedLogLik: -reduced.evaluation.criterion / 2 };
 }

@@ -75,7 +75,7 @@ export function optimiseReml(frame: ModelFrame, start: Float64Array, hooks: OneS
     releaseEvaluation(frame, ev);
     ev = c.evaluation;
     path.push(ev.criterion);
-    hooks.onProgress?.({ stage: `${stage}:em`, iteration: it + 1, criterion: ev.criterion });
+    hooks.onProgress?.({ stage: `${stage}, EM warm start`, iteration: it + 1, criterion: ev.criterion });
   }
   let halvings = 0;
   let iterations = 0;

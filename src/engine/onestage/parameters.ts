@@ -29,7 +29,7 @@ export function parameterLayout(stats: NetworkStatistics, residual: 'common' | '
     residualParameter.fill(parameters.length - 1);
   } else {
     stats.trials.forEach((t, i) => {
-      parameters.push({ name: `residual:${t.trial}`, kind: 'residual', trial: i });
+      parameters.push({ name: `residual (${t.trial})`, kind: 'residual', trial: i });
       residualParameter[i] = parameters.length - 1;
     });
   }

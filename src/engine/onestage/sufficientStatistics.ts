@@ -7,7 +7,7 @@ import type { RandomTerm } from './types.js';
 import { RANDOM_TERMS } from './types.js';
 import { f64 } from './arena.js';
 
-/** Term index of a column: 0 trial, 1 block, 2 treatment:trial (see RANDOM_TERMS). */
+/** Term index of a column: 0 trial, 1 block, 2 treatment-by-trial (see RANDOM_TERMS). */
 export type TermIndex = 0 | 1 | 2;
 
 export interface TrialStatistics {

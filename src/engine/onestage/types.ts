@@ -1,8 +1,8 @@
 // Public shapes of the one-stage REML fit. Plain values only, so a result can be stored as JSON
 // and sent across a worker or IPC boundary unchanged.
 
-export type RandomTerm = 'trial' | 'block' | 'treatment:trial';
-export const RANDOM_TERMS: readonly RandomTerm[] = ['trial', 'block', 'treatment:trial'];
+export type RandomTerm = 'trial' | 'block' | 'treatment-by-trial';
+export const RANDOM_TERMS: readonly RandomTerm[] = ['trial', 'block', 'treatment-by-trial'];
 
 export interface OneStageOptions {
   readonly random: readonly RandomTerm[];
@@ -29,13 +29,13 @@ export interface OneStageHooks {
 export interface VarianceSummary {
   trial?: number;
   block?: number;
-  'treatment:trial'?: number;
+  'treatment-by-trial'?: number;
   residual?: number;
   residualByTrial?: Record<string, number>;
 }
 
 export interface VarianceComponentReport {
-  /** 'trial' | 'block' | 'treatment:trial' | 'residual' | 'residual:<trial>' */
+  /** 'trial' | 'block' | 'treatment-by-trial' | 'residual' | 'residual (<trial>)' (one residual per trial) */
   name: string;
   estimate: number;
   /** From the inverse average-information matrix; null for a component at zero. */
@@ -52,6 +52,10 @@ export interface MeanReport {
   treatment: string;
   estimate: number;
   se: number;
+  /** df of the mean by the fit's df method, and its interval (with Kenward–Roger, from the adjusted SE). */
+  df: number | null;
+  lower: number | null;
+  upper: number | null;
 }
 
 export interface ContrastReport {
@@ -99,7 +103,7 @@ export interface RunRecord {
 }
 
 export interface OneStageResult {
-  remlCriterion: number;
+  minusTwoLogLik: number;
   logLik: number;
   converged: boolean;
   iterations: number;

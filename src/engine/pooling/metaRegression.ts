@@ -26,7 +26,7 @@ export function metaRegression(items: readonly PoolingItem[], moderators: readon
     .map((c) => subgroupAnalysis(used, c.moderator, c.levels, settings, threshold));
   const empty: MetaRegression = {
     moderators: [...moderators], k, excluded: design.excluded, statistic: settings.interval === 'hksj' ? 't' : 'z', df: null,
-    coefficients: [], aliased: [], tau2: null, R2: null, QE: null, QEdf: null, QEp: null, omnibus: null, subgroups, notes,
+    coefficients: [], aliased: [], residualTau2: null, tau2Explained: null, residualHeterogeneity: null, moderatorTest: null, subgroups, notes,
   };
   if (k <= p) {
     notes.push(`Meta-regression needs more trials (${k}) than coefficients (${p}).`);
@@ -42,29 +42,26 @@ export function metaRegression(items: readonly PoolingItem[], moderators: readon
   });
   const tau2 = settings.tau2 === 'fixed' ? 0 : model.tau.tau2;
   const tau2Intercept = estimateTau2(y, v, interceptDesign(k), settings.tau2).tau2;
-  const R2 = tau2Intercept > 0 ? Math.max(0, (tau2Intercept - tau2) / tau2Intercept) : null;
-  if (R2 === null) notes.push('Share of heterogeneity explained is undefined: tau² of the intercept-only model is zero.');
+  const tau2Explained = tau2Intercept > 0 ? Math.max(0, (tau2Intercept - tau2) / tau2Intercept) : null;
+  if (tau2Explained === null) notes.push('Share of heterogeneity explained is undefined: tau² of the intercept-only model is zero.');
   const fe = weightedFit(y, v, design.x, 0);
-  const QEdf = k - fe.rank;
-  const QE = fe.weightedRss;
-  const omnibus = omnibusTest(model.tau.fit.beta, model.tau.fit.covariance, model.scaleUsed, p, model.df);
+  const residualDf = k - fe.rank;
+  const moderatorTest = jointModeratorTest(model.tau.fit.beta, model.tau.fit.covariance, model.scaleUsed, p, model.df);
   return {
     ...empty,
     df: model.df,
     statistic: model.df === null ? 'z' : 't',
     coefficients,
     aliased,
-    tau2,
-    R2,
-    QE,
-    QEdf,
-    QEp: QEdf > 0 ? chisqUpper(QE, QEdf) : null,
-    omnibus,
+    residualTau2: tau2,
+    tau2Explained,
+    residualHeterogeneity: { Q: fe.weightedRss, df: residualDf, p: residualDf > 0 ? chisqUpper(fe.weightedRss, residualDf) : null },
+    moderatorTest,
   };
 }
 
 /** Joint test of all non-intercept, non-aliased coefficients. */
-function omnibusTest(beta: Float64Array, covariance: Matrix, scale: number, p: number, df: number | null): MetaRegression['omnibus'] {
+function jointModeratorTest(beta: Float64Array, covariance: Matrix, scale: number, p: number, df: number | null): MetaRegression['moderatorTest'] {
   const idx: number[] = [];
   for (let j = 1; j < p; j++) if (!Number.isNaN(beta[j])) idx.push(j);
   const m = idx.length;
@@ -75,6 +72,6 @@ function omnibusTest(beta: Float64Array, covariance: Matrix, scale: number, p: n
   const solved = cholSolve(cholesky(sub), bsub);
   let stat = 0;
   for (let a = 0; a < m; a++) stat += bsub[a] * solved[a];
-  if (df === null) return { statistic: stat, df1: m, df2: null, p: chisqUpper(stat, m), kind: 'chisq' };
-  return { statistic: stat / m, df1: m, df2: df, p: fUpper(stat / m, m, df), kind: 'F' };
+  if (df === null) return { statistic: stat, distribution: 'chi-square', df: m, dfDenominator: null, p: chisqUpper(stat, m) };
+  return { statistic: stat / m, distribution: 'F', df: m, dfDenominator: df, p: fUpper(stat / m, m, df) };
 }

@@ -41,7 +41,7 @@ export function sensitivityAnalyses(items: readonly PoolingItem[], full: CorePoo
         studentisedDeletedResidual: (it.estimate - loo.estimate) / Math.sqrt(v + looTau2 + loo.seConventional * loo.seConventional),
         cooksDistance: ((full.estimate - loo.estimate) * (full.estimate - loo.estimate)) / varMu,
         tau2Change: full.tau2 === null || loo.tau2 === null ? null : loo.tau2 - full.tau2,
-        hat: full.weights[i] / sumW,
+        leverage: full.weights[i] / sumW,
       });
     });
     if (k === 2) notes.push('With two trials each leave-one-out pool is a single trial: tau² is not estimable there.');

@@ -45,9 +45,7 @@ export function subgroupAnalysis(items: readonly PoolingItem[], moderator: strin
   return {
     moderator,
     groups,
-    Qbetween,
-    QbetweenDf: G >= 2 ? G - 1 : null,
-    QbetweenP,
+    betweenGroups: Qbetween === null ? null : { Q: Qbetween, df: G - 1, p: QbetweenP },
     note:
       G >= 2
         ? 'Each level pooled separately with its own tau²; Q between groups uses the model-based SEs of the level estimates (chi-square on G - 1 df). Levels with one trial contribute that trial alone.'

@@ -22,9 +22,10 @@ export function summarisePooled(r: PooledResult, name = 'effect'): string {
   ];
   if (r.metaRegression) {
     const m = r.metaRegression;
-    lines.push(`  meta-regression on ${m.moderators.join(', ')} (${m.k} trials): residual tau² ${f(m.tau2)}, share explained ${pct(m.R2)}`);
+    lines.push(`  meta-regression on ${m.moderators.join(', ')} (${m.k} trials): residual tau² ${f(m.residualTau2)}, share of tau² explained ${pct(m.tau2Explained)}`);
     for (const c of m.coefficients) lines.push(`    ${c.term}: ${f(c.estimate)} (SE ${f(c.se)}), ${m.statistic} = ${f(c.statistic, 3)}, p = ${f(c.p, 3)}`);
-    if (m.omnibus) lines.push(`    all moderators: ${m.omnibus.kind} = ${f(m.omnibus.statistic)} on ${m.omnibus.df1}${m.omnibus.df2 === null ? '' : `, ${m.omnibus.df2}`} df, p = ${f(m.omnibus.p, 3)}`);
+    if (m.moderatorTest) lines.push(`    all moderators jointly: ${m.moderatorTest.distribution} = ${f(m.moderatorTest.statistic)} on ${m.moderatorTest.df}${m.moderatorTest.dfDenominator === null ? '' : ` and ${m.moderatorTest.dfDenominator}`} df, p = ${f(m.moderatorTest.p, 3)}`);
+    if (m.residualHeterogeneity) lines.push(`    heterogeneity left unexplained: Q ${f(m.residualHeterogeneity.Q)} on ${m.residualHeterogeneity.df} df, p = ${f(m.residualHeterogeneity.p, 3)}`);
   }
   for (const n of r.notes) lines.push(`  note: ${n}`);
   return lines.join('\n');

@@ -53,8 +53,8 @@ export interface InfluenceRow {
   cooksDistance: number | null;
   /** tau²(-i) - tau². */
   tau2Change: number | null;
-  /** Weight share (the hat value of the intercept-only model). */
-  hat: number | null;
+  /** Leverage: the trial's weight share (the diagonal of the intercept-only model's hat matrix). */
+  leverage: number | null;
 }
 
 export interface CumulativeRow {
@@ -100,11 +100,27 @@ export interface SubgroupRow {
 export interface SubgroupAnalysis {
   moderator: string;
   groups: SubgroupRow[];
-  /** Between-group Q on the group estimates with inverse-variance (Wald) weights. */
-  Qbetween: number | null;
-  QbetweenDf: number | null;
-  QbetweenP: number | null;
+  /** Between-group Q on the group estimates with inverse-variance (Wald) weights; null with fewer than two groups. */
+  betweenGroups: HeterogeneityTest | null;
   note: string;
+}
+
+/** A Q statistic with its chi-square df and upper-tail p (p null when df = 0). */
+export interface HeterogeneityTest {
+  Q: number;
+  df: number;
+  p: number | null;
+}
+
+/** Joint test that every moderator coefficient is zero. */
+export interface ModeratorTest {
+  statistic: number;
+  /** F with Knapp–Hartung intervals, chi-square with Wald intervals. */
+  distribution: 'F' | 'chi-square';
+  df: number;
+  /** Denominator df of F; null for chi-square. */
+  dfDenominator: number | null;
+  p: number;
 }
 
 export interface MetaRegression {
@@ -116,15 +132,14 @@ export interface MetaRegression {
   df: number | null;
   coefficients: RegressionCoefficient[];
   aliased: string[];
-  tau2: number | null;
-  /** Share of tau² explained: max(0, (tau²_RE - tau²_ME) / tau²_RE); null if tau²_RE = 0. */
-  R2: number | null;
-  /** Residual heterogeneity test with fixed-effect weights. */
-  QE: number | null;
-  QEdf: number | null;
-  QEp: number | null;
-  /** Omnibus test of all moderator coefficients: F (KH) or chi-square (Wald). */
-  omnibus: { statistic: number; df1: number; df2: number | null; p: number; kind: 'F' | 'chisq' } | null;
+  /** tau² left over after the moderators. */
+  residualTau2: number | null;
+  /** Share of tau² explained by the moderators: max(0, (tau² without - tau² with) / tau² without); null if tau² without is 0. */
+  tau2Explained: number | null;
+  /** Heterogeneity the moderators leave unexplained: Q of the residuals with inverse-variance (fixed-effect) weights. */
+  residualHeterogeneity: HeterogeneityTest | null;
+  /** Joint test of all moderator coefficients: F (Knapp–Hartung) or chi-square (Wald). */
+  moderatorTest: ModeratorTest | null;
   subgroups: SubgroupAnalysis[];
   notes: string[];
 }

@@ -16,6 +16,7 @@ import { analyseTrialRate, type PooledTrial } from './trialRate.js';
 import { analyzeMixedQuadratic } from './mixed/analyzeMixedQuadratic.js';
 import type { MixedRateResult } from './mixed/types.js';
 import { unitNote } from './unitNote.js';
+import { recommendRate } from './recommendation.js';
 import {
   CURVE_FORMS,
   RATE_CAUTIONS,
@@ -111,6 +112,7 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
     cautions: [...RATE_CAUTIONS],
     warnings,
     ...(mixedModel !== undefined ? { mixedModel } : {}),
+    recommendation: recommendRate(pooledResult, mixedModel, options.profitableWithin),
   };
 }
 

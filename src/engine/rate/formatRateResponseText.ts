@@ -27,7 +27,8 @@ export function formatRateResponseText(result: RateResponseResult): string {
   out.push('');
   out.push(`Economic optimum (${p.trialsUsed} trials pooled): ${f(p.optimum)} ${ru}` + (p.optimumLower !== null ? `   interval ${f(p.optimumLower)} to ${f(p.optimumUpper)}` : ''));
   out.push(`  interval method: ${p.method}`);
-  out.push(`  profitable range: ${f(p.profitableLower)} to ${f(p.profitableUpper)} ${ru}`);
+  out.push(`  rates whose mean net return is within ${g(result.recommendation.nearBest?.within ?? null)} ${yu} of the best: ${f(p.profitableLower)} to ${f(p.profitableUpper)} ${ru}`);
+  if (result.recommendation.recommended.source === 'pooled-curve' && result.recommendation.recommended.upperAtTestedLimit) out.push(`  the interval's upper end is capped at the highest tested rate (${f(p.range[1])} ${ru}); the true limit may be higher`);
   out.push(`  at the optimum: yield gain ${f(p.yieldGainAtOptimum, 3)} ${yu}, net return ${f(p.netReturnAtOptimum, 3)} ${yu}`);
   if (p.money) out.push(`  in money: net return ${f(p.money.netReturnAtOptimum, 2)} ${p.money.currency ?? ''}, input cost ${f(p.money.inputCostAtOptimum, 2)} ${p.money.currency ?? ''}`);
   if (p.flags.length > 0) out.push(`  note: ${p.flags.join(', ')}`);
@@ -66,7 +67,7 @@ export function formatRateResponseText(result: RateResponseResult): string {
   out.push('Price-ratio sensitivity:');
   out.push(
     ...table(
-      ['Ratio x', 'Price ratio', 'Optimum', 'Profitable from', 'to', 'Net return', 'No input pays'],
+      ['Ratio x', 'Price ratio', 'Optimum', 'Near best from', 'to', 'Net return', 'No input pays'],
       result.sensitivity.map((r) => [String(r.multiplier), g(r.priceRatio), f(r.optimum), f(r.profitableLower), f(r.profitableUpper), f(r.netReturnAtOptimum, 3), r.shareNoInputPays === null ? '–' : `${Math.round(r.shareNoInputPays * 100)}%`]),
     ),
   );

@@ -1,6 +1,7 @@
 // Shapes of the rate-response analysis: options in, a JSON-safe result out.
 // Yields and net returns are in the trait's unit; rates in the rate factor's unit.
 import type { MixedRateResult } from './mixed/types.js';
+import type { RateRecommendation } from './recommendation.js';
 
 export type RateModel = 'linear' | 'quadratic' | 'linear-plateau' | 'quadratic-plateau' | 'exponential';
 export type RateModelChoice = RateModel | 'best';
@@ -146,6 +147,8 @@ export interface RateResponseResult {
    * the model is 'quadratic' or 'best'; null when that fit failed (see warnings).
    */
   readonly mixedModel?: MixedRateResult | null;
+  /** The one recommended optimum (pooled curve or mixed-model curve), the reason, and the other as a check. */
+  readonly recommendation: RateRecommendation;
 }
 
 export const RATE_CAUTIONS: readonly string[] = [

@@ -19,7 +19,7 @@ describe('one-stage REML: a variance component at zero', () => {
       const sim = simulateNetwork({ seed: setting.seed, trials: 10, missing: 0.05, ...setting.sim });
       const codes = sim.network.treatments.map((t) => t.code);
       const c: ResolvedContrast = { name: 'T3_vs_CTL', kind: 'coefficients', coefficients: Object.fromEntries(codes.map((k) => [k, k === 'T3' ? 1 : k === 'CTL' ? -1 : 0])), divisor: 1, meaning: '' };
-      const fit = fitOneStage(sim.network, [c], { random: ['trial', 'block', 'treatment:trial'], residual: 'common', df: 'satterthwaite', confidence: 0.95, profile: false });
+      const fit = fitOneStage(sim.network, [c], { random: ['trial', 'block', 'treatment-by-trial'], residual: 'common', df: 'satterthwaite', confidence: 0.95, profile: false });
       const r = runLme4(sim.csv, contrastCsv(codes, [Float64Array.from(codes, (k) => c.coefficients[k])]), { kenwardRoger: false, randTests: false, trialRaw: false });
       expect(fit.converged).toBe(true);
       expect(fit.warnings).toEqual([]);
@@ -32,7 +32,7 @@ describe('one-stage REML: a variance component at zero', () => {
       expect(Math.abs(r.values.v_block)).toBeLessThan(1e-6);
       expect(relDiff(fit.logLik, r.values.loglik)).toBeLessThan(1e-6);
       expect(relDiff(fit.variance.trial!, r.values.v_trial)).toBeLessThan(1e-4);
-      expect(relDiff(fit.variance['treatment:trial']!, r.values.v_tt)).toBeLessThan(1e-4);
+      expect(relDiff(fit.variance['treatment-by-trial']!, r.values.v_tt)).toBeLessThan(1e-4);
       expect(relDiff(fit.variance.residual!, r.values.v_res)).toBeLessThan(1e-4);
       expect(relDiff(fit.contrasts[0].estimate!, r.values.est1)).toBeLessThan(1e-5);
       expect(relDiff(fit.contrasts[0].se!, r.values.se1)).toBeLessThan(1e-5);

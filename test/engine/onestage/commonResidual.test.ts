@@ -35,18 +35,20 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
       const sim = simulateNetwork({ seed: setting.seed, trials: setting.trials, missing: setting.missing });
       const codes = sim.network.treatments.map((t) => t.code);
       const contrasts = contrastsFor(codes, sim.network);
-      const r = runLme4(sim.csv, contrastCsv(codes, rows(contrasts, codes)), { kenwardRoger: setting.kr, randTests: true, trialRaw: true });
-      const opts = { random: ['trial', 'block', 'treatment:trial'] as const, residual: 'common' as const, confidence: 0.95, profile: false };
+      // after the contrasts, the unit rows of the first two treatments: the means' own df
+      const unitRows = [0, 1].map((j) => Float64Array.from(codes, (_, i) => (i === j ? 1 : 0)));
+      const r = runLme4(sim.csv, contrastCsv(codes, [...rows(contrasts, codes), ...unitRows]), { kenwardRoger: setting.kr, randTests: true, trialRaw: true });
+      const opts = { random: ['trial', 'block', 'treatment-by-trial'] as const, residual: 'common' as const, confidence: 0.95, profile: false };
       const fit = fitOneStage(sim.network, contrasts, { ...opts, random: [...opts.random], df: 'satterthwaite' });
       expect(fit.converged).toBe(true);
       // lme4's REMLcrit is -2 logLik on the same scale (constant (n - p) log 2 pi included)
-      expect(relDiff(fit.remlCriterion, r.values.remlcrit)).toBeLessThan(1e-6);
+      expect(relDiff(fit.minusTwoLogLik, r.values.remlcrit)).toBeLessThan(1e-6);
       expect(relDiff(fit.logLik, r.values.loglik)).toBeLessThan(1e-6);
       // never worse than lme4 with its default stopping rule (1e-9 slack for rounding)
-      expect(fit.remlCriterion).toBeLessThanOrEqual(r.values.remlcrit_default + 1e-9);
+      expect(fit.minusTwoLogLik).toBeLessThanOrEqual(r.values.remlcrit_default + 1e-9);
       expect(relDiff(fit.variance.trial!, r.values.v_trial)).toBeLessThan(1e-4);
       expect(relDiff(fit.variance.block!, r.values.v_block)).toBeLessThan(1e-4);
-      expect(relDiff(fit.variance['treatment:trial']!, r.values.v_tt)).toBeLessThan(1e-4);
+      expect(relDiff(fit.variance['treatment-by-trial']!, r.values.v_tt)).toBeLessThan(1e-4);
       expect(relDiff(fit.variance.residual!, r.values.v_res)).toBeLessThan(1e-4);
       const fixef = rVector(r, 'fixef');
       const fixse = rVector(r, 'fixse');
@@ -55,6 +57,8 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
         expect(relDiff(m.estimate, fixef[j])).toBeLessThan(1e-5);
         expect(relDiff(m.se, fixse[j])).toBeLessThan(1e-5);
       });
+      // the treatment means' Satterthwaite df (lmerTest contest on a unit row), 1e-3 relative as for contrasts
+      [0, 1].forEach((j) => expect(relDiff(fit.means[j].df!, r.values[`sdf${contrasts.length + j + 1}`])).toBeLessThan(1e-3));
       fit.contrasts.forEach((c, i) => {
         expect(relDiff(c.estimate!, r.values[`est${i + 1}`])).toBeLessThan(1e-5);
         expect(relDiff(c.se!, r.values[`se${i + 1}`])).toBeLessThan(1e-5);
@@ -62,7 +66,7 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
       });
       // likelihood-ratio statistics per term, as lmerTest::rand (refit without the term)
       const lrt = rVector(r, 'lrt');
-      ['trial', 'block', 'treatment:trial'].forEach((name, k) => {
+      ['trial', 'block', 'treatment-by-trial'].forEach((name, k) => {
         const comp = fit.varianceComponents.find((v) => v.name === name)!;
         expect(Math.abs(comp.lrt!.statistic - lrt[k])).toBeLessThan(1e-5 * Math.max(1, lrt[k]));
       });
@@ -84,6 +88,7 @@ describe('one-stage REML, common residual, vs lme4 / lmerTest / pbkrtest', () =>
           expect(relDiff(c.df!, r.values[`krdf${i + 1}`])).toBeLessThan(1e-3);
           expect(relDiff(c.se!, r.values[`krse${i + 1}`])).toBeLessThan(1e-5);
         });
+        [0, 1].forEach((j) => expect(relDiff(kr.means[j].df!, r.values[`krdf${contrasts.length + j + 1}`])).toBeLessThan(1e-3));
       }
     });
   }

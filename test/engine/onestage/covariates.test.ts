@@ -38,7 +38,7 @@ function withRainfall(seed: number, trials: number, slope: number, residualSprea
   return { network, csv: lines.join('\n') + '\n', centre };
 }
 
-const random = ['trial', 'block', 'treatment:trial'] as const;
+const random = ['trial', 'block', 'treatment-by-trial'] as const;
 
 describe('one-stage REML with a fixed trial covariate', () => {
   it('common residual: matches lme4 / lmerTest / pbkrtest, and leaves out the trial without a value', () => {
@@ -74,7 +74,7 @@ for (row in list(list('c', c(${l.join(', ')}, 0)), list('s', c(${codes.map(() =>
     expect(fit.warnings.some((w) => w.includes('left out') && w.includes(network.trials[2].trial))).toBe(true);
     expect(relDiff(fit.logLik, r.values.loglik)).toBeLessThan(1e-6);
     const v = rVector(r, 'v');
-    [fit.variance.trial!, fit.variance.block!, fit.variance['treatment:trial']!, fit.variance.residual!].forEach((x, k) => expect(relDiff(x, v[k])).toBeLessThan(1e-4));
+    [fit.variance.trial!, fit.variance.block!, fit.variance['treatment-by-trial']!, fit.variance.residual!].forEach((x, k) => expect(relDiff(x, v[k])).toBeLessThan(1e-4));
     const fixef = rVector(r, 'fixef');
     const fixse = rVector(r, 'fixse');
     fit.means.forEach((m, j) => {

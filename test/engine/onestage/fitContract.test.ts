@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { fitOneStage, OneStageCancelledError, OneStageDataError } from '../../../src/engine/onestage/fitOneStage.js';
 import { simulateNetwork } from './support/simulateNetwork.js';
 
-const options = { random: ['trial', 'block', 'treatment:trial'] as ('trial' | 'block' | 'treatment:trial')[], residual: 'common' as const, df: 'satterthwaite' as const, confidence: 0.95, profile: false };
+const options = { random: ['trial', 'block', 'treatment-by-trial'] as ('trial' | 'block' | 'treatment-by-trial')[], residual: 'common' as const, df: 'satterthwaite' as const, confidence: 0.95, profile: false };
 
 describe('fitOneStage contract', () => {
   const sim = simulateNetwork({ seed: 9, trials: 12, missing: 0.05 });
@@ -15,11 +15,11 @@ describe('fitOneStage contract', () => {
     const fit = fitOneStage(sim.network, [], options, { onProgress: (e) => events.push(e) });
     expect(JSON.parse(JSON.stringify(fit))).toEqual(fit);
     expect(fit.run.outcome).toBe('converged');
-    expect(fit.run.criterionPath.at(-1)).toBeCloseTo(fit.remlCriterion, 12);
+    expect(fit.run.criterionPath.at(-1)).toBeCloseTo(fit.minusTwoLogLik, 12);
     for (let i = 1; i < fit.run.criterionPath.length; i++) expect(fit.run.criterionPath[i]).toBeLessThanOrEqual(fit.run.criterionPath[i - 1] + 1e-9);
-    expect(Object.keys(fit.run.start)).toEqual(['trial', 'block', 'treatment:trial', 'residual']);
+    expect(Object.keys(fit.run.start)).toEqual(['trial', 'block', 'treatment-by-trial', 'residual']);
     expect(events.some((e) => e.stage === 'one-stage')).toBe(true);
-    expect(fit.logLik).toBeCloseTo(-fit.remlCriterion / 2, 12);
+    expect(fit.logLik).toBeCloseTo(-fit.minusTwoLogLik / 2, 12);
     expect(fit.droppedPlots).toBe(sim.network.trials.reduce((s, t) => s + t.plots.filter((p) => p.value === null).length, 0));
     expect(fit.nObservations + fit.droppedPlots).toBe(12 * 28);
   });
@@ -37,7 +37,7 @@ describe('fitOneStage contract', () => {
     const missing = { ...sim.network, trials: [{ ...first, plots: first.plots.map((p, i) => (i === k ? { ...p, value: null } : p)) }, ...sim.network.trials.slice(1)] };
     const a = fitOneStage(excluded, [], options);
     const b = fitOneStage(missing, [], options);
-    expect(a.remlCriterion).toBe(b.remlCriterion);
+    expect(a.minusTwoLogLik).toBe(b.minusTwoLogLik);
     expect(a.droppedPlots).toBe(b.droppedPlots);
   });
 

@@ -17,7 +17,7 @@ import { kenwardRogerContrast } from '../../../src/engine/onestage/contrastInfer
 describe('Kenward–Roger weights with one residual per trial', () => {
   it('bordered W equals the dense inverse; U, df and adjusted variance agree', () => {
     const net = simulateNetwork({ seed: 61, trials: 30, missing: 0.03, residualSpread: [0.5, 2] }).network;
-    const stats = buildNetworkStatistics(net, ['trial', 'block', 'treatment:trial']);
+    const stats = buildNetworkStatistics(net, ['trial', 'block', 'treatment-by-trial']);
     const frame = modelFrame(stats, parameterLayout(stats, 'per-trial'));
     const fit = optimiseReml(frame, startValues(frame));
     const active = activeParameterTable(frame);

@@ -26,7 +26,7 @@ emit('nlme_loglik', as.numeric(logLik(n)))
 `;
 
 // GLS at given variances, written out plot by plot in base R: V_i = s_i I + trial J + block
-// Z_b Z_b' + treatment:trial Z_t Z_t' for each trial, then (X'V^-1 X)^-1 and the means.
+// Z_b Z_b' + treatment-by-trial Z_t Z_t' for each trial, then (X'V^-1 X)^-1 and the means.
 const glsScript = `
 d <- read.csv('data.csv', stringsAsFactors = TRUE)
 p <- read.csv('variances.csv', stringsAsFactors = FALSE)
@@ -51,14 +51,14 @@ describe('one-stage REML, residual variance per trial, vs glmmTMB and nlme', () 
   for (const [label, missing] of [['5% of plots missing', 0.05], ['no plot missing', 0]] as const) {
     it(`matches on 30 trials with residual sd varying fourfold, ${label} (seed 5)`, () => {
       const sim = simulateNetwork({ seed: 5, trials: 30, missing, residualSpread: [0.5, 2] });
-      const fit = fitOneStage(sim.network, [], { random: ['trial', 'block', 'treatment:trial'], residual: 'per-trial', df: 'satterthwaite', confidence: 0.95, profile: false, lrt: false });
+      const fit = fitOneStage(sim.network, [], { random: ['trial', 'block', 'treatment-by-trial'], residual: 'per-trial', df: 'satterthwaite', confidence: 0.95, profile: false, lrt: false });
       const r = runR(script, { 'data.csv': sim.csv });
       expect(fit.converged).toBe(true);
       expect(Math.abs(fit.logLik - r.values.tmb_loglik)).toBeLessThan(1e-4);
       expect(Math.abs(fit.logLik - r.values.nlme_loglik)).toBeLessThan(1e-4);
       expect(relDiff(fit.variance.trial!, r.values.tmb_trial)).toBeLessThan(1e-3);
       expect(relDiff(fit.variance.block!, r.values.tmb_block)).toBeLessThan(1e-3);
-      expect(relDiff(fit.variance['treatment:trial']!, r.values.tmb_tt)).toBeLessThan(1e-3);
+      expect(relDiff(fit.variance['treatment-by-trial']!, r.values.tmb_tt)).toBeLessThan(1e-3);
       const res = rVector(r, 'tmb_res');
       const ours = Object.values(fit.variance.residualByTrial!);
       expect(ours.length).toBe(30);
@@ -68,7 +68,7 @@ describe('one-stage REML, residual variance per trial, vs glmmTMB and nlme', () 
       // means and their SEs at our variance estimates, by GLS plot by plot in R (1e-8 relative:
       // the same numbers by another route, free of glmmTMB's optimiser tolerance)
       const v = fit.variance;
-      const rows = Object.entries(v.residualByTrial!).map(([env, s2]) => `${env},${s2},${v.trial},${v.block},${v['treatment:trial']}`);
+      const rows = Object.entries(v.residualByTrial!).map(([env, s2]) => `${env},${s2},${v.trial},${v.block},${v['treatment-by-trial']}`);
       const g = runR(glsScript, { 'data.csv': sim.csv, 'variances.csv': ['env,residual,trial,block,tt', ...rows].join('\n') });
       const glsMean = rVector(g, 'gls_mean');
       const glsSe = rVector(g, 'gls_se');

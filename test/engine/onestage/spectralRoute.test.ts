@@ -93,25 +93,25 @@ function compare(net: NetworkInput, random: readonly RandomTerm[], theta?: (star
 describe('spectral route for trials sharing a layout, each with its own residual', () => {
   const base: SimulationSettings = { seed: 11, trials: 24, residualSpread: [0.4, 2.5] };
   it('balanced trials: one group; criterion, fixed effects, score and AI match the pattern route', () => {
-    expect(compare(simulateNetwork(base).network, ['trial', 'block', 'treatment:trial']).groups).toBe(1);
+    expect(compare(simulateNetwork(base).network, ['trial', 'block', 'treatment-by-trial']).groups).toBe(1);
   });
   it('two shared unbalanced layouts', () => {
-    expect(compare(withSharedHoles(simulateNetwork({ ...base, seed: 12 }).network), ['trial', 'block', 'treatment:trial']).groups).toBe(2);
+    expect(compare(withSharedHoles(simulateNetwork({ ...base, seed: 12 }).network), ['trial', 'block', 'treatment-by-trial']).groups).toBe(2);
   });
   it('away from the start values, with one term at zero and another tiny', () => {
     const net = simulateNetwork({ ...base, seed: 13 }).network;
-    compare(net, ['trial', 'block', 'treatment:trial'], (s) => Float64Array.from(s, (v, k) => (k === 1 ? 0 : k === 2 ? 1e-9 : v * (1 + 0.3 * Math.sin(k)))));
+    compare(net, ['trial', 'block', 'treatment-by-trial'], (s) => Float64Array.from(s, (v, k) => (k === 1 ? 0 : k === 2 ? 1e-9 : v * (1 + 0.3 * Math.sin(k)))));
   });
   it('a fixed trial covariate with few distinct values: trials sharing a value share a layout', () => {
     const sim = simulateNetwork({ ...base, seed: 15 }).network;
     const net = { ...sim, trials: sim.trials.map((t, i) => ({ ...t, covariates: { rain: [310, 450, 520][i % 3] } })) };
-    expect(compare(net, ['trial', 'block', 'treatment:trial'], undefined, ['rain']).groups).toBe(3);
+    expect(compare(net, ['trial', 'block', 'treatment-by-trial'], undefined, ['rain']).groups).toBe(3);
   });
   it('other choices of random terms', () => {
     const net = withSharedHoles(simulateNetwork({ ...base, seed: 14, blocks: 3, treatments: 5 }).network);
     compare(net, ['block']);
-    compare(net, ['treatment:trial']);
-    compare(net, ['trial', 'treatment:trial']);
+    compare(net, ['treatment-by-trial']);
+    compare(net, ['trial', 'treatment-by-trial']);
   });
 });
 
@@ -148,7 +148,7 @@ describe('second-order terms through the spectral route', () => {
     // the third network has no block variance: its layouts lose eigen-directions
     for (const [seed, holes, sdBlock] of [[21, false, 1], [22, true, 1], [23, true, 0]] as const) {
       const sim = simulateNetwork({ seed, trials: 20, residualSpread: [0.4, 2.5], sdBlock }).network;
-      const stats = buildNetworkStatistics(holes ? withSharedHoles(sim) : sim, ['trial', 'block', 'treatment:trial']);
+      const stats = buildNetworkStatistics(holes ? withSharedHoles(sim) : sim, ['trial', 'block', 'treatment-by-trial']);
       const frame = modelFrame(stats, parameterLayout(stats, 'per-trial'));
       const start = startValues(frame);
       const th = sdBlock === 0 ? Float64Array.from(start, (v, k) => (k === 1 ? 0 : v)) : start;
@@ -171,7 +171,7 @@ describe('per-trial contrasts through the spectral route', () => {
     const sim = withSharedHoles(simulateNetwork({ seed: 31, trials: 16, residualSpread: [0.4, 2.5] }).network);
     // two trials laid out alike without T2 at all: their contrasts involving T2 are not estimable
     const net = { ...sim, trials: sim.trials.map((t, i) => (i === 3 || i === 5 ? { ...t, plots: t.plots.filter((pl) => pl.treatment !== 'T2') } : t)) };
-    const stats = buildNetworkStatistics(net, ['trial', 'block', 'treatment:trial']);
+    const stats = buildNetworkStatistics(net, ['trial', 'block', 'treatment-by-trial']);
     const frame = modelFrame(stats, parameterLayout(stats, 'per-trial'));
     expect(frame.spectral.some((g) => g.trials.includes(3) && g.trials.includes(5))).toBe(true);
     const th = startValues(frame);
@@ -200,7 +200,7 @@ describe('per-trial contrasts through the spectral route', () => {
 describe('AI-REML with one residual per trial on a larger network', () => {
   it('converges to a stationary point without step-halving (residual diagonal at its observed curvature)', () => {
     const net = simulateNetwork({ seed: 1077, trials: 1000, residualSpread: [0.5, 2] }).network;
-    const stats = buildNetworkStatistics(net, ['trial', 'block', 'treatment:trial']);
+    const stats = buildNetworkStatistics(net, ['trial', 'block', 'treatment-by-trial']);
     const frame = modelFrame(stats, parameterLayout(stats, 'per-trial'));
     const fit = optimiseReml(frame, startValues(frame));
     expect(fit.run.outcome).toBe('converged');

@@ -13,7 +13,7 @@ describe('network statistics', () => {
     const complete = simulateNetwork({ seed: 31, trials: 6 }).network;
     const holed = simulateNetwork({ seed: 32, trials: 6, missing: 0.15 }).network;
     const network: NetworkInput = { ...complete, trials: [0, 1, 2, 3, 4, 5].flatMap((i) => (i % 2 ? [complete.trials[i], holed.trials[i]] : [complete.trials[i]])) };
-    const random = ['trial', 'block', 'treatment:trial'] as const;
+    const random = ['trial', 'block', 'treatment-by-trial'] as const;
     const stats = buildNetworkStatistics(network, [...random]);
     let shared = 0;
     stats.trials.forEach((t, i) => {

@@ -79,9 +79,9 @@ describe('BCG vaccine trials, log relative risks (Viechtbauer 2010, J Stat Softw
     const m = r.metaRegression!;
     expect(m.k).toBe(13);
     expect(m.statistic).toBe('z');
-    expectPrinted(m.tau2, 0.1108, 4);
-    expectPrinted(m.QE, 28.3251, 4);
-    expect(m.QEdf).toBe(10);
+    expectPrinted(m.residualTau2, 0.1108, 4);
+    expectPrinted(m.residualHeterogeneity!.Q, 28.3251, 4);
+    expect(m.residualHeterogeneity!.df).toBe(10);
     const ablat = m.coefficients.find((c) => c.term === 'ablat')!;
     const year = m.coefficients.find((c) => c.term === 'year')!;
     expectPrinted(ablat.estimate, -0.028, 4);
@@ -90,11 +90,11 @@ describe('BCG vaccine trials, log relative risks (Viechtbauer 2010, J Stat Softw
     expectPrinted(year.se, 0.0147, 4);
     // QM(df = 2) = 12.2043 as printed; relative tolerance 1e-4 because the printed fit
     // stops its REML iterations at a tau² change below 1e-5, which moves QM in the 5th digit.
-    expect(m.omnibus!.kind).toBe('chisq');
-    expect(m.omnibus!.df1).toBe(2);
-    expect(Math.abs(m.omnibus!.statistic - 12.2043) / 12.2043).toBeLessThan(1e-4);
+    expect(m.moderatorTest!.distribution).toBe('chi-square');
+    expect(m.moderatorTest!.df).toBe(2);
+    expect(Math.abs(m.moderatorTest!.statistic - 12.2043) / 12.2043).toBeLessThan(1e-4);
     // Share of tau² explained, by its definition from the two printed tau² values.
-    expect(Math.abs((m.R2 as number) - (0.3132 - 0.1108) / 0.3132)).toBeLessThan(5e-4);
+    expect(Math.abs((m.tau2Explained as number) - (0.3132 - 0.1108) / 0.3132)).toBeLessThan(5e-4);
   });
 });
 
@@ -124,8 +124,8 @@ describe('BCG vaccine trials, log odds ratios (van Houwelingen, Arends & Stijnen
     expectPrinted(m.coefficients[0].se, 0.106, 3);
     expectPrinted(m.coefficients[1].estimate, -0.033, 3);
     expectPrinted(m.coefficients[1].se, 0.003, 3);
-    expectPrinted(m.tau2, 0.004, 3);
-    expectPrinted(100 * (m.R2 as number), 98.7, 1);
+    expectPrinted(m.residualTau2, 0.004, 3);
+    expectPrinted(100 * (m.tau2Explained as number), 98.7, 1);
   });
 });
 
@@ -161,11 +161,11 @@ describe('Teacher expectancy (Raudenbush 2009, Handbook of Research Synthesis an
     const r = poolEstimates(items, { ...base, moderators: ['weeksCapped'] });
     expectPrinted(r.Q, 35.83, 2, 1);
     const m = r.metaRegression!;
-    expectPrinted(m.tau2, 0, 3);
+    expectPrinted(m.residualTau2, 0, 3);
     expectPrinted(m.coefficients[0].estimate, 0.407, 3, 1);
     expectPrinted(m.coefficients[1].estimate, -0.157, 3, 1);
     expectPrinted(m.coefficients[0].statistic, 4.68, 2, 1);
     expectPrinted(m.coefficients[1].statistic, -4.39, 2, 1);
-    expectPrinted(m.QE, 16.57, 2, 1);
+    expectPrinted(m.residualHeterogeneity!.Q, 16.57, 2, 1);
   });
 });

@@ -222,7 +222,7 @@ describe.each(datasets.map((d) => [d.name]))('R cross-check on simulated data %s
 
   it('meta-regression (REML, Knapp–Hartung): coefficients, SEs, t, p, CI, F, QE, R² against lm with weights 1/(v + tau²)', () => {
     const m = results.get(name)!.reml_hksj.metaRegression!;
-    close(m.tau2, r(name, 'mr_tau2'), 1e-5, 1e-12);
+    close(m.residualTau2, r(name, 'mr_tau2'), 1e-5, 1e-12);
     const b = rv(name, 'mr_b');
     const se = rv(name, 'mr_se_kh');
     const t = rv(name, 'mr_t');
@@ -238,13 +238,13 @@ describe.each(datasets.map((d) => [d.name]))('R cross-check on simulated data %s
       close(c.lower, lo[j], 1e-6);
       close(c.upper, hi[j], 1e-6);
     });
-    expect(m.omnibus!.kind).toBe('F');
-    close(m.omnibus!.statistic, r(name, 'mr_F'), 1e-6);
-    close(m.omnibus!.p, r(name, 'mr_Fp'), 1e-5, 1e-12);
-    close(m.QE, r(name, 'mr_QE'), 1e-10);
+    expect(m.moderatorTest!.distribution).toBe('F');
+    close(m.moderatorTest!.statistic, r(name, 'mr_F'), 1e-6);
+    close(m.moderatorTest!.p, r(name, 'mr_Fp'), 1e-5, 1e-12);
+    close(m.residualHeterogeneity!.Q, r(name, 'mr_QE'), 1e-10);
     const r2 = r(name, 'mr_R2');
-    if (Number.isNaN(r2)) expect(m.R2).toBeNull();
-    else close(m.R2, r2, 1e-4, 1e-6);
+    if (Number.isNaN(r2)) expect(m.tau2Explained).toBeNull();
+    else close(m.tau2Explained, r2, 1e-4, 1e-6);
   });
 
   it('subgroups by a categorical moderator: level estimates, level tau² and Q between (1e-6 / 1e-5 relative)', () => {
@@ -256,8 +256,8 @@ describe.each(datasets.map((d) => [d.name]))('R cross-check on simulated data %s
       close(g.estimate, mu[j], 1e-6);
       close(g.tau2, t2[j], 1e-5, 1e-12);
     });
-    close(sg.Qbetween, r(name, 'sg_Qb'), 1e-5);
-    expect(sg.QbetweenDf).toBe(2);
+    close(sg.betweenGroups!.Q, r(name, 'sg_Qb'), 1e-5);
+    expect(sg.betweenGroups!.df).toBe(2);
   });
 
   it('Wald meta-regression SEs equal the KH SEs divided by the lm residual scale', () => {

@@ -15,6 +15,6 @@ describe('summarisePooled', () => {
     expect(text).toContain(`I² from tau² ${(100 * (r.I2FromTau2 as number)).toFixed(1)}%`);
     expect(text).toContain(`t on ${r.df} df`);
     expect(text).toMatch(/meta-regression on ablat \(13 trials\)/);
-    expect(text).toMatch(/all moderators: F = /);
+    expect(text).toMatch(/all moderators jointly: F = /);
   });
 });

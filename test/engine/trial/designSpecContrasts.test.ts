@@ -29,7 +29,7 @@ const spec = analysisSpecSchema.parse({
     ...EXAMPLE_CONTRASTS,
     { name: 'rate_quadratic', trend: 'rate', degree: 2 },
   ],
-  oneStage: { random: ['trial', 'block', 'treatment:trial'], residual: 'common', df: 'satterthwaite' },
+  oneStage: { random: ['trial', 'block', 'treatment-by-trial'], residual: 'common', df: 'satterthwaite' },
   twoStage: { tau2: 'reml', interval: 'hksj' },
   moderators: [],
   threshold: 0,

@@ -46,7 +46,7 @@ export function analyzeMixedQuadratic(network: NetworkInput, rates: Map<string, 
   const corr = (a: number, b: number) => num(G[a][b] / Math.sqrt(G[a][a] * G[b][b]));
   const notes: string[] = [];
   if (!fit.converged) notes.push(`the optimiser did not settle (deviance spread over ${fit.starts} starts ${fit.startSpread.toExponential(2)})`);
-  if (fit.singular) notes.push('singular fit: a variance, or some combination of the trial deviations, is estimated at zero (G or a blocking variance on its boundary); the model may be richer than the data support');
+  if (fit.singular) notes.push('variance estimated at zero (on the boundary): a variance of the trial deviations or of a blocking factor, or some combination of the trial deviations, is zero; the model may be richer than the data support');
   if (rangeNote) notes.push(rangeNote);
   const matrix = (m: number[][]): Num[][] => m.map((row) => row.map((v) => num(v)));
   return {
@@ -70,7 +70,7 @@ export function analyzeMixedQuadratic(network: NetworkInput, rates: Map<string, 
       evaluations: fit.evaluations,
       starts: fit.starts,
       startSpread: num(fit.startSpread),
-      singular: fit.singular,
+      varianceAtZero: fit.singular,
       note: notes.length > 0 ? notes.join('; ') : null,
     },
     optimum,

@@ -71,7 +71,7 @@ export interface MixedRateResult {
     /** Spread of the REML deviance reached from the different starts. */
     readonly startSpread: Num;
     /** Some variance (or a combination of the trial deviations) is estimated at zero. */
-    readonly singular: boolean;
+    readonly varianceAtZero: boolean;
     readonly note: string | null;
   };
   readonly optimum: MixedPopulationOptimum;
