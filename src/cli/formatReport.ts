@@ -28,6 +28,7 @@ export function formatReport(r: AnalysisReport): string {
         ]),
       ),
     );
+    parts.push(...newSiteMethodLines(r));
   }
   if (r.oneStage) {
     const o = r.oneStage;
@@ -74,4 +75,16 @@ function formatTrialChecks(r: AnalysisReport): string[] {
   if (influential > 0)
     lines.push(`  ${influential} plots in ${influentialTrials.size} trials have Cook's distance above 4/n (a loose screen; each is listed in the JSON diagnostics).`);
   return lines.length > 0 ? ['\nTrial checks (nothing is dropped unless you exclude it with a reason)', ...lines] : [];
+}
+
+/** Which method made the new-site columns, with the plug-in t interval beside a bootstrap one. */
+function newSiteMethodLines(r: AnalysisReport): string[] {
+  const lines: string[] = [];
+  for (const p of r.twoStage.pooled) {
+    const n = p.prediction;
+    if (n.method === 'bootstrap-tau2')
+      lines.push(`  ${p.name}: new-site interval by bootstrap over the confidence distribution of tau² (bootstrap-tau2, ${n.draws} draws, seed ${n.seed}); plug-in t interval ${num(n.plugInT.lower)} to ${num(n.plugInT.upper)}`);
+    else lines.push(`  ${p.name}: new-site interval by plug-in t (plug-in-t: mean ± t(k-2) sqrt(SE² + tau²), tau² taken as known)`);
+  }
+  return lines;
 }
