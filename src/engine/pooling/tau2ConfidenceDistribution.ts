@@ -20,8 +20,10 @@
 // Tabulation: draws are indexed by a normal score z (U = Phi(z)); tau², the weighted mean and the
 // Hartung–Knapp variance of the mean are computed exactly at nodes z = -5, -5 + 1/16, ..., 5 and at
 // the point z0 where the boundary mass ends, and interpolated between them: tau² by monotone
-// cubic Hermite interpolation (Fritsch & Carlson 1980, SIAM J Numer Anal 17:238-246), the mean
-// and its variance linearly. Draws outside the nodes are computed exactly.
+// cubic Hermite interpolation (Fritsch & Carlson 1980, SIAM J Numer Anal 17:238-246) of
+// asinh(tau² / s), s a typical positive draw -- linear near zero, logarithmic in the far tail,
+// where tau² grows like exp(z²/2) with few trials -- the mean and its variance linearly. Draws
+// outside the nodes are computed exactly.
 import { chisqQuantile, chisqUpper, normalQuantile, normalUpper } from '../stats/distributions.js';
 
 const Z_MIN = -5;
@@ -112,7 +114,10 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
     draws.push(d);
   }
 
-  const slopes = monotoneSlopes(zs, draws.map((d) => d.tau2));
+  const positive = draws.filter((d) => d.tau2 > 0);
+  const s = positive.length > 0 ? positive[Math.floor(positive.length / 2)].tau2 : 1;
+  const g = draws.map((d) => Math.asinh(d.tau2 / s));
+  const slopes = monotoneSlopes(zs, g);
 
   const at = (z: number): Tau2Draw => {
     if (z <= z0) return zeroDraw;
@@ -128,9 +133,9 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
     const b = draws[hi];
     const h = zs[hi] - zs[lo];
     const f = (z - zs[lo]) / h;
-    const g = 1 - f;
-    const tau2 = (1 + 2 * f) * g * g * a.tau2 + f * g * g * h * slopes[lo] + f * f * (3 - 2 * f) * b.tau2 - f * f * g * h * slopes[hi];
-    return { tau2: Math.max(0, tau2), mean: g * a.mean + f * b.mean, hkVariance: g * a.hkVariance + f * b.hkVariance };
+    const e = 1 - f;
+    const gz = (1 + 2 * f) * e * e * g[lo] + f * e * e * h * slopes[lo] + f * f * (3 - 2 * f) * g[hi] - f * f * e * h * slopes[hi];
+    return { tau2: Math.max(0, s * Math.sinh(gz)), mean: e * a.mean + f * b.mean, hkVariance: e * a.hkVariance + f * b.hkVariance };
   };
 
   return { k, massAtZero, at, exact: (z) => drawAt(z, 0) };
