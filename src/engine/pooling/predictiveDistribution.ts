@@ -14,7 +14,7 @@
 // order statistics). The probabilities average, over draws, the exact normal probability given
 // steps 1-2 (a Rao–Blackwell step: same distribution, less Monte Carlo noise than counting).
 // Deterministic given the seed (xoshiro128**).
-import { normalUpper } from '../stats/distributions.js';
+import { normalUpperFast } from '../stats/normalTailTable.js';
 import { xoshiro128 } from '../stats/xoshiro128.js';
 import { tau2ConfidenceDistribution } from './tau2ConfidenceDistribution.js';
 
@@ -69,7 +69,6 @@ export function bootstrapPrediction(y: ArrayLike<number>, v: ArrayLike<number>, 
     probPositive += above(centre, tau, 0);
     probAbove += above(centre, tau, options.threshold);
   }
-  draws.sort();
   const alpha = 1 - options.confidence;
   return {
     lower: quantile7(draws, alpha / 2),
@@ -85,14 +84,53 @@ export function bootstrapPrediction(y: ArrayLike<number>, v: ArrayLike<number>, 
 
 /** P(N(centre, tau²) > x); a point mass when tau = 0. */
 function above(centre: number, tau: number, x: number): number {
-  if (tau > 0) return normalUpper((x - centre) / tau);
+  if (tau > 0) return normalUpperFast((x - centre) / tau);
   return centre > x ? 1 : 0;
 }
 
-/** Sample quantile, type 7 (Hyndman & Fan 1996): linear between order statistics. */
-export function quantile7(sorted: Float64Array, p: number): number {
-  const h = (sorted.length - 1) * p;
-  const lo = Math.floor(h);
-  const hi = Math.min(lo + 1, sorted.length - 1);
-  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
+/**
+ * Sample quantile, type 7 (Hyndman & Fan 1996): linear between order statistics j and j + 1,
+ * j = floor((n - 1) p). Found by selection (Hoare's quickselect, reordering `x` in place) rather
+ * than a full sort: the order statistic j lands in place with nothing larger before it, so j + 1
+ * is the smallest value after it.
+ */
+export function quantile7(x: Float64Array, p: number): number {
+  const n = x.length;
+  const h = (n - 1) * p;
+  const j = Math.floor(h);
+  const lower = select(x, j);
+  if (j + 1 >= n || h === j) return lower;
+  let next = Infinity;
+  for (let i = j + 1; i < n; i++) if (x[i] < next) next = x[i];
+  return lower + (h - j) * (next - lower);
+}
+
+function select(x: Float64Array, k: number): number {
+  let left = 0;
+  let right = x.length - 1;
+  while (right > left) {
+    // median of three as the pivot, then a Hoare partition
+    const mid = (left + right) >> 1;
+    const a = x[left];
+    const b = x[mid];
+    const c = x[right];
+    const pivot = a < b ? (b < c ? b : a < c ? c : a) : a < c ? a : b < c ? c : b;
+    let i = left;
+    let j = right;
+    while (i <= j) {
+      while (x[i] < pivot) i++;
+      while (x[j] > pivot) j--;
+      if (i <= j) {
+        const t = x[i];
+        x[i] = x[j];
+        x[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) right = j;
+    else if (k >= i) left = i;
+    else return x[k];
+  }
+  return x[k];
 }

@@ -24,7 +24,8 @@
 // asinh(tau² / s), s a typical positive draw -- linear near zero, logarithmic in the far tail,
 // where tau² grows like exp(z²/2) with few trials -- the mean and its variance linearly. Draws
 // outside the nodes are computed exactly.
-import { chisqQuantile, chisqUpper, normalQuantile, normalUpper } from '../stats/distributions.js';
+import { chisqUpper, normalQuantile, normalUpper } from '../stats/distributions.js';
+import { chisqTailQuantile } from '../stats/chisqTailQuantile.js';
 
 const Z_MIN = -5;
 const Z_MAX = 5;
@@ -65,7 +66,8 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
 
   const zeroDraw = toDraw(atZero, 0, df);
   /** Critical value of Q at normal score z: the chi-square quantile with upper tail Phi(z). */
-  const critical = (z: number): number => chisqQuantile(normalUpper(z), df);
+  const quantiles = chisqTailQuantile(df);
+  const critical = (z: number): number => (z >= 0 ? quantiles.lower(normalUpper(z)) : quantiles.upper(normalUpper(-z)));
 
   // Root of Q(t) = c above `from` (where Q(from) > c): Newton steps with the analytic slope
   // Q'(t) = -sum w² (y - m)² (the slope of m drops out because sum w (y - m) = 0), kept inside
