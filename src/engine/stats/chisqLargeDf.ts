@@ -77,6 +77,11 @@ export function chisqUpperLargeDf(x: number, df: number): number {
   return incompleteGamma(df / 2, x / 2).upper;
 }
 
+/** P(X <= x), X ~ chi-square(df), df >= 100 (the series keeps a small lower tail precise). */
+export function chisqLowerLargeDf(x: number, df: number): number {
+  return incompleteGamma(df / 2, x / 2).lower;
+}
+
 /** Quantile at lower probability p, df >= 100: Newton steps from the Wilson–Hilferty start. */
 export function chisqQuantileLargeDf(p: number, df: number, normalQuantile: (p: number) => number): number {
   if (p <= 0) return 0;

@@ -4,7 +4,7 @@
 // precision), started from the Wilson–Hilferty approximation (common practice) and kept inside a
 // bracket; the density's log-gamma constant is computed once per df.
 import gammainc from '@stdlib/math-base-special-gammainc';
-import { chisqUpperLargeDf } from './chisqLargeDf.js';
+import { chisqLowerLargeDf, chisqUpperLargeDf } from './chisqLargeDf.js';
 import { normalQuantile } from './distributions.js';
 
 const HALF_LOG_2PI = 0.5 * Math.log(2 * Math.PI);
@@ -32,7 +32,7 @@ export function chisqTailQuantile(df: number): ChisqTailQuantile {
   const a = df / 2;
   const logNorm = a * Math.LN2 + logGamma(a);
   const upperTail = (x: number) => (df > 1000 ? chisqUpperLargeDf(x, df) : gammainc(x / 2, a, true, true));
-  const lowerTail = (x: number) => (df > 1000 ? 1 - chisqUpperLargeDf(x, df) : gammainc(x / 2, a, true, false));
+  const lowerTail = (x: number) => (df > 1000 ? chisqLowerLargeDf(x, df) : gammainc(x / 2, a, true, false));
   const density = (x: number) => Math.exp((a - 1) * Math.log(x) - x / 2 - logNorm);
   // Start: Wilson–Hilferty, or for a small lower tail the leading term of the series,
   // P(X <= x) ~ (x/2)^a / Gamma(a + 1), whichever applies.
