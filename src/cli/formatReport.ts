@@ -39,6 +39,10 @@ export function formatReport(r: AnalysisReport): string {
     parts.push(textTable(['variance component', 'estimate'], variance));
     parts.push('');
     parts.push(textTable(['contrast', 'estimate', 'se', 'df', 'lower', 'upper', 'p'], o.contrasts.map((c) => [c.name, num(c.estimate), num(c.se), num(c.df, 4), num(c.lower), num(c.upper), pValue(c.p)])));
+    if (o.newSite && o.newSite.length > 0) {
+      parts.push('');
+      parts.push(textTable(['contrast', 'new-site method', 'new-site lower', 'new-site upper', 'P(>0)', 'plug-in lower', 'plug-in upper'], o.newSite.map((n) => [n.name, n.method, num(n.lower), num(n.upper), num(n.probPositive, 3), num(n.plugInT.lower), num(n.plugInT.upper)])));
+    }
     if (o.covariates.length > 0) {
       parts.push('');
       parts.push(textTable(['covariate slope', 'estimate', 'se', 'df', 'lower', 'upper', 'p', 'means at'], o.covariates.map((c) => [c.name, num(c.estimate), num(c.se), num(c.df, 4), num(c.lower), num(c.upper), pValue(c.p), num(c.centre)])));

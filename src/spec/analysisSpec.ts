@@ -73,6 +73,10 @@ export const oneStageSchema = z
     lrt: z.boolean().default(true),
     /** Profile-likelihood intervals for the variance components (default: networks up to 200 trials). */
     profile: z.boolean().optional(),
+    /** New-site prediction per contrast: 'bootstrap-tau2' (default) or 'plug-in-t', as for twoStage. */
+    prediction: z.enum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
+    predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
+    predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
   })
   .strict();
 

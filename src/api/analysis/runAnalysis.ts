@@ -47,7 +47,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     throwIfCancelled(ctx);
     const options = spec.oneStage ?? oneStageSchema.parse({});
     const modelled = transformNetwork(network, spec.transform, logOffset);
-    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile, covariates: options.covariates }, {
+    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile, covariates: options.covariates, newSite: { method: options.prediction, threshold: spec.threshold, draws: options.predictionDraws, seed: options.predictionSeed } }, {
       onProgress: (e) => ctx?.onProgress?.({ stage: 'one-stage', step: `iteration ${e.iteration}`, fraction: null }),
       signal: ctx?.signal,
     });

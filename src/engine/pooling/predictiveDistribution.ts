@@ -21,6 +21,18 @@ import { tau2ConfidenceDistribution } from './tau2ConfidenceDistribution.js';
 export const DEFAULT_PREDICTION_DRAWS = 20000;
 export const DEFAULT_PREDICTION_SEED = 20190601;
 
+/**
+ * A mean estimated elsewhere (the one-stage model): its draw is estimate - t(df) x se x
+ * sqrt(W(tau²ref) / W(tau²*)), W(tau²) = sum 1 / (v + tau²), so its spread follows the drawn
+ * tau² as the weighted mean's variance 1 / W would; tau²ref is the tau² the se was estimated at.
+ */
+export interface ExternalMean {
+  estimate: number;
+  se: number;
+  df: number;
+  tau2: number;
+}
+
 export interface BootstrapPredictionOptions {
   confidence: number;
   threshold: number;
@@ -29,6 +41,8 @@ export interface BootstrapPredictionOptions {
   signal?: AbortSignal;
   /** Called (fraction done) only once the work has taken more than a second. */
   onProgress?: (fraction: number) => void;
+  /** Draw the mean around this estimate instead of the weighted mean (one-stage use). */
+  externalMean?: ExternalMean;
 }
 
 export interface BootstrapPrediction {
@@ -55,6 +69,9 @@ export function bootstrapPrediction(y: ArrayLike<number>, v: ArrayLike<number>, 
   const random = xoshiro128(seed);
   const draws = new Float64Array(B);
   const df = k - 1;
+  const external = options.externalMean;
+  let referenceW = 0;
+  if (external) for (let i = 0; i < k; i++) referenceW += 1 / (v[i] + external.tau2);
   let probPositive = 0;
   let probAbove = 0;
   for (let b = 0; b < B; b++) {
@@ -63,7 +80,9 @@ export function bootstrapPrediction(y: ArrayLike<number>, v: ArrayLike<number>, 
       if (options.onProgress && Date.now() - started > 1000) options.onProgress(b / B);
     }
     const d = cd.at(random.normal());
-    const centre = d.mean - random.studentT(df) * Math.sqrt(d.hkVariance);
+    const centre = external
+      ? external.estimate - random.studentT(external.df) * external.se * Math.sqrt(referenceW / d.sumW)
+      : d.mean - random.studentT(df) * Math.sqrt(d.hkVariance);
     const tau = Math.sqrt(d.tau2);
     draws[b] = centre + tau * random.normal();
     probPositive += above(centre, tau, 0);

@@ -37,6 +37,8 @@ export interface Tau2Draw {
   mean: number;
   /** sum w (y - mean)² / ((k - 1) sum w), w = 1 / (v + tau²). */
   hkVariance: number;
+  /** sum w: the precision of the weighted mean at this tau². */
+  sumW: number;
 }
 
 export interface Tau2ConfidenceDistribution {
@@ -137,7 +139,7 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
     const f = (z - zs[lo]) / h;
     const e = 1 - f;
     const gz = (1 + 2 * f) * e * e * g[lo] + f * e * e * h * slopes[lo] + f * f * (3 - 2 * f) * g[hi] - f * f * e * h * slopes[hi];
-    return { tau2: Math.max(0, s * Math.sinh(gz)), mean: e * a.mean + f * b.mean, hkVariance: e * a.hkVariance + f * b.hkVariance };
+    return { tau2: Math.max(0, s * Math.sinh(gz)), mean: e * a.mean + f * b.mean, hkVariance: e * a.hkVariance + f * b.hkVariance, sumW: e * a.sumW + f * b.sumW };
   };
 
   return { k, massAtZero, at, exact: (z) => drawAt(z, 0) };
@@ -192,7 +194,7 @@ function slopeMoments(y: ArrayLike<number>, v: ArrayLike<number>, tau2: number, 
 }
 
 function toDraw(m: Moments, tau2: number, df: number): Tau2Draw {
-  return { tau2, mean: m.mean, hkVariance: m.Q / (df * m.sumW) };
+  return { tau2, mean: m.mean, hkVariance: m.Q / (df * m.sumW), sumW: m.sumW };
 }
 
 /** Fritsch–Carlson slopes: zero at a local extremum, else a weighted harmonic mean of the secants. */

@@ -66,7 +66,7 @@ describe('confidence distribution of tau²', () => {
   it('draws with all effects equal sit at tau² = 0 with a zero Hartung–Knapp variance', () => {
     const cd = tau2ConfidenceDistribution([2, 2, 2, 2], [0.1, 0.2, 0.3, 0.4]);
     expect(cd.massAtZero).toBe(1);
-    expect(cd.at(3)).toEqual({ tau2: 0, mean: 2, hkVariance: 0 });
+    expect(cd.at(3)).toMatchObject({ tau2: 0, mean: 2, hkVariance: 0 });
   });
 });
 
