@@ -109,7 +109,15 @@ describe('analyze on the demo workspace', () => {
       expect(Number.isFinite(n.plugInT.lower)).toBe(true);
       expect((p.method as { prediction: string }).prediction).toMatch(/bootstrap-tau2.*20000 draws, seed 20190601/);
     }
+    const one = (report.oneStage as unknown as { newSite: { name: string; method: string; lower: number; upper: number; plugInT: { lower: number } }[] }).newSite;
+    expect(one.map((n) => n.name)).toEqual(report.oneStage.contrasts.map((c) => c.name));
+    for (const n of one) {
+      expect(n.method).toBe('bootstrap-tau2');
+      expect(n.lower).toBeLessThan(n.upper);
+      expect(Number.isFinite(n.plugInT.lower)).toBe(true);
+    }
     const r = manyfield(['analyze', '--workspace', ws, '--spec', spec, '--no-save']);
+    expect(r.stdout).toMatch(/new-site method[\s\S]*treated_vs_control +bootstrap-tau2/);
     for (const p of report.twoStage.pooled) expect(r.stdout).toMatch(new RegExp(`${p.name}: new-site interval by bootstrap over the confidence distribution of tau² \\(bootstrap-tau2, 20000 draws`));
   });
 
