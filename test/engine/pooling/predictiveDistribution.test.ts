@@ -128,3 +128,12 @@ describe('the pooled result says which method made the new-site numbers', () => 
     expect(two.predictionLower).toBeNull();
   });
 });
+
+describe('bad prediction options', () => {
+  const items = [1, 1.4, 0.7, 1.1].map((e, i) => ({ trial: `T${i}`, estimate: e, se: 0.3 }));
+  it('names the option, the value and the rule', () => {
+    expect(() => poolEstimates(items, { ...options, predictionDraws: 50 })).toThrow(/predictionDraws 50 must be a whole number of at least 1000/);
+    expect(() => poolEstimates(items, { ...options, predictionSeed: -1 })).toThrow(/predictionSeed -1/);
+    expect(() => poolEstimates(items, { ...options, prediction: 'guess' as 'plug-in-t' })).toThrow(/"guess" is not known/);
+  });
+});
