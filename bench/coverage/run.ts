@@ -110,7 +110,12 @@ function runCell(k: number, i2: number, seed: number): Cell {
 const pct = (x: number) => `${(100 * x).toFixed(1)}%`.padStart(8);
 const started = Date.now();
 const cells: Cell[] = [];
-ks.forEach((k, a) => i2s.forEach((i2, b) => cells.push(runCell(k, i2, 20240 + 100 * a + b))));
+ks.forEach((k, a) =>
+  i2s.forEach((i2, b) => {
+    cells.push(runCell(k, i2, 20240 + 100 * a + b));
+    process.stderr.write(`cell k=${k}, I²=${Math.round(100 * i2)}% done (${cells.length}/${ks.length * i2s.length}, ${((Date.now() - started) / 1000).toFixed(0)} s)\n`);
+  }),
+);
 
 console.log(`Coverage of nominal 95% intervals, ${replicates} replicates per cell, tau² by REML (Monte Carlo SE about ${(100 * Math.sqrt(0.95 * 0.05 / replicates)).toFixed(2)} points); bootstrap with ${draws} draws`);
 console.log('');
