@@ -74,6 +74,10 @@ export const oneStageSchema = z
     lrt: z.boolean().default(true),
     /** Profile-likelihood intervals for the variance components (default: networks up to 200 trials). */
     profile: z.boolean().optional(),
+    /** New-site prediction per contrast: 'bootstrap-tau2' (default) or 'plug-in-t', as for twoStage. */
+    prediction: z.enum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
+    predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
+    predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
   })
   .strict();
 
@@ -83,6 +87,15 @@ export const twoStageSchema = z
     interval: z.enum(['hksj', 'wald']).default('hksj'),
     /** Keep the HKSJ interval from being narrower than the Wald interval. */
     hksjFloor: z.boolean().default(false),
+    /**
+     * New-site prediction interval and probabilities: 'bootstrap-tau2' carries the uncertainty in
+     * tau² (parametric bootstrap over its confidence distribution); 'plug-in-t' is
+     * mean ± t(k - 2) sqrt(SE² + tau²) with tau² taken as known.
+     */
+    prediction: z.enum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
+    /** Bootstrap draws and seed: the same seed gives the same interval. */
+    predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
+    predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
   })
   .strict();
 

@@ -102,6 +102,29 @@ describe('analyze on the demo workspace', () => {
     expect(r.stdout).not.toMatch(/REML criterion|singular fit|residualByTrial|treatment:trial/);
   });
 
+  it('shows the new-site interval and the method that made it (bootstrap-tau2 by default), in JSON and as text, with the plug-in t interval beside it', () => {
+    for (const p of report.twoStage.pooled) {
+      const n = p.prediction as { method: string; lower: number; upper: number; draws: number; seed: number; plugInT: { lower: number; upper: number } };
+      expect(n.method).toBe('bootstrap-tau2');
+      expect(p.predictionLower).toBe(n.lower);
+      expect(p.predictionUpper).toBe(n.upper);
+      expect(n.lower).toBeLessThan(p.estimate as number);
+      expect(n.upper).toBeGreaterThan(p.estimate as number);
+      expect(Number.isFinite(n.plugInT.lower)).toBe(true);
+      expect((p.method as { prediction: string }).prediction).toMatch(/bootstrap-tau2.*20000 draws, seed 20190601/);
+    }
+    const one = (report.oneStage as unknown as { newSite: { name: string; method: string; lower: number; upper: number; plugInT: { lower: number } }[] }).newSite;
+    expect(one.map((n) => n.name)).toEqual(report.oneStage.contrasts.map((c) => c.name));
+    for (const n of one) {
+      expect(n.method).toBe('bootstrap-tau2');
+      expect(n.lower).toBeLessThan(n.upper);
+      expect(Number.isFinite(n.plugInT.lower)).toBe(true);
+    }
+    const r = manyfield(['analyze', '--workspace', ws, '--spec', spec, '--no-save']);
+    expect(r.stdout).toMatch(/prediction interval\) +method[\s\S]*treated_vs_control [^\n]*bootstrap-tau2/);
+    for (const p of report.twoStage.pooled) expect(r.stdout).toMatch(new RegExp(`${p.name}: new-site interval by bootstrap over the confidence distribution of tau² \\(bootstrap-tau2, 20000 draws`));
+  });
+
   it('fits a fixed rainfall slope in the one-stage model when the spec names it, in JSON and as text', () => {
     const specFile = join(dir, 'covariate.json');
     writeFileSync(

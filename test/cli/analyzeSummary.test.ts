@@ -36,7 +36,7 @@ function poolFile(rows: { trial: string; estimate: number; se: number }[], twoSt
 describe('analyze --data on a summary file', () => {
   it('BCG trials (Viechtbauer 2010, J Stat Softw 36(3), section 3; values recalled from memory): REML tau², estimate, SE, Q, I², Q-profile and the new-site interval', () => {
     const items = bcgLogRiskRatios();
-    const p = poolFile(items, { tau2: 'reml', interval: 'wald' });
+    const p = poolFile(items, { tau2: 'reml', interval: 'wald', prediction: 'plug-in-t' });
     expect(p.k).toBe(13);
     near(p.tau2, 0.3132, 4);
     near(p.estimate, -0.7145, 4);
@@ -54,6 +54,18 @@ describe('analyze --data on a summary file', () => {
     const half = tQuantile(0.975, 11) * Math.sqrt(0.3132 + 0.1798 ** 2);
     near(p.predictionLower, -0.7145 - half, 3);
     near(p.predictionUpper, -0.7145 + half, 3);
+  });
+
+  it('BCG trials: the default new-site interval is the bootstrap over the confidence distribution of tau², named in the JSON, the same on every run (fixed seed)', () => {
+    const a = poolFile(bcgLogRiskRatios(), { tau2: 'reml' }) as Pooled & { prediction: { method: string; lower: number; upper: number; plugInT: { lower: number } } };
+    const b = poolFile(bcgLogRiskRatios(), { tau2: 'reml' }) as typeof a;
+    expect(a.prediction.method).toBe('bootstrap-tau2');
+    expect(a.predictionLower).toBe(a.prediction.lower);
+    expect(b.predictionLower).toBe(a.predictionLower);
+    expect(b.predictionUpper).toBe(a.predictionUpper);
+    const plain = poolFile(bcgLogRiskRatios(), { tau2: 'reml', prediction: 'plug-in-t' }) as typeof a;
+    expect(plain.prediction.method).toBe('plug-in-t');
+    expect(a.prediction.plugInT.lower).toBe(plain.predictionLower);
   });
 
   it('teacher expectancy (Raudenbush 2009, Handbook of Research Synthesis and Meta-Analysis 2nd ed., Table 16.3, p. 309): REML with the Knapp–Hartung (HKSJ) interval', () => {

@@ -10,7 +10,7 @@ export function poolSummaryRows(rows: readonly SummaryRow[], spec: AnalysisSpec)
   const options = spec.twoStage ?? twoStageSchema.parse({});
   const result = poolEstimates(
     rows.map((r) => ({ trial: r.trial, estimate: r.estimate, se: r.se, df: r.df, covariates: r.covariates })),
-    { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators },
+    { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators, prediction: options.prediction, predictionDraws: options.predictionDraws, predictionSeed: options.predictionSeed },
   );
   return {
     trait: spec.trait ?? name,

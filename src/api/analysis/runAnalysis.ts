@@ -41,14 +41,14 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     trials.push(analyseOneTrial(trial, network, contrasts, spec, logOffset));
   });
 
-  const pooled = spec.twoStage === null ? [] : poolContrasts(trials, contrasts, network, spec, warnings);
+  const pooled = spec.twoStage === null ? [] : poolContrasts(trials, contrasts, network, spec, warnings, ctx);
 
   let oneStage: ReturnType<typeof fitOneStage> | null = null;
   if (spec.oneStage !== null) {
     throwIfCancelled(ctx);
     const options = spec.oneStage ?? oneStageSchema.parse({});
     const modelled = transformNetwork(network, spec.transform, logOffset);
-    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile, covariates: options.covariates }, {
+    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile, covariates: options.covariates, newSite: { method: options.prediction, threshold: spec.threshold, draws: options.predictionDraws, seed: options.predictionSeed } }, {
       onProgress: (e) => ctx?.onProgress?.({ stage: 'one-stage', step: `iteration ${e.iteration}`, fraction: null }),
       signal: ctx?.signal,
     });
@@ -92,11 +92,12 @@ function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: re
   return { ...result, trial: trial.trial, site: trial.site ?? null, year: trial.year ?? null, design: trial.design };
 }
 
-function poolContrasts(trials: readonly TrialStageEntry[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[]): PooledEntry[] {
+function poolContrasts(trials: readonly TrialStageEntry[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry[] {
   const options = spec.twoStage ?? twoStageSchema.parse({});
   const covariatesByTrial = new Map(network.trials.map((t) => [t.trial, t.covariates ?? {}]));
   const yearByTrial = new Map(network.trials.map((t) => [t.trial, t.year ?? null]));
   return contrasts.map((contrast) => {
+    throwIfCancelled(ctx);
     const items = [];
     const left: string[] = [];
     for (const t of trials) {
@@ -109,7 +110,10 @@ function poolContrasts(trials: readonly TrialStageEntry[], contrasts: readonly R
     }
     if (left.length > 0)
       warnings.push(`contrast "${contrast.name}": ${left.length} trial(s) left out of the pooling because it is not estimable there: ${left.join('; ')} (needs ${involvedTreatments(contrast).join(', ')})`);
-    const result = poolEstimates(items, { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators });
+    const result = poolEstimates(items, { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators, prediction: options.prediction, predictionDraws: options.predictionDraws, predictionSeed: options.predictionSeed }, {
+      signal: ctx?.signal,
+      onProgress: (f) => ctx?.onProgress?.({ stage: 'new-site prediction', step: contrast.name, fraction: f }),
+    });
     return { name: contrast.name, meaning: contrast.meaning, leftOut: left, ...result };
   });
 }

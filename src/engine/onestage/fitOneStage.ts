@@ -11,6 +11,7 @@ import { optimiseReml, type OptimiseOutcome } from './optimise.js';
 import { startValues } from './startValues.js';
 import { activeParameterTable } from './trialParameters.js';
 import { secondOrder, kenwardRogerU, type SecondOrder } from './secondOrder.js';
+import { oneStageNewSite } from './newSitePrediction.js';
 import { kenwardRogerContrast, satterthwaiteDf, tInterval, quadraticForm } from './contrastInference.js';
 import { kenwardRogerWeights, type KenwardRogerWeights } from './kenwardRogerWeights.js';
 import { averageInformationInverse, observedInformationInverse } from './informationSolver.js';
@@ -112,6 +113,16 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   });
 
   const ttParam = layout.termParameter[2];
+  const trials = trialContrasts(frame, ev, vectors, ttParam >= 0 ? ev.theta[ttParam] : 0);
+  const newSite = options.newSite
+    ? vectors.map((v, c) =>
+        oneStageNewSite(contrastReports[c], v.l, ttParam >= 0 ? ev.theta[ttParam] : null, trials.map((t) => t.contrasts[c]), stats.trials.length, {
+          ...options.newSite!,
+          confidence: options.confidence,
+          signal: hooks.signal,
+        }),
+      )
+    : undefined;
   const means = stats.treatments.map((treatment, j) => ({ treatment, estimate: ev.beta[j], se: Math.sqrt(ev.c[j * p + j]), df: meanReports[j].df, lower: meanReports[j].lower, upper: meanReports[j].upper }));
   const run = { ...fit.run, elapsedMs: Date.now() - began };
   return {
@@ -124,7 +135,8 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
     contrasts: contrastReports,
     covariates: slopeReports.map(({ note: _note, ...r }, a) => ({ ...r, centre: stats.covariates[a].centre })),
     varianceComponents: components,
-    trials: trialContrasts(frame, ev, vectors, ttParam >= 0 ? ev.theta[ttParam] : 0),
+    trials,
+    ...(newSite ? { newSite } : {}),
     nObservations: stats.nObservations,
     nTrials: stats.trials.length,
     droppedPlots: stats.droppedPlots,

@@ -1,3 +1,6 @@
+import type { PredictionMethod } from '../pooling/types.js';
+import type { OneStageNewSite } from './newSitePrediction.js';
+
 // Public shapes of the one-stage REML fit. Plain values only, so a result can be stored as JSON
 // and sent across a worker or IPC boundary unchanged.
 
@@ -19,6 +22,8 @@ export interface OneStageOptions {
    * at their mean over the trials used; trials without a value are left out with a warning.
    */
   readonly covariates?: readonly string[];
+  /** New-site prediction per contrast (method, threshold for the probability, draws, seed); none when absent. */
+  readonly newSite?: { readonly method: PredictionMethod; readonly threshold: number; readonly draws: number; readonly seed: number };
 }
 
 export interface OneStageHooks {
@@ -114,6 +119,8 @@ export interface OneStageResult {
   covariates: CovariateReport[];
   varianceComponents: VarianceComponentReport[];
   trials: { trial: string; contrasts: TrialContrastReport[] }[];
+  /** New-site prediction per contrast (when options.newSite is given). */
+  newSite?: OneStageNewSite[];
   nObservations: number;
   nTrials: number;
   droppedPlots: number;

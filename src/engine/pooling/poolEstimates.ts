@@ -3,7 +3,8 @@
 import { cochranQ, tau2BasedShares } from './heterogeneity.js';
 import { jsonSafe } from '../jsonSafe.js';
 import { metaRegression } from './metaRegression.js';
-import { intervalText, PREDICTION_TEXT, PROBABILITY_TEXT, tau2Text } from './methodText.js';
+import { intervalText, tau2Text } from './methodText.js';
+import { newSitePrediction, type HooksForPrediction } from './newSitePrediction.js';
 import { poolCore } from './poolCore.js';
 import { qProfileInterval } from './qProfile.js';
 import { sensitivityAnalyses } from './sensitivity.js';
@@ -18,7 +19,8 @@ export function fitSettings(options: PoolingOptions): FitSettings {
   return { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor ?? false, confidence: options.confidence };
 }
 
-export function poolEstimates(items: readonly PoolingItem[], options: PoolingOptions): PooledResult {
+/** `hooks`: cancel and progress for the bootstrap predictive distribution (main pool only). */
+export function poolEstimates(items: readonly PoolingItem[], options: PoolingOptions, hooks: HooksForPrediction = {}): PooledResult {
   validatePooling(items, options);
   const settings = fitSettings(options);
   const y = items.map((it) => it.estimate);
@@ -38,6 +40,8 @@ export function poolEstimates(items: readonly PoolingItem[], options: PoolingOpt
     tau2Upper = qp.upper;
     if (qp.note) notes.push(qp.note);
   }
+  const newSite = newSitePrediction(y, v, core, options, hooks);
+  notes.push(...newSite.notes);
   let sumW = 0;
   for (const w of core.weights) sumW += w;
   const result: PooledResult = {
@@ -58,18 +62,19 @@ export function poolEstimates(items: readonly PoolingItem[], options: PoolingOpt
     I2FromTau2: shares.I2,
     H2: het.H2,
     H2FromTau2: shares.H2,
-    predictionLower: core.predictionLower,
-    predictionUpper: core.predictionUpper,
-    probPositive: core.probPositive,
-    probAboveThreshold: core.probAboveThreshold,
+    predictionLower: newSite.prediction.lower,
+    predictionUpper: newSite.prediction.upper,
+    probPositive: newSite.prediction.probPositive,
+    probAboveThreshold: newSite.prediction.probAboveThreshold,
+    prediction: newSite.prediction,
     k,
     df: core.df,
     hksjScale: core.hksjScale,
     method: {
       tau2: tau2Text(options, core),
       interval: intervalText(options, core),
-      prediction: PREDICTION_TEXT,
-      probabilities: `${PROBABILITY_TEXT} Threshold = ${options.threshold}.`,
+      prediction: newSite.prediction.description,
+      probabilities: `${newSite.prediction.probabilities} Threshold = ${options.threshold}.`,
       converged: core.tau2Converged,
       iterations: core.iterations,
     },

@@ -16,7 +16,9 @@ export function summarisePooled(r: PooledResult, name = 'effect'): string {
     `  mean ${f(r.estimate)} (SE ${f(r.se)}), interval ${f(r.lower)} to ${f(r.upper)}, p = ${f(r.p, 3)}${r.df === null ? '' : `, t on ${r.df} df`}`,
     `  tau² ${f(r.tau2)} (interval ${f(r.tau2Lower)} to ${f(r.tau2Upper)}), tau ${f(r.tau)}${r.tau2AtBoundary ? ', at the zero boundary' : ''}`,
     `  Q ${f(r.Q)} on ${r.Qdf ?? 'n/a'} df (p = ${f(r.Qp, 3)}); I² from Q ${pct(r.I2)}, I² from tau² ${pct(r.I2FromTau2)}; H² from Q ${f(r.H2)}`,
-    `  new site: prediction interval ${f(r.predictionLower)} to ${f(r.predictionUpper)}; P(effect > 0) ${pct(r.probPositive)}; P(effect > threshold) ${pct(r.probAboveThreshold)}`,
+    `  new site (${r.prediction.method}): prediction interval ${f(r.predictionLower)} to ${f(r.predictionUpper)}; P(effect > 0) ${pct(r.probPositive)}; P(effect > threshold) ${pct(r.probAboveThreshold)}`,
+    ...(r.prediction.method === 'plug-in-t' ? [] : [`  new site (plug-in-t, for comparison): ${f(r.prediction.plugInT.lower)} to ${f(r.prediction.plugInT.upper)}; P(effect > 0) ${pct(r.prediction.plugInT.probPositive)}`]),
+    `  prediction: ${r.prediction.description}`,
     `  tau²: ${r.method.tau2}`,
     `  interval: ${r.method.interval}`,
   ];

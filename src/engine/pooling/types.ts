@@ -3,6 +3,31 @@
 
 export type Tau2Method = 'reml' | 'ml' | 'dl' | 'pm' | 'fixed';
 export type IntervalMethod = 'hksj' | 'wald';
+/**
+ * New-site prediction: 'bootstrap-tau2' = parametric bootstrap over the confidence distribution
+ * of tau² (Nagashima, Noma & Furukawa 2019); 'plug-in-t' = mean ± t(k - 2) sqrt(SE² + tau²)
+ * with tau² plugged in as if known (Higgins, Thompson & Spiegelhalter 2009).
+ */
+export type PredictionMethod = 'bootstrap-tau2' | 'plug-in-t';
+
+export interface NewSiteValues {
+  lower: number | null;
+  upper: number | null;
+  probPositive: number | null;
+  probAboveThreshold: number | null;
+}
+
+export interface NewSitePrediction extends NewSiteValues {
+  /** The method that made lower/upper and the probabilities (and predictionLower/Upper). */
+  method: PredictionMethod;
+  /** Bootstrap draws and seed (null for plug-in-t). */
+  draws: number | null;
+  seed: number | null;
+  description: string;
+  probabilities: string;
+  /** The plug-in t interval and probabilities, always given for comparison. */
+  plugInT: NewSiteValues;
+}
 
 export interface PoolingItem {
   trial: string;
@@ -24,6 +49,11 @@ export interface PoolingOptions {
   /** Break-even effect for probAboveThreshold. */
   threshold: number;
   moderators?: string[];
+  /** New-site prediction method; default 'bootstrap-tau2'. */
+  prediction?: PredictionMethod;
+  /** Bootstrap draws (default 20,000) and seed of the predictive distribution. */
+  predictionDraws?: number;
+  predictionSeed?: number;
 }
 
 export interface PoolWeight {
@@ -167,10 +197,12 @@ export interface PooledResult {
   H2: number | null;
   /** H² from tau²: (tau² + s²) / s². */
   H2FromTau2: number | null;
+  /** The new-site interval and probabilities of the method in prediction.method. */
   predictionLower: number | null;
   predictionUpper: number | null;
   probPositive: number | null;
   probAboveThreshold: number | null;
+  prediction: NewSitePrediction;
   k: number;
   /** df of the interval for the mean (null = normal). */
   df: number | null;

@@ -21,4 +21,10 @@ export function validatePooling(items: readonly PoolingItem[], options: PoolingO
   });
   if (!(options.confidence > 0 && options.confidence < 1)) throw new PoolingInputError(`Confidence level ${options.confidence} must lie strictly between 0 and 1.`, { confidence: options.confidence });
   if (!Number.isFinite(options.threshold)) throw new PoolingInputError(`Threshold ${options.threshold} must be a finite number.`, { threshold: options.threshold });
+  if (options.prediction !== undefined && options.prediction !== 'bootstrap-tau2' && options.prediction !== 'plug-in-t')
+    throw new PoolingInputError(`New-site prediction method "${String(options.prediction)}" is not known: use "bootstrap-tau2" or "plug-in-t".`, { prediction: options.prediction });
+  const draws = options.predictionDraws;
+  if (draws !== undefined && !(Number.isInteger(draws) && draws >= 1000)) throw new PoolingInputError(`predictionDraws ${draws} must be a whole number of at least 1000.`, { predictionDraws: draws });
+  const seed = options.predictionSeed;
+  if (seed !== undefined && !(Number.isInteger(seed) && seed >= 0 && seed <= 4294967295)) throw new PoolingInputError(`predictionSeed ${seed} must be a whole number from 0 to 4294967295.`, { predictionSeed: seed });
 }

@@ -8,6 +8,10 @@ import fQuantileStd from '@stdlib/stats-base-dists-f-quantile';
 import chisqQuantileStd from '@stdlib/stats-base-dists-chisquare-quantile';
 import normalCdfStd from '@stdlib/stats-base-dists-normal-cdf';
 import normalQuantileStd from '@stdlib/stats-base-dists-normal-quantile';
+import { chisqQuantileLargeDf, chisqUpperLargeDf } from './chisqLargeDf.js';
+
+/** Above this many df the chi-square goes through chisqLargeDf.ts (the general routine drifts above ~2,000 df). */
+const LARGE_DF = 1000;
 
 /** Two-sided p-value of a t statistic on `df` degrees of freedom. */
 export function tTwoSidedP(t: number, df: number): number {
@@ -51,10 +55,12 @@ export function fQuantile(p: number, df1: number, df2: number): number {
 export function chisqUpper(x: number, df: number): number {
   if (!(df > 0) || Number.isNaN(x)) return NaN;
   if (x <= 0) return 1;
+  if (df > LARGE_DF) return chisqUpperLargeDf(x, df);
   return gammainc(x / 2, df / 2, true, true);
 }
 
 export function chisqQuantile(p: number, df: number): number {
+  if (df > LARGE_DF) return chisqQuantileLargeDf(p, df, normalQuantile);
   return chisqQuantileStd(p, df);
 }
 

@@ -3,7 +3,7 @@
 // zero (on the boundary)".
 import type { AnalysisReport } from '../../api/analysis/report.js';
 import type { OneStageResult } from '../../engine/onestage/types.js';
-import { dfText, effectCell, fixed, levelText, pText, seText, sig } from './numbers.js';
+import { dfText, effectCell, fixed, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 import { termDisplayName } from './termNames.js';
 
@@ -34,8 +34,16 @@ export function oneStageLines(r: AnalysisReport): string[] {
           ['covariate slope', `per unit of the covariate (${level} interval)`, 'SE', 'df', 'p', 'means at'],
           o.covariates.map((c) => [c.name, effectCell(c.estimate, c.lower, c.upper, r.unit, c.se), seText(c.se), dfText(c.df), pText(c.p), sig(c.centre, 4)]),
         );
+  const newSite =
+    !o.newSite || o.newSite.length === 0
+      ? ''
+      : '\n' +
+        textTable(
+          ['contrast', `new site (${level} prediction interval)`, 'method', 'P(effect > 0)', 'plug-in t interval'],
+          o.newSite.map((n) => [n.name, rangeText(n.lower, n.upper, unit(n.name), 3), n.method, percent(n.probPositive, 1), `${sig(n.plugInT.lower)} to ${sig(n.plugInT.upper)}`]),
+        );
   return [
-    ...section(`One-stage mixed model (REML, ${DF_WORDS[o.options.df]}, residual ${o.options.residual === 'common' ? 'common to all trials' : 'one per trial'})`, [fitLine, effects, slopes]),
+    ...section(`One-stage mixed model (REML, ${DF_WORDS[o.options.df]}, residual ${o.options.residual === 'common' ? 'common to all trials' : 'one per trial'})`, [fitLine, effects, newSite, slopes]),
     ...section('Variance components (one-stage)', [varianceTable(o, level)]),
   ];
 }

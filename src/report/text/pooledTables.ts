@@ -28,12 +28,20 @@ export function pooledLines(r: AnalysisReport): string[] {
       ...(threshold !== 0 ? [percent(p.probAboveThreshold, 1)] : []),
     ]),
   );
-  const notes = pooled.flatMap((p) => p.notes.map((n) => `  ${p.name}: ${n}`));
+  const notes = [...pooled.map(newSiteMethodLine), ...pooled.flatMap((p) => p.notes.map((n) => `  ${p.name}: ${n}`))];
   return [
     ...section(`Effects pooled across trials (two-stage, random effects; interval: ${intervalWord(r)})`, [effects]),
     ...section('Spread between trials and a new site (the chance is for the true effect at a site like those pooled)', [spread]),
     ...section('Notes on the pooling', notes),
   ];
+}
+
+/** Which method made the new-site interval, with the plug-in t interval beside a bootstrap one. */
+function newSiteMethodLine(p: AnalysisReport['twoStage']['pooled'][number]): string {
+  const n = p.prediction;
+  if (n.method === 'bootstrap-tau2')
+    return `  ${p.name}: new-site interval by bootstrap over the confidence distribution of tau² (bootstrap-tau2, ${n.draws} draws, seed ${n.seed}); the plug-in t interval would be ${sig(n.plugInT.lower)} to ${sig(n.plugInT.upper)}`;
+  return `  ${p.name}: new-site interval by plug-in t (plug-in-t: mean ± t(k−2)·sqrt(SE² + tau²), tau² taken as known)`;
 }
 
 function intervalWord(r: AnalysisReport): string {

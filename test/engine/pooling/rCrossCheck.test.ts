@@ -144,7 +144,7 @@ beforeAll(() => {
   run = runR(R_SCRIPT, files);
   for (const d of datasets) {
     const byMethod: Record<string, PooledResult> = {};
-    for (const m of ['reml', 'ml', 'dl', 'pm'] as Tau2Method[]) byMethod[`${m}_wald`] = poolEstimates(d.items, { tau2: m, interval: 'wald', confidence: 0.95, threshold: 0.8 });
+    for (const m of ['reml', 'ml', 'dl', 'pm'] as Tau2Method[]) byMethod[`${m}_wald`] = poolEstimates(d.items, { tau2: m, interval: 'wald', confidence: 0.95, threshold: 0.8, prediction: 'plug-in-t' });
     for (const m of ['reml', 'ml', 'dl', 'pm'] as Tau2Method[]) byMethod[`${m}_hksj`] = poolEstimates(d.items, { tau2: m, interval: 'hksj', confidence: 0.95, threshold: 0.8, moderators: m === 'reml' ? ['ph', 'soil'] : [] });
     results.set(d.name, byMethod);
   }
@@ -193,7 +193,7 @@ describe.each(datasets.map((d) => [d.name]))('R cross-check on simulated data %s
     }
   });
 
-  it('prediction interval (t on k - 2 df) and predictive probabilities (1e-6 relative)', () => {
+  it('plug-in-t prediction interval (t on k - 2 df) and predictive probabilities (1e-6 relative)', () => {
     const res = results.get(name)!;
     for (const m of ['reml', 'ml', 'dl', 'pm']) {
       const w = res[`${m}_wald`];
