@@ -97,6 +97,24 @@ export const rateResponseSchema = z
   })
   .strict();
 
+/**
+ * One plot left out: named by the field's own plot label (`plot`, the plot column of the data), or
+ * — only when asked for explicitly — by its row in the data file (`row`). Never by an internal id,
+ * so the same spec works on every workspace built from the same files.
+ */
+export const exclusionSchema = z
+  .object({
+    trial: z.string().min(1),
+    plot: z.union([z.string().min(1), z.number()]).optional(),
+    row: z.number().int().positive().optional(),
+    reason: z.string().min(1),
+  })
+  .strict()
+  .refine((e) => (e.plot === undefined) !== (e.row === undefined), {
+    message: 'name the plot by its label ("plot": "204") or, explicitly, by its file row ("row": 17) — exactly one of the two',
+  });
+export type ExclusionSpec = z.infer<typeof exclusionSchema>;
+
 export const analysisSpecSchema = z
   .object({
     trait: z.string().min(1).optional(),
@@ -114,7 +132,7 @@ export const analysisSpecSchema = z
     confidence: z.number().gt(0.5).lt(1).default(0.95),
     rateResponse: rateResponseSchema.nullable().optional(),
     /** Plots to leave out, each with the reason recorded in the result. */
-    exclude: z.array(z.object({ trial: z.string(), plot: z.union([z.string(), z.number()]), reason: z.string().min(1) })).default([]),
+    exclude: z.array(exclusionSchema).default([]),
   })
   .strict();
 
