@@ -84,6 +84,13 @@ export function checkMapping(mapping: ImportMapping, file: string): IntakeProble
   if (c.trait !== undefined && mapping.trait !== undefined) {
     out.push(problem(file, 0, 'trait', null, 'mapping-conflict', 'with a trait column (columns.trait) list the traits under "traits", not "trait"'));
   }
+  for (const factor of Object.keys(mapping.controlLevels ?? {})) {
+    if (mapping.control === undefined) out.push(problem(file, 0, 'controlLevels', factor, 'mapping-incomplete', 'controlLevels gives the control\'s levels, so the mapping must name the control ("control": "CTL")'));
+    if (!(factor in (c.factors ?? {}))) {
+      const known = Object.keys(c.factors ?? {});
+      out.push(problem(file, 0, `controlLevels.${factor}`, factor, 'mapping-unknown-factor', `controlLevels names factor "${factor}", which is not under columns.factors (${known.length ? known.map((k) => `"${k}"`).join(', ') : 'none'})`));
+    }
+  }
   const traits = [...(mapping.trait ? [['trait', mapping.trait] as const] : []), ...(mapping.traits ?? []).map((t, i) => [`traits.${i}`, t] as const)];
   for (const [key, t] of traits) {
     try {

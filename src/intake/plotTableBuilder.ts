@@ -9,7 +9,7 @@ import type { RowCells } from './rowCells.js';
 import type { ProblemList } from './problems.js';
 import type { PlotSink } from './plotSink.js';
 import type { ImportMapping, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
-import { covariateTable, factorsAndTreatments } from './plotTableLevels.js';
+import { controlLevel, covariateTable, factorsAndTreatments } from './plotTableLevels.js';
 import { toCanonical } from './units.js';
 
 interface TraitState {
@@ -462,11 +462,19 @@ export class PlotTableBuilder {
         if (r.equals(fi, first)) continue;
         const a = r.number(fi, this.mode);
         if (!Number.isNaN(a) && a === parseDecimal(first, this.mode)) continue;
+        if (this.sameControlLevel(t.code, factors[k].name, first, r.text(fi))) continue;
         this.problems.add(rowNo, factors[k].column, r.text(fi), 'treatment-levels-disagree', `treatment "${t.code}" has ${factors[k].name} "${first}" on row ${t.firstRow}`);
       }
     }
     this.lastTreatment = t;
     return t;
+  }
+
+  /** A blank and the control's stated level (0 unless the mapping says otherwise) are the same level of the control. */
+  private sameControlLevel(code: string, factor: string, a: string, b: string): boolean {
+    if (code !== this.mapping.control || (a !== '' && b !== '')) return false;
+    const written = parseDecimal(a === '' ? b : a, this.mode);
+    return !Number.isNaN(written) && written === controlLevel(factor, this.mapping.controlLevels);
   }
 
   private layoutNumber(r: RowCells, index: number, rowNo: number): number | null {
@@ -544,7 +552,7 @@ export class PlotTableBuilder {
       trials.push({ key: t.key, site: t.site, year: t.year, design });
     }
     problems.throwIfAny();
-    const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode);
+    const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode, { control, controlLevels: this.mapping.controlLevels });
     return {
       rowsRead: this.rowsRead,
       protocol: this.mapping.protocol ?? 'default',

@@ -25,7 +25,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   const logOffset = networkLogOffset(network, spec);
   const contrasts = spec.contrasts.map((c) => {
     try {
-      return resolveContrast(c, network.treatments, control);
+      return resolveContrast(c, network.treatments, control, network.factors);
     } catch (e) {
       throw new ManyfieldError('invalid-argument', (e as Error).message);
     }
