@@ -1,7 +1,8 @@
 // The `manyfield` command, built on the api handler map. Errors go to stderr with a
 // non-zero exit code; a failed command writes nothing.
-import { readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
-import { api, type HandlerArgs } from '../api/handlers.js';
+import { existsSync, readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
+import { api, type HandlerArgs, type HandlerResults } from '../api/handlers.js';
 import type { Result } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
 import { optionsFor, parseArgs, UsageError } from './args.js';
@@ -70,7 +71,8 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
         { onProgress: progress.onProgress },
       );
       progress.done();
-      return report(r, (d) => (o.flag('json') ? json(d) : `Imported ${d.file} into ${d.workspace}${d.created ? ' (new workspace)' : ''}: ${describeSummary(d.summary)}\n`), out);
+      if (r.ok) for (const w of r.data.warnings) process.stderr.write(`manyfield: warning: ${w}\n`);
+      return report(r, (d) => (o.flag('json') ? json(d) : `Imported ${d.file} into ${d.workspace}${d.created ? ' (new workspace)' : ''}: ${describeSummary(d.summary)}${d.warnings.length ? `; ${d.warnings.length} value${d.warnings.length > 1 ? 's' : ''} to check (listed above)` : ''}\n`), out);
     }
     case 'trials': {
       const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
@@ -93,23 +95,33 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const data = o.value('data');
       const workspace = o.value('workspace');
       if ((data === undefined) === (workspace === undefined)) throw new UsageError('analyze: give exactly one of --data and --workspace');
+      const target = o.value('out');
+      if (target !== undefined) checkOutputFolder(target);
       const progress = terminalProgress();
       const controller = new AbortController();
       const onSigint = () => controller.abort();
       process.once('SIGINT', onSigint);
+      // The output is rendered and written (to a temporary file beside the target) before the
+      // workspace stores the analysis: if that fails, the handler fails and stores nothing.
+      let text = '';
+      let partial: string | null = null;
+      const deliver = (d: unknown): void => {
+        text = o.flag('json') ? json(d) : formatReport(d as HandlerResults['analysis.run']);
+        if (target !== undefined) partial = writePartial(target, text);
+      };
       // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.
-      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal });
+      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal, deliver });
       process.off('SIGINT', onSigint);
       progress.done();
-      const target = o.value('out');
-      return report(r, (d) => {
-        const text = o.flag('json') ? json(d) : formatReport(d);
-        if (target) {
-          writeAtomically(target, text);
-          return `Wrote the analysis to ${target}\n`;
-        }
-        return text;
-      }, out);
+      if (!r.ok) {
+        if (partial !== null) rmSync(partial, { force: true });
+        return report(r, () => '', out);
+      }
+      if (target !== undefined && partial !== null) {
+        renameSync(partial, target);
+        out.stdout.push(`Wrote the analysis to ${target}\n`);
+      } else out.stdout.push(text);
+      return 0;
     }
     default:
       throw new UsageError(`unknown command "${command}"`);
@@ -143,6 +155,24 @@ function readJson(path: string): unknown {
   } catch (e) {
     throw new Error(`the spec file ${path} is not valid JSON: ${(e as Error).message}`);
   }
+}
+
+/** Fails before any work when the output's folder is missing, so minutes of fitting are not lost. */
+function checkOutputFolder(target: string): void {
+  const folder = dirname(resolve(target));
+  if (!existsSync(folder)) throw new Error(`cannot write ${target}: the folder ${folder} does not exist; nothing was analysed or stored`);
+}
+
+/** Writes the output beside its target; the caller renames it into place once all else succeeded. */
+function writePartial(target: string, content: string): string {
+  const tmp = `${target}.partial-${process.pid}`;
+  try {
+    writeFileSync(tmp, content);
+  } catch (e) {
+    rmSync(tmp, { force: true });
+    throw new Error(`cannot write ${target}: ${(e as Error).message}; nothing was stored`);
+  }
+  return tmp;
 }
 
 function writeAtomically(path: string, content: string): void {

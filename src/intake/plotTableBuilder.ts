@@ -66,6 +66,10 @@ const NUMBER_HINT: Record<DecimalMode, string> = {
   either: 'a number is expected',
 };
 
+/** A number written with a decimal comma (12,4), refused in a file read with decimal points. */
+const DECIMAL_COMMA = /^\s*[-+]?\d+,\d+\s*$/;
+const DECIMAL_COMMA_HINT = '; it looks like a decimal comma: if the file writes decimals that way, set "decimalComma": true in the mapping (with analyze --data, in the spec\'s "reading")';
+
 /** Two small non-negative integers as one small-integer map key; null when they do not fit. */
 function smallPair(a: number, b: number): number | null {
   return a >= 0 && b >= 0 && a < 16384 && b < 16384 ? a * 16384 + b : null;
@@ -494,7 +498,8 @@ export class PlotTableBuilder {
     if (Number.isNaN(raw) && r.isMissing(i)) return null;
     const column = this.cellName(i);
     if (Number.isNaN(raw)) {
-      this.problems.add(rowNo, column, r.text(i), 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}`);
+      const text = r.text(i);
+      this.problems.add(rowNo, column, text, 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}${this.mode === 'point' && DECIMAL_COMMA.test(text) ? DECIMAL_COMMA_HINT : ''}; an empty cell, NA, n/a, "." or "-" marks a missing value`);
       return null;
     }
     if (!Number.isFinite(raw)) {

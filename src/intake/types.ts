@@ -122,4 +122,6 @@ export interface ParsedPlotTable {
   /** Trial-level covariates read from covariate columns: trialKey -> name -> value. */
   readonly trialCovariates: Readonly<Record<string, Readonly<Record<string, number | string | null>>>>;
   readonly mapping: ImportMapping;
+  /** Things the import keeps but the user should look at (implausible values), with row and column. */
+  readonly warnings?: readonly IntakeProblem[];
 }

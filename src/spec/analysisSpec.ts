@@ -131,6 +131,11 @@ export const analysisSpecSchema = z
     threshold: z.number().default(0),
     confidence: z.number().gt(0.5).lt(1).default(0.95),
     rateResponse: rateResponseSchema.nullable().optional(),
+    /** How to read the data file of `analyze --data` (the mapping's reader options). */
+    reading: z
+      .object({ decimalComma: z.boolean().optional(), sheet: z.string().min(1).optional(), delimiter: z.string().length(1).optional() })
+      .strict()
+      .optional(),
     /** Plots to leave out, each with the reason recorded in the result. */
     exclude: z.array(exclusionSchema).default([]),
   })
