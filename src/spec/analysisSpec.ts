@@ -4,30 +4,38 @@ import { z } from './zod.js';
 
 const contrastName = z.string().min(1).max(120);
 
+/** A method or option name matched in any case ("DL", "Reml", "HKSJ"), stored in lower case. */
+function looseEnum<const T extends readonly [string, ...string[]]>(values: T) {
+  return z
+    .string()
+    .transform((s) => s.trim().toLowerCase())
+    .pipe(z.enum(values));
+}
+
 export const coefficientContrastSchema = z.object({
   name: contrastName,
   coefficients: z.record(z.string(), z.number().finite()),
   divisor: z.number().finite().refine((d) => d !== 0, 'divisor must not be zero').default(1),
-});
+}).strict();
 
 export const factorLevelsContrastSchema = z.object({
   name: contrastName,
   factor: z.string().min(1),
   /** Mean at levels[0] minus mean at levels[1], averaged over the other factors. */
   levels: z.tuple([z.union([z.string(), z.number()]), z.union([z.string(), z.number()])]),
-});
+}).strict();
 
 export const trendContrastSchema = z.object({
   name: contrastName,
   trend: z.string().min(1),
   degree: z.union([z.literal(1), z.literal(2), z.literal(3)]).default(1),
-});
+}).strict();
 
 export const controlContrastSchema = z.object({
   name: contrastName,
   /** All treated treatments averaged, minus the control. */
   kind: z.literal('treated-vs-control'),
-});
+}).strict();
 
 export const contrastSpecSchema = z.union([
   coefficientContrastSchema,
@@ -60,13 +68,13 @@ export const columnsSchema = z
   .strict();
 export type ColumnsSpec = z.infer<typeof columnsSchema>;
 
-export const transformSchema = z.enum(['none', 'log', 'logit', 'arcsine-sqrt', 'sqrt']);
+export const transformSchema = looseEnum(['none', 'log', 'logit', 'arcsine-sqrt', 'sqrt']);
 
 export const oneStageSchema = z
   .object({
     random: z.array(z.enum(['trial', 'block', 'treatment:trial'])).default(['trial', 'block', 'treatment:trial']),
-    residual: z.enum(['common', 'per-trial']).default('common'),
-    df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
+    residual: looseEnum(['common', 'per-trial']).default('common'),
+    df: looseEnum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */
     covariates: z.array(z.string()).default([]),
     /** Likelihood-ratio test of each variance component (one refit per component). */
@@ -78,8 +86,8 @@ export const oneStageSchema = z
 
 export const twoStageSchema = z
   .object({
-    tau2: z.enum(['reml', 'ml', 'dl', 'pm', 'fixed']).default('reml'),
-    interval: z.enum(['hksj', 'wald']).default('hksj'),
+    tau2: looseEnum(['reml', 'ml', 'dl', 'pm', 'fixed']).default('reml'),
+    interval: looseEnum(['hksj', 'wald']).default('hksj'),
     /** Keep the HKSJ interval from being narrower than the Wald interval. */
     hksjFloor: z.boolean().default(false),
   })
@@ -88,7 +96,7 @@ export const twoStageSchema = z
 export const rateResponseSchema = z
   .object({
     factor: z.string().min(1),
-    model: z.enum(['linear', 'quadratic', 'linear-plateau', 'quadratic-plateau', 'exponential', 'best']).default('quadratic'),
+    model: looseEnum(['linear', 'quadratic', 'linear-plateau', 'quadratic-plateau', 'exponential', 'best']).default('quadratic'),
     priceRatio: z.number().positive(),
     at: z.record(z.string(), z.union([z.string(), z.number()])).optional(),
     profitableWithin: z.number().nonnegative().default(0),
@@ -124,7 +132,7 @@ export const analysisSpecSchema = z
     /** Offset added before a log transform when zeros occur; default rule documented in the engine. */
     logOffset: z.number().nonnegative().optional(),
     contrasts: z.array(contrastSpecSchema).default([]),
-    pairwise: z.enum(['none', 'tukey', 'holm']).default('none'),
+    pairwise: looseEnum(['none', 'tukey', 'holm']).default('none'),
     oneStage: oneStageSchema.nullable().optional(),
     twoStage: twoStageSchema.nullable().optional(),
     moderators: z.array(z.string()).default([]),

@@ -13,11 +13,13 @@ import { ManyfieldError } from '../result.js';
 import { compareStages } from './agreement.js';
 import { RECOMMENDATION_CAUTIONS } from './cautions.js';
 import { applyExclusions } from './exclusions.js';
+import { checkSpecAgainstData } from './checkSpec.js';
 import { networkLogOffset, transformNetwork } from './transformNetwork.js';
 import type { AnalysisReport, TrialStageEntry, PooledEntry } from './report.js';
 
 export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Omit<AnalysisReport, 'provenance'> {
   const warnings: string[] = [];
+  checkSpecAgainstData(spec, input);
   const network = applyExclusions(input, spec.exclude, warnings);
   if (network.trials.length === 0) throw new ManyfieldError('invalid-input', `no trials hold data for trait "${network.trait}"`);
   const control = spec.control ?? network.control;
