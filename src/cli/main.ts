@@ -9,21 +9,8 @@ import { optionsFor, parseArgs, UsageError } from './args.js';
 import { toCsv } from './csv.js';
 import { formatReport } from './formatReport.js';
 import { formatTrials } from './formatTrials.js';
+import { commandHelp, USAGE } from './help.js';
 import { terminalProgress } from './progressBar.js';
-
-const USAGE = `manyfield ${APP_VERSION} — trials from many sites and years, one honest answer
-
-Commands:
-  demo     --workspace W [--replace]            build the invented demo network into W
-  import   --workspace W --file F --map M.json [--replace]
-                                                 load a plot file (CSV or XLSX) into W (created if new)
-  trials   --workspace W [--json]               list the trials held in W
-  export   --workspace W --trait T --out F.csv  write one trait's plots in long format
-  analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
-                                                 run the trial stage, pooling, the one-stage model
-                                                 and the rate response the spec asks for
-
-Exit codes: 0 done, 1 the operation failed (message on stderr), 2 the command line is wrong.`;
 
 interface Output {
   readonly stdout: string[];
@@ -38,7 +25,7 @@ export async function main(argv: readonly string[]): Promise<number> {
       return 0;
     }
     if (parsed.command === null || parsed.command === 'help' || parsed.options.help) {
-      process.stdout.write(`${USAGE}\n`);
+      process.stdout.write(`${(parsed.command !== null && commandHelp(parsed.command)) || USAGE}\n`);
       return 0;
     }
     const code = await runCommand(parsed.command, parsed, out);
@@ -46,7 +33,9 @@ export async function main(argv: readonly string[]): Promise<number> {
     return code;
   } catch (e) {
     if (e instanceof UsageError) {
-      process.stderr.write(`manyfield: ${e.message}\nRun "manyfield --help" for the commands.\n`);
+      const command = argv.find((a) => !a.startsWith('-'));
+      const helpFor = command !== undefined && commandHelp(command) !== null ? `manyfield ${command} --help` : 'manyfield --help';
+      process.stderr.write(`manyfield: ${e.message}\nRun "${helpFor}" for what it accepts.\n`);
       return 2;
     }
     process.stderr.write(`manyfield: ${(e as Error).message}\n`);
