@@ -119,7 +119,10 @@ export function resolveContrast(spec: ContrastSpec, treatments: readonly Treatme
  * which treatments and rates the trend used, and the one rule for the control's rate.
  */
 function trendPoints(factor: string, points: readonly TreatmentInfo[], x: readonly number[], control: string | undefined, unit: string | undefined): string {
-  const at = `trend over ${points.map((t) => t.code).join(', ')} at ${factor} ${x.map((v) => String(Number(v.toPrecision(10)))).join(', ')}${unit ? ` ${unit}` : ''}`;
+  // Listed by rate, then code, so the reader can pair each code with its rate.
+  const order = points.map((t, i) => i).sort((a, b) => x[a] - x[b] || (points[a].code < points[b].code ? -1 : 1));
+  const rates = [...new Set(order.map((i) => x[i]))].map((v) => String(Number(v.toPrecision(10))));
+  const at = `trend over ${order.map((i) => points[i].code).join(', ')} at ${factor}s ${rates.join(', ')}${unit ? ` ${unit}` : ''}`;
   if (control === undefined) return at;
   const inTrend = points.some((t) => t.code === control);
   return inTrend
