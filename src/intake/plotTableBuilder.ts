@@ -11,6 +11,7 @@ import type { PlotSink } from './plotSink.js';
 import type { ImportMapping, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
 import { controlLevel, covariateTable, factorsAndTreatments } from './plotTableLevels.js';
 import { toCanonical } from './units.js';
+import { didYouMean, listNames } from '../spec/closest.js';
 
 interface TraitState {
   readonly trait: ParsedTrait;
@@ -528,7 +529,8 @@ export class PlotTableBuilder {
     if (this.rowsRead === 0) problems.add(0, null, null, 'empty-file', 'the file has a header but no data rows');
     const control = this.mapping.control ?? null;
     if (control !== null && this.rowsRead > 0 && !this.treatments.has(control)) {
-      problems.add(0, treatmentColumn, control, 'unknown-treatment', `the control "${control}" named in the mapping never appears in the treatment column`);
+      const codes = this.treatmentList.map((t) => t.code);
+      problems.add(0, treatmentColumn, control, 'unknown-treatment', `the control "${control}" named in the ${this.mapping.columns.estimate === undefined && this.mapping.trait?.unit === 'as-is' ? 'spec' : 'mapping'} never appears in the treatment column; the codes there are ${listNames(codes)}${didYouMean(control, codes)}`);
     }
     const trials: ParsedTrial[] = [];
     for (const t of this.trials.values()) {
