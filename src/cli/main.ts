@@ -1,6 +1,6 @@
 // The `manyfield` command, built on the api handler map. Errors go to stderr with a
 // non-zero exit code; a failed command writes nothing.
-import { existsSync, readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
+import { existsSync, readFileSync, renameSync, statSync, writeFileSync, rmSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { api, type HandlerArgs, type HandlerResults } from '../api/handlers.js';
 import type { Result } from '../api/result.js';
@@ -150,6 +150,7 @@ function readJson(path: string): unknown {
 function checkOutputFolder(target: string): void {
   const folder = dirname(resolve(target));
   if (!existsSync(folder)) throw new Error(`cannot write ${target}: the folder ${folder} does not exist; nothing was analysed or stored`);
+  if (existsSync(target) && statSync(target).isDirectory()) throw new Error(`cannot write ${target}: it is a folder; give a file name; nothing was analysed or stored`);
 }
 
 /** Writes the output beside its target; the caller renames it into place once all else succeeded. */
