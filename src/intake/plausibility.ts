@@ -50,8 +50,9 @@ export function screenPlausibility(groups: Iterable<ValueGroup>, file: string, c
 function implausible(file: string, column: string, g: ValueGroup, value: number, row: number, mid: number, z: number, n: number, unit: string): IntakeProblem {
   // A ratio near a power of ten (81.0 against 8.1) points at a slipped decimal point or a unit.
   const decades = mid !== 0 && value !== 0 ? Math.log10(Math.abs(value / mid)) : NaN;
-  const slip = Number.isFinite(decades) && Math.round(decades) !== 0 && Math.abs(decades - Math.round(decades)) < 0.15
-    ? ` (about ${fmt(value / mid)} times the median: a slipped decimal point or another unit?)`
+  const power = Math.round(decades);
+  const slip = Number.isFinite(decades) && power !== 0 && Math.abs(decades - power) < 0.15
+    ? ` (about ${power > 0 ? `${10 ** power} times` : `1/${10 ** -power} of`} the median: a slipped decimal point or another unit?)`
     : '';
   return {
     file,
