@@ -13,7 +13,7 @@ import { fileHash, storedAnalyses, writeJson } from './support.js';
 const SPEC = {
   trait: 'yield',
   control: 'CTL',
-  contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' }],
+  contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' as const }],
   oneStage: null,
   twoStage: { tau2: 'reml', interval: 'hksj' },
 };

@@ -21,7 +21,9 @@ export function splitPlots(trial: TrialInput, treatments: readonly TreatmentInfo
   const excluded: ExcludedPlot[] = [];
   for (const plot of trial.plots) {
     const id = plot.plotId ?? null;
-    if (!known.has(plot.treatment)) throw new TrialInputError(trial.trial, `treatment "${plot.treatment}" is not in the protocol (known: ${[...known].join(', ')})`, id);
+    // Errors name the plot as the user knows it: the field's label where there is one.
+    const shown = plot.label ?? id;
+    if (!known.has(plot.treatment)) throw new TrialInputError(trial.trial, `treatment "${plot.treatment}" is not in the protocol (known: ${[...known].join(', ')})`, shown);
     if (plot.excluded) {
       excluded.push({ plotId: id, label: plot.label ?? null, treatment: plot.treatment, reason: plot.excluded.reason });
       continue;
@@ -30,8 +32,8 @@ export function splitPlots(trial: TrialInput, treatments: readonly TreatmentInfo
       missing.push({ plotId: id, label: plot.label ?? null, treatment: plot.treatment });
       continue;
     }
-    if (!Number.isFinite(plot.value)) throw new TrialInputError(trial.trial, `value ${plot.value} is not a finite number`, id);
-    requireLayout(trial, plot, id);
+    if (!Number.isFinite(plot.value)) throw new TrialInputError(trial.trial, `value ${plot.value} is not a finite number`, shown);
+    requireLayout(trial, plot, shown);
     used.push(plot as UsedPlot);
   }
   return { used, missing, excluded };
