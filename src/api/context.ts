@@ -14,6 +14,11 @@ export interface ProgressEvent {
 export interface CallContext {
   readonly onProgress?: (event: ProgressEvent) => void;
   readonly signal?: AbortSignal;
+  /**
+   * In-process callers only: receives the finished result before anything is stored. If it
+   * throws (an output file that cannot be written), the operation fails and stores nothing.
+   */
+  readonly deliver?: (result: unknown) => void | Promise<void>;
 }
 
 export function throwIfCancelled(ctx: CallContext | undefined): void {

@@ -7,6 +7,7 @@ import { importMappingSchema } from '../intake/types.js';
 import type { CallContext } from './context.js';
 import { fail, ok, type Result } from './result.js';
 import { toApiError } from './errors.js';
+import { describeIssues } from '../spec/describeIssues.js';
 import type { DemoSummary } from './workspace/demo.js';
 import type { ImportOutcome } from './workspace/importFile.js';
 import type { ExportedTable } from './workspace/browse.js';
@@ -55,7 +56,11 @@ const implementations: Implementations = {
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {
   return (async (raw: unknown, ctx?: CallContext) => {
     const parsed = handlerArgs[name].safeParse(raw);
-    if (!parsed.success) return fail('invalid-argument', `${name}: ${z.prettifyError(parsed.error)}`, parsed.error.issues);
+    if (!parsed.success) {
+      const lines = describeIssues(handlerArgs[name], raw, parsed.error.issues, '');
+      const what = name === 'analysis.run' ? 'the analysis spec' : `the arguments of ${name}`;
+      return fail('invalid-argument', `${what} ${lines.length > 1 ? `has ${lines.length} problems` : 'has a problem'}:\n  ${lines.join('\n  ')}`, parsed.error.issues);
+    }
     try {
       const impl = implementations[name] as (a: unknown, c?: CallContext) => Promise<HandlerResults[K]> | HandlerResults[K];
       return ok(await impl(parsed.data, ctx));

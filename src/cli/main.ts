@@ -1,34 +1,16 @@
 // The `manyfield` command, built on the api handler map. Errors go to stderr with a
 // non-zero exit code; a failed command writes nothing.
-import { readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
-import { api, type HandlerArgs } from '../api/handlers.js';
+import { existsSync, readFileSync, renameSync, statSync, writeFileSync, rmSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
+import { api, type HandlerArgs, type HandlerResults } from '../api/handlers.js';
 import type { Result } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
 import { optionsFor, parseArgs, UsageError } from './args.js';
 import { toCsv } from './csv.js';
 import { formatReport } from './formatReport.js';
 import { formatTrials } from './formatTrials.js';
+import { commandHelp, USAGE } from './help.js';
 import { terminalProgress } from './progressBar.js';
-
-const USAGE = `manyfield ${APP_VERSION} — trials from many sites and years, one honest answer
-
-Commands:
-  demo     --workspace W [--replace]            build the invented demo network into W
-  import   --workspace W --file F --map M.json [--replace]
-                                                 load a plot file (CSV or XLSX) into W (created if new)
-  trials   --workspace W [--json]               list the trials held in W
-  export   --workspace W --trait T --out F.csv  write one trait's plots in long format
-  analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
-                                                 run the trial stage, pooling, the one-stage model
-                                                 and the rate response the spec asks for
-
-The spec (JSON) names the trait, contrasts, the one-stage model, pooling and the rate response;
-the README lists every key. One-stage random terms are named in words: trial, block,
-treatment-by-trial. Without --json, analyze prints a summary to read: the effect of each contrast
-with its interval and unit, treatment means, each trial's effects and CV, moderators, one
-recommended rate with the reason for it, warnings and cautions. --json prints every number.
-
-Exit codes: 0 done, 1 the operation failed (message on stderr), 2 the command line is wrong.`;
 
 interface Output {
   readonly stdout: string[];
@@ -43,7 +25,7 @@ export async function main(argv: readonly string[]): Promise<number> {
       return 0;
     }
     if (parsed.command === null || parsed.command === 'help' || parsed.options.help) {
-      process.stdout.write(`${USAGE}\n`);
+      process.stdout.write(`${(parsed.command !== null && commandHelp(parsed.command)) || USAGE}\n`);
       return 0;
     }
     const code = await runCommand(parsed.command, parsed, out);
@@ -51,7 +33,9 @@ export async function main(argv: readonly string[]): Promise<number> {
     return code;
   } catch (e) {
     if (e instanceof UsageError) {
-      process.stderr.write(`manyfield: ${e.message}\nRun "manyfield --help" for the commands.\n`);
+      const command = argv.find((a) => !a.startsWith('-'));
+      const helpFor = command !== undefined && commandHelp(command) !== null ? `manyfield ${command} --help` : 'manyfield --help';
+      process.stderr.write(`manyfield: ${e.message}\nRun "${helpFor}" for what it accepts.\n`);
       return 2;
     }
     process.stderr.write(`manyfield: ${(e as Error).message}\n`);
@@ -76,7 +60,8 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
         { onProgress: progress.onProgress },
       );
       progress.done();
-      return report(r, (d) => (o.flag('json') ? json(d) : `Imported ${d.file} into ${d.workspace}${d.created ? ' (new workspace)' : ''}: ${describeSummary(d.summary)}\n`), out);
+      if (r.ok) for (const w of r.data.warnings) process.stderr.write(`manyfield: warning: ${w}\n`);
+      return report(r, (d) => (o.flag('json') ? json(d) : `Imported ${d.file} into ${d.workspace}${d.created ? ' (new workspace)' : ''}: ${describeSummary(d.summary)}${d.warnings.length ? `; ${d.warnings.length} value${d.warnings.length > 1 ? 's' : ''} to check (listed above)` : ''}\n`), out);
     }
     case 'trials': {
       const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
@@ -99,23 +84,33 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const data = o.value('data');
       const workspace = o.value('workspace');
       if ((data === undefined) === (workspace === undefined)) throw new UsageError('analyze: give exactly one of --data and --workspace');
+      const target = o.value('out');
+      if (target !== undefined) checkOutputFolder(target);
       const progress = terminalProgress();
       const controller = new AbortController();
       const onSigint = () => controller.abort();
       process.once('SIGINT', onSigint);
+      // The output is rendered and written (to a temporary file beside the target) before the
+      // workspace stores the analysis: if that fails, the handler fails and stores nothing.
+      let text = '';
+      let partial: string | null = null;
+      const deliver = (d: unknown): void => {
+        text = o.flag('json') ? json(d) : formatReport(d as HandlerResults['analysis.run']);
+        if (target !== undefined) partial = writePartial(target, text);
+      };
       // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.
-      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal });
+      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal, deliver });
       process.off('SIGINT', onSigint);
       progress.done();
-      const target = o.value('out');
-      return report(r, (d) => {
-        const text = o.flag('json') ? json(d) : formatReport(d);
-        if (target) {
-          writeAtomically(target, text);
-          return `Wrote the analysis to ${target}\n`;
-        }
-        return text;
-      }, out);
+      if (!r.ok) {
+        if (partial !== null) rmSync(partial, { force: true });
+        return report(r, () => '', out);
+      }
+      if (target !== undefined && partial !== null) {
+        renameSync(partial, target);
+        out.stdout.push(`Wrote the analysis to ${target}\n`);
+      } else out.stdout.push(text);
+      return 0;
     }
     default:
       throw new UsageError(`unknown command "${command}"`);
@@ -149,6 +144,25 @@ function readJson(path: string): unknown {
   } catch (e) {
     throw new Error(`the spec file ${path} is not valid JSON: ${(e as Error).message}`);
   }
+}
+
+/** Fails before any work when the output's folder is missing, so minutes of fitting are not lost. */
+function checkOutputFolder(target: string): void {
+  const folder = dirname(resolve(target));
+  if (!existsSync(folder)) throw new Error(`cannot write ${target}: the folder ${folder} does not exist; nothing was analysed or stored`);
+  if (existsSync(target) && statSync(target).isDirectory()) throw new Error(`cannot write ${target}: it is a folder; give a file name; nothing was analysed or stored`);
+}
+
+/** Writes the output beside its target; the caller renames it into place once all else succeeded. */
+function writePartial(target: string, content: string): string {
+  const tmp = `${target}.partial-${process.pid}`;
+  try {
+    writeFileSync(tmp, content);
+  } catch (e) {
+    rmSync(tmp, { force: true });
+    throw new Error(`cannot write ${target}: ${(e as Error).message}; nothing was stored`);
+  }
+  return tmp;
 }
 
 function writeAtomically(path: string, content: string): void {

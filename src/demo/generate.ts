@@ -113,7 +113,8 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
           count[t.code] = (count[t.code] ?? 0) + 1;
         }
         const plotIndex = plots.length;
-        plots.push({ trialKey: key, treatment: t.code, block, row: cell.row, col: cell.col, sourceRow: plotIndex + 2 });
+        // The field's plot number: replicate row times 100 plus the plot's place in it (101, 102 ... 201 ...).
+        plots.push({ trialKey: key, treatment: t.code, block, row: cell.row, col: cell.col, plotId: String(cell.row * 100 + cell.col), sourceRow: plotIndex + 2 });
         observations.push({ plot: plotIndex, trait: 'yield', value: round(yieldValue, 3) });
         observations.push({ plot: plotIndex, trait: 'protein', value: round(proteinValue, 2) });
       }
@@ -162,7 +163,7 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
     observations,
     trialCovariates,
     mapping: {
-      columns: { site: 'site', year: 'year', trial: 'trial', block: 'block', treatment: 'treatment', response: 'yield', row: 'row', col: 'col', factors: { rate: 'rate', timing: 'timing' } },
+      columns: { site: 'site', year: 'year', trial: 'trial', block: 'block', treatment: 'treatment', response: 'yield', row: 'row', col: 'col', plot: 'plot', factors: { rate: 'rate', timing: 'timing' } },
       trait: { name: 'yield', unit: 't/ha' },
       control: 'CTL',
       factorUnits: { rate: 'kg/ha' },

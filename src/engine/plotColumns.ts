@@ -45,6 +45,8 @@ export function plotsFromColumns(c: PlotColumns): PlotObservation[] {
     const col = t.col ? t.col[i] : NaN;
     out[k] = {
       plotId: t.plotText?.[i] ?? t.sourceRow[i],
+      label: t.plotText?.[i] ?? null,
+      sourceRow: t.sourceRow[i],
       treatment: t.treatmentCodes[t.treatment[i]],
       block: b < 0 ? null : t.blockLabels[b],
       row: Number.isNaN(row) ? null : row,

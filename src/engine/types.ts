@@ -22,7 +22,12 @@ export interface TreatmentInfo {
 }
 
 export interface PlotObservation {
+  /** Identity within the source: the workspace's plot id, or the file's plot label / row. */
   readonly plotId?: string | number;
+  /** The field's own plot label (the file's plot column), when it had one. */
+  readonly label?: string | null;
+  /** Row of the plot's (first) line in its file, as a spreadsheet numbers it. */
+  readonly sourceRow?: number | null;
   readonly treatment: string;
   readonly block: string | null;
   readonly row: number | null;

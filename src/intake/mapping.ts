@@ -1,7 +1,9 @@
 // The mapping file: read, check against the schema, then check it makes sense (the columns a
 // plot table needs, known units). Every complaint names the file and the key.
 import { readFileSync } from 'node:fs';
-import { importMappingSchema, IntakeError, type ImportMapping, type IntakeProblem } from './types.js';
+import { columnsSchema } from '../spec/analysisSpec.js';
+import { didYouMean } from '../spec/closest.js';
+import { importMappingSchema, IntakeError, traitMappingSchema, type ImportMapping, type IntakeProblem } from './types.js';
 import { toCanonical, UnitError } from './units.js';
 
 function problem(file: string, row: number, column: string | null, value: string | null, rule: string, message: string): IntakeProblem {
@@ -58,7 +60,7 @@ export function parseMapping(json: unknown, file: string): ImportMapping {
       return keys.map((path) => {
         const key = path.map(String).join('.') || '(top level)';
         const rule = issue.code === 'unrecognized_keys' ? 'mapping-unknown-key' : 'mapping-schema';
-        const message = issue.code === 'unrecognized_keys' ? `unknown key "${key}" in the mapping` : `mapping key "${key}": ${issue.message}`;
+        const message = issue.code === 'unrecognized_keys' ? unknownKeyMessage(key, issue.path, String(path[path.length - 1])) : `mapping key "${key}": ${issue.message}`;
         return problem(file, 0, key, showValue(valueAt(json, path)), rule, message);
       });
     });
@@ -67,6 +69,21 @@ export function parseMapping(json: unknown, file: string): ImportMapping {
   const problems = checkMapping(parsed.data, file);
   if (problems.length > 0) throw new IntakeError(problems);
   return parsed.data;
+}
+
+/** The keys allowed where an unknown key was found, for the message. */
+function keysAt(path: readonly PropertyKey[]): string[] {
+  if (path.length === 0) return Object.keys(importMappingSchema.shape);
+  if (path[0] === 'columns' && path.length === 1) return Object.keys(columnsSchema.shape);
+  if (path[0] === 'trait' || path[0] === 'traits') return Object.keys(traitMappingSchema.shape);
+  return [];
+}
+
+function unknownKeyMessage(key: string, parent: readonly PropertyKey[], typed: string): string {
+  const allowed = keysAt(parent);
+  if (allowed.length === 0) return `unknown key "${key}" in the mapping`;
+  const where = parent.length === 0 ? 'at the top level' : `under "${parent.map(String).join('.')}"`;
+  return `unknown key "${key}" in the mapping; the keys allowed ${where} are ${allowed.map((k) => `"${k}"`).join(', ')}${didYouMean(typed, allowed)} (all keys: manyfield import --help)`;
 }
 
 /** Checks a schema-valid mapping can describe a plot table: required columns named, units known. */
@@ -83,6 +100,13 @@ export function checkMapping(mapping: ImportMapping, file: string): IntakeProble
   }
   if (c.trait !== undefined && mapping.trait !== undefined) {
     out.push(problem(file, 0, 'trait', null, 'mapping-conflict', 'with a trait column (columns.trait) list the traits under "traits", not "trait"'));
+  }
+  for (const factor of Object.keys(mapping.controlLevels ?? {})) {
+    if (mapping.control === undefined) out.push(problem(file, 0, 'controlLevels', factor, 'mapping-incomplete', 'controlLevels gives the control\'s levels, so the mapping must name the control ("control": "CTL")'));
+    if (!(factor in (c.factors ?? {}))) {
+      const known = Object.keys(c.factors ?? {});
+      out.push(problem(file, 0, `controlLevels.${factor}`, factor, 'mapping-unknown-factor', `controlLevels names factor "${factor}", which is not under columns.factors (${known.length ? known.map((k) => `"${k}"`).join(', ') : 'none'})`));
+    }
   }
   const traits = [...(mapping.trait ? [['trait', mapping.trait] as const] : []), ...(mapping.traits ?? []).map((t, i) => [`traits.${i}`, t] as const)];
   for (const [key, t] of traits) {

@@ -76,7 +76,10 @@ export function parseDecimalRange(s: string, from: number, to: number, mode: Dec
   return Number(text);
 }
 
-/** Cell text that means "no value": empty, blanks only, or R's NA. */
+/** The words a plot file may write for "no value", besides an empty cell (any case). */
+export const MISSING_TOKENS = ['NA', 'n/a', '.', '-'] as const;
+
+/** Cell text that means "no value": empty, blanks only, NA, n/a (any case), a lone "." or "-". */
 export function isMissingText(s: string): boolean {
   return isMissingRange(s, 0, s.length);
 }
@@ -87,5 +90,11 @@ export function isMissingRange(s: string, from: number, to: number): boolean {
   let n = to;
   while (i < n && isBlankCode(s.charCodeAt(i))) i++;
   while (n > i && isBlankCode(s.charCodeAt(n - 1))) n--;
-  return i === n || (n - i === 2 && s.charCodeAt(i) === 78 && s.charCodeAt(i + 1) === 65); // "NA"
+  const len = n - i;
+  if (len === 0) return true;
+  const c = s.charCodeAt(i);
+  if (len === 1) return c === 46 || c === 45; // "." or "-"
+  const a = c | 32; // lower case for letters
+  if (len === 2) return a === 110 && (s.charCodeAt(i + 1) | 32) === 97; // "na", "NA"
+  return len === 3 && a === 110 && s.charCodeAt(i + 1) === 47 && (s.charCodeAt(i + 2) | 32) === 97; // "n/a", "N/A"
 }

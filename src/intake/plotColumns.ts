@@ -45,13 +45,15 @@ export function findColumn(header: readonly string[], name: string): number {
 }
 
 /** Resolves every column the mapping names; adds a problem for each one missing or doubled. */
-export function resolveColumns(header: readonly string[], headerRow: number, mapping: ImportMapping, problems: ProblemList): PlotColumns | null {
+export function resolveColumns(header: readonly string[], headerRow: number, mapping: ImportMapping, problems: ProblemList, sheets?: { read: string; all: readonly string[] }): PlotColumns | null {
   let ok = true;
+  let missing = 0;
   const locate = (key: string, name: string | undefined): number => {
     if (name === undefined) return -1;
     const index = findColumn(header, name);
     if (index < 0) {
       ok = false;
+      missing++;
       problems.add(headerRow, name, null, 'missing-column', `column "${name}" (mapping key ${key}) is not in the header; the header has: ${listHeader(header)}`);
       return -1;
     }
@@ -78,5 +80,11 @@ export function resolveColumns(header: readonly string[], headerRow: number, map
     covariates: (c.covariates ?? []).map((column, i) => ({ name: column, column, index: locate(`columns.covariates.${i}`, column) })),
     header,
   };
+  if (missing > 0 && sheets !== undefined && sheets.all.length > 1) {
+    // A workbook whose first sheet holds notes or a cover page: say which sheets there are.
+    const others = sheets.all.filter((s) => s !== sheets.read);
+    const fit = others.find((s) => /data|plot|yield|trial/i.test(s)) ?? others[0];
+    problems.add(headerRow, null, sheets.read, 'wrong-sheet', `${missing} mapped column${missing > 1 ? 's are' : ' is'} not on sheet "${sheets.read}"${mapping.sheet === undefined ? ' (the workbook\'s first sheet, read when the mapping names none)' : ''}; the workbook also has ${others.map((s) => `"${s}"`).join(', ')}: choose the sheet with "sheet": "${fit}" in the mapping`);
+  }
   return ok ? resolved : null;
 }

@@ -9,8 +9,9 @@ import type { RowCells } from './rowCells.js';
 import type { ProblemList } from './problems.js';
 import type { PlotSink } from './plotSink.js';
 import type { ImportMapping, ParsedPlotTable, ParsedTrait, ParsedTrial } from './types.js';
-import { covariateTable, factorsAndTreatments } from './plotTableLevels.js';
+import { controlLevel, covariateTable, factorsAndTreatments } from './plotTableLevels.js';
 import { toCanonical } from './units.js';
+import { didYouMean, listNames } from '../spec/closest.js';
 
 interface TraitState {
   readonly trait: ParsedTrait;
@@ -65,6 +66,10 @@ const NUMBER_HINT: Record<DecimalMode, string> = {
   comma: 'a number written with a decimal comma (e.g. 12,4) is expected, as the mapping sets decimalComma',
   either: 'a number is expected',
 };
+
+/** A number written with a decimal comma (12,4), refused in a file read with decimal points. */
+const DECIMAL_COMMA = /^\s*[-+]?\d+,\d+\s*$/;
+const DECIMAL_COMMA_HINT = '; it looks like a decimal comma: if the file writes decimals that way, set "decimalComma": true in the mapping (with analyze --data, in the spec\'s "reading")';
 
 /** Two small non-negative integers as one small-integer map key; null when they do not fit. */
 function smallPair(a: number, b: number): number | null {
@@ -462,11 +467,19 @@ export class PlotTableBuilder {
         if (r.equals(fi, first)) continue;
         const a = r.number(fi, this.mode);
         if (!Number.isNaN(a) && a === parseDecimal(first, this.mode)) continue;
+        if (this.sameControlLevel(t.code, factors[k].name, first, r.text(fi))) continue;
         this.problems.add(rowNo, factors[k].column, r.text(fi), 'treatment-levels-disagree', `treatment "${t.code}" has ${factors[k].name} "${first}" on row ${t.firstRow}`);
       }
     }
     this.lastTreatment = t;
     return t;
+  }
+
+  /** A blank and the control's stated level (0 unless the mapping says otherwise) are the same level of the control. */
+  private sameControlLevel(code: string, factor: string, a: string, b: string): boolean {
+    if (code !== this.mapping.control || (a !== '' && b !== '')) return false;
+    const written = parseDecimal(a === '' ? b : a, this.mode);
+    return !Number.isNaN(written) && written === controlLevel(factor, this.mapping.controlLevels);
   }
 
   private layoutNumber(r: RowCells, index: number, rowNo: number): number | null {
@@ -486,7 +499,8 @@ export class PlotTableBuilder {
     if (Number.isNaN(raw) && r.isMissing(i)) return null;
     const column = this.cellName(i);
     if (Number.isNaN(raw)) {
-      this.problems.add(rowNo, column, r.text(i), 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}`);
+      const text = r.text(i);
+      this.problems.add(rowNo, column, text, 'not-a-number', `not a number: ${NUMBER_HINT[this.mode]}${this.mode === 'point' && DECIMAL_COMMA.test(text) ? DECIMAL_COMMA_HINT : ''}; an empty cell, NA, n/a, "." or "-" marks a missing value`);
       return null;
     }
     if (!Number.isFinite(raw)) {
@@ -515,7 +529,8 @@ export class PlotTableBuilder {
     if (this.rowsRead === 0) problems.add(0, null, null, 'empty-file', 'the file has a header but no data rows');
     const control = this.mapping.control ?? null;
     if (control !== null && this.rowsRead > 0 && !this.treatments.has(control)) {
-      problems.add(0, treatmentColumn, control, 'unknown-treatment', `the control "${control}" named in the mapping never appears in the treatment column`);
+      const codes = this.treatmentList.map((t) => t.code);
+      problems.add(0, treatmentColumn, control, 'unknown-treatment', `the control "${control}" named in the ${this.mapping.columns.estimate === undefined && this.mapping.trait?.unit === 'as-is' ? 'spec' : 'mapping'} never appears in the treatment column; the codes there are ${listNames(codes)}${didYouMean(control, codes)}`);
     }
     const trials: ParsedTrial[] = [];
     for (const t of this.trials.values()) {
@@ -544,7 +559,7 @@ export class PlotTableBuilder {
       trials.push({ key: t.key, site: t.site, year: t.year, design });
     }
     problems.throwIfAny();
-    const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode);
+    const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode, { control, controlLevels: this.mapping.controlLevels });
     return {
       rowsRead: this.rowsRead,
       protocol: this.mapping.protocol ?? 'default',

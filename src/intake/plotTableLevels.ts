@@ -1,6 +1,6 @@
 // Final shapes of a plot table's protocol and covariates: factor kinds are inferred from the
 // levels seen (all numbers -> numeric), numeric levels are converted to canonical units,
-// empty cells mean "not applicable".
+// empty cells mean "not applicable" — except for the control's numeric factors (the rule below).
 import type { FactorInfo, LevelValue, TreatmentInfo } from '../engine/types.js';
 import { parseDecimal, type DecimalMode } from './numbers.js';
 import type { NamedColumn } from './plotColumns.js';
@@ -12,11 +12,28 @@ export interface SeenTreatment {
   readonly raw: readonly string[];
 }
 
+/**
+ * The one rule for the untreated control: it received none of the input, so a blank level of a
+ * numeric factor (a rate) is 0 for the control, unless the mapping's controlLevels gives another
+ * value (or null: "not applicable", which keeps the control out of trends over that factor).
+ * Applied alike on import and on `analyze --data`, so a blank and a written 0 mean the same.
+ */
+export function controlLevel(factor: string, controlLevels: Readonly<Record<string, number | null>> | undefined): number | null {
+  const given = controlLevels?.[factor];
+  return given === undefined ? 0 : given;
+}
+
+export interface ControlRule {
+  readonly control: string | null;
+  readonly controlLevels?: Readonly<Record<string, number | null>>;
+}
+
 export function factorsAndTreatments(
   seen: readonly SeenTreatment[],
   factorColumns: readonly NamedColumn[],
   factorUnits: Readonly<Record<string, string>> | undefined,
   mode: DecimalMode,
+  rule: ControlRule = { control: null },
 ): { factors: FactorInfo[]; treatments: TreatmentInfo[] } {
   const factors: FactorInfo[] = [];
   const scales: number[] = [];
@@ -35,7 +52,12 @@ export function factorsAndTreatments(
     const levels: Record<string, LevelValue> = {};
     factorColumns.forEach((fc, k) => {
       const raw = t.raw[k];
-      levels[fc.name] = raw === '' ? null : factors[k].kind === 'numeric' ? parseDecimal(raw, mode) * scales[k] : raw;
+      const numeric = factors[k].kind === 'numeric';
+      if (raw === '' && numeric && t.code === rule.control) {
+        // controlLevels are written in the factor's file unit, like the cells.
+        const level = controlLevel(fc.name, rule.controlLevels);
+        levels[fc.name] = level === null ? null : level * scales[k];
+      } else levels[fc.name] = raw === '' ? null : numeric ? parseDecimal(raw, mode) * scales[k] : raw;
     });
     return { code: t.code, levels };
   });

@@ -8,7 +8,8 @@ import { PlotTableBuilder, type PlotTableSummary } from './plotTableBuilder.js';
 import { PlotListSink, type PlotSink } from './plotSink.js';
 import { DEFAULT_MAX_PROBLEMS, ProblemList } from './problems.js';
 import { openRowSource } from './rowSource.js';
-import { IntakeError, type ImportMapping, type ParsedPlotTable } from './types.js';
+import { IntakeError, type ImportMapping, type IntakeProblem, type ParsedPlotTable, type ParsedTrait } from './types.js';
+import { screenPlausibility } from './plausibility.js';
 
 export interface ReadPlotOptions {
   /** Called now and then with the share of the file read (0..1), and with 1 at the end. */
@@ -39,7 +40,24 @@ export async function readPlotFile(filePath: string, given: ImportMapping, optio
     observations: sink.observations,
     trialCovariates: s.trialCovariates,
     mapping: s.mapping,
+    warnings: screenListedPlots(filePath, mapping, sink, s.traits),
   };
+}
+
+/** The plausibility screen over the plots and values a PlotListSink holds. */
+function screenListedPlots(filePath: string, mapping: ImportMapping, sink: PlotListSink, traits: readonly ParsedTrait[]): IntakeProblem[] {
+  const groups = new Map<string, { trial: string; trait: string; values: number[]; rows: number[] }>();
+  for (const o of sink.observations) {
+    if (o.value === null) continue;
+    const plot = sink.plots[o.plot];
+    const key = `${plot.trialKey}\u0000${o.trait}`;
+    let g = groups.get(key);
+    if (!g) groups.set(key, (g = { trial: plot.trialKey, trait: o.trait, values: [], rows: [] }));
+    g.values.push(o.value);
+    g.rows.push(plot.sourceRow);
+  }
+  const units = new Map(traits.map((t) => [t.name, t.unit]));
+  return screenPlausibility(groups.values(), filePath, mapping.columns.response ?? 'value', (t) => units.get(t) ?? '');
 }
 
 /**
@@ -54,7 +72,7 @@ export async function readPlotRows(filePath: string, mapping: ImportMapping, sin
     problems.throwIfAny();
     throw new Error('unreachable');
   }
-  const cols = resolveColumns(source.header, source.headerRow, mapping, problems);
+  const cols = resolveColumns(source.header, source.headerRow, mapping, problems, source.sheets);
   if (cols === null) {
     problems.throwIfAny();
     throw new Error('unreachable');
@@ -98,7 +116,8 @@ export function analysisMapping(filePath: string, spec: AnalysisSpec): ImportMap
   if (columns === undefined) {
     throw new IntakeError([{ file: filePath, row: 0, column: 'columns', value: null, rule: 'mapping-incomplete', message: 'the spec must have a "columns" object saying which column of the data file is what' }]);
   }
+  const reading = spec.reading ?? {};
   return columns.trait !== undefined
-    ? { columns, control: spec.control }
-    : { columns, trait: { name: spec.trait ?? columns.response ?? 'value', unit: 'as-is' }, control: spec.control };
+    ? { columns, control: spec.control, ...reading }
+    : { columns, trait: { name: spec.trait ?? columns.response ?? 'value', unit: 'as-is' }, control: spec.control, ...reading };
 }

@@ -20,6 +20,8 @@ export interface RowSource {
   /** Moves to the next row and returns its row number; 0 at the end. */
   next(): number;
   fraction(): number;
+  /** A workbook's sheets: the one read and all of them (undefined for CSV). */
+  readonly sheets?: { readonly read: string; readonly all: readonly string[] };
   /** Called once the rows are exhausted: adds structural problems (an unclosed quote). */
   finish(problems: ProblemList): void;
 }
@@ -97,8 +99,11 @@ class CsvRowSource implements RowSource {
 
 function openXlsx(filePath: string, bytes: Uint8Array, options: SourceOptions): RowSource | null {
   let rows: SheetRow[];
+  let sheets: { read: string; all: readonly string[] };
   try {
-    rows = readXlsxSheet(bytes, options.sheet).rows;
+    const data = readXlsxSheet(bytes, options.sheet);
+    rows = data.rows;
+    sheets = { read: data.sheetName, all: data.sheetNames };
   } catch (e) {
     // Any failure of a damaged workbook is reported as a problem of the file, never a crash.
     failWith(filePath, 'bad-xlsx', (e as Error).message, null, options.sheet ?? null);
@@ -110,6 +115,7 @@ function openXlsx(filePath: string, bytes: Uint8Array, options: SourceOptions): 
     header: rows[0].cells.map((h) => h.trim()),
     headerRow: rows[0].row,
     decimalMode: options.decimalComma === true ? 'either' : 'point',
+    sheets,
     cells,
     next() {
       if (k >= rows.length) return 0;

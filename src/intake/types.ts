@@ -22,6 +22,11 @@ export const importMappingSchema = z
     trait: traitMappingSchema.optional(),
     traits: z.array(traitMappingSchema).optional(),
     control: z.string().optional(),
+    /**
+     * The control's level of a numeric factor when its cell is blank, in the factor's file unit:
+     * 0 unless given here (null = not applicable, which keeps the control out of trends).
+     */
+    controlLevels: z.record(z.string(), z.number().finite().nullable()).optional(),
     /** When given, every treatment code in the file must be one of these. */
     treatments: z.array(z.string().min(1)).optional(),
     factorUnits: z.record(z.string(), z.string()).optional(),
@@ -117,4 +122,6 @@ export interface ParsedPlotTable {
   /** Trial-level covariates read from covariate columns: trialKey -> name -> value. */
   readonly trialCovariates: Readonly<Record<string, Readonly<Record<string, number | string | null>>>>;
   readonly mapping: ImportMapping;
+  /** Things the import keeps but the user should look at (implausible values), with row and column. */
+  readonly warnings?: readonly IntakeProblem[];
 }

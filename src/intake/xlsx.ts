@@ -14,6 +14,8 @@ export interface SheetRow {
 
 export interface SheetData {
   readonly sheetName: string;
+  /** Every sheet of the workbook, in workbook order (for a hint when the wrong one was read). */
+  readonly sheetNames: readonly string[];
   readonly rows: SheetRow[];
 }
 
@@ -247,7 +249,7 @@ export function readXlsxSheet(bytes: Uint8Array, sheetName?: string): SheetData 
     if (sheetXml === undefined) throw new XlsxFormatError(`the sheet part ${sheetPath} is missing`);
     const sharedXml = sharedPath === undefined ? undefined : partText(body, sharedPath);
     const shared = sharedXml === undefined ? [] : readSharedStrings(sharedXml);
-    return { sheetName: chosen.name, rows: readSheetRows(sheetXml, shared) };
+    return { sheetName: chosen.name, sheetNames: sheets.map((s) => s.name), rows: readSheetRows(sheetXml, shared) };
   } catch (e) {
     if (e instanceof XmlFormatError) throw new XlsxFormatError(`malformed XML in the workbook: ${e.message}`);
     throw e;

@@ -5,30 +5,38 @@ import { randomTermSchema } from './randomTerms.js';
 
 const contrastName = z.string().min(1).max(120);
 
+/** A method or option name matched in any case ("DL", "Reml", "HKSJ"), stored in lower case. */
+function looseEnum<const T extends readonly [string, ...string[]]>(values: T) {
+  return z
+    .string()
+    .transform((s) => s.trim().toLowerCase())
+    .pipe(z.enum(values));
+}
+
 export const coefficientContrastSchema = z.object({
   name: contrastName,
   coefficients: z.record(z.string(), z.number().finite()),
   divisor: z.number().finite().refine((d) => d !== 0, 'divisor must not be zero').default(1),
-});
+}).strict();
 
 export const factorLevelsContrastSchema = z.object({
   name: contrastName,
   factor: z.string().min(1),
   /** Mean at levels[0] minus mean at levels[1], averaged over the other factors. */
   levels: z.tuple([z.union([z.string(), z.number()]), z.union([z.string(), z.number()])]),
-});
+}).strict();
 
 export const trendContrastSchema = z.object({
   name: contrastName,
   trend: z.string().min(1),
   degree: z.union([z.literal(1), z.literal(2), z.literal(3)]).default(1),
-});
+}).strict();
 
 export const controlContrastSchema = z.object({
   name: contrastName,
   /** All treated treatments averaged, minus the control. */
   kind: z.literal('treated-vs-control'),
-});
+}).strict();
 
 export const contrastSpecSchema = z.union([
   coefficientContrastSchema,
@@ -61,13 +69,13 @@ export const columnsSchema = z
   .strict();
 export type ColumnsSpec = z.infer<typeof columnsSchema>;
 
-export const transformSchema = z.enum(['none', 'log', 'logit', 'arcsine-sqrt', 'sqrt']);
+export const transformSchema = looseEnum(['none', 'log', 'logit', 'arcsine-sqrt', 'sqrt']);
 
 export const oneStageSchema = z
   .object({
     random: z.array(randomTermSchema).default(['trial', 'block', 'treatment-by-trial']),
-    residual: z.enum(['common', 'per-trial']).default('common'),
-    df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
+    residual: looseEnum(['common', 'per-trial']).default('common'),
+    df: looseEnum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */
     covariates: z.array(z.string()).default([]),
     /** Likelihood-ratio test of each variance component (one refit per component). */
@@ -75,7 +83,7 @@ export const oneStageSchema = z
     /** Profile-likelihood intervals for the variance components (default: networks up to 200 trials). */
     profile: z.boolean().optional(),
     /** New-site prediction per contrast: 'bootstrap-tau2' (default) or 'plug-in-t', as for twoStage. */
-    prediction: z.enum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
+    prediction: looseEnum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
     predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
     predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
   })
@@ -83,8 +91,8 @@ export const oneStageSchema = z
 
 export const twoStageSchema = z
   .object({
-    tau2: z.enum(['reml', 'ml', 'dl', 'pm', 'fixed']).default('reml'),
-    interval: z.enum(['hksj', 'wald']).default('hksj'),
+    tau2: looseEnum(['reml', 'ml', 'dl', 'pm', 'fixed']).default('reml'),
+    interval: looseEnum(['hksj', 'wald']).default('hksj'),
     /** Keep the HKSJ interval from being narrower than the Wald interval. */
     hksjFloor: z.boolean().default(false),
     /**
@@ -92,7 +100,7 @@ export const twoStageSchema = z
      * tau² (parametric bootstrap over its confidence distribution); 'plug-in-t' is
      * mean ± t(k - 2) sqrt(SE² + tau²) with tau² taken as known.
      */
-    prediction: z.enum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
+    prediction: looseEnum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
     /** Bootstrap draws and seed: the same seed gives the same interval. */
     predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
     predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
@@ -102,7 +110,7 @@ export const twoStageSchema = z
 export const rateResponseSchema = z
   .object({
     factor: z.string().min(1),
-    model: z.enum(['linear', 'quadratic', 'linear-plateau', 'quadratic-plateau', 'exponential', 'best']).default('quadratic'),
+    model: looseEnum(['linear', 'quadratic', 'linear-plateau', 'quadratic-plateau', 'exponential', 'best']).default('quadratic'),
     priceRatio: z.number().positive(),
     at: z.record(z.string(), z.union([z.string(), z.number()])).optional(),
     profitableWithin: z.number().nonnegative().default(0),
@@ -110,6 +118,24 @@ export const rateResponseSchema = z
     seed: z.number().int().default(1),
   })
   .strict();
+
+/**
+ * One plot left out: named by the field's own plot label (`plot`, the plot column of the data), or
+ * — only when asked for explicitly — by its row in the data file (`row`). Never by an internal id,
+ * so the same spec works on every workspace built from the same files.
+ */
+export const exclusionSchema = z
+  .object({
+    trial: z.string().min(1),
+    plot: z.union([z.string().min(1), z.number()]).optional(),
+    row: z.number().int().positive().optional(),
+    reason: z.string().min(1),
+  })
+  .strict()
+  .refine((e) => (e.plot === undefined) !== (e.row === undefined), {
+    message: 'name the plot by its label ("plot": "204") or, explicitly, by its file row ("row": 17) — exactly one of the two',
+  });
+export type ExclusionSpec = z.infer<typeof exclusionSchema>;
 
 export const analysisSpecSchema = z
   .object({
@@ -120,15 +146,20 @@ export const analysisSpecSchema = z
     /** Offset added before a log transform when zeros occur; default rule documented in the engine. */
     logOffset: z.number().nonnegative().optional(),
     contrasts: z.array(contrastSpecSchema).default([]),
-    pairwise: z.enum(['none', 'tukey', 'holm']).default('none'),
+    pairwise: looseEnum(['none', 'tukey', 'holm']).default('none'),
     oneStage: oneStageSchema.nullable().optional(),
     twoStage: twoStageSchema.nullable().optional(),
     moderators: z.array(z.string()).default([]),
     threshold: z.number().default(0),
     confidence: z.number().gt(0.5).lt(1).default(0.95),
     rateResponse: rateResponseSchema.nullable().optional(),
+    /** How to read the data file of `analyze --data` (the mapping's reader options). */
+    reading: z
+      .object({ decimalComma: z.boolean().optional(), sheet: z.string().min(1).optional(), delimiter: z.string().length(1).optional() })
+      .strict()
+      .optional(),
     /** Plots to leave out, each with the reason recorded in the result. */
-    exclude: z.array(z.object({ trial: z.string(), plot: z.union([z.string(), z.number()]), reason: z.string().min(1) })).default([]),
+    exclude: z.array(exclusionSchema).default([]),
   })
   .strict();
 

@@ -51,16 +51,23 @@ export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
   ).map((r) => r.name);
   const covariatesOf = db.prepare('SELECT name, value_num, value_text FROM trial_covariate WHERE trial_id = ?');
 
+  // The field's plot labels go out when any exported plot has one, so exclusions by label work on the re-import.
+  const hasLabels =
+    db
+      .prepare('SELECT 1 FROM plot p JOIN observation o ON o.plot_id = p.id AND o.trait_id = ? WHERE p.label IS NOT NULL AND p.trial_id IN (SELECT value FROM json_each(?)) LIMIT 1')
+      .get(t.id, JSON.stringify(trials.map((r) => r.id))) !== undefined;
   const taken = new Set<string>();
-  const fixed = ['site', 'year', 'trial', 'design', 'block', 'row', 'col', 'treatment'].map((n) => uniqueName(taken, n));
+  const fixed = ['site', 'year', 'trial', 'design', 'block', 'row', 'col', 'treatment', 'plot'].map((n) => uniqueName(taken, n));
+  const plotCol = hasLabels ? fixed[8] : null;
   const factorCols = factorNames.map((n) => uniqueName(taken, n));
   const covariateCols = covariateNames.map((n) => uniqueName(taken, n));
   const valueCol = uniqueName(taken, t.name);
-  const header = [...fixed, ...factorCols, ...covariateCols, valueCol];
+  const firstFactor = hasLabels ? 9 : 8;
+  const header = [...fixed.slice(0, firstFactor), ...factorCols, ...covariateCols, valueCol];
 
   const plotsOf = db
     .prepare(
-      `SELECT p.treatment_id, tm.code, p.block, p.row, p.col, o.value FROM plot p
+      `SELECT p.treatment_id, tm.code, p.block, p.row, p.col, o.value, p.label FROM plot p
        JOIN treatment tm ON tm.id = p.treatment_id
        JOIN observation o ON o.plot_id = p.id AND o.trait_id = ?
        WHERE p.trial_id = ? ORDER BY p.id`,
@@ -77,7 +84,7 @@ export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
   for (const trial of trials) {
     const cov = new Map((covariatesOf.all(trial.id) as (StoredLevel & { name: string })[]).map((c) => [c.name, levelFromColumns(c)]));
     const covCells = covariateNames.map((n) => cov.get(n) ?? null);
-    for (const p of plotsOf.all(t.id, trial.id) as [number, string, string | null, number | null, number | null, number | null][]) {
+    for (const p of plotsOf.all(t.id, trial.id) as [number, string, string | null, number | null, number | null, number | null, string | null][]) {
       const f = factorCells.get(p[0]) ?? noLevels;
       const row: ExportCell[] = new Array(width);
       row[0] = trial.site;
@@ -88,8 +95,9 @@ export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
       row[5] = p[3];
       row[6] = p[4];
       row[7] = p[1];
-      for (let i = 0; i < nFactors; i++) row[8 + i] = f[i];
-      for (let i = 0; i < nCovariates; i++) row[8 + nFactors + i] = covCells[i];
+      if (hasLabels) row[8] = p[6];
+      for (let i = 0; i < nFactors; i++) row[firstFactor + i] = f[i];
+      for (let i = 0; i < nCovariates; i++) row[firstFactor + nFactors + i] = covCells[i];
       row[width - 1] = p[5];
       rows.push(row);
     }
@@ -109,6 +117,7 @@ export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
       row: fixed[5],
       col: fixed[6],
       treatment: fixed[7],
+      ...(plotCol === null ? {} : { plot: plotCol }),
       response: valueCol,
       ...(factorNames.length ? { factors: Object.fromEntries(factorNames.map((f, i) => [f, factorCols[i]])) } : {}),
       ...(covariateNames.length ? { covariates: covariateCols } : {}),

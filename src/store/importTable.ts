@@ -155,7 +155,7 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
     // Plot ids are assigned here, so observations can name their plot without a lookup; the
     // IMMEDIATE lock guarantees nobody else takes ids meanwhile.
     const firstPlotId = ((db.prepare('SELECT COALESCE(MAX(id), 0) AS m FROM plot').get() as { m: number }).m) + 1;
-    const plots = bulkInserter(db, 'plot', ['id', 'trial_id', 'treatment_id', 'block', 'row', 'col', 'source_row']);
+    const plots = bulkInserter(db, 'plot', ['id', 'trial_id', 'treatment_id', 'block', 'row', 'col', 'source_row', 'label']);
     const pv = plots.values;
     const treatmentIds = protocol.treatmentIds;
     let done = 0;
@@ -178,6 +178,7 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
       pv[at + 4] = p.row;
       pv[at + 5] = p.col;
       pv[at + 6] = p.sourceRow;
+      pv[at + 7] = p.plotId ?? null;
       if (progress && ++done % PROGRESS_EVERY === 0) progress(done, total);
     }
     plots.flush();

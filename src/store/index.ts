@@ -25,6 +25,6 @@ export { listTrials, counts, type TrialListing, type WorkspaceCounts } from './t
 export { loadNetwork, type LoadNetworkOptions } from './network.js';
 export { exportTrait, type ExportedTrait, type ExportCell } from './exportTrait.js';
 export { getMeta, setMeta } from './meta.js';
-export { excludePlot, includePlot } from './plots.js';
+export { excludePlot, includePlot, excludePlotByLabel, findPlotByLabel, listPlots, type PlotRow } from './plots.js';
 export { saveAnalysis, loadAnalysis, type SaveAnalysisOptions, type StoredAnalysis, type AnalysisStatus } from './analyses.js';
 export { setSiteDetails, type SiteDetails } from './sites.js';

@@ -12,6 +12,9 @@ export interface ProtocolIds {
 }
 
 interface ProtocolPart {
+  /** The file being imported and its plots, so a conflict names the file and a row. */
+  readonly file?: string;
+  readonly plots?: readonly { readonly treatment: string; readonly sourceRow: number }[];
   readonly protocol: string;
   readonly control: string | null;
   readonly factors: readonly FactorInfo[];
@@ -104,10 +107,12 @@ export function mergeProtocol(db: Database.Database, part: ProtocolPart): Protoc
         const was = stored.get(factor.name) ?? null;
         const now = levelFromColumns(cols);
         if (!sameLevel(was, now)) {
+          const row = part.plots?.find((p) => p.treatment === t.code)?.sourceRow;
+          const where = part.file === undefined ? 'the file' : `${part.file}${row === undefined ? '' : `, row ${row}`}`;
           throw new ImportRefusedError(
             'treatment-conflict',
-            `treatment "${t.code}" has ${factor.name} = ${describeLevel(now)} in the file but ${describeLevel(was)} in the workspace (protocol "${part.protocol}"); correct the file or give the treatment another code`,
-            { treatment: t.code, factor: factor.name, stored: was, file: now },
+            `${where}: treatment "${t.code}" has ${factor.name} = ${describeLevel(now)} in the file but ${describeLevel(was)} in the workspace (protocol "${part.protocol}"); correct the file or give the treatment another code`,
+            { treatment: t.code, factor: factor.name, stored: was, file: now, fileName: part.file, row },
           );
         }
       }

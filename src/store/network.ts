@@ -120,19 +120,19 @@ export function loadNetwork(ws: Workspace, trait: string, options: LoadNetworkOp
   // Raw rows (arrays) halve the objects built for a large network.
   const plotsOf = ws.db
     .prepare(
-      `SELECT p.id, tm.code, p.block, p.row, p.col, p.excluded, p.exclusion_reason, o.value
+      `SELECT p.id, tm.code, p.block, p.row, p.col, p.excluded, p.exclusion_reason, o.value, p.label, p.source_row
        FROM plot p JOIN treatment tm ON tm.id = p.treatment_id
        LEFT JOIN observation o ON o.plot_id = p.id AND o.trait_id = ?
        WHERE p.trial_id = ? ORDER BY p.id`,
     )
     .raw();
-  type PlotRow = [number, string, string | null, number | null, number | null, number, string | null, number | null];
+  type PlotRow = [number, string, string | null, number | null, number | null, number, string | null, number | null, string | null, number | null];
   const trials: TrialInput[] = trialRows.map((r) => {
     const rows = plotsOf.all(t.id, r.id) as PlotRow[];
     const plots: PlotObservation[] = new Array(rows.length);
     for (let i = 0; i < rows.length; i++) {
       const p = rows[i];
-      plots[i] = { plotId: p[0], treatment: p[1], block: p[2], row: p[3], col: p[4], value: p[7], excluded: p[5] ? { reason: p[6] ?? '' } : null };
+      plots[i] = { plotId: p[0], label: p[8], sourceRow: p[9], treatment: p[1], block: p[2], row: p[3], col: p[4], value: p[7], excluded: p[5] ? { reason: p[6] ?? '' } : null };
     }
     const covariates = { ...bySite.get(r.site_id), ...byTrial.get(r.id) };
     return { trial: r.label, site: r.site, year: r.year, design: r.design, plots, covariates };

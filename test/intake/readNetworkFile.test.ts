@@ -48,7 +48,7 @@ describe('readNetworkForAnalysis gives what the table path gives', () => {
     expect(r.sha256).toBe(createHash('sha256').update(readFileSync(path)).digest('hex'));
     const net = r.network as { trials: { trial: string; plots: { plotId: unknown; value: number | null }[] }[] };
     expect(net.trials.map((t) => t.trial)).toEqual(['North-2021', 'North-2022', 'South-2021', 'South-2022']);
-    expect(net.trials[0].plots[0]).toEqual({ plotId: 2, treatment: 'CTL', block: '1', row: null, col: null, value: 5 });
+    expect(net.trials[0].plots[0]).toEqual({ plotId: 2, label: null, sourceRow: 2, treatment: 'CTL', block: '1', row: null, col: null, value: 5 });
     expect(net.trials.reduce((s, t) => s + t.plots.length, 0)).toBe(40);
   });
 

@@ -26,7 +26,8 @@ describe('readPlotFile on a valid file', () => {
       { name: 'rate', kind: 'numeric', unit: 'kg/ha' },
       { name: 'timing', kind: 'categorical' },
     ]);
-    expect(t.treatments).toEqual(TREATMENTS.map(([code, rate, timing]) => ({ code, levels: { rate: rate === '' ? null : Number(rate), timing: timing === '' ? null : timing } })));
+    // The control's blank rate is 0 (it received none of the input); other blanks are "not applicable".
+    expect(t.treatments).toEqual(TREATMENTS.map(([code, rate, timing]) => ({ code, levels: { rate: rate === '' ? (code === 'CTL' ? 0 : null) : Number(rate), timing: timing === '' ? null : timing } })));
     expect(t.control).toBe('CTL');
     expect(t.traits).toEqual([{ name: 'yield', unit: 't/ha', kind: 'continuous', lower: null, upper: null }]);
     expect(t.plots).toHaveLength(40);

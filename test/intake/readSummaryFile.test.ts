@@ -30,7 +30,7 @@ describe('readSummaryFile', () => {
     const p = await problemsOf(() => readSummaryFile(writeTemp('sumbad.csv', toCsv(rows, HEAD)), COLUMNS));
     expect(brief(p)).toEqual([
       ['se-not-positive', 2, 'se', '0'],
-      ['not-a-number', 3, 'est', 'n/a'],
+      ['missing-value', 3, 'est', 'n/a'], // n/a is a missing-value word, and a summary row needs its estimate
       ['duplicate-trial', 4, 'env', 'E1'],
       ['se-not-positive', 4, 'se', '-0.2'],
       ['not-a-number', 4, 'df', 'x'],

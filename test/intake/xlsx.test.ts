@@ -20,7 +20,8 @@ describe('XLSX reading', () => {
     ]);
     const t = await readPlotFile(writeTemp('plots.xlsx', bytes), MAPPING);
     expect(t.observations.map((o) => o.value)).toEqual(expected);
-    expect(t.treatments[0]).toEqual({ code: 'CTL', levels: { rate: null, timing: null } });
+    // The control's blank rate follows the one rule: 0, it received none of the input.
+    expect(t.treatments[0]).toEqual({ code: 'CTL', levels: { rate: 0, timing: null } });
     expect(t.trials.map((x) => x.key)).toEqual(['North-2021', 'North-2022', 'South-2021', 'South-2022']);
   });
 

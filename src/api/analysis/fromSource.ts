@@ -1,11 +1,11 @@
 // Runs an analysis on a plot file, a per-trial summary file, or a workspace, and records
 // where the data came from so any number can be traced and reproduced.
 import { createHash } from 'node:crypto';
-import { readDataForAnalysis, readNetworkForAnalysis, readSummaryFile, specHasOneRowPerPlot } from '../../intake/index.js';
+import { formatProblems, readDataForAnalysis, readNetworkForAnalysis, readSummaryFile, specHasOneRowPerPlot, type IntakeProblem } from '../../intake/index.js';
 import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 import { APP_VERSION } from '../../version.js';
-import type { CallContext } from '../context.js';
+import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 import { networkFromTable } from './networkFromTable.js';
 import { runAnalysis } from './runAnalysis.js';
@@ -25,11 +25,16 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
     if (spec.columns?.estimate !== undefined || spec.columns?.se !== undefined) {
       if (!spec.columns.estimate || !spec.columns.se) throw new ManyfieldError('invalid-argument', 'pooling a summary file needs both columns.estimate and columns.se');
       const rows = await readSummaryFile(source.data, spec.columns);
-      return withProvenance(poolSummaryRows(rows, spec), { source: source.data, fingerprint: fingerprint(rows) });
+      const pooled = withProvenance(poolSummaryRows(rows, spec), { source: source.data, fingerprint: fingerprint(rows) });
+      await ctx?.deliver?.(pooled);
+      return pooled;
     }
-    const { network, sha256 } = specHasOneRowPerPlot(spec) ? await readNetworkForAnalysis(source.data, spec) : await readLongFile(source.data, spec);
+    const { network, sha256, warnings } = specHasOneRowPerPlot(spec) ? await readNetworkForAnalysis(source.data, spec) : await readLongFile(source.data, spec);
     // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
-    return withProvenance(runAnalysis(network, spec, ctx), { source: source.data, fingerprint: `sha256:${sha256}` });
+    const analysed = runAnalysis(network, spec, ctx);
+    const report = withProvenance({ ...analysed, warnings: [...warnings.map((w) => formatProblems([w])), ...analysed.warnings] }, { source: source.data, fingerprint: `sha256:${sha256}` });
+    await ctx?.deliver?.(report);
+    return report;
   }
   // Imported here, not at the top: the --data path above never needs the store or its native module.
   const { openWorkspace, loadNetwork, saveAnalysis } = await import('../../store/index.js');
@@ -40,6 +45,10 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
     const network = loadNetwork(ws, trait);
     const print = fingerprint(network);
     const report = withProvenance(runAnalysis(network, spec, ctx), { source: source.workspace!, fingerprint: print });
+    // Stored last, after the caller has taken the result (written its output file): a failed
+    // analysis — or one whose output could not be written — leaves no stored analysis behind.
+    throwIfCancelled(ctx);
+    await ctx?.deliver?.(report);
     if (source.save) saveAnalysis(ws, spec, print, report);
     return report;
   } finally {
@@ -48,11 +57,11 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
 }
 
 /** A file with a trait column (one row per plot and trait): read as a table, then one trait taken. */
-async function readLongFile(file: string, spec: AnalysisSpec): Promise<{ network: NetworkInput; sha256: string }> {
+async function readLongFile(file: string, spec: AnalysisSpec): Promise<{ network: NetworkInput; sha256: string; warnings: readonly IntakeProblem[] }> {
   const { table } = await readDataForAnalysis(file, spec);
   const trait = spec.trait ?? table.traits[0]?.name;
   if (!trait) throw new ManyfieldError('invalid-input', `${file} holds no trait values`);
-  return { network: networkFromTable(table, trait), sha256: table.sha256 };
+  return { network: networkFromTable(table, trait), sha256: table.sha256, warnings: (table.warnings ?? []).filter((w) => w.message.startsWith(`${trait} `)) };
 }
 
 function fingerprint(data: NetworkInput | unknown): string {

@@ -18,7 +18,7 @@ export function networkFromTable(table: ParsedPlotTable, trait: string): Network
     const p = plots[i];
     let list = plotsByTrial.get(p.trialKey);
     if (!list) plotsByTrial.set(p.trialKey, (list = []));
-    list.push({ plotId: p.plotId ?? p.sourceRow, treatment: p.treatment, block: p.block, row: p.row, col: p.col, value });
+    list.push({ plotId: p.plotId ?? p.sourceRow, label: p.plotId ?? null, sourceRow: p.sourceRow, treatment: p.treatment, block: p.block, row: p.row, col: p.col, value });
   }
   return assembleNetwork(table, traitInfo, plotsByTrial);
 }

@@ -14,11 +14,13 @@ import { compareStages } from './agreement.js';
 import { RECOMMENDATION_CAUTIONS } from './cautions.js';
 import { applyExclusions } from './exclusions.js';
 import { contrastUnits } from './contrastUnits.js';
+import { checkSpecAgainstData } from './checkSpec.js';
 import { networkLogOffset, transformNetwork } from './transformNetwork.js';
 import type { AnalysisReport, TrialStageEntry, PooledEntry } from './report.js';
 
 export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Omit<AnalysisReport, 'provenance'> {
   const warnings: string[] = [];
+  checkSpecAgainstData(spec, input);
   const network = applyExclusions(input, spec.exclude, warnings);
   if (network.trials.length === 0) throw new ManyfieldError('invalid-input', `no trials hold data for trait "${network.trait}"`);
   const control = spec.control ?? network.control;
@@ -26,7 +28,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   const logOffset = networkLogOffset(network, spec);
   const contrasts = spec.contrasts.map((c) => {
     try {
-      return resolveContrast(c, network.treatments, control);
+      return resolveContrast(c, network.treatments, control, network.factors);
     } catch (e) {
       throw new ManyfieldError('invalid-argument', (e as Error).message);
     }

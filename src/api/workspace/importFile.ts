@@ -1,7 +1,7 @@
 // Import of one plot file: read and validate the whole file first, then store it in one
 // transaction. A workspace created for this import is removed again if the import fails.
 import { existsSync, rmSync } from 'node:fs';
-import { readMappingFile, readPlotFile } from '../../intake/index.js';
+import { formatProblems, readMappingFile, readPlotFile } from '../../intake/index.js';
 import type { ImportMapping } from '../../intake/types.js';
 import { openWorkspace, importParsedTable, type ImportSummary } from '../../store/index.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
@@ -11,6 +11,8 @@ export interface ImportOutcome {
   readonly file: string;
   readonly created: boolean;
   readonly summary: ImportSummary;
+  /** Values kept but worth a look (the plausibility screen), each naming file, row and column. */
+  readonly warnings: readonly string[];
 }
 
 export async function importFile(args: { workspace: string; file: string; mapping: string | ImportMapping; replace: boolean }, ctx?: CallContext): Promise<ImportOutcome> {
@@ -25,7 +27,7 @@ export async function importFile(args: { workspace: string; file: string; mappin
       replace: args.replace,
       onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }),
     });
-    return { workspace: args.workspace, file: args.file, created, summary };
+    return { workspace: args.workspace, file: args.file, created, summary, warnings: (table.warnings ?? []).map((w) => formatProblems([w])) };
   } catch (e) {
     ws?.close();
     ws = undefined;

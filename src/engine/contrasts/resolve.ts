@@ -3,7 +3,7 @@
 // pooling — uses these resolved contrasts, so a contrast means the same thing everywhere:
 // estimate = sum_i coefficient_i * mean_i / divisor.
 import type { ContrastSpec } from '../../spec/analysisSpec.js';
-import type { TreatmentInfo } from '../types.js';
+import type { FactorInfo, TreatmentInfo } from '../types.js';
 import { orthogonalPolynomialScores } from './orthogonalPolynomial.js';
 
 export type ContrastKind = 'coefficients' | 'factor-levels' | 'trend' | 'treated-vs-control';
@@ -28,7 +28,7 @@ export class ContrastDefinitionError extends Error {
 /** Relative tolerance for "coefficients sum to zero". */
 const SUM_TOLERANCE = 1e-9;
 
-export function resolveContrast(spec: ContrastSpec, treatments: readonly TreatmentInfo[], control?: string): ResolvedContrast {
+export function resolveContrast(spec: ContrastSpec, treatments: readonly TreatmentInfo[], control?: string, factors: readonly FactorInfo[] = []): ResolvedContrast {
   const codes = treatments.map((t) => t.code);
   const zero = (): Record<string, number> => Object.fromEntries(codes.map((c) => [c, 0]));
   if ('coefficients' in spec) {
@@ -87,6 +87,7 @@ export function resolveContrast(spec: ContrastSpec, treatments: readonly Treatme
   if (distinct <= spec.degree)
     throw new ContrastDefinitionError(spec.name, `a degree-${spec.degree} trend needs at least ${spec.degree + 1} distinct levels of "${factor}"; found ${distinct}`);
   const coefficients = zero();
+  const over = trendPoints(factor, points, x, control, factors.find((f) => f.name === factor)?.unit);
   if (spec.degree === 1) {
     const mean = x.reduce((s, v) => s + v, 0) / x.length;
     let ss = 0;
@@ -99,7 +100,7 @@ export function resolveContrast(spec: ContrastSpec, treatments: readonly Treatme
       kind: 'trend',
       coefficients,
       divisor: ss,
-      meaning: `linear slope per unit of ${factor} across the ${points.length} treatments with a ${factor} level`,
+      meaning: `linear slope per unit of ${factor}, ${over}`,
     };
   }
   const scores = orthogonalPolynomialScores(x, spec.degree);
@@ -109,8 +110,24 @@ export function resolveContrast(spec: ContrastSpec, treatments: readonly Treatme
     kind: 'trend',
     coefficients,
     divisor: 1,
-    meaning: `degree-${spec.degree} orthogonal polynomial component in ${factor} (unit-length scores on the actual spacing)`,
+    meaning: `degree-${spec.degree} orthogonal polynomial component in ${factor} (unit-length scores on the actual spacing), ${over}`,
   };
+}
+
+/**
+ * "trend over CTL, A1, A2 at rate 0, 40, 80 kg/ha" plus how the control entered: the reader sees
+ * which treatments and rates the trend used, and the one rule for the control's rate.
+ */
+function trendPoints(factor: string, points: readonly TreatmentInfo[], x: readonly number[], control: string | undefined, unit: string | undefined): string {
+  // Listed by rate, then code, so the reader can pair each code with its rate.
+  const order = points.map((t, i) => i).sort((a, b) => x[a] - x[b] || (points[a].code < points[b].code ? -1 : 1));
+  const rates = [...new Set(order.map((i) => x[i]))].map((v) => String(Number(v.toPrecision(10))));
+  const at = `trend over ${order.map((i) => points[i].code).join(', ')} at ${factor}s ${rates.join(', ')}${unit ? ` ${unit}` : ''}`;
+  if (control === undefined) return at;
+  const inTrend = points.some((t) => t.code === control);
+  return inTrend
+    ? `${at} (the untreated control ${control} at ${factor} ${String(x[points.findIndex((t) => t.code === control)])}: it received none of the input)`
+    : `${at} (the control ${control} has no ${factor} level, so it is not part of this trend)`;
 }
 
 function levelMatches(level: string | number | null | undefined, wanted: string): boolean {

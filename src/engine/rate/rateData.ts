@@ -3,6 +3,7 @@
 // as rate 0) and, for each factor in `at`, their level equals the chosen level or does not
 // apply (null, as for an untreated control). Without `at` all treatments enter, so each rate
 // is fitted at the plot-weighted average over the other factors.
+import { plotName } from '../plotName.js';
 import type { NetworkInput, TrialInput, TreatmentInfo } from '../types.js';
 import { RateResponseInputError } from './errors.js';
 
@@ -81,7 +82,7 @@ export function trialRateData(trial: TrialInput, rates: Map<string, number>): Tr
   const labelers = blockingLabels(trial).filter((lab) => plots.some((p) => lab(p) !== null));
   for (const lab of labelers) {
     const bad = plots.find((p) => lab(p) === null);
-    if (bad) throw new RateResponseInputError(`trial ${trial.trial}: plot ${String(bad.plotId ?? '?')} (treatment ${bad.treatment}) has no block/row/column label although the design (${trial.design}) needs one`);
+    if (bad) throw new RateResponseInputError(`trial ${trial.trial}: ${plotName(bad)} (treatment ${bad.treatment}) has no block/row/column label although the design (${trial.design}) needs one`);
   }
   // Sum-to-zero coding: level j < last gets +1 in column j, the last level -1 in all.
   const codings = labelers.map((lab) => {

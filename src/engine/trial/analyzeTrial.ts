@@ -80,6 +80,8 @@ export function analyzeTrial(
   const rd = residualDiagnostics(fit);
   const plotDiagnostics: PlotDiagnostic[] = plots.map((p, i) => ({
     plotId: p.plotId ?? null,
+    label: p.label ?? null,
+    sourceRow: p.sourceRow ?? null,
     treatment: p.treatment,
     block: p.block,
     row: p.row,

@@ -1,5 +1,6 @@
 // Plain-language flags with structured codes. A flag reports; it never removes a plot —
 // plots leave the analysis only by an exclusion the user made and recorded.
+import { plotName } from '../plotName.js';
 import type { AliasedColumn, FTestRecord, PlotDiagnostic, SpatialCheck, TrialFlag } from './types.js';
 
 /** Brown–Forsythe p below this is flagged. */
@@ -20,6 +21,8 @@ export interface FlagInputs {
 
 const fmt = (x: number | null): string => (x === null ? 'n/a' : Math.abs(x) < 1e-3 && x !== 0 ? x.toExponential(1) : x.toPrecision(3));
 
+const capital = (s: string): string => s.charAt(0).toUpperCase() + s.slice(1);
+
 export function buildFlags(f: FlagInputs): TrialFlag[] {
   const flags: TrialFlag[] = [];
   for (const p of f.plots) {
@@ -27,15 +30,17 @@ export function buildFlags(f: FlagInputs): TrialFlag[] {
       flags.push({
         code: 'outlier-residual',
         plotId: p.plotId,
+        label: p.label,
         treatment: p.treatment,
-        message: `Plot ${p.plotId ?? '?'} (${p.treatment}) has a studentised residual of ${fmt(p.studentized)}, beyond ±${f.outlierThreshold}: check the field record. It stays in the analysis unless you exclude it with a reason.`,
+        message: `${capital(plotName(p))} (${p.treatment}) has a studentised residual of ${fmt(p.studentized)}, beyond ±${f.outlierThreshold}: check the field record. It stays in the analysis unless you exclude it with a reason.`,
       });
     if (p.cooksDistance !== null && p.cooksDistance > f.cooksThreshold)
       flags.push({
         code: 'influential-plot',
         plotId: p.plotId,
+        label: p.label,
         treatment: p.treatment,
-        message: `Plot ${p.plotId ?? '?'} (${p.treatment}) has Cook's distance ${fmt(p.cooksDistance)} (above 4/n = ${fmt(f.cooksThreshold)}): it moves the estimates more than most plots.`,
+        message: `${capital(plotName(p))} (${p.treatment}) has Cook's distance ${fmt(p.cooksDistance)} (above 4/n = ${fmt(f.cooksThreshold)}): it moves the estimates more than most plots.`,
       });
   }
   const bf = f.brownForsythe;

@@ -37,6 +37,8 @@ export interface TrialFlag {
   /** Plain-language explanation with the advice that follows from it. */
   readonly message: string;
   readonly plotId?: string | number | null;
+  /** The field's plot label, when the data had one. */
+  readonly label?: string | null;
   readonly treatment?: string;
 }
 
@@ -189,6 +191,10 @@ export interface PairwiseResult {
 
 export interface PlotDiagnostic {
   readonly plotId: string | number | null;
+  /** The field's plot label (null when the data had no plot column). */
+  readonly label: string | null;
+  /** The plot's row in its file, when known. */
+  readonly sourceRow: number | null;
   readonly treatment: string;
   readonly block: string | null;
   readonly row: number | null;
@@ -235,6 +241,7 @@ export interface TrialDiagnostics {
 
 export interface ExcludedPlot {
   readonly plotId: string | number | null;
+  readonly label: string | null;
   readonly treatment: string;
   readonly reason: string;
 }
@@ -252,6 +259,6 @@ export interface TrialAnalysis {
   readonly flags: readonly TrialFlag[];
   readonly excluded: readonly ExcludedPlot[];
   /** Plots whose value is missing (null). */
-  readonly missing: readonly { readonly plotId: string | number | null; readonly treatment: string }[];
+  readonly missing: readonly { readonly plotId: string | number | null; readonly label: string | null; readonly treatment: string }[];
   readonly aliased: readonly AliasedColumn[];
 }

@@ -10,28 +10,30 @@ export interface UsedPlot extends PlotObservation {
 
 export interface PlotSplit {
   readonly used: readonly UsedPlot[];
-  readonly missing: readonly { readonly plotId: string | number | null; readonly treatment: string }[];
+  readonly missing: readonly { readonly plotId: string | number | null; readonly label: string | null; readonly treatment: string }[];
   readonly excluded: readonly ExcludedPlot[];
 }
 
 export function splitPlots(trial: TrialInput, treatments: readonly TreatmentInfo[]): PlotSplit {
   const known = new Set(treatments.map((t) => t.code));
   const used: UsedPlot[] = [];
-  const missing: { plotId: string | number | null; treatment: string }[] = [];
+  const missing: { plotId: string | number | null; label: string | null; treatment: string }[] = [];
   const excluded: ExcludedPlot[] = [];
   for (const plot of trial.plots) {
     const id = plot.plotId ?? null;
-    if (!known.has(plot.treatment)) throw new TrialInputError(trial.trial, `treatment "${plot.treatment}" is not in the protocol (known: ${[...known].join(', ')})`, id);
+    // Errors name the plot as the user knows it: the field's label where there is one.
+    const shown = plot.label ?? id;
+    if (!known.has(plot.treatment)) throw new TrialInputError(trial.trial, `treatment "${plot.treatment}" is not in the protocol (known: ${[...known].join(', ')})`, shown);
     if (plot.excluded) {
-      excluded.push({ plotId: id, treatment: plot.treatment, reason: plot.excluded.reason });
+      excluded.push({ plotId: id, label: plot.label ?? null, treatment: plot.treatment, reason: plot.excluded.reason });
       continue;
     }
     if (plot.value === null) {
-      missing.push({ plotId: id, treatment: plot.treatment });
+      missing.push({ plotId: id, label: plot.label ?? null, treatment: plot.treatment });
       continue;
     }
-    if (!Number.isFinite(plot.value)) throw new TrialInputError(trial.trial, `value ${plot.value} is not a finite number`, id);
-    requireLayout(trial, plot, id);
+    if (!Number.isFinite(plot.value)) throw new TrialInputError(trial.trial, `value ${plot.value} is not a finite number`, shown);
+    requireLayout(trial, plot, shown);
     used.push(plot as UsedPlot);
   }
   return { used, missing, excluded };

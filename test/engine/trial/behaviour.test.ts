@@ -34,7 +34,7 @@ describe('trial engine behaviour', () => {
     const plots = sim.trial.plots.map((p, i) => (i === 3 ? { ...p, excluded: { reason: 'hail damage' } } : i === 7 ? { ...p, value: (p.value as number) + 15 } : i === 12 ? { ...p, value: null } : p));
     const trial: TrialInput = { ...sim.trial, plots };
     const res = analyzeTrial(trial, sim.treatments, [], opts);
-    expect(res.excluded).toEqual([{ plotId: 4, treatment: plots[3].treatment, reason: 'hail damage' }]);
+    expect(res.excluded).toEqual([{ plotId: 4, label: null, treatment: plots[3].treatment, reason: 'hail damage' }]);
     expect(res.missing.length).toBe(1);
     expect(res.model.n).toBe(20 - 2);
     expect(res.diagnostics.plots.some((p) => p.plotId === 4)).toBe(false);

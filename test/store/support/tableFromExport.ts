@@ -14,6 +14,7 @@ export function tableFromExport(exp: ExportedTrait, file = 'exported.csv'): Pars
   };
   const c = m.columns;
   const [iSite, iYear, iTrial, iDesign, iBlock, iRow, iCol, iTrt, iValue] = [c.site, c.year, c.trial, c.design, c.block, c.row, c.col, c.treatment, c.response].map(col);
+  const iPlot = c.plot === undefined ? -1 : col(c.plot);
   const factorCols = Object.entries(c.factors ?? {}).map(([name, column]) => ({ name, i: col(column) }));
   const covariateCols = (c.covariates ?? []).map((name) => ({ name, i: col(name) }));
 
@@ -37,6 +38,7 @@ export function tableFromExport(exp: ExportedTrait, file = 'exported.csv'): Pars
       block: r[iBlock] === null ? null : String(r[iBlock]),
       row: r[iRow] as number | null,
       col: r[iCol] as number | null,
+      ...(iPlot >= 0 ? { plotId: r[iPlot] === null ? null : String(r[iPlot]) } : {}),
       sourceRow: k + 2,
     });
   });

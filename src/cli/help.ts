@@ -1,0 +1,81 @@
+// Help for each command: `manyfield import --help` tells everything that command accepts.
+import { APP_VERSION } from '../version.js';
+import { mappingHelp, MISSING_VALUE_WORDS } from '../intake/mappingKeys.js';
+
+export const USAGE = `manyfield ${APP_VERSION} — trials from many sites and years, one honest answer
+
+Commands:
+  demo     --workspace W [--replace]            build the invented demo network into W
+  import   --workspace W --file F --map M.json [--replace]
+                                                 load a plot file (CSV or XLSX) into W (created if new)
+  trials   --workspace W [--json]               list the trials held in W
+  export   --workspace W --trait T --out F.csv  write one trait's plots in long format
+  analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
+                                                 run the trial stage, pooling, the one-stage model
+                                                 and the rate response the spec asks for
+
+The spec (JSON) names the trait, contrasts, the one-stage model, pooling and the rate response;
+the README lists every key. One-stage random terms are named in words: trial, block,
+treatment-by-trial. Without --json, analyze prints a summary to read: the effect of each contrast
+with its interval and unit, treatment means, each trial's effects and CV, moderators, one
+recommended rate with the reason for it, warnings and cautions. --json prints every number.
+
+"manyfield COMMAND --help" describes one command.
+Exit codes: 0 done, 1 the operation failed (message on stderr), 2 the command line is wrong.`;
+
+const COMMAND_HELP: Record<string, string> = {
+  demo: `manyfield demo --workspace W [--replace] [--json]
+
+Builds an invented demo network (14 sites x 3 years, nitrogen rate x timing) into W.
+  --replace   overwrite W if it exists
+  --json      print the summary as JSON`,
+
+  import: `manyfield import --workspace W --file F --map M.json [--replace] [--json]
+
+Loads a plot file (CSV or XLSX, one row per plot, or per plot and trait) into workspace W
+(created when it does not exist). All or nothing: every problem of the file is listed with
+its row and column and nothing is stored. Values far from the rest of their trial are kept
+and listed as warnings.
+  --replace   replace the batch imported earlier from the same file (same SHA-256)
+  --json      print the summary as JSON
+
+The mapping file M.json says which column is what:
+  {"columns": {"site": "site", "year": "year", "block": "rep", "treatment": "trt",
+               "plot": "plot", "response": "yield", "factors": {"rate": "N", "timing": "when"}},
+   "trait": {"name": "yield", "unit": "t/ha"}, "control": "CTL", "factorUnits": {"rate": "kg/ha"}}
+
+Every key:
+${mappingHelp()}
+
+Missing values: ${MISSING_VALUE_WORDS}.
+The control's rate: a blank level of a numeric factor (a rate) is 0 for the control — it
+received none of the input — unless controlLevels says otherwise; other blanks are "not
+applicable".`,
+
+  trials: `manyfield trials --workspace W [--json]
+
+Lists the trials held in W: site, year, design, plots, treatments and traits.`,
+
+  export: `manyfield export --workspace W --trait T --out F.csv
+
+Writes one trait's plots in long format (site, year, trial, design, block, row, col,
+treatment, plot label, factors, covariates, value), readable back by import.`,
+
+  analyze: `manyfield analyze --spec S.json (--data F | --workspace W) [--json] [--out FILE] [--no-save]
+
+Runs the analysis the spec describes: each trial, pooling across trials, the one-stage
+mixed model and the rate response. With --workspace the analysis is stored in W (unless
+--no-save); a failed analysis stores nothing.
+  --data F     a plot file; the spec's "columns" say which column is what, "reading" how to
+               read it ({"decimalComma": true, "sheet": "Data", "delimiter": ";"})
+  --json       print the whole result as JSON
+  --out FILE   write the output to FILE instead of the screen
+
+Exclusions ("exclude") name a plot by the field's own label, {"trial": "S1-2024",
+"plot": "204", "reason": "hail"}, or explicitly by its file row, {"trial": ..., "row": 17, ...}.
+The spec's keys are described in the README ("The analysis spec").`,
+};
+
+export function commandHelp(command: string): string | null {
+  return COMMAND_HELP[command] ?? null;
+}
