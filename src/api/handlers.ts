@@ -7,6 +7,7 @@ import { importMappingSchema } from '../intake/types.js';
 import type { CallContext } from './context.js';
 import { fail, ok, type Result } from './result.js';
 import { toApiError } from './errors.js';
+import { checkJsonShape, JsonShapeError } from '../intake/jsonInput.js';
 import type { DemoSummary } from './workspace/demo.js';
 import type { ImportOutcome } from './workspace/importFile.js';
 import type { ExportedTable } from './workspace/browse.js';
@@ -54,6 +55,12 @@ const implementations: Implementations = {
 
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {
   return (async (raw: unknown, ctx?: CallContext) => {
+    try {
+      checkJsonShape(raw); // depth and text length bounded before any recursive walk
+    } catch (e) {
+      if (e instanceof JsonShapeError) return fail('invalid-argument', `${name}: ${e.message}`, { key: e.key });
+      throw e;
+    }
     const parsed = handlerArgs[name].safeParse(raw);
     if (!parsed.success) return fail('invalid-argument', `${name}: ${z.prettifyError(parsed.error)}`, parsed.error.issues);
     try {

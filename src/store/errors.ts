@@ -7,7 +7,9 @@ export type WorkspaceRefusalReason =
   | 'edited-migration'
   | 'history-gap'
   | 'not-a-workspace'
-  | 'readonly-needs-upgrade';
+  | 'readonly-needs-upgrade'
+  | 'read-only'
+  | 'backup-failed';
 
 /** The workspace exists but this Manyfield must not touch it. */
 export class WorkspaceRefusedError extends ManyfieldError {
