@@ -37,7 +37,8 @@ export type ImportRefusalReason =
   | 'trait-conflict'
   | 'control-conflict'
   | 'trial-exists'
-  | 'inconsistent-table';
+  | 'inconsistent-table'
+  | 'trait-bounds';
 
 /** An import that would contradict what the workspace holds; nothing was written. */
 export class ImportRefusedError extends ManyfieldError {
@@ -46,7 +47,7 @@ export class ImportRefusedError extends ManyfieldError {
     message: string,
     details?: unknown,
   ) {
-    super(reason === 'inconsistent-table' ? 'invalid-input' : 'conflict', message, details);
+    super(reason === 'inconsistent-table' || reason === 'trait-bounds' ? 'invalid-input' : 'conflict', message, details);
     this.name = 'ImportRefusedError';
   }
 }
