@@ -19,28 +19,25 @@ const CANCELLED = 'cancelled by the user; nothing was stored';
  * The worker's entry: the bundle's sibling (dist/cli/analysisWorker.cjs), the compiled module
  * (dist/api/analysis/analysisWorker.js), or the TypeScript source run through tsx (tests).
  */
-function workerEntry(): { file: string; execArgv: string[] } | null {
-  const candidates: [string, string[]][] = [
-    ['./analysisWorker.cjs', []],
-    ['./analysisWorker.js', []],
-    ['./analysisWorker.ts', ['--import', 'tsx']],
-  ];
-  for (const [name, execArgv] of candidates) {
+function startWorker(request: WorkerRequest): Worker | null {
+  for (const name of ['./analysisWorker.cjs', './analysisWorker.js']) {
     const file = fileURLToPath(new URL(name, import.meta.url));
-    if (existsSync(file)) return { file, execArgv };
+    if (existsSync(file)) return new Worker(file, { workerData: request });
   }
-  return null;
+  const source = new URL('./analysisWorker.ts', import.meta.url);
+  if (!existsSync(fileURLToPath(source))) return null;
+  // Running from the TypeScript source (tests): the worker registers tsx, then loads the module.
+  const boot = `import('tsx/esm/api').then((m) => { m.register(); return import(${JSON.stringify(source.href)}); })`;
+  return new Worker(boot, { eval: true, workerData: request });
 }
 
 export async function runAnalysisCancellable(network: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Promise<Report> {
   throwIfCancelled(ctx);
   const signal = ctx?.signal;
-  const entry = signal ? workerEntry() : null;
+  const worker = signal ? startWorker({ network, spec }) : null;
   // Nobody can cancel (no signal), or no worker file: run here.
-  if (signal === undefined || entry === null) return runAnalysis(network, spec, ctx);
+  if (signal === undefined || worker === null) return runAnalysis(network, spec, ctx);
   return new Promise<Report>((resolve, reject) => {
-    const request: WorkerRequest = { network, spec };
-    const worker = new Worker(entry.file, { workerData: request, execArgv: entry.execArgv });
     let settled = false;
     const settle = (f: () => void): void => {
       if (settled) return;
