@@ -4,6 +4,12 @@ import { z } from './zod.js';
 
 const contrastName = z.string().min(1).max(120);
 
+/** Upper bounds on the counts a spec may ask for (well above any real network's needs). */
+export const MAX_BOOTSTRAP = 10_000;
+export const MAX_CONTRASTS = 200;
+export const MAX_MODERATORS = 50;
+export const MAX_EXCLUSIONS = 100_000;
+
 export const coefficientContrastSchema = z.object({
   name: contrastName,
   coefficients: z.record(z.string(), z.number().finite()),
@@ -68,7 +74,7 @@ export const oneStageSchema = z
     residual: z.enum(['common', 'per-trial']).default('common'),
     df: z.enum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */
-    covariates: z.array(z.string()).default([]),
+    covariates: z.array(z.string()).max(MAX_MODERATORS).default([]),
     /** Likelihood-ratio test of each variance component (one refit per component). */
     lrt: z.boolean().default(true),
     /** Profile-likelihood intervals for the variance components (default: networks up to 200 trials). */
@@ -92,7 +98,8 @@ export const rateResponseSchema = z
     priceRatio: z.number().positive(),
     at: z.record(z.string(), z.union([z.string(), z.number()])).optional(),
     profitableWithin: z.number().nonnegative().default(0),
-    bootstrap: z.number().int().nonnegative().default(0),
+    /** Resamples over trials; bounded so a typo cannot start hours of work. */
+    bootstrap: z.number().int().nonnegative().max(MAX_BOOTSTRAP).default(0),
     seed: z.number().int().default(1),
   })
   .strict();
@@ -105,16 +112,16 @@ export const analysisSpecSchema = z
     transform: transformSchema.default('none'),
     /** Offset added before a log transform when zeros occur; default rule documented in the engine. */
     logOffset: z.number().nonnegative().optional(),
-    contrasts: z.array(contrastSpecSchema).default([]),
+    contrasts: z.array(contrastSpecSchema).max(MAX_CONTRASTS).default([]),
     pairwise: z.enum(['none', 'tukey', 'holm']).default('none'),
     oneStage: oneStageSchema.nullable().optional(),
     twoStage: twoStageSchema.nullable().optional(),
-    moderators: z.array(z.string()).default([]),
+    moderators: z.array(z.string()).max(MAX_MODERATORS).default([]),
     threshold: z.number().default(0),
     confidence: z.number().gt(0.5).lt(1).default(0.95),
     rateResponse: rateResponseSchema.nullable().optional(),
     /** Plots to leave out, each with the reason recorded in the result. */
-    exclude: z.array(z.object({ trial: z.string(), plot: z.union([z.string(), z.number()]), reason: z.string().min(1) })).default([]),
+    exclude: z.array(z.object({ trial: z.string(), plot: z.union([z.string(), z.number()]), reason: z.string().min(1) })).max(MAX_EXCLUSIONS).default([]),
   })
   .strict();
 
