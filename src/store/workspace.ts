@@ -1,7 +1,8 @@
 // Opening a workspace: one SQLite file in WAL mode with foreign keys enforced, migrated to the
 // schema this build ships before anything else touches it.
-import { accessSync, constants, existsSync } from 'node:fs';
-import { dirname, resolve } from 'node:path';
+import { accessSync, constants, copyFileSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
 import Database from 'better-sqlite3';
 import { ManyfieldError } from '../api/result.js';
 import { WorkspaceNotFoundError, WorkspaceRefusedError } from './errors.js';
@@ -23,6 +24,8 @@ export class Workspace {
     readonly db: Database.Database,
     /** What opening did: migrations applied and the backup written first, if any. */
     readonly migration: MigrateOutcome,
+    /** Run after closing (removes the private snapshot of a workspace on a read-only disk). */
+    private readonly afterClose?: () => void,
   ) {}
 
   get readonly(): boolean {
@@ -30,7 +33,10 @@ export class Workspace {
   }
 
   close(): void {
-    if (this.db.open) this.db.close();
+    if (this.db.open) {
+      this.db.close();
+      this.afterClose?.();
+    }
   }
 }
 
@@ -91,5 +97,24 @@ function writable(path: string): boolean {
 export function openWorkspaceForReading(path: string, options: Pick<OpenWorkspaceOptions, 'migrationsDir'> = {}): Workspace {
   refuseFolder(path);
   if (!existsSync(path)) throw new WorkspaceNotFoundError(path);
-  return openWorkspace(path, { ...options, readonly: !writable(path) });
+  if (writable(path)) return openWorkspace(path, options);
+  try {
+    return openWorkspace(path, { ...options, readonly: true });
+  } catch (e) {
+    if (!(e instanceof ManyfieldError && e.code === 'not-found')) throw e;
+  }
+  // SQLite cannot open a WAL workspace read-only where it cannot create the -shm file beside it
+  // (a read-only disk): read a private snapshot instead, removed again on close.
+  const dir = mkdtempSync(join(tmpdir(), 'manyfield-readonly-'));
+  const copy = join(dir, 'snapshot.manyfield');
+  const removeCopy = (): void => rmSync(dir, { recursive: true, force: true });
+  try {
+    copyFileSync(path, copy);
+    if (existsSync(`${path}-wal`)) copyFileSync(`${path}-wal`, `${copy}-wal`);
+    const snapshot = openWorkspace(copy, { ...options, readonly: true });
+    return new Workspace(path, snapshot.db, snapshot.migration, removeCopy);
+  } catch (e) {
+    removeCopy();
+    throw e;
+  }
 }
