@@ -5,6 +5,8 @@
 // private file; a workspace another process created meanwhile is never touched.
 import { linkSync, renameSync, rmSync, existsSync } from 'node:fs';
 import { randomBytes } from 'node:crypto';
+import { dirname } from 'node:path';
+import { ManyfieldError } from '../api/result.js';
 import { openWorkspace, type Workspace } from './workspace.js';
 
 export type CreateOutcome<T> = { readonly created: true; readonly result: T } | { readonly created: false };
@@ -19,6 +21,8 @@ export function removeDatabaseFiles(path: string): void {
  * having written nothing at `target`, when the name was taken before the build finished.
  */
 export function createWorkspaceWith<T>(target: string, fill: (ws: Workspace) => T, options: { migrationsDir?: string } = {}): CreateOutcome<T> {
+  const folder = dirname(target);
+  if (!existsSync(folder)) throw new ManyfieldError('not-found', `cannot create workspace "${target}": the folder "${folder}" does not exist; create it first or choose another path`, { path: target });
   const building = `${target}.new-${process.pid}-${randomBytes(4).toString('hex')}`;
   try {
     const ws = openWorkspace(building, { create: true, migrationsDir: options.migrationsDir });
