@@ -32,10 +32,11 @@ const noZodLocaleList = {
 
 // Files of earlier builds (the ES-module bundle and its chunks) are removed so dist/cli/ holds one build.
 const outDir = join(root, 'dist', 'cli');
-if (existsSync(outDir)) for (const f of readdirSync(outDir)) if (/^(chunk-.*\.mjs|bundle\.mjs|bundle\.cjs)$/.test(f)) rmSync(join(outDir, f));
+if (existsSync(outDir)) for (const f of readdirSync(outDir)) if (/^(chunk-.*\.mjs|bundle\.mjs|bundle\.cjs|analysisWorker\.cjs)$/.test(f)) rmSync(join(outDir, f));
 await esbuild.build({
   absWorkingDir: root,
-  entryPoints: { bundle: 'src/cli/main.ts' },
+  // The analysis worker (src/api/analysis/cancellable.ts finds it beside the bundle).
+  entryPoints: { bundle: 'src/cli/main.ts', analysisWorker: 'src/api/analysis/analysisWorker.ts' },
   outdir: 'dist/cli',
   outExtension: { '.js': '.cjs' },
   // CommonJS, loaded by a CommonJS bin/manyfield.cjs: a fresh process starts and loads it about

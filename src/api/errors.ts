@@ -9,6 +9,8 @@ interface CodedError {
   readonly details?: unknown;
 }
 
+const ENGINE_INPUT_ERRORS = new Set(['PoolingInputError', 'RateResponseInputError', 'TrialInputError', 'OneStageDataError', 'ContrastDefinitionError']);
+
 const KNOWN_CODES = new Set(['invalid-argument', 'invalid-input', 'not-found', 'conflict', 'workspace-refused', 'cancelled', 'engine-failure', 'internal']);
 
 export function toApiError(e: unknown): ApiError {
@@ -17,6 +19,9 @@ export function toApiError(e: unknown): ApiError {
   if (e instanceof Error && (e.name === 'AbortError' || e.name === 'OneStageCancelledError'))
     return { code: 'cancelled', message: 'cancelled by the user; nothing was stored' };
   if (e instanceof IntakeError) return { code: 'invalid-input', message: e.message, details: { problems: e.problems, truncated: e.truncated } };
+  // The engine's refusals of what it was given (a factor not in the network, nothing to pool)
+  // are the user's input to fix, not a fault of the program.
+  if (e instanceof Error && ENGINE_INPUT_ERRORS.has(e.name)) return { code: 'invalid-input', message: e.message, details: { name: e.name } };
   const coded = e as Partial<CodedError> | null;
   if (e instanceof Error && typeof coded?.code === 'string' && KNOWN_CODES.has(coded.code)) {
     const c = e as unknown as CodedError;

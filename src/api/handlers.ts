@@ -8,6 +8,7 @@ import type { CallContext } from './context.js';
 import { fail, ok, type Result } from './result.js';
 import { toApiError } from './errors.js';
 import { describeIssues } from '../spec/describeIssues.js';
+import { checkJsonShape, JsonShapeError } from '../intake/jsonInput.js';
 import type { DemoSummary } from './workspace/demo.js';
 import type { ImportOutcome } from './workspace/importFile.js';
 import type { ExportedTable } from './workspace/browse.js';
@@ -55,6 +56,12 @@ const implementations: Implementations = {
 
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {
   return (async (raw: unknown, ctx?: CallContext) => {
+    try {
+      checkJsonShape(raw); // depth and text length bounded before any recursive walk
+    } catch (e) {
+      if (e instanceof JsonShapeError) return fail('invalid-argument', `${name}: ${e.message}`, { key: e.key });
+      throw e;
+    }
     const parsed = handlerArgs[name].safeParse(raw);
     if (!parsed.success) {
       const lines = describeIssues(handlerArgs[name], raw, parsed.error.issues, '');

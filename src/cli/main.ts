@@ -2,6 +2,7 @@
 // non-zero exit code; a failed command writes nothing.
 import { existsSync, readFileSync, renameSync, statSync, writeFileSync, rmSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
+import { JsonShapeError, MAX_JSON_FILE_BYTES, parseBoundedJson } from '../intake/jsonInput.js';
 import { api, type HandlerArgs, type HandlerResults } from '../api/handlers.js';
 import type { Result } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
@@ -16,8 +17,29 @@ interface Output {
   readonly stdout: string[];
 }
 
+/** Longest message written to stderr: a hostile value must not come back as megabytes of text. */
+const MAX_MESSAGE_CHARS = 4000;
+
+/** Exit code of a command stopped by Ctrl-C (128 + SIGINT), as shells report it. */
+const EXIT_CANCELLED = 130;
+
+function writeError(message: string): void {
+  const shown = message.length > MAX_MESSAGE_CHARS ? `${message.slice(0, MAX_MESSAGE_CHARS)}... (message cut at ${MAX_MESSAGE_CHARS} of ${message.length} characters)` : message;
+  process.stderr.write(`manyfield: ${shown}\n`);
+}
+
+/** A reader that stopped reading (`manyfield analyze --json | head -1`) ends the command quietly. */
+function quietOnClosedPipe(): void {
+  const onError = (e: NodeJS.ErrnoException): void => {
+    if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw e;
+  };
+  if (process.stdout.listenerCount('error') === 0) process.stdout.on('error', onError);
+}
+
 export async function main(argv: readonly string[]): Promise<number> {
   const out: Output = { stdout: [] };
+  quietOnClosedPipe();
   try {
     const parsed = parseArgs(argv);
     if (parsed.command === 'version' || parsed.options.version) {
@@ -38,7 +60,7 @@ export async function main(argv: readonly string[]): Promise<number> {
       process.stderr.write(`manyfield: ${e.message}\nRun "${helpFor}" for what it accepts.\n`);
       return 2;
     }
-    process.stderr.write(`manyfield: ${(e as Error).message}\n`);
+    writeError((e as Error).message);
     return 1;
   }
 }
@@ -104,6 +126,10 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       progress.done();
       if (!r.ok) {
         if (partial !== null) rmSync(partial, { force: true });
+        if (r.error.code === 'cancelled') {
+          writeError(r.error.message);
+          return EXIT_CANCELLED;
+        }
         return report(r, () => '', out);
       }
       if (target !== undefined && partial !== null) {
@@ -119,7 +145,7 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
 
 function report<T>(r: Result<T>, render: (d: T) => string, out: Output): number {
   if (!r.ok) {
-    process.stderr.write(`manyfield: ${r.error.message}\n`);
+    writeError(r.error.message);
     return 1;
   }
   out.stdout.push(render(r.data));
@@ -135,13 +161,17 @@ function json(d: unknown): string {
 function readJson(path: string): unknown {
   let text: string;
   try {
+    const size = statSync(path).size;
+    if (size > MAX_JSON_FILE_BYTES) throw new Error(`the spec file ${path} is ${size} bytes; a spec is a few kilobytes and at most ${MAX_JSON_FILE_BYTES} bytes are read — check that --spec names the spec, not the data`);
     text = readFileSync(path, 'utf8');
   } catch (e) {
+    if ((e as Error).message.startsWith('the spec file')) throw e;
     throw new Error(`cannot read the spec file ${path}: ${(e as Error).message}`);
   }
   try {
-    return JSON.parse(text.replace(/^\uFEFF/, ''));
+    return parseBoundedJson(text.replace(/^\uFEFF/, ''));
   } catch (e) {
+    if (e instanceof JsonShapeError) throw new Error(`the spec file ${path}: ${e.message}`);
     throw new Error(`the spec file ${path} is not valid JSON: ${(e as Error).message}`);
   }
 }

@@ -1,6 +1,7 @@
 // The mapping file: read, check against the schema, then check it makes sense (the columns a
 // plot table needs, known units). Every complaint names the file and the key.
-import { readFileSync } from 'node:fs';
+import { readFileSync, statSync } from 'node:fs';
+import { JsonShapeError, MAX_JSON_FILE_BYTES, parseBoundedJson } from './jsonInput.js';
 import { columnsSchema } from '../spec/analysisSpec.js';
 import { didYouMean } from '../spec/closest.js';
 import { importMappingSchema, IntakeError, traitMappingSchema, type ImportMapping, type IntakeProblem } from './types.js';
@@ -35,14 +36,20 @@ function lineOf(text: string, offset: number): number {
 export function readMappingFile(path: string): ImportMapping {
   let text: string;
   try {
+    const size = statSync(path).size;
+    if (size > MAX_JSON_FILE_BYTES) {
+      throw new IntakeError([problem(path, 0, null, null, 'file-too-large', `the mapping file is ${size} bytes; a mapping is a few kilobytes and at most ${MAX_JSON_FILE_BYTES} bytes are read — check that --map names the mapping, not the data`)]);
+    }
     text = readFileSync(path, 'utf8').replace(/^\uFEFF/, '');
   } catch (e) {
+    if (e instanceof IntakeError) throw e;
     throw new IntakeError([problem(path, 0, null, null, 'file-unreadable', `cannot read the mapping file: ${(e as Error).message}`)]);
   }
   let json: unknown;
   try {
-    json = JSON.parse(text);
+    json = parseBoundedJson(text);
   } catch (e) {
+    if (e instanceof JsonShapeError) throw new IntakeError([problem(path, 0, e.key, null, 'mapping-shape', e.message)]);
     const message = (e as Error).message;
     const at = /position (\d+)/.exec(message);
     const row = at ? lineOf(text, Number(at[1])) : 0;

@@ -12,6 +12,7 @@ import type { ImportMapping, ParsedPlotTable, ParsedTrait, ParsedTrial } from '.
 import { controlLevel, covariateTable, factorsAndTreatments } from './plotTableLevels.js';
 import { toCanonical } from './units.js';
 import { didYouMean, listNames } from '../spec/closest.js';
+import { covariateCellProblem } from './covariateCells.js';
 
 interface TraitState {
   readonly trait: ParsedTrait;
@@ -417,6 +418,11 @@ export class PlotTableBuilder {
       if (seen !== null && r.equals(i, seen)) continue;
       const text = r.text(i);
       if (seen === null) {
+        const wrong = covariateCellProblem(text, this.mode);
+        if (wrong !== null) {
+          this.problems.add(rowNo, covs[k].column, text, wrong.rule, `trial covariate ${covs[k].column}: ${wrong.message}`);
+          continue;
+        }
         trial.covariates[k] = text;
         trial.covariateRows[k] = rowNo;
         if (this.covariateNumeric[k] && Number.isNaN(parseDecimal(text, this.mode))) this.covariateNumeric[k] = false;

@@ -40,7 +40,8 @@ export function factorsAndTreatments(
   factorColumns.forEach((fc, k) => {
     const numeric = seen.every((t) => t.raw[k] === '' || !Number.isNaN(parseDecimal(t.raw[k], mode)));
     const kind = numeric ? 'numeric' : 'categorical';
-    const unitText = factorUnits?.[fc.name];
+    // Own keys only: a factor named "toString" must not find Object.prototype.toString.
+    const unitText = factorUnits !== undefined && Object.hasOwn(factorUnits, fc.name) ? factorUnits[fc.name] : undefined;
     const known = unitText === undefined ? undefined : findUnit(unitText);
     // A rate in lb/ac is stored in kg/ha; units we do not know (e.g. "days after sowing") stay as written.
     const convert = numeric && known !== undefined && known.dimension !== 'none' && known.perBushelLb !== true;

@@ -2,6 +2,7 @@
 // checks; the store writes. Neither knows the other's internals.
 import { z } from '../spec/zod.js';
 import { columnsSchema } from '../spec/analysisSpec.js';
+import { TEXT_ENCODINGS } from './text.js';
 import type { FactorInfo, TreatmentInfo, TrialDesign } from '../engine/types.js';
 
 export const traitMappingSchema = z
@@ -38,6 +39,8 @@ export const importMappingSchema = z
     decimalComma: z.boolean().optional(),
     sheet: z.string().optional(),
     protocol: z.string().optional(),
+    /** Text encoding of a delimited file when it is not UTF-8 (a byte-order mark is recognised). */
+    encoding: z.enum(TEXT_ENCODINGS).optional(),
   })
   .strict();
 export type ImportMapping = z.infer<typeof importMappingSchema>;

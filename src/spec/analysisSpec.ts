@@ -12,6 +12,11 @@ function looseEnum<const T extends readonly [string, ...string[]]>(values: T) {
     .transform((s) => s.trim().toLowerCase())
     .pipe(z.enum(values));
 }
+/** Upper bounds on the counts a spec may ask for (well above any real network's needs). */
+export const MAX_BOOTSTRAP = 10_000;
+export const MAX_CONTRASTS = 200;
+export const MAX_MODERATORS = 50;
+export const MAX_EXCLUSIONS = 100_000;
 
 export const coefficientContrastSchema = z.object({
   name: contrastName,
@@ -77,7 +82,7 @@ export const oneStageSchema = z
     residual: looseEnum(['common', 'per-trial']).default('common'),
     df: looseEnum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */
-    covariates: z.array(z.string()).default([]),
+    covariates: z.array(z.string()).max(MAX_MODERATORS).default([]),
     /** Likelihood-ratio test of each variance component (one refit per component). */
     lrt: z.boolean().default(true),
     /** Profile-likelihood intervals for the variance components (default: networks up to 200 trials). */
@@ -114,7 +119,8 @@ export const rateResponseSchema = z
     priceRatio: z.number().positive(),
     at: z.record(z.string(), z.union([z.string(), z.number()])).optional(),
     profitableWithin: z.number().nonnegative().default(0),
-    bootstrap: z.number().int().nonnegative().default(0),
+    /** Resamples over trials; bounded so a typo cannot start hours of work. */
+    bootstrap: z.number().int().nonnegative().max(MAX_BOOTSTRAP).default(0),
     seed: z.number().int().default(1),
   })
   .strict();
@@ -145,11 +151,11 @@ export const analysisSpecSchema = z
     transform: transformSchema.default('none'),
     /** Offset added before a log transform when zeros occur; default rule documented in the engine. */
     logOffset: z.number().nonnegative().optional(),
-    contrasts: z.array(contrastSpecSchema).default([]),
+    contrasts: z.array(contrastSpecSchema).max(MAX_CONTRASTS).default([]),
     pairwise: looseEnum(['none', 'tukey', 'holm']).default('none'),
     oneStage: oneStageSchema.nullable().optional(),
     twoStage: twoStageSchema.nullable().optional(),
-    moderators: z.array(z.string()).default([]),
+    moderators: z.array(z.string()).max(MAX_MODERATORS).default([]),
     threshold: z.number().default(0),
     confidence: z.number().gt(0.5).lt(1).default(0.95),
     rateResponse: rateResponseSchema.nullable().optional(),
@@ -159,7 +165,7 @@ export const analysisSpecSchema = z
       .strict()
       .optional(),
     /** Plots to leave out, each with the reason recorded in the result. */
-    exclude: z.array(exclusionSchema).default([]),
+    exclude: z.array(exclusionSchema).max(MAX_EXCLUSIONS).default([]),
   })
   .strict();
 

@@ -7,7 +7,9 @@ export type WorkspaceRefusalReason =
   | 'edited-migration'
   | 'history-gap'
   | 'not-a-workspace'
-  | 'readonly-needs-upgrade';
+  | 'readonly-needs-upgrade'
+  | 'read-only'
+  | 'backup-failed';
 
 /** The workspace exists but this Manyfield must not touch it. */
 export class WorkspaceRefusedError extends ManyfieldError {
@@ -35,7 +37,8 @@ export type ImportRefusalReason =
   | 'trait-conflict'
   | 'control-conflict'
   | 'trial-exists'
-  | 'inconsistent-table';
+  | 'inconsistent-table'
+  | 'trait-bounds';
 
 /** An import that would contradict what the workspace holds; nothing was written. */
 export class ImportRefusedError extends ManyfieldError {
@@ -44,7 +47,7 @@ export class ImportRefusedError extends ManyfieldError {
     message: string,
     details?: unknown,
   ) {
-    super(reason === 'inconsistent-table' ? 'invalid-input' : 'conflict', message, details);
+    super(reason === 'inconsistent-table' || reason === 'trait-bounds' ? 'invalid-input' : 'conflict', message, details);
     this.name = 'ImportRefusedError';
   }
 }

@@ -8,10 +8,14 @@ import { ImportRefusedError } from './errors.js';
 import { mergeProtocol } from './mergeProtocol.js';
 import { mergeSites, mergeTraits } from './mergeReference.js';
 import { checkTableConsistency, refuseInconsistent } from './tableConsistency.js';
+import { checkStoredBounds } from './storedBounds.js';
 import type { Workspace } from './workspace.js';
 
 export interface ImportOptions {
-  /** Replace the batch previously imported from a file with the same SHA-256. */
+  /**
+   * Replace what the file brings: the batch of a file with the same SHA-256, and every stored
+   * trial with the same site, year and trial key (a corrected file has another hash).
+   */
   readonly replace?: boolean;
   /**
    * Rows written so far (plots + observations) out of the total; called every few thousand
@@ -35,7 +39,7 @@ export interface ImportSummary extends BatchCounts {
   readonly rowsStored: number;
   readonly newSites: number;
   readonly newTreatments: number;
-  /** The batch removed by --replace, or null. */
+  /** What --replace removed (the earlier batch, or the trials the file brings again), or null. */
   readonly replaced: BatchCounts | null;
 }
 
@@ -76,6 +80,57 @@ function settleDuplicate(db: Database.Database, table: ParsedPlotTable, replace:
  * CASCADE because imports run with foreign-key enforcement off (see importParsedTable).
  * A new table referencing trial or plot must be added here.
  */
+/** The stored trials with the site, year and key of a trial in the table. */
+function storedTrialsOf(db: Database.Database, table: ParsedPlotTable): { id: number; batchId: number | null; site: string; year: number; key: string; from: string }[] {
+  const find = db.prepare(
+    `SELECT t.id, t.import_batch_id AS batchId, b.file_name AS fileName FROM trial t JOIN site s ON s.id = t.site_id
+     LEFT JOIN import_batch b ON b.id = t.import_batch_id WHERE s.code = ? AND t.year = ? AND t.key = ?`,
+  );
+  const out = [];
+  for (const t of table.trials) {
+    const r = find.get(t.site, t.year, t.key) as { id: number; batchId: number | null; fileName: string | null } | undefined;
+    if (r) out.push({ id: r.id, batchId: r.batchId, site: t.site, year: t.year, key: t.key, from: r.fileName ?? 'the workspace (not from a file)' });
+  }
+  return out;
+}
+
+/** Refuses an import whose trials are stored already, listing every one of them. */
+function refuseStoredTrials(clashes: ReturnType<typeof storedTrialsOf>): never {
+  const shown = clashes.slice(0, 50).map((c) => `trial "${c.key}" at site "${c.site}" in ${c.year} (imported from "${c.from}")`);
+  const more = clashes.length > 50 ? `; and ${clashes.length - 50} more` : '';
+  throw new ImportRefusedError(
+    'trial-exists',
+    `${clashes.length} trial(s) of this file are already in the workspace: ${shown.join('; ')}${more}. Nothing was changed — import with --replace to replace those trials with this file's, or remove them from this file`,
+    { trials: clashes.map((c) => ({ trial: c.key, site: c.site, year: c.year, from: c.from })) },
+  );
+}
+
+/** Removes stored trials (with plots, values and covariates), then batches left with no trial. */
+function deleteTrials(db: Database.Database, trialIds: readonly number[], batchIds: readonly (number | null)[]): BatchCounts {
+  const ids = JSON.stringify(trialIds);
+  const inTrials = 'SELECT value FROM json_each(@ids)';
+  const counts = db
+    .prepare(
+      `SELECT (SELECT COUNT(*) FROM plot WHERE trial_id IN (${inTrials})) AS plots,
+              (SELECT COUNT(*) FROM observation WHERE plot_id IN (SELECT id FROM plot WHERE trial_id IN (${inTrials}))) AS observations`,
+    )
+    .get({ ids }) as { plots: number; observations: number };
+  db.prepare(`DELETE FROM observation WHERE plot_id IN (SELECT id FROM plot WHERE trial_id IN (${inTrials}))`).run({ ids });
+  db.prepare(`DELETE FROM plot WHERE trial_id IN (${inTrials})`).run({ ids });
+  db.prepare(`DELETE FROM trial_covariate WHERE trial_id IN (${inTrials})`).run({ ids });
+  db.prepare(`DELETE FROM trial WHERE id IN (${inTrials})`).run({ ids });
+  const batches = [...new Set(batchIds.filter((b): b is number => b !== null))];
+  const dropEmpty = db.prepare('DELETE FROM import_batch WHERE id = ? AND NOT EXISTS (SELECT 1 FROM trial WHERE import_batch_id = ?)');
+  for (const b of batches) dropEmpty.run(b, b);
+  return { batchId: batches[0] ?? 0, trials: trialIds.length, plots: counts.plots, observations: counts.observations };
+}
+
+function addCounts(a: BatchCounts | null, b: BatchCounts | null): BatchCounts | null {
+  if (a === null) return b;
+  if (b === null) return a;
+  return { batchId: a.batchId, trials: a.trials + b.trials, plots: a.plots + b.plots, observations: a.observations + b.observations };
+}
+
 function deleteBatch(db: Database.Database, batchId: number): void {
   const trials = 'SELECT id FROM trial WHERE import_batch_id = @b';
   db.prepare(`DELETE FROM observation WHERE plot_id IN (SELECT id FROM plot WHERE trial_id IN (${trials}))`).run({ b: batchId });
@@ -117,7 +172,13 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
   const progress = options.onProgress;
 
   const run = db.transaction((): ImportSummary => {
-    const replaced = settleDuplicate(db, table, options.replace ?? false);
+    let replaced = settleDuplicate(db, table, options.replace ?? false);
+    const clashes = storedTrialsOf(db, table);
+    if (clashes.length > 0) {
+      if (!options.replace) refuseStoredTrials(clashes);
+      replaced = addCounts(replaced, deleteTrials(db, clashes.map((c) => c.id), clashes.map((c) => c.batchId)));
+    }
+    checkStoredBounds(db, table);
     const protocol = mergeProtocol(db, table);
     const traitIds = mergeTraits(db, table.traits);
     const sites = mergeSites(db, table.trials.map((t) => t.site));

@@ -1,5 +1,8 @@
 // The workspace store: open + migrate, and the repositories that turn rows into domain values.
-export { openWorkspace, Workspace, type OpenWorkspaceOptions } from './workspace.js';
+export { openWorkspace, openWorkspaceForReading, Workspace, type OpenWorkspaceOptions } from './workspace.js';
+export { resolveWorkspacePath } from './workspacePath.js';
+export { explainSqliteError, withWorkspaceErrors } from './sqliteErrors.js';
+export { createWorkspaceWith, removeDatabaseFiles, type CreateOutcome } from './createWorkspace.js';
 export {
   migrate,
   readMigrations,

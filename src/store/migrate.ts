@@ -6,6 +6,7 @@ import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type Database from 'better-sqlite3';
+import { writeVerifiedBackup } from './backup.js';
 import { WorkspaceRefusedError } from './errors.js';
 
 export interface MigrationFile {
@@ -28,6 +29,8 @@ export interface MigrateOptions {
   readonly migrationsDir?: string;
   /** Clock for the backup name and history rows (tests pin it). */
   readonly now?: () => Date;
+  /** Tests only: writes the backup file (default VACUUM INTO), to simulate a failing disk. */
+  readonly writeBackup?: (db: Database.Database, path: string) => void;
 }
 
 export interface MigrateOutcome {
@@ -151,8 +154,9 @@ export function migrate(db: Database.Database, options: MigrateOptions = {}): Mi
   const existing = readHistory(db).length > 0;
   if (existing && !db.memory) {
     backup = backupPathFor(db.name, now());
-    // VACUUM INTO writes a consistent, compact copy (WAL content included) without a transaction.
-    db.prepare('VACUUM INTO ?').run(backup);
+    // Nothing is migrated unless the backup is complete and readable (a full disk must not
+    // leave a 0-byte "backup" that the refusal messages would then send users to).
+    writeVerifiedBackup(db, backup, pending, options.writeBackup);
   }
 
   db.exec(`CREATE TABLE IF NOT EXISTS schema_history (

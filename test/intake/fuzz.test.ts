@@ -2,11 +2,13 @@
 // or throw an IntakeError whose problems name the file; never another exception, never a hang.
 // Each case must finish within CASE_LIMIT_MS (a generous bound on a shared 2-core machine; a
 // linear-time reader takes a few milliseconds on these inputs). numRuns are stated per property.
+import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
 import { strToU8, zipSync } from 'fflate';
 import { describe, expect, it } from 'vitest';
 import { parseMapping, readPlotFile, readSummaryFile } from '../../src/intake/index.js';
 import { IntakeError, type ImportMapping, type ParsedPlotTable } from '../../src/intake/types.js';
+import { JsonShapeError, MAX_JSON_DEPTH, parseBoundedJson } from '../../src/intake/jsonInput.js';
 import { HEADER, MAPPING, toCsv, validRows, writeTemp } from './helpers.js';
 import { buildXlsx } from './xlsxBuilder.js';
 
@@ -173,6 +175,110 @@ describe('fuzzing mappings and summary files', () => {
         }
       }),
       { numRuns: 800, seed: SEED },
+    );
+  });
+});
+
+// Hostile mappings (hardening, issue 20): keys named like Object.prototype members, documents
+// nested far deeper than any real one, and declared encodings over arbitrary bytes.
+const PROTO_KEYS = ['toString', 'constructor', '__proto__', 'hasOwnProperty', 'valueOf', 'isPrototypeOf', 'prototype', '__defineGetter__'];
+
+describe('fuzzing hostile mappings', () => {
+  const protoHeader = ['site', 'year', 'block', 'trt', 'rate', 'timing', 'yield', ...PROTO_KEYS.filter((k) => k !== '__proto__')];
+  const protoRows = validRows().map((r) => [...r, ...PROTO_KEYS.filter((k) => k !== '__proto__').map((_, i) => String(i))]);
+  let protoFile = '';
+  const key = fc.oneof(fc.constantFrom(...PROTO_KEYS), fc.constantFrom(...protoHeader), fc.string({ maxLength: 6 }));
+
+  it('mappings whose names and keys are prototype members read the file or give an IntakeError (1500 runs)', async () => {
+    protoFile = writeTemp('proto.csv', toCsv(protoRows, protoHeader));
+    const mapping = fc.record(
+      {
+        columns: fc.record({
+          site: fc.constant('site'),
+          year: fc.constant('year'),
+          block: fc.oneof(fc.constant('block'), key),
+          treatment: fc.oneof(fc.constant('trt'), key),
+          response: fc.oneof(fc.constant('yield'), key),
+          factors: fc.dictionary(key, fc.oneof(key, fc.constantFrom('rate', 'timing')), { maxKeys: 4 }),
+          covariates: fc.array(key, { maxLength: 3 }),
+        }),
+        trait: fc.record({ name: key, unit: fc.oneof(fc.constantFrom('t/ha', 'kg/ha', '%'), key) }),
+        control: key,
+        factorUnits: fc.dictionary(key, fc.oneof(fc.constantFrom('kg/ha', 'lb/ac'), key), { maxKeys: 4 }),
+        treatments: fc.array(key, { maxLength: 4 }),
+        protocol: key,
+      },
+      { requiredKeys: ['columns'] },
+    );
+    await fc.assert(
+      fc.asyncProperty(mapping, async (m) => {
+        // Through JSON text, as from a file: a "__proto__" key arrives as an own key.
+        const json: unknown = JSON.parse(JSON.stringify(m));
+        let parsed: ImportMapping;
+        try {
+          parsed = parseMapping(json, 'm.json');
+        } catch (e) {
+          if (!(e instanceof IntakeError)) throw e;
+          return;
+        }
+        await readsCleanly(readFileSync(protoFile), parsed);
+      }),
+      { numRuns: 1500, seed: SEED },
+    );
+  });
+
+  it('JSON text nested up to 30,000 deep, with prototype keys, never overflows the stack (500 runs)', () => {
+    const open = fc.array(fc.oneof(fc.constant('['), fc.constantFrom(...PROTO_KEYS.map((k) => `{"${k}":`))), { minLength: 1, maxLength: 8 });
+    fc.assert(
+      fc.property(open, fc.integer({ min: 1, max: 30_000 }), (pattern, depth) => {
+        let text = '';
+        const closers: string[] = [];
+        for (let i = 0; i < depth; i++) {
+          const o = pattern[i % pattern.length];
+          text += o;
+          closers.push(o === '[' ? ']' : '}');
+        }
+        text += '1' + closers.reverse().join('');
+        const doc = `{"columns":${text}}`;
+        try {
+          parseMapping(parseBoundedJson(doc), 'deep.json');
+        } catch (e) {
+          if (e instanceof IntakeError || e instanceof JsonShapeError) {
+            if (e instanceof JsonShapeError) expect(depth).toBeGreaterThan(MAX_JSON_DEPTH - 2);
+            return;
+          }
+          throw e;
+        }
+      }),
+      { numRuns: 500, seed: SEED },
+    );
+  });
+
+  it('arbitrary bytes under each declared encoding read or give an IntakeError (1000 runs)', async () => {
+    const encodings = [undefined, 'utf-8', 'latin-1', 'windows-1252', 'utf-16', 'utf-16le', 'utf-16be'] as const;
+    const bytes = fc.oneof(
+      fc.uint8Array({ maxLength: 2048 }),
+      fc.tuple(fc.nat(), fc.uint8Array({ minLength: 1, maxLength: 4 })).map(([at, junk]) => {
+        const valid = Buffer.from(VALID, 'utf8');
+        const i = at % valid.length;
+        return Buffer.concat([valid.subarray(0, i), junk, valid.subarray(i)]);
+      }),
+    );
+    await fc.assert(
+      fc.asyncProperty(bytes, fc.constantFrom(...encodings), (b, encoding) => readsCleanly(b, encoding === undefined ? MAPPING : { ...MAPPING, encoding })),
+      { numRuns: 1000, seed: SEED },
+    );
+  });
+
+  it('workbooks with prototype-named, formula-like and huge-number cells (300 runs)', async () => {
+    const cell = fc.oneof(fc.constantFrom(...PROTO_KEYS, '=1+1', '+cmd', '@SUM(A1)', '1e309', 'NaN', '-Infinity', '1,234', 'CTL', 'A1', '40', ''), fc.string({ maxLength: 5 }));
+    await fc.assert(
+      fc.asyncProperty(fc.array(fc.tuple(fc.nat(), fc.nat(), cell), { maxLength: 12 }), (edits) => {
+        const rows = [HEADER.slice(), ...validRows()];
+        for (const [r, c, v] of edits) rows[r % rows.length][c % HEADER.length] = v;
+        return readsCleanly(buildXlsx([{ name: 'Plots', rows }]), MAPPING, 'fuzz.xlsx');
+      }),
+      { numRuns: 300, seed: SEED },
     );
   });
 });

@@ -152,7 +152,59 @@ describe('importParsedTable', () => {
     const before = counts(ws);
     const e = refusal(() => importParsedTable(ws, syntheticTable({ trials: 3, seed: 2, file: 'second.csv' })));
     expect(e.reason).toBe('trial-exists');
-    expect(e.message).toMatch(/trial "S000-2015" at site "S000" in 2015 is already in the workspace \(imported from "first\.csv"\)/);
+    // Every conflicting trial is listed, not only the first (hardening finding 7).
+    expect(e.message).toMatch(/^3 trial\(s\) of this file are already in the workspace/);
+    for (const key of ['S000-2015', 'S000-2016', 'S000-2017']) expect(e.message).toContain(`trial "${key}" at site "S000" in ${key.slice(-4)} (imported from "first.csv")`);
+    expect((e.details as { trials: unknown[] }).trials).toHaveLength(3);
+    expect(counts(ws)).toEqual(before);
+  });
+
+  it('--replace replaces the trials a corrected file brings (same site, year and trial), whatever its hash', () => {
+    const ws = freshWorkspace();
+    importParsedTable(ws, syntheticTable({ trials: 4, sites: 1, seed: 1, file: 'first.csv' }));
+    const before = counts(ws);
+    const firstValues = loadNetwork(ws, 'yield').trials.find((t) => t.trial === 'S000-2018')!.plots.map((p) => p.value);
+    // The corrected file: the first three trials again with other values (another SHA-256).
+    const corrected = syntheticTable({ trials: 3, sites: 1, seed: 2, file: 'corrected.csv' });
+    expect(corrected.sha256).not.toBe(syntheticTable({ trials: 4, sites: 1, seed: 1 }).sha256);
+    const s = importParsedTable(ws, corrected, { replace: true });
+    expect(s.replaced).toMatchObject({ trials: 3, plots: 3 * 28, observations: 3 * 28 });
+    expect(counts(ws)).toEqual({ ...before, importBatches: 2 }); // same trials, plots and values in number
+    const after = loadNetwork(ws, 'yield');
+    expect(after.trials.map((t) => t.trial).sort()).toEqual(['S000-2015', 'S000-2016', 'S000-2017', 'S000-2018']);
+    // The replaced trials hold the corrected values; the fourth keeps the first file's.
+    const fourth = after.trials.find((t) => t.trial === 'S000-2018')!;
+    expect(fourth.plots.map((p) => p.value)).toEqual(firstValues);
+    const byTrial = new Map(corrected.trials.map((t) => [t.key, t]));
+    for (const t of after.trials.filter((x) => byTrial.has(x.trial))) {
+      const want = corrected.observations.filter((o) => corrected.plots[o.plot].trialKey === t.trial).map((o) => o.value);
+      expect(t.plots.map((p) => p.value)).toEqual(want);
+    }
+    // Both batches remain: the first still owns its fourth trial.
+    expect((ws.db.prepare('SELECT COUNT(*) AS n FROM import_batch').get() as { n: number }).n).toBe(2);
+  });
+
+  it('--replace drops an earlier batch once all its trials are replaced', () => {
+    const ws = freshWorkspace();
+    importParsedTable(ws, syntheticTable({ trials: 2, seed: 1, file: 'first.csv' }));
+    importParsedTable(ws, syntheticTable({ trials: 2, seed: 3, file: 'corrected.csv' }), { replace: true });
+    const batches = ws.db.prepare('SELECT file_name FROM import_batch').all() as { file_name: string }[];
+    expect(batches.map((b) => b.file_name)).toEqual(['corrected.csv']);
+  });
+
+  it('enforces the bounds stored with a trait on every later import, naming the cell', () => {
+    const ws = freshWorkspace();
+    const first = syntheticTable({ trials: 2, seed: 1, file: 'first.csv' });
+    importParsedTable(ws, { ...first, traits: [{ ...first.traits[0], lower: 0 }] });
+    const before = counts(ws);
+    const second = syntheticTable({ trials: 2, prefix: 'N', seed: 2, file: 'second.csv' });
+    // The second file's mapping gives no bounds; the stored lower bound 0 still holds.
+    const negative: ParsedPlotTable = { ...second, traits: [{ ...second.traits[0], lower: null }], observations: second.observations.map((o, i) => (i === 5 ? { ...o, value: -5 } : o)) };
+    const e = refusal(() => importParsedTable(ws, negative));
+    expect(e.reason).toBe('trait-bounds');
+    expect(e.code).toBe('invalid-input');
+    expect(e.message).toContain(`second.csv, row ${second.plots[second.observations[5].plot].sourceRow}`);
+    expect(e.message).toMatch(/value -5 t\/ha: trait "yield" is stored with bounds 0 to inf/);
     expect(counts(ws)).toEqual(before);
   });
 

@@ -8,7 +8,7 @@ import { APP_VERSION } from '../../version.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 import { networkFromTable } from './networkFromTable.js';
-import { runAnalysis } from './runAnalysis.js';
+import { runAnalysisCancellable } from './cancellable.js';
 import { poolSummaryRows } from './poolSummary.js';
 import type { AnalysisReport } from './report.js';
 
@@ -31,28 +31,39 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
     }
     const { network, sha256, warnings } = specHasOneRowPerPlot(spec) ? await readNetworkForAnalysis(source.data, spec) : await readLongFile(source.data, spec);
     // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
-    const analysed = runAnalysis(network, spec, ctx);
+    const analysed = await runAnalysisCancellable(network, spec, ctx);
     const report = withProvenance({ ...analysed, warnings: [...warnings.map((w) => formatProblems([w])), ...analysed.warnings] }, { source: source.data, fingerprint: `sha256:${sha256}` });
     await ctx?.deliver?.(report);
     return report;
   }
   // Imported here, not at the top: the --data path above never needs the store or its native module.
-  const { openWorkspace, loadNetwork, saveAnalysis } = await import('../../store/index.js');
-  const ws = openWorkspace(source.workspace!);
+  const store = await import('../../store/index.js');
+  const path = source.workspace!;
   try {
-    const trait = spec.trait;
-    if (!trait) throw new ManyfieldError('invalid-argument', 'the spec must name a "trait" when analysing a workspace');
-    const network = loadNetwork(ws, trait);
-    const print = fingerprint(network);
-    const report = withProvenance(runAnalysis(network, spec, ctx), { source: source.workspace!, fingerprint: print });
-    // Stored last, after the caller has taken the result (written its output file): a failed
-    // analysis — or one whose output could not be written — leaves no stored analysis behind.
-    throwIfCancelled(ctx);
-    await ctx?.deliver?.(report);
-    if (source.save) saveAnalysis(ws, spec, print, report);
-    return report;
-  } finally {
-    ws.close();
+    const target = store.resolveWorkspacePath(path);
+    // An analysis that is not stored only reads, so a read-only workspace serves it.
+    const ws = source.save ? store.openWorkspace(target) : store.openWorkspaceForReading(target);
+    try {
+      const trait = spec.trait;
+      if (!trait) throw new ManyfieldError('invalid-argument', 'the spec must name a "trait" when analysing a workspace');
+      const network = store.loadNetwork(ws, trait);
+      const print = fingerprint(network);
+      const report = withProvenance(await runAnalysisCancellable(network, spec, ctx), { source: path, fingerprint: print });
+      // Stored last, after the caller has taken the result (written its output file): a failed
+      // analysis — or one whose output could not be written — leaves no stored analysis behind.
+      throwIfCancelled(ctx);
+      await ctx?.deliver?.(report);
+      if (source.save) {
+        // A computed result is worth waiting for: another writer gets a minute, not five seconds.
+        ws.db.pragma('busy_timeout = 60000');
+        store.saveAnalysis(ws, spec, print, report);
+      }
+      return report;
+    } finally {
+      ws.close();
+    }
+  } catch (e) {
+    throw store.explainSqliteError(e, path);
   }
 }
 

@@ -3,7 +3,8 @@
 import { existsSync, renameSync, rmSync } from 'node:fs';
 import { generateDemoNetwork, type DemoTruth } from '../../demo/generate.js';
 import { DEMO_NETWORK_NAME, DEMO_SITES } from '../../demo/scenario.js';
-import { openWorkspace, importParsedTable, setMeta, setSiteDetails } from '../../store/index.js';
+import { explainSqliteError, openWorkspace, importParsedTable, removeDatabaseFiles, resolveWorkspacePath, setMeta, setSiteDetails } from '../../store/index.js';
+import { refuseFolder } from '../../store/workspacePath.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 
@@ -19,10 +20,13 @@ export interface DemoSummary {
 export const DEMO_TRUTH_KEY = 'demo.truth';
 
 export function buildDemo(path: string, replace: boolean, ctx?: CallContext): DemoSummary {
-  if (existsSync(path) && !replace)
+  // Through a symbolic link the demo replaces the link's target; the link stays a link.
+  const target = resolveWorkspacePath(path);
+  refuseFolder(target, path);
+  if (existsSync(target) && !replace)
     throw new ManyfieldError('conflict', `"${path}" already exists; choose another file, or give --replace to rebuild the demo there (its current content is then replaced)`);
   const { table, truth } = generateDemoNetwork();
-  const building = `${path}.building-${process.pid}`;
+  const building = `${target}.building-${process.pid}`;
   removeDatabaseFiles(building);
   try {
     const ws = openWorkspace(building, { create: true });
@@ -43,11 +47,12 @@ export function buildDemo(path: string, replace: boolean, ctx?: CallContext): De
     } finally {
       ws.close();
     }
-    removeDatabaseFiles(path);
-    renameSync(building, path);
+    // The old workspace's -wal and -shm must not be applied to the new file.
+    for (const suffix of ['-wal', '-shm', '-journal']) rmSync(`${target}${suffix}`, { force: true });
+    renameSync(building, target);
   } catch (e) {
     removeDatabaseFiles(building);
-    throw e;
+    throw explainSqliteError(e, path);
   }
   return {
     workspace: path,
@@ -57,8 +62,4 @@ export function buildDemo(path: string, replace: boolean, ctx?: CallContext): De
     sites: new Set(table.trials.map((t) => t.site)).size,
     years: [...new Set(table.trials.map((t) => t.year))].sort(),
   };
-}
-
-function removeDatabaseFiles(path: string): void {
-  for (const suffix of ['', '-wal', '-shm', '-journal']) rmSync(`${path}${suffix}`, { force: true });
 }

@@ -1,9 +1,19 @@
 // Import of one plot file: read and validate the whole file first, then store it in one
-// transaction. A workspace created for this import is removed again if the import fails.
-import { existsSync, rmSync } from 'node:fs';
+// transaction. Into a workspace that does not exist yet, the import builds a new one privately
+// and publishes it atomically (createWorkspaceWith); if another process created the workspace
+// meanwhile, the import goes into that one like any other. A failed import writes nothing.
+import { existsSync } from 'node:fs';
 import { formatProblems, readMappingFile, readPlotFile } from '../../intake/index.js';
-import type { ImportMapping } from '../../intake/types.js';
-import { openWorkspace, importParsedTable, type ImportSummary } from '../../store/index.js';
+import type { ImportMapping, ParsedPlotTable } from '../../intake/types.js';
+import {
+  createWorkspaceWith,
+  explainSqliteError,
+  importParsedTable,
+  openWorkspace,
+  resolveWorkspacePath,
+  type ImportSummary,
+  type Workspace,
+} from '../../store/index.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 
 export interface ImportOutcome {
@@ -19,21 +29,28 @@ export async function importFile(args: { workspace: string; file: string; mappin
   const mapping = typeof args.mapping === 'string' ? readMappingFile(args.mapping) : args.mapping;
   const table = await readPlotFile(args.file, mapping, { onProgress: (f) => ctx?.onProgress?.({ stage: 'read', fraction: f }) });
   throwIfCancelled(ctx);
-  const created = !existsSync(args.workspace);
-  let ws;
+  const target = resolveWorkspacePath(args.workspace);
+  const store = (ws: Workspace): ImportSummary => storeTable(ws, table, args.replace, ctx);
   try {
-    ws = openWorkspace(args.workspace, { create: created });
-    const summary = importParsedTable(ws, table, {
-      replace: args.replace,
-      onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }),
-    });
-    return { workspace: args.workspace, file: args.file, created, summary, warnings: (table.warnings ?? []).map((w) => formatProblems([w])) };
+    const warnings = (table.warnings ?? []).map((w) => formatProblems([w]));
+    if (!existsSync(target)) {
+      const made = createWorkspaceWith(target, store);
+      if (made.created) return { workspace: args.workspace, file: args.file, created: true, summary: made.result, warnings };
+    }
+    const ws = openWorkspace(target);
+    try {
+      return { workspace: args.workspace, file: args.file, created: false, summary: store(ws), warnings };
+    } finally {
+      ws.close();
+    }
   } catch (e) {
-    ws?.close();
-    ws = undefined;
-    if (created) for (const s of ['', '-wal', '-shm']) rmSync(`${args.workspace}${s}`, { force: true });
-    throw e;
-  } finally {
-    ws?.close();
+    throw explainSqliteError(e, args.workspace);
   }
+}
+
+function storeTable(ws: Workspace, table: ParsedPlotTable, replace: boolean, ctx?: CallContext): ImportSummary {
+  return importParsedTable(ws, table, {
+    replace,
+    onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }),
+  });
 }

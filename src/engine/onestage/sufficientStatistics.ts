@@ -6,6 +6,7 @@ import type { PlotColumns, PlotColumnTable } from '../plotColumns.js';
 import type { RandomTerm } from './types.js';
 import { RANDOM_TERMS } from './types.js';
 import { f64 } from './arena.js';
+import { ownValue } from '../ownValue.js';
 
 /** Term index of a column: 0 trial, 1 block, 2 treatment-by-trial (see RANDOM_TERMS). */
 export type TermIndex = 0 | 1 | 2;
@@ -150,7 +151,7 @@ function trialsWithCovariates(network: NetworkInput, names: readonly string[]): 
   for (const trial of network.trials) {
     let complete = true;
     for (const name of names) {
-      const v = trial.covariates?.[name];
+      const v = ownValue(trial.covariates, name);
       if (v === undefined || v === null) complete = false;
       else if (typeof v !== 'number' || !Number.isFinite(v)) throw new OneStageDataError(`trial "${trial.trial}": covariate "${name}" is ${JSON.stringify(v)}, not a number; a fixed covariate needs numeric values`);
     }

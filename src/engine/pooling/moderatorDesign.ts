@@ -4,6 +4,7 @@
 // out and listed, never dropped silently.
 import { Matrix, zeros } from '../linalg/matrix.js';
 import type { PoolingItem } from './types.js';
+import { ownValue } from '../ownValue.js';
 
 export interface ModeratorColumnInfo {
   moderator: string;
@@ -21,7 +22,7 @@ export interface ModeratorDesign {
 }
 
 function valueOf(item: PoolingItem, name: string): number | string | null {
-  const v = item.covariates?.[name];
+  const v = ownValue(item.covariates, name);
   if (v === undefined || v === null) return null;
   if (typeof v === 'number') return Number.isFinite(v) ? v : null;
   const t = v.trim();

@@ -5,6 +5,7 @@ import { chisqUpper } from '../stats/distributions.js';
 import { poolCore } from './poolCore.js';
 import type { FitSettings } from './modelFit.js';
 import type { PoolingItem, SubgroupAnalysis, SubgroupRow } from './types.js';
+import { ownValue } from '../ownValue.js';
 
 export function subgroupAnalysis(items: readonly PoolingItem[], moderator: string, levels: readonly string[], settings: FitSettings, threshold: number): SubgroupAnalysis {
   const groups: SubgroupRow[] = [];
@@ -12,7 +13,7 @@ export function subgroupAnalysis(items: readonly PoolingItem[], moderator: strin
   const variances: number[] = [];
   for (const level of levels) {
     const members = items.filter((it) => {
-      const v = it.covariates?.[moderator];
+      const v = ownValue(it.covariates, moderator);
       return v !== undefined && v !== null && String(v).trim() === level;
     });
     if (members.length === 0) continue;

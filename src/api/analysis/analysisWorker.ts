@@ -1,0 +1,39 @@
+// The analysis, run off the caller's thread: the engine's loops are synchronous, so a caller
+// whose own thread ran them could not even receive a cancel (Ctrl-C, the api's abort) until
+// they finished. Here the caller stays free and ends this thread when asked (cancellable.ts).
+import { parentPort, workerData } from 'node:worker_threads';
+import type { NetworkInput } from '../../engine/types.js';
+import type { AnalysisSpec } from '../../spec/analysisSpec.js';
+import { toApiError } from '../errors.js';
+import { runAnalysis } from './runAnalysis.js';
+
+export interface WorkerRequest {
+  readonly network: NetworkInput;
+  readonly spec: AnalysisSpec;
+}
+
+export type WorkerMessage =
+  | { readonly type: 'progress'; readonly event: { stage: string; step?: string; fraction: number | null } }
+  | { readonly type: 'done'; readonly report: ReturnType<typeof runAnalysis> }
+  | { readonly type: 'failed'; readonly error: ReturnType<typeof toApiError> };
+
+const port = parentPort;
+if (port !== null) {
+  const { network, spec } = workerData as WorkerRequest;
+  const post = (m: WorkerMessage): void => port.postMessage(m);
+  try {
+    post({ type: 'done', report: runAnalysis(network, spec, { onProgress: (event) => post({ type: 'progress', event }) }) });
+  } catch (e) {
+    const error = toApiError(e);
+    // Stack traces stay in this thread; the details must survive the copy to the caller.
+    post({ type: 'failed', error: { code: error.code, message: error.message, details: cloneable(error.details) } });
+  }
+}
+
+function cloneable(details: unknown): unknown {
+  try {
+    return structuredClone(details);
+  } catch {
+    return undefined;
+  }
+}
