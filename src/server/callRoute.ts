@@ -6,7 +6,7 @@ import type { ProgressEvent } from '../api/context.js';
 import { toApiError } from '../api/errors.js';
 import { ManyfieldError, type Result } from '../api/result.js';
 import { runInWorker } from '../api/worker/runInWorker.js';
-import { applyPolicy, type ArgsPolicy } from './argsPolicy.js';
+import { applyPolicy, type ArgsPolicy } from '../api/host/argsPolicy.js';
 import { readJsonBody } from './httpBodies.js';
 import { MAX_CALL_BYTES, NDJSON_TYPE, type CallLine } from './protocol.js';
 
