@@ -17,6 +17,8 @@ import { PickedFiles } from './pickedFiles.js';
 import { APP_SCHEME, APP_START_URL, windowOptions } from './windowOptions.js';
 
 const here = __dirname; // dist/main in the bundle
+// In a package the worker runs from app.asar.unpacked (see asarUnpack in electron-builder.yml).
+const workerFile = join(here.replace(/app\.asar(?=[\\/]|$)/, 'app.asar.unpacked'), 'jobWorker.cjs');
 const rendererDir = join(here, '..', 'renderer');
 const devTools = process.env.MANYFIELD_DEVTOOLS === '1';
 const startWorkspace = argValue('--workspace');
@@ -46,7 +48,7 @@ function remember(path: string): void {
 }
 
 const runLong = (name: string, args: unknown, ctx: { onProgress: (e: import('../src/api/context.js').ProgressEvent) => void; signal: AbortSignal }) =>
-  runInWorker(name, args, { ...ctx, workerFile: join(here, 'jobWorker.cjs') });
+  runInWorker(name, args, { ...ctx, workerFile });
 
 async function demoWorkspace(): Promise<string> {
   const path = join(app.getPath('userData'), 'demo.manyfield');
