@@ -95,7 +95,7 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
       }
     }
     if (url.pathname.startsWith(CALL_PREFIX)) {
-      await handleCall(decodeURIComponent(url.pathname.slice(CALL_PREFIX.length)), req, res, { policy, workerFile: options.workerFile, onWorkspaceUsed: remember });
+      await handleCall(decodeURIComponent(url.pathname.slice(CALL_PREFIX.length)), req, res, { policy, workerFile: options.workerFile, onWorkspaceUsed: remember, redact: (line) => uploads.redact(line) });
       return;
     }
     if (url.pathname === UPLOAD_PATH) {

@@ -95,6 +95,18 @@ describe('browser-mode security', () => {
     expect(preview.result).toMatchObject({ ok: true, data: { format: 'csv', header: ['site', 'year', 'trt', 'y'], rowCount: 1 } });
   });
 
+  it('names uploaded files by their own name in answers, never by the server\'s temporary path', async () => {
+    const ref = await upload(base, server.token, 'field book.csv', Buffer.from('site,year,block,trt,yield\nA,2020,1,CTL,abc\n'));
+    const mapping = { columns: { site: 'site', year: 'year', block: 'block', treatment: 'trt', response: 'yield' }, trait: { name: 'yield', unit: 't/ha' } };
+    const r = await callApi(base, server.token, 'data.import', { workspace: join(dir, 'w.manyfield'), file: ref.ref, mapping });
+    expect(r.result).toMatchObject({ ok: false, error: { code: 'invalid-input' } });
+    const text = JSON.stringify(r.result);
+    expect(text).toContain('field book.csv');
+    expect(text).not.toContain('manyfield-uploads-');
+    const problems = (r.result as { error: { details: { problems: { file: string; row: number; column: string; value: string }[] } } }).error.details.problems;
+    expect(problems).toContainEqual(expect.objectContaining({ file: 'field book.csv', row: 2, column: 'yield', value: 'abc' }));
+  });
+
   it('answers an unknown handler and bad arguments with Result values, not crashes', async () => {
     expect((await callApi(base, server.token, 'no.such', {})).result).toMatchObject({ ok: false, error: { code: 'not-found' } });
     expect((await callApi(base, server.token, 'trial.detail', { workspace: join(dir, 'w.manyfield'), trial: -1, trait: 'y' })).result).toMatchObject({
