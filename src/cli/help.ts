@@ -9,6 +9,10 @@ Commands:
   import   --workspace W --file F --map M.json [--replace]
                                                  load a plot file (CSV or XLSX) into W (created if new)
   trials   --workspace W [--json]               list the trials held in W
+  sites    --workspace W [--json]               list the sites with position and covariates
+  exclude  --workspace W --plot ID --reason "…"  set a plot aside (it stays stored; analyses skip it)
+  include  --workspace W --plot ID              undo an exclusion
+  exclusions --workspace W [--json]             list the excluded plots with their reasons
   export   --workspace W --trait T --out F.csv  write one trait's plots in long format
   analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
                                                  run the trial stage, pooling, the one-stage model

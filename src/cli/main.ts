@@ -11,6 +11,7 @@ import { toCsv } from './csv.js';
 import { formatReport } from './formatReport.js';
 import { formatTrials } from './formatTrials.js';
 import { commandHelp, USAGE } from './help.js';
+import { formatExclusions, formatSites } from './formatSites.js';
 import { terminalProgress } from './progressBar.js';
 
 interface Output {
@@ -90,6 +91,26 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const r = await api['trials.list']({ workspace: o.required('workspace') });
       return report(r, (d) => (o.flag('json') ? json(d) : formatTrials(d)), out);
     }
+    case 'sites': {
+      const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
+      const r = await api['sites.list']({ workspace: o.required('workspace') });
+      return report(r, (d) => (o.flag('json') ? json(d) : formatSites(d)), out);
+    }
+    case 'exclude': {
+      const o = optionsFor(command, parsed, { values: ['workspace', 'plot', 'reason'], flags: ['json'] });
+      const r = await api['plots.exclude']({ workspace: o.required('workspace'), plot: plotId(command, o.required('plot')), reason: o.required('reason') });
+      return report(r, (d) => (o.flag('json') ? json(d) : `Plot ${d.plot} excluded: ${d.reason}\n`), out);
+    }
+    case 'include': {
+      const o = optionsFor(command, parsed, { values: ['workspace', 'plot'], flags: ['json'] });
+      const r = await api['plots.include']({ workspace: o.required('workspace'), plot: plotId(command, o.required('plot')) });
+      return report(r, (d) => (o.flag('json') ? json(d) : `Plot ${d.plot} counts again\n`), out);
+    }
+    case 'exclusions': {
+      const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
+      const r = await api['exclusions.list']({ workspace: o.required('workspace') });
+      return report(r, (d) => (o.flag('json') ? json(d) : formatExclusions(d)), out);
+    }
     case 'export': {
       const o = optionsFor(command, parsed, { values: ['workspace', 'trait', 'out'], flags: [] });
       const target = o.required('out');
@@ -141,6 +162,12 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
     default:
       throw new UsageError(`unknown command "${command}"`);
   }
+}
+
+function plotId(command: string, text: string): number {
+  const n = Number(text);
+  if (!Number.isInteger(n) || n <= 0) throw new UsageError(`${command}: --plot must be a plot id (a whole number, as "manyfield exclusions" or the trial screen shows it); got "${text}"`);
+  return n;
 }
 
 function report<T>(r: Result<T>, render: (d: T) => string, out: Output): number {

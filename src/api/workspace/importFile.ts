@@ -51,6 +51,10 @@ export async function importFile(args: { workspace: string; file: string; mappin
 function storeTable(ws: Workspace, table: ParsedPlotTable, replace: boolean, ctx?: CallContext): ImportSummary {
   return importParsedTable(ws, table, {
     replace,
-    onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }),
+    // Throwing here rolls the one import transaction back: a cancel mid-store stores nothing.
+    onProgress: (done, total) => {
+      ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null });
+      throwIfCancelled(ctx);
+    },
   });
 }
