@@ -1,6 +1,7 @@
-// The one contract between the core and every front end (CLI now; Electron IPC and the
-// browser server next). Each handler validates its arguments with zod at the boundary and
-// returns a Result value; nothing is thrown across it.
+// The one contract between the core and every front end (the CLI in-process, the Electron
+// preload over IPC, the browser mode over HTTP). Each handler validates its arguments with zod
+// at the boundary and returns a Result value; nothing is thrown across it.
+import { basename } from 'node:path';
 import { z } from '../spec/zod.js';
 import { analysisSpecSchema } from '../spec/analysisSpec.js';
 import { importMappingSchema } from '../intake/types.js';
@@ -13,6 +14,18 @@ import type { ExportedTable } from './workspace/browse.js';
 import { runAnalysisFromSource } from './analysis/fromSource.js';
 import type { AnalysisReport } from './analysis/report.js';
 import type { TrialListing } from '../store/index.js';
+import type { WorkspaceDescription } from './workspace/describe.js';
+import type { SiteEntry } from './workspace/sites.js';
+import type { TrialOverviewEntry } from './trials/overview.js';
+import type { TrialDetail } from './trials/detail.js';
+import type { ExclusionEntry, ExclusionRecord, InclusionRecord } from './plots/exclusions.js';
+import type { FilePreview } from './intake/preview.js';
+import type { ValidationReport } from './intake/validate.js';
+
+const workspacePath = z.string().min(1).max(4096);
+/** A data file: a path (CLI, Electron dialog) or an upload reference the browser server maps to one. */
+const fileRef = z.string().min(1).max(4096);
+const rowId = z.number().int().positive();
 
 export const handlerArgs = {
   'demo.build': z.object({ workspace: z.string().min(1), replace: z.boolean().default(false) }).strict(),
@@ -25,6 +38,16 @@ export const handlerArgs = {
     .object({ workspace: z.string().min(1).optional(), data: z.string().min(1).optional(), spec: analysisSpecSchema, save: z.boolean().default(true) })
     .strict()
     .refine((a) => (a.workspace === undefined) !== (a.data === undefined), 'give exactly one of "workspace" and "data"'),
+  'workspace.describe': z.object({ workspace: workspacePath }).strict(),
+  'workspace.create': z.object({ workspace: workspacePath }).strict(),
+  'sites.list': z.object({ workspace: workspacePath }).strict(),
+  'trials.overview': z.object({ workspace: workspacePath, trait: z.string().min(1) }).strict(),
+  'trial.detail': z.object({ workspace: workspacePath, trial: rowId, trait: z.string().min(1) }).strict(),
+  'plots.exclude': z.object({ workspace: workspacePath, plot: rowId, reason: z.string().trim().min(1, 'an exclusion needs a reason').max(500) }).strict(),
+  'plots.include': z.object({ workspace: workspacePath, plot: rowId }).strict(),
+  'exclusions.list': z.object({ workspace: workspacePath }).strict(),
+  'data.preview': z.object({ file: fileRef, sheet: z.string().min(1).optional() }).strict(),
+  'data.validate': z.object({ workspace: workspacePath, file: fileRef, mapping: importMappingSchema }).strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -36,7 +59,23 @@ export interface HandlerResults {
   'trials.list': TrialListing[];
   'data.export': ExportedTable;
   'analysis.run': AnalysisReport;
+  'workspace.describe': WorkspaceDescription;
+  'workspace.create': WorkspaceDescription;
+  'sites.list': SiteEntry[];
+  'trials.overview': TrialOverviewEntry[];
+  'trial.detail': TrialDetail;
+  'plots.exclude': ExclusionRecord;
+  'plots.include': InclusionRecord;
+  'exclusions.list': ExclusionEntry[];
+  'data.preview': FilePreview;
+  'data.validate': ValidationReport;
 }
+
+/** Every handler name, in one list (the preload and the server expose exactly these). */
+export const HANDLER_NAMES = Object.keys(handlerArgs) as HandlerName[];
+
+/** Handlers that can run long: the shells run them off the window's or server's thread, with progress and cancel. */
+export const LONG_HANDLERS: ReadonlySet<HandlerName> = new Set<HandlerName>(['demo.build', 'data.import', 'data.validate', 'analysis.run']);
 
 export type HandlerMap = { [K in HandlerName]: (args: HandlerArgs<K>, ctx?: CallContext) => Promise<Result<HandlerResults[K]>> };
 
@@ -50,6 +89,16 @@ const implementations: Implementations = {
   'trials.list': async (a) => (await import('./workspace/browse.js')).listWorkspaceTrials(a.workspace),
   'data.export': async (a) => (await import('./workspace/browse.js')).exportWorkspaceTrait(a.workspace, a.trait),
   'analysis.run': (a, ctx) => runAnalysisFromSource(a, ctx),
+  'workspace.describe': async (a) => (await import('./workspace/describe.js')).describeWorkspace(a.workspace),
+  'workspace.create': async (a) => (await import('./workspace/describe.js')).createWorkspace(a.workspace),
+  'sites.list': async (a) => (await import('./workspace/sites.js')).listSites(a.workspace),
+  'trials.overview': async (a) => (await import('./trials/overview.js')).trialsOverview(a.workspace, a.trait),
+  'trial.detail': async (a) => (await import('./trials/detail.js')).trialDetail(a.workspace, a.trial, a.trait),
+  'plots.exclude': async (a) => (await import('./plots/exclusions.js')).excludeStoredPlot(a.workspace, a.plot, a.reason),
+  'plots.include': async (a) => (await import('./plots/exclusions.js')).includeStoredPlot(a.workspace, a.plot),
+  'exclusions.list': async (a) => (await import('./plots/exclusions.js')).listExclusions(a.workspace),
+  'data.preview': async (a) => (await import('./intake/preview.js')).previewFile(a.file, basename(a.file), a.sheet),
+  'data.validate': async (a, ctx) => (await import('./intake/validate.js')).validateFile(a.workspace, a.file, basename(a.file), a.mapping, ctx),
 };
 
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {
@@ -65,11 +114,15 @@ function bind<K extends HandlerName>(name: K): HandlerMap[K] {
   }) as HandlerMap[K];
 }
 
-/** The handler map: what the CLI calls in-process and the shells will expose. */
-export const api: HandlerMap = {
-  'demo.build': bind('demo.build'),
-  'data.import': bind('data.import'),
-  'trials.list': bind('trials.list'),
-  'data.export': bind('data.export'),
-  'analysis.run': bind('analysis.run'),
-};
+/** The handler map: what the CLI calls in-process and the shells expose. */
+export const api: HandlerMap = Object.fromEntries(HANDLER_NAMES.map((name) => [name, bind(name)])) as HandlerMap;
+
+/** Call a handler by a name known only at run time (IPC, HTTP); an unknown name is a Result too. */
+export function callHandler(name: string, args: unknown, ctx?: CallContext): Promise<Result<unknown>> {
+  if (!isHandlerName(name)) return Promise.resolve(fail('not-found', `no handler named "${name}"`));
+  return (api[name] as (a: unknown, c?: CallContext) => Promise<Result<unknown>>)(args, ctx);
+}
+
+export function isHandlerName(name: string): name is HandlerName {
+  return Object.hasOwn(handlerArgs, name);
+}

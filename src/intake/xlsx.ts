@@ -253,3 +253,22 @@ export function readXlsxSheet(bytes: Uint8Array, sheetName?: string): SheetData 
     throw e;
   }
 }
+
+/** The names of a workbook's worksheets in workbook order (for a sheet picker). Throws XlsxFormatError. */
+export function listXlsxSheets(bytes: Uint8Array): string[] {
+  try {
+    const parts = unzipParts(bytes, (n) => n === '_rels/.rels' || n === 'xl/workbook.xml');
+    let workbookPath = 'xl/workbook.xml';
+    const rootRels = partText(parts, '_rels/.rels');
+    if (rootRels !== undefined) {
+      for (const rel of readRelationships(rootRels).values()) if (rel.type.endsWith('/officeDocument')) workbookPath = resolveTarget('', rel.target);
+    }
+    const meta = workbookPath === 'xl/workbook.xml' ? parts : unzipParts(bytes, (n) => n === workbookPath);
+    const workbookXml = partText(meta, workbookPath);
+    if (workbookXml === undefined) throw new XlsxFormatError(`the workbook part ${workbookPath} is missing`);
+    return readSheetList(workbookXml).map((s) => s.name);
+  } catch (e) {
+    if (e instanceof XmlFormatError) throw new XlsxFormatError(`malformed XML in the workbook: ${e.message}`);
+    throw e;
+  }
+}

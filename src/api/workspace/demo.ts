@@ -28,7 +28,12 @@ export function buildDemo(path: string, replace: boolean, ctx?: CallContext): De
     const ws = openWorkspace(building, { create: true });
     try {
       throwIfCancelled(ctx);
-      importParsedTable(ws, table, { onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }) });
+      importParsedTable(ws, table, {
+        onProgress: (done, total) => {
+          ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null });
+          throwIfCancelled(ctx);
+        },
+      });
       for (const site of DEMO_SITES)
         setSiteDetails(ws, site.code, {
           name: site.name,

@@ -23,7 +23,11 @@ export async function importFile(args: { workspace: string; file: string; mappin
     ws = openWorkspace(args.workspace, { create: created });
     const summary = importParsedTable(ws, table, {
       replace: args.replace,
-      onProgress: (done, total) => ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null }),
+      // Throwing here rolls the one import transaction back: a cancel mid-store stores nothing.
+      onProgress: (done, total) => {
+        ctx?.onProgress?.({ stage: 'store', fraction: total > 0 ? done / total : null });
+        throwIfCancelled(ctx);
+      },
     });
     return { workspace: args.workspace, file: args.file, created, summary };
   } catch (e) {
