@@ -18,8 +18,8 @@ export interface GridPlotInput {
 
 export type GridColouring = 'value' | 'residual';
 
-export interface GridCell {
-  readonly plot: GridPlotInput;
+export interface GridCell<P extends GridPlotInput = GridPlotInput> {
+  readonly plot: P;
   /** 0-based position on the drawn grid. */
   readonly gridRow: number;
   readonly gridCol: number;
@@ -33,8 +33,8 @@ export interface GridLegendStop {
   readonly colour: string;
 }
 
-export interface FieldGridLayout {
-  readonly cells: GridCell[];
+export interface FieldGridLayout<P extends GridPlotInput = GridPlotInput> {
+  readonly cells: GridCell<P>[];
   readonly rows: number;
   readonly cols: number;
   /** How the grid was laid out, said on screen. */
@@ -75,7 +75,7 @@ function positions(plots: readonly GridPlotInput[]): { basis: FieldGridLayout['b
 
 const LEGEND_STEPS = 5;
 
-export function layoutFieldGrid(plots: readonly GridPlotInput[], colouring: GridColouring): FieldGridLayout {
+export function layoutFieldGrid<P extends GridPlotInput>(plots: readonly P[], colouring: GridColouring): FieldGridLayout<P> {
   const { basis, at, rowLabels, colLabels } = positions(plots);
   const used = plots.filter((p) => !p.excluded);
   const range = colouring === 'value' ? extent(used.map((p) => p.value)) : symmetricExtent(used.map((p) => p.residual));
@@ -88,7 +88,7 @@ export function layoutFieldGrid(plots: readonly GridPlotInput[], colouring: Grid
   const cells = plots.map((plot) => {
     const [gridRow, gridCol] = at.get(plot.id) ?? [0, 0];
     const v = colouring === 'value' ? plot.value : plot.residual;
-    const state: GridCell['state'] = plot.excluded ? 'excluded' : plot.value === null ? 'missing' : 'used';
+    const state: GridCell<P>['state'] = plot.excluded ? 'excluded' : plot.value === null ? 'missing' : 'used';
     const fill = state === 'excluded' ? EXCLUDED_FILL : v === null ? MISSING_FILL : colourOf(v);
     return { plot, gridRow, gridCol, fill, textColour: textColourOn(fill), state };
   });

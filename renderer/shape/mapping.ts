@@ -47,7 +47,6 @@ export interface MappingGuess {
   readonly control?: string;
   readonly design?: string;
   readonly factorUnits?: Readonly<Record<string, string>>;
-  readonly [key: string]: unknown;
 }
 
 function emptyColumns(): Record<ColumnRole, string> {
@@ -73,7 +72,7 @@ function pick(header: readonly string[], value: unknown): string {
 
 export function formFromGuess(header: readonly string[], guess: MappingGuess | null | undefined): MappingForm {
   const g: MappingGuess = guess ?? {};
-  const cols = (g.columns ?? (g as MappingGuess['columns'])) ?? {};
+  const cols = g.columns ?? {};
   const columns = emptyColumns();
   for (const role of COLUMN_ROLES) columns[role] = pick(header, (cols as Record<string, unknown>)[role]);
   const factorMap = cols.factors ?? {};

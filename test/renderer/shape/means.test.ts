@@ -20,3 +20,18 @@ describe('mean rows', () => {
     expect(notEstimable(means)).toEqual(['A1']);
   });
 });
+
+import { importFraction, progressText } from '../../../renderer/shape/progress.js';
+
+describe('progress words', () => {
+  it('names the stage and the percentage, or an ellipsis when the amount is unknown', () => {
+    expect(progressText('read', 0.426)).toBe('Reading and checking the file: 42%');
+    expect(progressText('store', null)).toBe('Storing in the workspace…');
+    expect(progressText('other', 1.2)).toBe('other: 100%');
+  });
+  it('counts reading as the first half of an import and storing as the second', () => {
+    expect(importFraction('read', 1)).toBe(0.5);
+    expect(importFraction('store', 0.5)).toBe(0.75);
+    expect(importFraction('store', null)).toBeNull();
+  });
+});
