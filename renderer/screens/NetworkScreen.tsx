@@ -46,7 +46,7 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
         </span>
         <span>{years}</span>
         <span>
-          <strong>{info.exclusions}</strong> plots excluded
+          <strong>{info.exclusions}</strong> {info.exclusions === 1 ? 'plot' : 'plots'} excluded
         </span>
       </p>
       <div className="network-grid">
