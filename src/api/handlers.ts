@@ -21,6 +21,7 @@ import type { TrialDetail } from './trials/detail.js';
 import type { ExclusionEntry, ExclusionRecord, InclusionRecord } from './plots/exclusions.js';
 import type { FilePreview } from './intake/preview.js';
 import type { ValidationReport } from './intake/validate.js';
+import { HANDLER_NAMES, type HandlerNameList } from './handlerNames.js';
 
 const workspacePath = z.string().min(1).max(4096);
 /** A data file: a path (CLI, Electron dialog) or an upload reference the browser server maps to one. */
@@ -71,11 +72,12 @@ export interface HandlerResults {
   'data.validate': ValidationReport;
 }
 
-/** Every handler name, in one list (the preload and the server expose exactly these). */
-export const HANDLER_NAMES = Object.keys(handlerArgs) as HandlerName[];
+export { HANDLER_NAMES, LONG_HANDLERS } from './handlerNames.js';
 
-/** Handlers that can run long: the shells run them off the window's or server's thread, with progress and cancel. */
-export const LONG_HANDLERS: ReadonlySet<HandlerName> = new Set<HandlerName>(['demo.build', 'data.import', 'data.validate', 'analysis.run']);
+// The schema map and the name list must agree both ways (a test checks the order-free equality at run time too).
+type SameKeys<A, B> = [Exclude<A, B>, Exclude<B, A>] extends [never, never] ? true : never;
+const namesAgree: SameKeys<HandlerName, HandlerNameList> = true;
+void namesAgree;
 
 export type HandlerMap = { [K in HandlerName]: (args: HandlerArgs<K>, ctx?: CallContext) => Promise<Result<HandlerResults[K]>> };
 

@@ -1,0 +1,25 @@
+// The handler names alone, in a module with no imports: the sandboxed Electron preload (which
+// may require nothing but "electron") exposes exactly these, and handlers.ts is checked to
+// declare exactly these.
+export const HANDLER_NAMES = [
+  'demo.build',
+  'data.import',
+  'trials.list',
+  'data.export',
+  'analysis.run',
+  'workspace.describe',
+  'workspace.create',
+  'sites.list',
+  'trials.overview',
+  'trial.detail',
+  'plots.exclude',
+  'plots.include',
+  'exclusions.list',
+  'data.preview',
+  'data.validate',
+] as const;
+
+export type HandlerNameList = (typeof HANDLER_NAMES)[number];
+
+/** Handlers that can run long: the shells run them off the window's or server's thread, with progress and cancel. */
+export const LONG_HANDLERS: ReadonlySet<HandlerNameList> = new Set<HandlerNameList>(['demo.build', 'data.import', 'data.validate', 'analysis.run']);
