@@ -14,6 +14,11 @@ export interface OpenWorkspace {
   readonly info: WorkspaceInfo;
 }
 
+/** Yield when the workspace has it (the trait most trials are run for), else the first. */
+function defaultTrait(names: readonly string[]): string {
+  return names.find((n) => n.toLowerCase() === 'yield') ?? names.find((n) => /yield/i.test(n)) ?? names[0] ?? '';
+}
+
 export function App() {
   const host = useHost();
   const [route, setRoute] = useState<Route>({ screen: 'start' });
@@ -31,7 +36,7 @@ export function App() {
       }
       setProblem(null);
       setWorkspace({ path, info: r.data });
-      setTrait((t) => (r.data.traits.some((x) => x.name === t) ? t : (r.data.traits[0]?.name ?? '')));
+      setTrait((t) => (r.data.traits.some((x) => x.name === t) ? t : defaultTrait(r.data.traits.map((x) => x.name))));
       return true;
     },
     [host],

@@ -6,6 +6,8 @@ import { svgText, svgToPng } from './exportChart.js';
 
 interface Props {
   readonly title: string;
+  /** The title the exported files are named after (e.g. with the trial), when it differs. */
+  readonly exportName?: string;
   readonly note?: ReactNode;
   /** The chart's numbers as CSV, built on demand. */
   readonly csv: () => string;
@@ -14,7 +16,8 @@ interface Props {
   readonly children: ReactNode;
 }
 
-export function ChartFrame({ title, note, csv, testId, className, children }: Props) {
+export function ChartFrame({ title, exportName, note, csv, testId, className, children }: Props) {
+  const fileTitle = exportName ?? title;
   const host = useHost();
   const body = useRef<HTMLDivElement>(null);
   const [message, setMessage] = useState<string | null>(null);
@@ -31,15 +34,15 @@ export function ChartFrame({ title, note, csv, testId, className, children }: Pr
     run('SVG', async () => {
       const s = svg();
       if (!s) throw new Error('nothing drawn yet');
-      await host.saveFile(fileNameFor(title, 'svg'), svgText(s));
+      await host.saveFile(fileNameFor(fileTitle, 'svg'), svgText(s));
     });
   const exportPng = () =>
     run('PNG', async () => {
       const s = svg();
       if (!s) throw new Error('nothing drawn yet');
-      await host.saveFile(fileNameFor(title, 'png'), await svgToPng(s));
+      await host.saveFile(fileNameFor(fileTitle, 'png'), await svgToPng(s));
     });
-  const exportCsv = () => run('CSV', () => host.saveFile(fileNameFor(title, 'csv'), csv()));
+  const exportCsv = () => run('CSV', () => host.saveFile(fileNameFor(fileTitle, 'csv'), csv()));
   return (
     <figure className={`chart-frame ${className ?? ''}`} data-testid={testId} aria-label={title}>
       <figcaption>

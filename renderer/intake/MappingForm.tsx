@@ -86,7 +86,7 @@ export function MappingForm({ header, form, onChange }: Props) {
             </label>
             <label>
               <span className="visually-hidden">Unit of {f.column}</span>
-              <input value={f.unit} placeholder="unit, e.g. kg/ha" onChange={(e) => onChange({ ...form, factors: form.factors.map((g, j) => (j === i ? { ...g, unit: e.target.value } : g)) })} aria-label={`Unit of ${f.column}`} />
+              <input value={f.unit} placeholder="unit if numeric, e.g. kg/ha" size={22} onChange={(e) => onChange({ ...form, factors: form.factors.map((g, j) => (j === i ? { ...g, unit: e.target.value } : g)) })} aria-label={`Unit of ${f.column}`} />
             </label>
             <button type="button" className="small" onClick={() => onChange({ ...form, factors: form.factors.filter((_, j) => j !== i) })} aria-label={`Remove factor ${f.column}`}>
               Remove

@@ -1,7 +1,7 @@
 // The first rows of the chosen file, as read, so the mapping can be checked against them.
 import type { FilePreview } from '../app/views.js';
 
-const SHOWN = 6;
+const SHOWN = 5;
 
 export function PreviewTable({ preview }: { preview: FilePreview }) {
   return (

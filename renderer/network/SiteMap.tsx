@@ -6,8 +6,8 @@ import { layoutSites } from '../shape/siteMap.js';
 import { toCsv } from '../shape/csv.js';
 import { ChartFrame } from '../charts/ChartFrame.js';
 
-const WIDTH = 440;
-const HEIGHT = 330;
+const WIDTH = 400;
+const HEIGHT = 290;
 const MARGIN = 34;
 
 interface Props {

@@ -1,7 +1,7 @@
 // Intake: choose a file, look at its first rows, map its columns, check it, see every problem,
 // fix and check again, then import with progress (cancellable). A refused or cancelled import
 // leaves the workspace as it was.
-import { useRef, useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { OpenWorkspace } from '../app/App.js';
 import { useHost } from '../app/hostContext.js';
 import type { FilePreview, ValidationReport } from '../app/views.js';
@@ -31,6 +31,11 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
   const [progress, setProgress] = useState<{ stage: string; fraction: number | null } | null>(null);
   const [outcome, setOutcome] = useState<Outcome | null>(null);
   const abort = useRef<AbortController | null>(null);
+  const checkStep = useRef<HTMLLIElement>(null);
+  // A finished check brings its step (buttons, verdict, problem table) into view.
+  useEffect(() => {
+    if (check) checkStep.current?.scrollIntoView({ block: 'start' });
+  }, [check]);
 
   const mappingKey = form && file && preview ? JSON.stringify([file.ref, toMapping(form, preview.sheet)]) : '';
   const settle = form ? formProblems(form) : [];
@@ -155,7 +160,7 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
         ) : null}
 
         {preview && form ? (
-          <li className="step">
+          <li className="step" ref={checkStep}>
             <h2>3. Check, then import</h2>
             {settle.length > 0 ? (
               <ul className="to-settle">
@@ -184,7 +189,7 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
               ) : null}
             </div>
             {check && !checkedNow ? <p className="muted">The mapping or file changed since the last check: check again before importing.</p> : null}
-            {check && checkedNow ? <CheckSummary report={check.report} /> : null}
+            {check && checkedNow && file ? <CheckSummary report={check.report} fileName={file.name} /> : null}
           </li>
         ) : null}
       </ol>
@@ -213,18 +218,18 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
   );
 }
 
-function CheckSummary({ report }: { report: ValidationReport }) {
+function CheckSummary({ report, fileName }: { report: ValidationReport; fileName: string }) {
   const s = report.summary;
   if (report.valid)
     return (
       <p className="banner banner-ok" role="status" data-testid="validation-ok">
-        The file passes every check: {s.trials} trials at {s.sites} sites, {s.plots.toLocaleString('en-GB')} plots, traits {s.traits.join(', ')}. Ready to import.
+        {fileName} passes every check: {s.trials} trials at {s.sites} sites, {s.plots.toLocaleString('en-GB')} plots, traits {s.traits.join(', ')}. Ready to import.
       </p>
     );
   return (
     <div className="problems">
       <p className="banner banner-error" role="alert">
-        {report.problems.length}
+        {fileName}: {report.problems.length}
         {report.truncated ? '+' : ''} {report.problems.length === 1 ? 'problem' : 'problems'} found. Fix the file (then choose it again) or the mapping, and check again. Nothing has been stored.
       </p>
       <ProblemTable problems={report.problems} truncated={report.truncated} />

@@ -148,13 +148,15 @@ function TrialBody({ d, workspace, trait, onTrait, onBack, selected, onSelect, c
       ) : null}
 
       <div className="layout-row">
-        <FieldGrid plots={d.plots} colouring={colouring} onColouring={onColouring} selected={selected} onSelect={onSelect} unit={d.unit} title={`Field layout — ${t.label}`} />
-        <div className="side-column">
-          <PlotRecord plot={plot} unit={d.unit} treatmentLabel={(c) => labels.get(c) ?? c} onExclude={exclude} onInclude={include} />
+        <div className="main-column">
+          <FieldGrid plots={d.plots} colouring={colouring} onColouring={onColouring} selected={selected} onSelect={onSelect} unit={d.unit} title="Field layout" exportName={`Field layout — ${t.label}`} />
           <section aria-labelledby="excl-title" className="panel">
             <h3 id="excl-title">Excluded plots</h3>
             <ExclusionsList entries={exclusions} trial={t.id} onShowPlot={onSelect} />
           </section>
+        </div>
+        <div className="side-column">
+          <PlotRecord plot={plot} unit={d.unit} treatmentLabel={(c) => labels.get(c) ?? c} onExclude={exclude} onInclude={include} />
         </div>
       </div>
 
@@ -166,7 +168,7 @@ function TrialBody({ d, workspace, trait, onTrait, onBack, selected, onSelect, c
             <ContrastsTable contrasts={a.contrasts} unit={d.unit} />
           </div>
           <div className="tables-row">
-            <MeansChart rows={meanRows(a.means, labels, d.control)} unit={d.unit} title={`Adjusted means — ${t.label}`} missing={notEstimable(a.means)} />
+            <MeansChart rows={meanRows(a.means, labels, d.control)} unit={d.unit} title="Adjusted means" exportName={`Adjusted means — ${t.label}`} missing={notEstimable(a.means)} />
             <MeansTable means={a.means} labels={labels} unit={d.unit} confidence={confidenceOf(a)} />
           </div>
           <h2>Residual checks</h2>

@@ -20,6 +20,13 @@ interface Props {
   readonly trialLabel: string;
 }
 
+/** One direction's trend test in words; a direction the design already absorbs says so. */
+function testWords(direction: string, test: TrialAnalysis['diagnostics']['spatial']['rows']): string {
+  if (!test) return `${direction} not tested`;
+  if (!test.available || test.p === null) return `${direction} not testable: confounded with the design`;
+  return `${direction} P ${formatP(test.p)}`;
+}
+
 const pointCsv = (xName: string, yName: string) => (points: readonly ResidualPoint[]) =>
   toCsv(
     [
@@ -47,12 +54,12 @@ export function Diagnostics({ plots, analysis, unit, trialLabel }: Props) {
       <p className={`spatial-verdict ${spatial.flagged ? 'flagged' : ''}`} data-testid="spatial-flag">
         {spatial.flagged ? '⚠ Field trend: ' : 'Field trend check: '}
         {spatial.available && spatial.joint
-          ? `${spatial.flagged ? 'residuals trend along the field' : 'no trend along rows or columns beyond what the design absorbs'} (rows P ${formatP(spatial.rows?.p)}, columns P ${formatP(spatial.cols?.p)}, joint P ${formatP(spatial.joint.p)}).`
+          ? `${spatial.flagged ? 'residuals trend along the field' : 'no trend along rows or columns beyond what the design absorbs'} (${testWords('rows', spatial.rows)}; ${testWords('columns', spatial.cols)}; both together P ${formatP(spatial.joint.p)}).`
           : spatial.reason}
         {' '}Variance homogeneity (Brown–Forsythe): P {formatP(d.brownForsythe.p)}.
       </p>
       <div className="chart-grid">
-        <ChartFrame title={`Residuals against fitted — ${trialLabel}`} csv={() => pointCsv('fitted', 'studentised_residual')(rf)} testId="diag-resid-fitted" note={`Studentised residuals; the dashed lines at ±${limit} mark possible outliers (drawn as triangles).`}>
+        <ChartFrame title="Residuals against fitted" exportName={`Residuals against fitted — ${trialLabel}`} csv={() => pointCsv('fitted', 'studentised_residual')(rf)} testId="diag-resid-fitted" note={`Studentised residuals; the dashed lines at ±${limit} mark possible outliers (drawn as triangles).`}>
           <ScatterChart width={W} height={H} margin={MARGIN}>
             <CartesianGrid stroke="#e4e1d8" />
             <XAxis type="number" dataKey="x" name="Fitted" domain={['auto', 'auto']} tick={{ fontSize: 11 }} label={{ value: `Fitted${u}`, position: 'insideBottom', offset: -12, fontSize: 11 }} tickFormatter={(v: number) => formatNumber(v, 1)} />
@@ -65,7 +72,7 @@ export function Diagnostics({ plots, analysis, unit, trialLabel }: Props) {
             <Scatter data={rf.filter((p) => Math.abs(p.y) > limit)} fill={FLAGGED} shape="triangle" isAnimationActive={false} name="Possible outlier" />
           </ScatterChart>
         </ChartFrame>
-        <ChartFrame title={`Normal QQ — ${trialLabel}`} csv={() => pointCsv('normal_score', 'studentised_residual')(qq)} testId="diag-qq" note="Points near the line: residuals look normal. Curves at the ends: heavy tails or skew.">
+        <ChartFrame title="Normal QQ" exportName={`Normal QQ — ${trialLabel}`} csv={() => pointCsv('normal_score', 'studentised_residual')(qq)} testId="diag-qq" note="Points near the line: residuals look normal. Curves at the ends: heavy tails or skew.">
           <ComposedChart width={W} height={H} margin={MARGIN}>
             <CartesianGrid stroke="#e4e1d8" />
             <XAxis type="number" dataKey="x" domain={['auto', 'auto']} tick={{ fontSize: 11 }} label={{ value: 'Normal score', position: 'insideBottom', offset: -12, fontSize: 11 }} tickFormatter={(v: number) => formatNumber(v, 1)} />
@@ -76,7 +83,7 @@ export function Diagnostics({ plots, analysis, unit, trialLabel }: Props) {
           </ComposedChart>
         </ChartFrame>
         <ChartFrame
-          title={`Cook's distance — ${trialLabel}`}
+          title="Cook's distance" exportName={`Cook's distance — ${trialLabel}`}
           csv={() =>
             toCsv(
               [
@@ -110,8 +117,8 @@ export function Diagnostics({ plots, analysis, unit, trialLabel }: Props) {
             </Bar>
           </BarChart>
         </ChartFrame>
-        <AlongChart title={`Residuals along rows — ${trialLabel}`} testId="diag-rows" points={alongRows} axis="Field row" unit={unit} flagged={spatial.flagged} p={spatial.rows?.p ?? null} />
-        <AlongChart title={`Residuals along columns — ${trialLabel}`} testId="diag-cols" points={alongCols} axis="Field column" unit={unit} flagged={spatial.flagged} p={spatial.cols?.p ?? null} />
+        <AlongChart title="Residuals along rows" exportName={`Residuals along rows — ${trialLabel}`} testId="diag-rows" points={alongRows} axis="Field row" unit={unit} flagged={spatial.flagged} p={spatial.rows?.p ?? null} />
+        <AlongChart title="Residuals along columns" exportName={`Residuals along columns — ${trialLabel}`} testId="diag-cols" points={alongCols} axis="Field column" unit={unit} flagged={spatial.flagged} p={spatial.cols?.p ?? null} />
       </div>
     </div>
   );
@@ -119,6 +126,7 @@ export function Diagnostics({ plots, analysis, unit, trialLabel }: Props) {
 
 interface AlongProps {
   readonly title: string;
+  readonly exportName: string;
   readonly testId: string;
   readonly points: readonly ResidualPoint[];
   readonly axis: string;
@@ -127,11 +135,15 @@ interface AlongProps {
   readonly p: number | null;
 }
 
-function AlongChart({ title, testId, points, axis, unit, flagged, p }: AlongProps) {
+function AlongChart({ title, exportName, testId, points, axis, unit, flagged, p }: AlongProps) {
   const means = meansByPosition(points).map((m) => ({ x: m.position, mean: m.mean }));
   const csv = () => pointCsv(axis.toLowerCase().replace(' ', '_'), 'residual')(points);
   return (
-    <ChartFrame title={title} csv={csv} testId={testId} note={points.length === 0 ? 'Positions are not recorded for this trial.' : `Residuals${unit ? ` (${unit})` : ''} of each plot; the line joins their mean at each position${p !== null ? ` (trend P ${formatP(p)}${flagged ? ', flagged' : ''})` : ''}.`}>
+    <ChartFrame title={title} exportName={exportName} csv={csv} testId={testId} note={
+        points.length === 0
+          ? 'Positions are not recorded for this trial.'
+          : `Residuals${unit ? ` (${unit})` : ''} of each plot; the line joins their mean at each position${p !== null ? ` (trend P ${formatP(p)}${flagged ? ', flagged' : ''})` : ' (a flat line: the design already takes out this direction)'}.`
+      }>
       <ComposedChart width={W} height={H} margin={MARGIN} data={means}>
         <CartesianGrid stroke="#e4e1d8" />
         <XAxis type="number" dataKey="x" domain={['dataMin', 'dataMax']} allowDecimals={false} tick={{ fontSize: 11 }} label={{ value: axis, position: 'insideBottom', offset: -12, fontSize: 11 }} />

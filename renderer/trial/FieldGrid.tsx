@@ -16,6 +16,7 @@ interface Props {
   readonly onSelect: (plot: number) => void;
   readonly unit: string | null;
   readonly title: string;
+  readonly exportName: string;
 }
 
 const LABEL_W = 62;
@@ -23,7 +24,7 @@ const HEAD_H = 22;
 const MAX_W = 620;
 const LEGEND_W = 150;
 
-export function FieldGrid({ plots, colouring, onColouring, selected, onSelect, unit, title }: Props) {
+export function FieldGrid({ plots, colouring, onColouring, selected, onSelect, unit, title, exportName }: Props) {
   const grid = useMemo(() => layoutFieldGrid(plots, colouring), [plots, colouring]);
   const cellW = Math.max(30, Math.min(82, Math.floor((MAX_W - LABEL_W) / Math.max(1, grid.cols))));
   const cellH = cellW >= 56 ? 50 : 38;
@@ -50,7 +51,7 @@ export function FieldGrid({ plots, colouring, onColouring, selected, onSelect, u
     );
   const legendTitle = colouring === 'value' ? `Value${unit ? ` (${unit})` : ''}` : `Residual${unit ? ` (${unit})` : ''}`;
   return (
-    <ChartFrame title={title} csv={csv} testId="field-grid" note={grid.basis === 'row-column' ? 'Drawn by field row and column.' : 'Positions are not recorded: one line per block, plots in stored order.'}>
+    <ChartFrame title={title} exportName={exportName} csv={csv} testId="field-grid" note={grid.basis === 'row-column' ? 'Drawn by field row and column.' : 'Positions are not recorded: one line per block, plots in stored order.'}>
       <div className="grid-controls" role="radiogroup" aria-label="Colour the plots by">
         <span>Colour by</span>
         {(['value', 'residual'] as const).map((c) => (

@@ -11,10 +11,11 @@ interface Props {
   readonly rows: readonly MeanRow[];
   readonly unit: string | null;
   readonly title: string;
+  readonly exportName: string;
   readonly missing: readonly string[];
 }
 
-export function MeansChart({ rows, unit, title, missing }: Props) {
+export function MeansChart({ rows, unit, title, exportName, missing }: Props) {
   const control = rows.find((r) => r.isControl);
   const data = rows.map((r) => ({ ...r }));
   const csv = () =>
@@ -33,6 +34,7 @@ export function MeansChart({ rows, unit, title, missing }: Props) {
   return (
     <ChartFrame
       title={title}
+      exportName={exportName}
       csv={csv}
       testId="means-chart"
       note={
