@@ -102,7 +102,7 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
     setProgress(null);
     if (r.ok) {
       const s = r.data.summary;
-      setOutcome({ kind: 'done', text: `Imported ${s.trials} trials, ${s.plots.toLocaleString('en-GB')} plots and ${s.observations.toLocaleString('en-GB')} values from ${file.name}.` });
+      setOutcome({ kind: 'done', text: `Imported ${s.trials.toLocaleString('en-GB')} trials, ${s.plots.toLocaleString('en-GB')} plots and ${s.observations.toLocaleString('en-GB')} values from ${file.name}.` });
       setCheck(null);
       await onImported();
     } else if (r.error.code === 'cancelled') {
@@ -223,7 +223,7 @@ function CheckSummary({ report, fileName }: { report: ValidationReport; fileName
   if (report.valid)
     return (
       <p className="banner banner-ok" role="status" data-testid="validation-ok">
-        {fileName} passes every check: {s.trials} trials at {s.sites} sites, {s.plots.toLocaleString('en-GB')} plots, traits {s.traits.join(', ')}. Ready to import.
+        {fileName} passes every check: {s.trials.toLocaleString('en-GB')} trials at {s.sites.toLocaleString('en-GB')} sites, {s.plots.toLocaleString('en-GB')} plots, traits {s.traits.join(', ')}. Ready to import.
       </p>
     );
   return (

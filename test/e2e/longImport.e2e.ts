@@ -7,6 +7,7 @@ import { openBrowser, type OpenBrowser } from './support/browser.js';
 import { writeThousandTrials } from './support/files.js';
 import { StartPage } from './pages/StartPage.js';
 import { IntakePage } from './pages/IntakePage.js';
+import { NetworkPage } from './pages/NetworkPage.js';
 
 let server: RunningServer;
 let browser: OpenBrowser;
@@ -45,27 +46,28 @@ describe('a long import', () => {
     await intake.setControl('CTL');
     await intake.validate();
     await page.getByTestId('validation-ok').waitFor();
-    expect(await page.getByTestId('validation-ok').innerText()).toContain('1000 trials');
+    expect(await page.getByTestId('validation-ok').innerText()).toContain('1,000 trials');
 
     await intake.importButton().click();
     await intake.progress().waitFor();
-    // Watch the progress until it has moved through at least two values, checking the page
-    // answers promptly all the while (the import runs in the server's worker, not the page).
+    // Watch the progress until the server has reported at least two different fractions above
+    // zero, checking the page answers promptly all the while (the import runs in the server's
+    // worker; the page only reads the stream).
     const seen = new Set<string>();
     const answers: number[] = [];
     const deadline = Date.now() + 60_000;
-    while (seen.size < 3 && Date.now() < deadline) {
+    while (seen.size < 2 && Date.now() < deadline) {
       const f = await intake.progress().getAttribute('data-fraction').catch(() => null);
-      if (f) seen.add(f);
+      if (f && Number(f) > 0) seen.add(f);
       answers.push(await roundTrip(page));
       await page.waitForTimeout(40);
     }
-    expect(seen.size, `progress values seen: ${[...seen].join(', ')}`).toBeGreaterThanOrEqual(3);
+    console.log(`progress values seen: ${[...seen].join(', ')}; slowest page answer ${Math.max(...answers)} ms over ${answers.length} probes`);
+    expect(seen.size, `progress values seen: ${[...seen].join(', ')}`).toBeGreaterThanOrEqual(2);
     // A responsive page answers a trivial script in well under half a second (common practice:
     // 100 ms is the usual bound for "instant"; 500 ms leaves room for a loaded CI machine).
     expect(Math.max(...answers)).toBeLessThan(500);
-    // The controls still work: switching the grid colouring is not possible here, so use the
-    // cancel button itself, which must answer while the import runs.
+    // The cancel button itself must answer while the import runs.
     await intake.cancelButton().click();
     const outcome = await intake.outcome().innerText();
     expect(outcome).toMatch(/cancelled/i);
@@ -73,5 +75,32 @@ describe('a long import', () => {
 
     const describe1 = await callApi<{ counts: Record<string, number> }>(server, 'workspace.describe', { workspace: demo });
     expect(describe1.counts).toEqual(describe0.counts);
+  });
+});
+
+describe('a 1,000-trial network', () => {
+  it('imports in full and the network table draws only the rows in view', async () => {
+    const { page } = browser;
+    const file = join(server.folder, 'thousand-small.csv');
+    expect(writeThousandTrials(file, 4)).toBe(1000);
+    const intake = new IntakePage(page);
+    await intake.show();
+    await intake.chooseFile(file);
+    await intake.setControl('CTL');
+    await intake.validate();
+    await page.getByTestId('validation-ok').waitFor();
+    expect(await intake.importAndWait()).toMatch(/Imported 1000 trials|Imported 1,000 trials/);
+    const network = new NetworkPage(page);
+    await network.show();
+    await page.getByTestId('trial-row').first().waitFor({ timeout: 120_000 });
+    expect(await network.listedCount()).toBe(1042);
+    const drawn = await network.rowCount();
+    // Virtualised: a screenful plus the overscan, far fewer than the 1,042 trials.
+    expect(drawn).toBeGreaterThan(5);
+    expect(drawn).toBeLessThan(60);
+    // Scrolling to the end draws the last trials (sorted by site: S250 comes last).
+    await page.locator('.trial-table').hover();
+    await page.mouse.wheel(0, 1042 * 34);
+    await expect.poll(async () => (await network.trialLabels()).some((l) => l.startsWith('S250-'))).toBe(true);
   });
 });

@@ -66,9 +66,9 @@ export function writeBadFile(path: string): { row: number; column: string; value
  * 1,000 trials: 250 sites over 4 years, the 7 treatments in 40 blocks (280,000 plot rows, about
  * 8 MB): large enough that the import runs for seconds, so progress can be watched and cancelled.
  */
-export function writeThousandTrials(path: string): number {
+export function writeThousandTrials(path: string, blocks = 40): number {
   const sites = Array.from({ length: 250 }, (_, i) => `S${String(i + 1).padStart(3, '0')}`);
-  const rows = plotRows(sites, [2021, 2022, 2023, 2024], 40, 11);
+  const rows = plotRows(sites, [2021, 2022, 2023, 2024], blocks, 11);
   writeCsv(path, rows);
   return sites.length * 4;
 }
