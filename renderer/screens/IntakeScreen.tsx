@@ -154,7 +154,7 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
 
         {preview && form ? (
           <li className="step">
-            <h2>2. Say what each column holds</h2>
+            <h2 id="intake-mapping-title">2. Say what each column holds</h2>
             <MappingForm header={preview.header} form={form} onChange={setForm} />
           </li>
         ) : null}

@@ -8,6 +8,7 @@ import { TrialTable } from '../network/TrialTable.js';
 import { WhenLoaded } from '../ui/Status.js';
 import { flagCounts, sortTrials } from '../shape/trialTable.js';
 import { TraitPicker } from '../ui/TraitPicker.js';
+import { SiteYearMatrix } from '../network/SiteYearMatrix.js';
 
 interface Props {
   readonly workspace: OpenWorkspace;
@@ -53,6 +54,9 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
         <WhenLoaded state={sites} what="sites">
           {(list) => <SiteMap sites={list} selected={site} onSelect={setSite} />}
         </WhenLoaded>
+        <div className="network-matrix">
+          {trials.status === 'ready' && trials.data.length > 0 ? <SiteYearMatrix trials={trials.data} onOpen={onOpenTrial} /> : null}
+        </div>
         <div className="network-side">
           <h2>Protocol</h2>
           {info.protocols.length === 0 ? <p className="muted">No trials imported yet. Use Intake to add a file.</p> : null}

@@ -7,7 +7,7 @@ import { useLoad } from '../app/useLoad.js';
 import type { TrialAnalysis, TrialDetail } from '../app/views.js';
 import type { GridColouring } from '../shape/fieldGrid.js';
 import { meanRows, notEstimable } from '../shape/means.js';
-import { flagWord } from '../shape/trialTable.js';
+import { FlagList } from '../trial/FlagList.js';
 import { WhenLoaded } from '../ui/Status.js';
 import { TraitPicker } from '../ui/TraitPicker.js';
 import { FieldGrid } from '../trial/FieldGrid.js';
@@ -132,15 +132,7 @@ function TrialBody({ d, workspace, trait, onTrait, onBack, selected, onSelect, c
           </span>
         ) : null}
       </p>
-      {a && a.flags.length > 0 ? (
-        <ul className="trial-flags" aria-label="Data-quality flags">
-          {a.flags.map((f, i) => (
-            <li key={`${f.code}-${i}`}>
-              <span className={`flag flag-${f.code}`}>{flagWord(f.code)}</span> {f.message}
-            </li>
-          ))}
-        </ul>
-      ) : null}
+      {a ? <FlagList flags={a.flags} /> : null}
       {d.analysisError ? (
         <p className="banner banner-warn" role="alert">
           This trial could not be analysed: {d.analysisError}

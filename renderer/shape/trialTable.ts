@@ -42,3 +42,10 @@ export function flagCounts(rows: readonly TrialRowInput[]): { code: string; word
   for (const r of rows) for (const code of new Set(r.flags.map((f) => f.code))) counts.set(code, (counts.get(code) ?? 0) + 1);
   return [...counts.entries()].sort((a, b) => b[1] - a[1] || a[0].localeCompare(b[0])).map(([code, trials]) => ({ code, word: flagWord(code), trials }));
 }
+
+/** A trial's flags grouped by code, in first-seen order (one line per kind on screen). */
+export function groupFlags<F extends { readonly code: string; readonly message: string }>(flags: readonly F[]): { code: string; word: string; messages: string[] }[] {
+  const groups = new Map<string, string[]>();
+  for (const f of flags) groups.set(f.code, [...(groups.get(f.code) ?? []), f.message]);
+  return [...groups.entries()].map(([code, messages]) => ({ code, word: flagWord(code), messages }));
+}

@@ -33,3 +33,17 @@ describe('site map layout', () => {
     expect(l.placed[1].r).toBeGreaterThan(l.placed[0].r);
   });
 });
+
+import { designShort, siteYearMatrix } from '../../../renderer/shape/siteYearMatrix.js';
+
+describe('site by year matrix', () => {
+  it('places each trial at its site and year, sorted, leaving gaps empty', () => {
+    const t = (id: number, site: string, year: number) => ({ id, label: `${site}-${year}`, site, year, design: 'randomised-blocks', flags: [] });
+    const m = siteYearMatrix([t(1, 'KEL', 2024), t(2, 'ASH', 2023), t(3, 'ASH', 2024), t(4, 'ASH', 2024)]);
+    expect(m.sites).toEqual(['ASH', 'KEL']);
+    expect(m.years).toEqual([2023, 2024]);
+    expect(m.cells[0][1].map((x) => x.id)).toEqual([3, 4]);
+    expect(m.cells[1][0]).toEqual([]);
+    expect(designShort('row-column')).toBe('RC');
+  });
+});
