@@ -154,7 +154,7 @@ function TrialBody({ d, workspace, trait, onTrait, onBack, selected, onSelect, c
 
       {a ? (
         <>
-          <h2>Analysis of the trial</h2>
+          <h2 id="trial-analysis-title">Analysis of the trial</h2>
           <div className="tables-row">
             <AnovaTable anova={a.anova} unit={d.unit} />
             <ContrastsTable contrasts={a.contrasts} unit={d.unit} />

@@ -60,6 +60,8 @@ describe('demo network in the browser', () => {
     const firstPlot = await trial.plots().first().getAttribute('data-plot-id');
     await trial.selectPlot(firstPlot as string);
     await screenshot(page, join(screensDir(), 'trial.png'));
+    await page.evaluate('document.getElementById("trial-analysis-title").scrollIntoView()');
+    await screenshot(page, join(screensDir(), 'trial-tables.png'));
     await trial.diagnostics().scrollIntoViewIfNeeded();
     await screenshot(page, join(screensDir(), 'trial-checks.png'));
   });
