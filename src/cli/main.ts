@@ -8,6 +8,7 @@ import { optionsFor, parseArgs, UsageError } from './args.js';
 import { toCsv } from './csv.js';
 import { formatReport } from './formatReport.js';
 import { formatTrials } from './formatTrials.js';
+import { formatExclusions, formatSites } from './formatSites.js';
 import { terminalProgress } from './progressBar.js';
 
 const USAGE = `manyfield ${APP_VERSION} — trials from many sites and years, one honest answer
@@ -17,6 +18,10 @@ Commands:
   import   --workspace W --file F --map M.json [--replace]
                                                  load a plot file (CSV or XLSX) into W (created if new)
   trials   --workspace W [--json]               list the trials held in W
+  sites    --workspace W [--json]               list the sites with position and covariates
+  exclude  --workspace W --plot ID --reason "…"  set a plot aside (it stays stored; analyses skip it)
+  include  --workspace W --plot ID              undo an exclusion
+  exclusions --workspace W [--json]             list the excluded plots with their reasons
   export   --workspace W --trait T --out F.csv  write one trait's plots in long format
   analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
                                                  run the trial stage, pooling, the one-stage model
@@ -77,6 +82,26 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const r = await api['trials.list']({ workspace: o.required('workspace') });
       return report(r, (d) => (o.flag('json') ? json(d) : formatTrials(d)), out);
     }
+    case 'sites': {
+      const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
+      const r = await api['sites.list']({ workspace: o.required('workspace') });
+      return report(r, (d) => (o.flag('json') ? json(d) : formatSites(d)), out);
+    }
+    case 'exclude': {
+      const o = optionsFor(command, parsed, { values: ['workspace', 'plot', 'reason'], flags: ['json'] });
+      const r = await api['plots.exclude']({ workspace: o.required('workspace'), plot: plotId(command, o.required('plot')), reason: o.required('reason') });
+      return report(r, (d) => (o.flag('json') ? json(d) : `Plot ${d.plot} excluded: ${d.reason}\n`), out);
+    }
+    case 'include': {
+      const o = optionsFor(command, parsed, { values: ['workspace', 'plot'], flags: ['json'] });
+      const r = await api['plots.include']({ workspace: o.required('workspace'), plot: plotId(command, o.required('plot')) });
+      return report(r, (d) => (o.flag('json') ? json(d) : `Plot ${d.plot} counts again\n`), out);
+    }
+    case 'exclusions': {
+      const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
+      const r = await api['exclusions.list']({ workspace: o.required('workspace') });
+      return report(r, (d) => (o.flag('json') ? json(d) : formatExclusions(d)), out);
+    }
     case 'export': {
       const o = optionsFor(command, parsed, { values: ['workspace', 'trait', 'out'], flags: [] });
       const target = o.required('out');
@@ -114,6 +139,12 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
     default:
       throw new UsageError(`unknown command "${command}"`);
   }
+}
+
+function plotId(command: string, text: string): number {
+  const n = Number(text);
+  if (!Number.isInteger(n) || n <= 0) throw new UsageError(`${command}: --plot must be a plot id (a whole number, as "manyfield exclusions" or the trial screen shows it); got "${text}"`);
+  return n;
 }
 
 function report<T>(r: Result<T>, render: (d: T) => string, out: Output): number {

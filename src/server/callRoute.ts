@@ -6,7 +6,7 @@ import type { ProgressEvent } from '../api/context.js';
 import { toApiError } from '../api/errors.js';
 import { ManyfieldError, type Result } from '../api/result.js';
 import { runInWorker } from '../api/worker/runInWorker.js';
-import { applyPolicy, type ArgsPolicy } from './argsPolicy.js';
+import { applyPolicy, type ArgsPolicy } from '../api/host/argsPolicy.js';
 import { readJsonBody } from './httpBodies.js';
 import { MAX_CALL_BYTES, NDJSON_TYPE, type CallLine } from './protocol.js';
 
@@ -16,6 +16,8 @@ export interface CallRouteOptions {
   readonly workerFile?: string;
   /** Called after a handler that may have opened a workspace succeeded (recent list). */
   readonly onWorkspaceUsed?: (path: string) => void;
+  /** Rewrites an answer line before it is sent (the server hides its temporary upload paths). */
+  readonly redact?: (line: string) => string;
 }
 
 export async function handleCall(name: string, req: IncomingMessage, res: ServerResponse, options: CallRouteOptions): Promise<void> {
@@ -30,7 +32,7 @@ export async function handleCall(name: string, req: IncomingMessage, res: Server
   });
   res.writeHead(200, { 'Content-Type': NDJSON_TYPE, 'Cache-Control': 'no-store', 'X-Accel-Buffering': 'no' });
   const line = (l: CallLine): void => {
-    if (!res.writableEnded && !res.destroyed) res.write(`${JSON.stringify(l)}\n`);
+    if (!res.writableEnded && !res.destroyed) res.write(`${options.redact ? options.redact(JSON.stringify(l)) : JSON.stringify(l)}\n`);
   };
   let result: Result<unknown>;
   try {

@@ -9,12 +9,14 @@ import { ManyfieldError, ok, type Result } from '../api/result.js';
 import { runInWorker } from '../api/worker/runInWorker.js';
 import { api } from '../api/handlers.js';
 import { APP_VERSION } from '../version.js';
-import { allowedWorkspace, WORKSPACE_EXTENSION, type ArgsPolicy } from './argsPolicy.js';
+import { workspaceInFolder, WORKSPACE_EXTENSION } from './argsPolicy.js';
+import type { ArgsPolicy } from '../api/host/argsPolicy.js';
 import { readJsonBody, sendJson } from './httpBodies.js';
 import { HOST_PATHS, type SessionInfo, type WorkspaceFile } from './protocol.js';
 
 export interface HostState {
   readonly policy: ArgsPolicy;
+  readonly folder: string;
   readonly workspace: string;
   readonly recentFile: string;
   readonly demoName: string;
@@ -35,9 +37,9 @@ export async function handleHost(pathname: string, req: IncomingMessage, res: Se
 
 async function route(pathname: string, req: IncomingMessage, state: HostState): Promise<Result<unknown>> {
   const method = req.method ?? 'GET';
-  if (pathname === HOST_PATHS.session && method === 'GET') return ok({ workspace: state.workspace, folder: state.policy.folder, version: APP_VERSION } satisfies SessionInfo);
+  if (pathname === HOST_PATHS.session && method === 'GET') return ok({ workspace: state.workspace, folder: state.folder, version: APP_VERSION } satisfies SessionInfo);
   if (pathname === HOST_PATHS.recent && method === 'GET') return ok(readRecent(state.recentFile).filter((e) => existsSync(e.path)));
-  if (pathname === HOST_PATHS.workspaces && method === 'GET') return ok(workspacesIn(state.policy.folder));
+  if (pathname === HOST_PATHS.workspaces && method === 'GET') return ok(workspacesIn(state.folder));
   if (pathname === HOST_PATHS.demo && method === 'POST') return demo(state);
   if (pathname === HOST_PATHS.workspace && method === 'POST') return newWorkspace(state, await readJsonBody(req, 64 * 1024));
   throw new ManyfieldError('not-found', `unknown host endpoint ${method} ${pathname}`);
@@ -51,7 +53,7 @@ function workspacesIn(folder: string): WorkspaceFile[] {
 }
 
 async function demo(state: HostState): Promise<Result<{ path: string }>> {
-  const path = allowedWorkspace(state.policy, state.demoName);
+  const path = workspaceInFolder(state.folder, state.demoName);
   if (!existsSync(path)) {
     const built = await runInWorker('demo.build', { workspace: path }, { workerFile: state.workerFile });
     if (!built.ok && !(built.error.code === 'conflict' && existsSync(path))) return built;
@@ -65,7 +67,7 @@ async function newWorkspace(state: HostState, body: unknown): Promise<Result<{ p
   if (b === null || typeof b !== 'object' || b.mode !== 'new' || typeof b.name !== 'string' || !/^[\w][\w .-]{0,79}$/.test(b.name.trim()))
     throw new ManyfieldError('invalid-argument', 'give { mode: "new", name } with a plain name (letters, digits, spaces, . _ -; up to 80 characters)');
   const name = b.name.trim().endsWith(WORKSPACE_EXTENSION) ? b.name.trim() : `${b.name.trim()}${WORKSPACE_EXTENSION}`;
-  const path = allowedWorkspace(state.policy, name);
+  const path = workspaceInFolder(state.folder, name);
   const created = await api['workspace.create']({ workspace: path });
   if (!created.ok) return created;
   state.remember(path);

@@ -12,6 +12,10 @@ export function browserCommand(platform: NodeJS.Platform, url: string): { comman
 /** Resolves true when the opener started, false when none could be run; never throws. */
 export function openBrowser(url: string, platform: NodeJS.Platform = process.platform): Promise<boolean> {
   const { command, args } = browserCommand(platform, url);
+  return runOpener(command, args);
+}
+
+export function runOpener(command: string, args: readonly string[]): Promise<boolean> {
   return new Promise((resolve) => {
     try {
       const child = spawn(command, args, { stdio: 'ignore', detached: true });

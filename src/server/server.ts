@@ -6,7 +6,7 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { rememberRecent } from '../api/host/recentWorkspaces.js';
 import { toApiError } from '../api/errors.js';
-import { allowedWorkspace, type ArgsPolicy } from './argsPolicy.js';
+import { folderPolicy, workspaceInFolder } from './argsPolicy.js';
 import { handleCall } from './callRoute.js';
 import { handleHost } from './hostRoutes.js';
 import { sendJson } from './httpBodies.js';
@@ -47,8 +47,8 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
   const workspace = resolve(options.workspace);
   const folder = dirname(workspace);
   const uploads = new UploadStore();
-  const policy: ArgsPolicy = { folder, uploads };
-  allowedWorkspace(policy, workspace); // the launch workspace itself must follow the rule
+  const policy = folderPolicy(folder, uploads);
+  workspaceInFolder(folder, workspace); // the launch workspace itself must follow the rule
   const rendererDir = options.rendererDir ?? join(projectRoot, 'dist', 'renderer');
   const recentFile = join(folder, '.manyfield-recent.json');
   const remember = (path: string): void => {
@@ -58,7 +58,7 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
       // A read-only folder only loses the recent list.
     }
   };
-  const host = { policy, workspace, recentFile, demoName: options.demoName ?? 'demo.manyfield', workerFile: options.workerFile, remember };
+  const host = { policy, folder, workspace, recentFile, demoName: options.demoName ?? 'demo.manyfield', workerFile: options.workerFile, remember };
 
   const server = createServer((req, res) => {
     void respond(req, res).catch((e: unknown) => {
@@ -95,7 +95,7 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
       }
     }
     if (url.pathname.startsWith(CALL_PREFIX)) {
-      await handleCall(decodeURIComponent(url.pathname.slice(CALL_PREFIX.length)), req, res, { policy, workerFile: options.workerFile, onWorkspaceUsed: remember });
+      await handleCall(decodeURIComponent(url.pathname.slice(CALL_PREFIX.length)), req, res, { policy, workerFile: options.workerFile, onWorkspaceUsed: remember, redact: (line) => uploads.redact(line) });
       return;
     }
     if (url.pathname === UPLOAD_PATH) {

@@ -3,7 +3,7 @@
 import { randomUUID } from 'node:crypto';
 import { createWriteStream, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { join, sep } from 'node:path';
 import type { IncomingMessage } from 'node:http';
 import { pipeline } from 'node:stream/promises';
 import { Transform } from 'node:stream';
@@ -49,6 +49,16 @@ export class UploadStore {
   resolve(ref: string): string | null {
     if (!ref.startsWith(UPLOAD_REF_PREFIX)) return null;
     return this.files.get(ref.slice(UPLOAD_REF_PREFIX.length)) ?? null;
+  }
+
+  /** Text with each upload's temporary path replaced by the file's own name (answers to the page). */
+  redact(text: string): string {
+    let out = text;
+    for (const path of this.files.values()) {
+      const name = path.slice(path.lastIndexOf(sep) + 1);
+      out = out.split(JSON.stringify(path).slice(1, -1)).join(name);
+    }
+    return out;
   }
 
   dispose(): void {
