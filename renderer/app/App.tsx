@@ -49,6 +49,18 @@ export function App() {
     [refresh],
   );
 
+  // The desktop menu's commands (open, new, demo, import) act like the start screen's buttons.
+  useEffect(
+    () =>
+      host.onMenu?.((c) => {
+        if (c.command === 'import-data') setRoute({ screen: 'intake' });
+        else if (c.command === 'new-workspace')
+          void host.call('workspace.create', { workspace: c.path }).then((r) => (r.ok ? open(c.path) : setProblem(r.error.message)));
+        else void open(c.path);
+      }),
+    [host, open],
+  );
+
   useEffect(() => {
     document.title = workspace ? `${workspace.info.name} — Manyfield` : 'Manyfield';
   }, [workspace]);

@@ -1,19 +1,8 @@
-// The Electron window's host: the preload's `window.manyfield` bridge (contextIsolation on; the
-// bridge exposes named operations only, never a raw IPC channel). Native dialogs choose files.
+// The Electron window's host: the preload's `window.manyfield` bridge (contextIsolation on; one
+// function per handler, no raw IPC channel). Native dialogs choose files and workspaces.
+import type { ManyfieldBridge } from '../../main/bridge.js';
+import type { MenuCommand } from '../../main/channels.js';
 import type { CallOptions, HandlerArgs, HandlerName, HandlerResults, Host, PickedFile, ProgressEvent, RecentWorkspace, Result } from './types.js';
-
-/** What the preload exposes. Each call carries an id so progress and cancel reach the right call. */
-export interface ManyfieldBridge {
-  call(name: string, args: unknown, callId: string): Promise<unknown>;
-  cancel(callId: string): void;
-  onProgress(listener: (callId: string, event: ProgressEvent) => void): () => void;
-  pickDataFile(): Promise<PickedFile | null>;
-  pickWorkspace(mode: 'open' | 'new', name?: string): Promise<string | null>;
-  recentWorkspaces(): Promise<RecentWorkspace[]>;
-  demoWorkspace(): Promise<string>;
-  launchWorkspace(): Promise<string | null>;
-  saveFile(name: string, data: string | Uint8Array): Promise<void>;
-}
 
 declare global {
   interface Window {
@@ -31,27 +20,35 @@ let nextId = 0;
 
 async function call<K extends HandlerName>(name: K, args: HandlerArgs<K>, opts: CallOptions = {}): Promise<Result<HandlerResults[K]>> {
   const b = bridge();
-  const id = `c${++nextId}`;
-  const stop = opts.onProgress ? b.onProgress((callId, e) => callId === id && opts.onProgress?.(e)) : () => undefined;
+  const id = `page-${++nextId}`;
   const abort = () => b.cancel(id);
   opts.signal?.addEventListener('abort', abort, { once: true });
   try {
-    return (await b.call(name, args, id)) as Result<HandlerResults[K]>;
+    const progress = opts.onProgress ? (e: ProgressEvent) => opts.onProgress?.(e) : undefined;
+    return (await b.api[name](args, id, progress)) as Result<HandlerResults[K]>;
+  } catch (e) {
+    return { ok: false, error: { code: 'internal', message: `the desktop shell did not answer ${name}: ${String(e)}` } };
   } finally {
-    stop();
     opts.signal?.removeEventListener('abort', abort);
   }
 }
+
+const host = () => bridge().host;
 
 export const electronHost = {
   kind: 'electron',
   choosesFilesInPage: false,
   call,
-  pickDataFile: () => bridge().pickDataFile(),
+  pickDataFile: async () => (await host().pickDataFile()) as PickedFile | null,
   uploadDataFile: (): Promise<PickedFile> => Promise.reject(new Error('the desktop window chooses files with its own dialog')),
-  pickWorkspace: (mode: 'open' | 'new', name?: string) => bridge().pickWorkspace(mode, name),
-  recentWorkspaces: () => bridge().recentWorkspaces(),
-  demoWorkspace: () => bridge().demoWorkspace(),
-  launchWorkspace: () => bridge().launchWorkspace(),
-  saveFile: async (name: string, data: Blob | string) => bridge().saveFile(name, typeof data === 'string' ? data : new Uint8Array(await data.arrayBuffer())),
+  // The save dialog names a new workspace itself; the name typed in the page is not needed.
+  pickWorkspace: async (mode: 'open' | 'new') => (await host().pickWorkspace(mode)) as string | null,
+  recentWorkspaces: async () => (await host().recentWorkspaces()) as RecentWorkspace[],
+  demoWorkspace: async () => (await host().demoWorkspace()) as string,
+  // The window opens on the start screen; the recent list carries the last workspace.
+  launchWorkspace: async () => null,
+  saveFile: async (name: string, data: Blob | string) => {
+    await host().saveFile(name, typeof data === 'string' ? data : new Uint8Array(await data.arrayBuffer()));
+  },
+  onMenu: (listener: (command: MenuCommand) => void) => bridge().onMenu(listener),
 } satisfies Host;

@@ -39,4 +39,9 @@ export interface Host {
   /** The workspace the shell was launched on, if any. */
   launchWorkspace(): Promise<string | null>;
   saveFile(name: string, data: Blob | string): Promise<void>;
+  /** Commands from the shell's own menu (Electron); the browser mode has none. */
+  onMenu?(listener: (command: ShellCommand) => void): () => void;
 }
+
+/** A menu command of the shell: open a workspace it chose, or go to intake. */
+export type ShellCommand = { readonly command: 'open-workspace' | 'new-workspace' | 'open-demo'; readonly path: string } | { readonly command: 'import-data' };

@@ -83,18 +83,30 @@ export function StartScreen({ onOpen, current }: Props) {
         </div>
         <form className="card" onSubmit={createNew}>
           <h2>New workspace</h2>
-          <label htmlFor="new-name">Name</label>
-          <input id="new-name" value={newName} onChange={(e) => setNewName(e.target.value)} placeholder="e.g. potassium-network" />
-          <button type="submit" disabled={busy !== null || !newName.trim()}>
-            Create
+          {host.choosesFilesInPage ? (
+            <>
+              <label htmlFor="new-name">Name (the file is made beside the launch workspace)</label>
+              <input id="new-name" value={newName} onChange={(e) => setNewName(e.target.value)} placeholder="e.g. potassium-network" />
+            </>
+          ) : (
+            <p>Choose where to keep the new workspace file.</p>
+          )}
+          <button type="submit" disabled={busy !== null || (host.choosesFilesInPage && !newName.trim())}>
+            {host.choosesFilesInPage ? 'Create' : 'Create…'}
           </button>
         </form>
         <form className="card" onSubmit={openByPath}>
           <h2>Open a workspace</h2>
-          <label htmlFor="open-path">{host.choosesFilesInPage ? 'Path of the workspace file' : 'Path (or leave empty to browse)'}</label>
-          <input id="open-path" value={openPath} onChange={(e) => setOpenPath(e.target.value)} placeholder="/path/to/network.manyfield" />
+          {host.choosesFilesInPage ? (
+            <>
+              <label htmlFor="open-path">Path of the workspace file</label>
+              <input id="open-path" value={openPath} onChange={(e) => setOpenPath(e.target.value)} placeholder="/path/to/network.manyfield" />
+            </>
+          ) : (
+            <p>Choose a workspace file (.manyfield).</p>
+          )}
           <button type="submit" disabled={busy !== null || (host.choosesFilesInPage && !openPath.trim())}>
-            Open
+            {host.choosesFilesInPage ? 'Open' : 'Open…'}
           </button>
         </form>
       </div>
