@@ -15,14 +15,19 @@ export interface OpenBrowser {
   close(): Promise<void>;
 }
 
-export async function openBrowser(): Promise<OpenBrowser> {
+/**
+ * zoom 2 shows the page as at 200 % zoom in a 1280×800 window: a 640×400 CSS-pixel viewport drawn
+ * at two device pixels per CSS pixel (screenshots stay 1280×800).
+ */
+export async function openBrowser(zoom: 1 | 2 = 1): Promise<OpenBrowser> {
   if (!existsSync(CHROMIUM)) throw new Error(`e2e: Chromium not found at ${CHROMIUM}; install it (apt-get install chromium) or set MANYFIELD_CHROMIUM to its path`);
   const profile = mkdtempSync(join(tmpdir(), 'manyfield-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,
     headless: true,
     args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking'],
-    viewport: { width: 1280, height: 800 },
+    viewport: { width: 1280 / zoom, height: 800 / zoom },
+    deviceScaleFactor: zoom,
     acceptDownloads: true,
   });
   const page = context.pages()[0] ?? (await context.newPage());
