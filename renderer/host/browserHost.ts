@@ -1,17 +1,18 @@
 // The browser mode's host: the handler map over HTTP on 127.0.0.1 (NDJSON progress, then one
 // result), files uploaded from an <input type=file>, exports saved as downloads.
-import type { CallOptions, HandlerArgs, HandlerName, HandlerResults, Host, PickedFile, ProgressEvent, RecentWorkspace, Result } from './types.js';
-import { parseWireLine, splitNdjson } from './ndjson.js';
+import type { CallOptions, HandlerArgs, HandlerName, HandlerResults, Host, PickedFile, RecentWorkspace, Result } from './types.js';
+import { callOverHttp } from './httpCall.js';
 
 /** The launch token from the page address (the server also set it as a cookie). */
+let token: string | null | undefined;
 function launchToken(): string | null {
-  return new URLSearchParams(window.location.search).get('token');
+  if (token === undefined) token = typeof window === 'undefined' ? null : new URLSearchParams(window.location.search).get('token');
+  return token;
 }
 
-const token = launchToken();
-
 function headers(extra: Record<string, string> = {}): Record<string, string> {
-  return token ? { 'x-manyfield-token': token, ...extra } : extra;
+  const t = launchToken();
+  return t ? { 'x-manyfield-token': t, ...extra } : extra;
 }
 
 async function getJson<T>(path: string, init: RequestInit = {}): Promise<T> {
@@ -27,45 +28,9 @@ async function getJson<T>(path: string, init: RequestInit = {}): Promise<T> {
   return body as T;
 }
 
-function cancelled<T>(): Result<T> {
-  return { ok: false, error: { code: 'cancelled', message: 'cancelled by the user; nothing was stored' } };
-}
-
-async function call<K extends HandlerName>(name: K, args: HandlerArgs<K>, opts: CallOptions = {}): Promise<Result<HandlerResults[K]>> {
-  let res: Response;
-  try {
-    res = await fetch(`/api/call/${encodeURIComponent(name)}`, {
-      method: 'POST',
-      credentials: 'same-origin',
-      headers: headers({ 'content-type': 'application/json' }),
-      body: JSON.stringify(args),
-      signal: opts.signal,
-    });
-  } catch (e) {
-    if (opts.signal?.aborted) return cancelled();
-    return { ok: false, error: { code: 'internal', message: `the server did not answer: ${String(e)}` } };
-  }
-  if (!res.ok || !res.body) return { ok: false, error: { code: 'internal', message: `the server answered ${res.status} to ${name}` } };
-  const reader = res.body.pipeThrough(new TextDecoderStream()).getReader();
-  let pending = '';
-  let result: Result<HandlerResults[K]> | null = null;
-  try {
-    for (;;) {
-      const { value, done } = await reader.read();
-      const split = splitNdjson(pending, done ? '\n' : value);
-      pending = split.rest;
-      for (const line of split.lines) {
-        const wire = parseWireLine(line);
-        if ('progress' in wire) opts.onProgress?.(wire.progress as ProgressEvent);
-        else result = wire.result as Result<HandlerResults[K]>;
-      }
-      if (done) break;
-    }
-  } catch (e) {
-    if (opts.signal?.aborted) return cancelled();
-    return { ok: false, error: { code: 'internal', message: `the answer to ${name} was cut off: ${String(e)}` } };
-  }
-  return result ?? { ok: false, error: { code: 'internal', message: `the server sent no result for ${name}` } };
+/** One handler over HTTP (see httpCall.ts), with the launch token. */
+function call<K extends HandlerName>(name: K, args: HandlerArgs<K>, opts: CallOptions = {}): Promise<Result<HandlerResults[K]>> {
+  return callOverHttp((url, init) => fetch(url, init), headers(), name, args, opts);
 }
 
 async function uploadDataFile(file: File): Promise<PickedFile> {

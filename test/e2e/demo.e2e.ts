@@ -66,6 +66,29 @@ describe('demo network in the browser', () => {
     await screenshot(page, join(screensDir(), 'trial-checks.png'));
   });
 
+  it('exports a chart as SVG and PNG and its numbers as CSV', async () => {
+    const { page } = browser;
+    const grab = async (button: string): Promise<{ name: string; bytes: Buffer }> => {
+      const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: button, exact: true }).click()]);
+      const stream = await download.createReadStream();
+      const parts: Buffer[] = [];
+      for await (const chunk of stream) parts.push(chunk as Buffer);
+      return { name: download.suggestedFilename(), bytes: Buffer.concat(parts) };
+    };
+    const csv = await grab('Export the numbers of Field layout as CSV');
+    expect(csv.name).toMatch(/^field-layout-.+\.csv$/);
+    const lines = csv.bytes.toString('utf8').trim().split(/\r\n/);
+    expect(lines[0]).toBe('plot,treatment,block,row,column,value,residual,excluded,reason');
+    expect(lines).toHaveLength(29);
+    const svg = await grab('Export Field layout as SVG');
+    expect(svg.bytes.toString('utf8')).toMatch(/^<\?xml[^>]*>\s*<svg[^>]+xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+    expect(svg.bytes.toString('utf8')).toContain('excluded (crossed)');
+    const png = await grab("Export Cook's distance as PNG");
+    // PNG signature (ISO/IEC 15948): 89 50 4E 47 0D 0A 1A 0A.
+    expect([...png.bytes.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    expect(png.bytes.length).toBeGreaterThan(2000);
+  });
+
   it('excludes a plot with a reason: the ANOVA changes and the exclusion is listed', async () => {
     const { page } = browser;
     const trial = new TrialPage(page);
