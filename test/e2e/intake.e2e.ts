@@ -79,6 +79,19 @@ describe('intake in the browser', () => {
     expect(labels.filter((l) => l.includes('ZEL'))).toHaveLength(2);
   });
 
+  it('refuses the same file a second time, saying which trials are already there', async () => {
+    const { page } = browser;
+    const before = await counts();
+    const intake = new IntakePage(page);
+    await intake.show();
+    await intake.chooseFile(join(server.folder, 'zel-trials.csv'));
+    await intake.validate();
+    const rules = (await intake.errors()).map((e) => e.rule);
+    expect(rules).toContain('trial-exists');
+    expect(await intake.importButton().isDisabled()).toBe(true);
+    expect(await counts()).toEqual(before);
+  });
+
   it('raised no page errors and no Content-Security-Policy violations', () => {
     expect(browser.pageErrors).toEqual([]);
   });
