@@ -1,19 +1,11 @@
-// What the preload exposes to the page as window.manyfield: one function per handler of the
-// map, cancel, the host actions, and menu commands. Pure (it takes an ipcRenderer-like object),
-// so the exposed surface is tested without Electron. A sandboxed preload may require nothing
-// but "electron", so this file imports only the handler names and channel names.
+// What the preload exposes to the page as window.manyfield (the shape renderer/host/electronHost.ts
+// uses): call a handler by name, cancel, progress, the host actions and menu commands. Pure (it
+// takes an ipcRenderer-like object), so the exposed surface is tested without Electron. `call`
+// is not an open channel: it accepts only the map's handler names and sends each on that
+// handler's own IPC channel, the only channels main listens on. A sandboxed preload may require
+// nothing but "electron", so this file imports only the handler names and channel names.
 import { HANDLER_NAMES, type HandlerNameList } from '../src/api/handlerNames.js';
-import {
-  callChannel,
-  CANCEL_CHANNEL,
-  hostChannel,
-  HOST_ACTIONS,
-  MENU_CHANNEL,
-  PROGRESS_CHANNEL,
-  type HostAction,
-  type MenuCommand,
-  type ProgressMessage,
-} from './channels.js';
+import { callChannel, CANCEL_CHANNEL, hostChannel, MENU_CHANNEL, PROGRESS_CHANNEL, type HostAction, type MenuCommand, type ProgressMessage } from './channels.js';
 
 export interface IpcRendererLike {
   invoke(channel: string, ...args: unknown[]): Promise<unknown>;
@@ -22,55 +14,53 @@ export interface IpcRendererLike {
   removeListener(channel: string, listener: (event: unknown, ...args: unknown[]) => void): unknown;
 }
 
-type ProgressListener = (event: ProgressMessage['event']) => void;
-/** A handler over IPC: resolves the handler's Result (never rejects for a refusal). */
-export type BridgeCall = (args: unknown, callId?: string, onProgress?: ProgressListener) => Promise<unknown>;
+type ProgressListener = (callId: string, event: ProgressMessage['event']) => void;
 
 export interface ManyfieldBridge {
-  readonly api: Readonly<Record<HandlerNameList, BridgeCall>>;
+  /** Resolves the handler's Result (a refusal is a Result, never a rejection). */
+  call(name: string, args: unknown, callId: string): Promise<unknown>;
   cancel(callId: string): void;
-  readonly host: Readonly<Record<HostAction, (...args: unknown[]) => Promise<unknown>>>;
+  onProgress(listener: ProgressListener): () => void;
+  pickDataFile(): Promise<unknown>;
+  pickWorkspace(mode: 'open' | 'new', name?: string): Promise<unknown>;
+  recentWorkspaces(): Promise<unknown>;
+  demoWorkspace(): Promise<unknown>;
+  launchWorkspace(): Promise<unknown>;
+  saveFile(name: string, data: string | Uint8Array): Promise<unknown>;
   onMenu(listener: (command: MenuCommand) => void): () => void;
 }
 
+const handlerNames: ReadonlySet<string> = new Set(HANDLER_NAMES);
+
+function subscribe(ipc: IpcRendererLike, channel: string, listener: (event: unknown, ...args: unknown[]) => void): () => void {
+  ipc.on(channel, listener);
+  return () => void ipc.removeListener(channel, listener);
+}
+
 export function buildBridge(ipc: IpcRendererLike): ManyfieldBridge {
-  const listeners = new Map<string, ProgressListener>();
-  let counter = 0;
-  ipc.on(PROGRESS_CHANNEL, (_event, message) => {
-    const m = message as ProgressMessage;
-    listeners.get(m.callId)?.(m.event);
-  });
-  const call = (name: HandlerNameList): BridgeCall => async (args, callId, onProgress) => {
-    const id = typeof callId === 'string' && callId.length > 0 ? callId : `call-${++counter}`;
-    if (typeof onProgress === 'function') listeners.set(id, onProgress);
-    try {
-      return await ipc.invoke(callChannel(name), args, id);
-    } finally {
-      listeners.delete(id);
-    }
+  // Host actions answer a Result; the page gets the value, or an Error with the message.
+  const host = (action: HostAction) => async (...args: unknown[]): Promise<unknown> => {
+    const r = (await ipc.invoke(hostChannel(action), ...args)) as { ok: boolean; data?: unknown; error?: { message: string } };
+    if (!r.ok) throw new Error(r.error?.message ?? `${action} failed`);
+    return r.data;
   };
-  const api = Object.freeze(Object.fromEntries(HANDLER_NAMES.map((name) => [name, call(name)])) as Record<HandlerNameList, BridgeCall>);
-  // Host actions answer a Result; the page's host gets the value, or an Error with the message.
-  const host = Object.freeze(
-    Object.fromEntries(
-      HOST_ACTIONS.map((action) => [
-        action,
-        async (...args: unknown[]) => {
-          const r = (await ipc.invoke(hostChannel(action), ...args)) as { ok: boolean; data?: unknown; error?: { message: string } };
-          if (!r.ok) throw new Error(r.error?.message ?? `${action} failed`);
-          return r.data;
-        },
-      ]),
-    ) as Record<HostAction, (...args: unknown[]) => Promise<unknown>>,
-  );
   return Object.freeze({
-    api,
-    cancel: (callId: string) => ipc.send(CANCEL_CHANNEL, String(callId)),
-    host,
-    onMenu: (listener: (command: MenuCommand) => void) => {
-      const wrapped = (_event: unknown, command: unknown): void => listener(command as MenuCommand);
-      ipc.on(MENU_CHANNEL, wrapped);
-      return () => void ipc.removeListener(MENU_CHANNEL, wrapped);
+    call: async (name: string, args: unknown, callId: string) => {
+      if (typeof name !== 'string' || !handlerNames.has(name)) return { ok: false, error: { code: 'not-found', message: `no handler named "${String(name)}"` } };
+      return ipc.invoke(callChannel(name as HandlerNameList), args, String(callId));
     },
+    cancel: (callId: string) => ipc.send(CANCEL_CHANNEL, String(callId)),
+    onProgress: (listener: ProgressListener) =>
+      subscribe(ipc, PROGRESS_CHANNEL, (_event, message) => {
+        const m = message as ProgressMessage;
+        listener(m.callId, m.event);
+      }),
+    pickDataFile: host('pickDataFile'),
+    pickWorkspace: host('pickWorkspace'),
+    recentWorkspaces: host('recentWorkspaces'),
+    demoWorkspace: host('demoWorkspace'),
+    launchWorkspace: host('launchWorkspace'),
+    saveFile: host('saveFile'),
+    onMenu: (listener: (command: MenuCommand) => void) => subscribe(ipc, MENU_CHANNEL, (_event, command) => listener(command as MenuCommand)),
   });
 }

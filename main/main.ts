@@ -60,11 +60,12 @@ async function demoWorkspace(): Promise<string> {
   return policy.allowWorkspace(path);
 }
 
-async function pickWorkspace(mode: unknown): Promise<string | null> {
+async function pickWorkspace(mode: unknown, name?: unknown): Promise<string | null> {
   if (window === null) return null;
   const filters = [{ name: 'Manyfield workspace', extensions: ['manyfield'] }];
   if (mode === 'new') {
-    const r = await dialog.showSaveDialog(window, { title: 'New workspace', defaultPath: 'network.manyfield', filters });
+    const suggested = typeof name === 'string' && /^[\w][\w .-]{0,79}$/.test(name.trim()) ? name.trim().replace(/(\.manyfield)?$/, '.manyfield') : 'network.manyfield';
+    const r = await dialog.showSaveDialog(window, { title: 'New workspace', defaultPath: suggested, filters });
     return r.canceled || !r.filePath ? null : policy.allowWorkspace(r.filePath);
   }
   if (mode !== 'open') throw new ManyfieldError('invalid-argument', 'pickWorkspace takes "open" or "new"');
@@ -136,7 +137,8 @@ void app.whenReady().then(() => {
     runLong,
     host: {
       pickDataFile: () => pickDataFile(),
-      pickWorkspace: (mode) => pickWorkspace(mode),
+      pickWorkspace: (mode, name) => pickWorkspace(mode, name),
+      launchWorkspace: async () => (startWorkspace !== undefined && existsSync(startWorkspace) ? policy.allowWorkspace(startWorkspace) : null),
       recentWorkspaces: () => recentWorkspaces(),
       demoWorkspace: () => demoWorkspace(),
       saveFile: (name, data) => saveFile(name, data),

@@ -26,47 +26,48 @@ function fakeIpc() {
 }
 
 describe('preload bridge', () => {
-  it('exposes exactly the handler names, cancel, the host actions and onMenu', () => {
+  it('exposes call, cancel, progress, the six host actions and menu commands — nothing else', () => {
     const bridge = buildBridge(fakeIpc().ipc);
-    expect(Object.keys(bridge).sort()).toEqual(['api', 'cancel', 'host', 'onMenu']);
-    expect(Object.keys(bridge.api).sort()).toEqual([...HANDLER_NAMES].sort());
-    expect(Object.keys(bridge.host).sort()).toEqual(['demoWorkspace', 'pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'saveFile']);
-    expect(Object.isFrozen(bridge) && Object.isFrozen(bridge.api) && Object.isFrozen(bridge.host)).toBe(true);
+    expect(Object.keys(bridge).sort()).toEqual(['call', 'cancel', 'demoWorkspace', 'launchWorkspace', 'onMenu', 'onProgress', 'pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'saveFile']);
+    expect(Object.isFrozen(bridge)).toBe(true);
   });
 
-  it('invokes only the listed channels, one per handler, and sends only cancel', async () => {
+  it('reaches exactly one channel per handler and per host action; cancel is the only message sent', async () => {
     const f = fakeIpc();
     const bridge = buildBridge(f.ipc);
-    for (const name of HANDLER_NAMES) await bridge.api[name]({ workspace: 'w' });
-    for (const action of Object.keys(bridge.host) as (keyof typeof bridge.host)[]) await bridge.host[action]();
+    for (const name of HANDLER_NAMES) await bridge.call(name, { workspace: 'w' }, `id-${name}`);
+    for (const action of ['pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'demoWorkspace', 'launchWorkspace', 'saveFile'] as const) await bridge[action]('open' as never, 'x' as never);
     bridge.cancel('c1');
     expect(f.invoked.map((i) => i.channel).sort()).toEqual(invokeChannels().sort());
-    expect(new Set(f.invoked.map((i) => i.channel)).size).toBe(HANDLER_NAMES.length + 5);
+    expect(new Set(f.invoked.map((i) => i.channel)).size).toBe(HANDLER_NAMES.length + 6);
+    expect(f.invoked.find((i) => i.channel === 'manyfield:call:trials.list')!.args).toEqual([{ workspace: 'w' }, 'id-trials.list']);
     expect(f.sent).toEqual([{ channel: CANCEL_CHANNEL, args: ['c1'] }]);
-    expect([...f.listeners.keys()]).toEqual([PROGRESS_CHANNEL]);
   });
 
-  it('routes progress to the call it belongs to and forgets the listener after the answer', async () => {
+  it('refuses a name outside the handler map without sending anything', async () => {
     const f = fakeIpc();
     const bridge = buildBridge(f.ipc);
-    let release: () => void = () => {};
-    f.setAnswer(() => new Promise((resolve) => (release = () => resolve({ ok: true, data: 1 }))));
+    for (const name of ['shell.openExternal', 'constructor', '__proto__', '', 'manyfield:cancel'])
+      expect(await bridge.call(name, {}, 'x')).toMatchObject({ ok: false, error: { code: 'not-found' } });
+    expect(f.invoked).toEqual([]);
+  });
+
+  it('passes progress with its call id to listeners until they unsubscribe', () => {
+    const f = fakeIpc();
+    const bridge = buildBridge(f.ipc);
     const seen: unknown[] = [];
-    const pending = bridge.api['data.import']({}, 'job-7', (e) => seen.push(e));
+    const off = bridge.onProgress((callId, e) => seen.push([callId, e]));
     f.emit(PROGRESS_CHANNEL, { callId: 'job-7', event: { stage: 'read', fraction: 0.5 } });
-    f.emit(PROGRESS_CHANNEL, { callId: 'other', event: { stage: 'read', fraction: 0.9 } });
-    release();
-    expect(await pending).toEqual({ ok: true, data: 1 });
+    off();
     f.emit(PROGRESS_CHANNEL, { callId: 'job-7', event: { stage: 'store', fraction: 1 } });
-    expect(seen).toEqual([{ stage: 'read', fraction: 0.5 }]);
-    expect(f.invoked[0].args).toEqual([{}, 'job-7']);
+    expect(seen).toEqual([['job-7', { stage: 'read', fraction: 0.5 }]]);
   });
 
   it('turns a refused host action into a rejected promise, and unsubscribes menu listeners', async () => {
     const f = fakeIpc();
     const bridge = buildBridge(f.ipc);
     f.setAnswer(() => ({ ok: false, error: { code: 'invalid-argument', message: 'nope' } }));
-    await expect(bridge.host.pickWorkspace('sideways')).rejects.toThrow('nope');
+    await expect(bridge.pickWorkspace('open')).rejects.toThrow('nope');
     const commands: unknown[] = [];
     const off = bridge.onMenu((c) => commands.push(c));
     f.emit(MENU_CHANNEL, { command: 'import-data' });

@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { copyFileSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { writePlotCsv, BENCH_MAPPING, PLOTS_PER_TRIAL } from '../../../bench/import/generateCsv.js';
 import { api } from '../../../src/api/handlers.js';
 import { runInWorker } from '../../../src/api/worker/runInWorker.js';
@@ -38,6 +39,26 @@ describe('runInWorker', () => {
       },
     });
     expect(events.some((e) => e.stage === 'read')).toBe(true);
+    expect(result).toMatchObject({ ok: false, error: { code: 'cancelled' } });
+    expect(readFileSync(target).equals(before)).toBe(true);
+  });
+
+  it('cancels an analysis during the trial stage; nothing is saved in the workspace', async () => {
+    const spec = JSON.parse(readFileSync(fileURLToPath(new URL('../../../examples/demo-analysis.json', import.meta.url)), 'utf8')) as unknown;
+    const target = join(dir, 'analysis.manyfield');
+    copyFileSync(demo, target);
+    const before = readFileSync(target);
+    const controller = new AbortController();
+    const stages: string[] = [];
+    const result = await runInWorker('analysis.run', { workspace: target, spec, save: true }, {
+      signal: controller.signal,
+      onProgress: (e) => {
+        stages.push(e.stage);
+        if (e.stage === 'trial-stage') controller.abort();
+      },
+    });
+    expect(stages[0]).toBe('trial-stage');
+    expect(stages.length).toBeLessThan(42);
     expect(result).toMatchObject({ ok: false, error: { code: 'cancelled' } });
     expect(readFileSync(target).equals(before)).toBe(true);
   });
