@@ -1,17 +1,18 @@
-// The Electron window's host: the preload's `window.manyfield` bridge (contextIsolation on; one
-// function per handler, no raw IPC channel). Native dialogs choose files and workspaces.
+// The Electron window's host: the preload's `window.manyfield` bridge (contextIsolation on; the
+// bridge sends each handler on its own IPC channel, no open-ended channel). Each call carries an
+// id of the page's own, so its progress events and a cancel reach the right call. Native dialogs
+// choose files and workspaces.
 import type { ManyfieldBridge } from '../../main/bridge.js';
-import type { MenuCommand } from '../../main/channels.js';
-import type { CallOptions, HandlerArgs, HandlerName, HandlerResults, Host, PickedFile, ProgressEvent, RecentWorkspace, Result } from './types.js';
+import type { CallOptions, HandlerArgs, HandlerName, HandlerResults, Host, PickedFile, RecentWorkspace, Result } from './types.js';
 
+// The preload puts the bridge on the page's global object (window in the page).
 declare global {
-  interface Window {
-    manyfield?: ManyfieldBridge;
-  }
+  // eslint-disable-next-line no-var -- a global declaration must use var
+  var manyfield: ManyfieldBridge | undefined;
 }
 
 function bridge(): ManyfieldBridge {
-  const b = window.manyfield;
+  const b = globalThis.manyfield;
   if (!b) throw new Error('the desktop bridge is missing (the preload did not run)');
   return b;
 }
@@ -21,34 +22,31 @@ let nextId = 0;
 async function call<K extends HandlerName>(name: K, args: HandlerArgs<K>, opts: CallOptions = {}): Promise<Result<HandlerResults[K]>> {
   const b = bridge();
   const id = `page-${++nextId}`;
+  const stop = opts.onProgress ? b.onProgress((callId, e) => callId === id && opts.onProgress?.(e)) : () => undefined;
   const abort = () => b.cancel(id);
   opts.signal?.addEventListener('abort', abort, { once: true });
   try {
-    const progress = opts.onProgress ? (e: ProgressEvent) => opts.onProgress?.(e) : undefined;
-    return (await b.api[name](args, id, progress)) as Result<HandlerResults[K]>;
+    return (await b.call(name, args, id)) as Result<HandlerResults[K]>;
   } catch (e) {
     return { ok: false, error: { code: 'internal', message: `the desktop shell did not answer ${name}: ${String(e)}` } };
   } finally {
+    stop();
     opts.signal?.removeEventListener('abort', abort);
   }
 }
-
-const host = () => bridge().host;
 
 export const electronHost = {
   kind: 'electron',
   choosesFilesInPage: false,
   call,
-  pickDataFile: async () => (await host().pickDataFile()) as PickedFile | null,
+  pickDataFile: async () => (await bridge().pickDataFile()) as PickedFile | null,
   uploadDataFile: (): Promise<PickedFile> => Promise.reject(new Error('the desktop window chooses files with its own dialog')),
-  // The save dialog names a new workspace itself; the name typed in the page is not needed.
-  pickWorkspace: async (mode: 'open' | 'new') => (await host().pickWorkspace(mode)) as string | null,
-  recentWorkspaces: async () => (await host().recentWorkspaces()) as RecentWorkspace[],
-  demoWorkspace: async () => (await host().demoWorkspace()) as string,
-  // The window opens on the start screen; the recent list carries the last workspace.
-  launchWorkspace: async () => null,
+  pickWorkspace: async (mode: 'open' | 'new', name?: string) => (await bridge().pickWorkspace(mode, name)) as string | null,
+  recentWorkspaces: async () => (await bridge().recentWorkspaces()) as RecentWorkspace[],
+  demoWorkspace: async () => (await bridge().demoWorkspace()) as string,
+  launchWorkspace: async () => (await bridge().launchWorkspace()) as string | null,
   saveFile: async (name: string, data: Blob | string) => {
-    await host().saveFile(name, typeof data === 'string' ? data : new Uint8Array(await data.arrayBuffer()));
+    await bridge().saveFile(name, typeof data === 'string' ? data : new Uint8Array(await data.arrayBuffer()));
   },
-  onMenu: (listener: (command: MenuCommand) => void) => bridge().onMenu(listener),
+  onMenu: (listener) => bridge().onMenu(listener),
 } satisfies Host;

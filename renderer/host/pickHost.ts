@@ -4,5 +4,5 @@ import { browserHost } from './browserHost.js';
 import { electronHost } from './electronHost.js';
 
 export function pickHost(): Host {
-  return window.manyfield ? electronHost : browserHost;
+  return globalThis.manyfield ? electronHost : browserHost;
 }
