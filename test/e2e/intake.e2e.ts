@@ -77,6 +77,11 @@ describe('intake in the browser', () => {
     expect(await network.rowCount()).toBe(44);
     const labels = await network.trialLabels();
     expect(labels.filter((l) => l.includes('ZEL'))).toHaveLength(2);
+    // A new trial opens; without recorded positions its plots are drawn one line per block.
+    await network.openTrial(labels.find((l) => l.includes('ZEL')) as string);
+    expect(await page.getByTestId('field-plot').count()).toBe(28);
+    expect(await page.getByTestId('field-grid').innerText()).toContain('one line per block');
+    await screenshot(page, join(screensDir(), 'trial-by-block.png'));
   });
 
   it('refuses the same file a second time, saying which trials are already there', async () => {
