@@ -1,0 +1,21 @@
+// How numbers read on screen and in exports.
+
+/** A number with `digits` significant-looking decimals; an en dash for a missing value. */
+export function formatNumber(v: number | null | undefined, decimals = 2): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '–';
+  return v.toLocaleString('en-GB', { minimumFractionDigits: decimals, maximumFractionDigits: decimals });
+}
+
+/** P-values as practitioners read them: below 0.001 shown as "< 0.001". */
+export function formatP(p: number | null | undefined): string {
+  if (p === null || p === undefined || !Number.isFinite(p)) return '–';
+  if (p < 0.001) return '< 0.001';
+  return p.toFixed(3);
+}
+
+/** Enough decimals for a value of this size to keep three significant digits. */
+export function decimalsFor(scale: number): number {
+  if (!Number.isFinite(scale) || scale === 0) return 2;
+  const mag = Math.floor(Math.log10(Math.abs(scale)));
+  return Math.min(4, Math.max(0, 2 - mag));
+}
