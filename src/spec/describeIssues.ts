@@ -152,7 +152,7 @@ export function describeIssues(schema: AnySchema, input: unknown, issues: readon
         out.push(given === undefined ? `${key}: missing; it is required (${issue.expected})` : `${key}: expected ${issue.expected}, got ${show(given)}`);
         break;
       default:
-        out.push(`${key}: ${issue.message}${given !== undefined && typeof given !== 'object' ? ` (given ${show(given)})` : ''}`);
+        out.push(`${key === '' ? '' : `${key}: `}${issue.message}${given !== undefined && typeof given !== 'object' ? ` (given ${show(given)})` : ''}`);
     }
   }
   return out;
