@@ -11,8 +11,10 @@ import type { DemoSummary } from './workspace/demo.js';
 import type { ImportOutcome } from './workspace/importFile.js';
 import type { ExportedTable } from './workspace/browse.js';
 import { runAnalysisFromSource } from './analysis/fromSource.js';
-import type { AnalysisReport } from './analysis/report.js';
 import type { TrialListing } from '../store/index.js';
+import type { AnalysisListing } from '../store/analyses.js';
+import type { AnyAnalysisReport } from './analysis/report.js';
+import type { SavedAnalysisSummary, SavedTrialDetail } from './analysis/saved.js';
 
 export const handlerArgs = {
   'demo.build': z.object({ workspace: z.string().min(1), replace: z.boolean().default(false) }).strict(),
@@ -22,9 +24,27 @@ export const handlerArgs = {
   'trials.list': z.object({ workspace: z.string().min(1) }).strict(),
   'data.export': z.object({ workspace: z.string().min(1), trait: z.string().min(1) }).strict(),
   'analysis.run': z
-    .object({ workspace: z.string().min(1).optional(), data: z.string().min(1).optional(), spec: analysisSpecSchema, save: z.boolean().default(true) })
+    .object({
+      workspace: z.string().min(1).optional(),
+      data: z.string().min(1).optional(),
+      spec: analysisSpecSchema,
+      save: z.boolean().default(true),
+      /** 'summary': compact per-trial results (default); 'plots': every trial's full analysis. */
+      detail: z.enum(['summary', 'plots']).default('summary'),
+    })
     .strict()
     .refine((a) => (a.workspace === undefined) !== (a.data === undefined), 'give exactly one of "workspace" and "data"'),
+  // Saved analyses (src/api/analysis/saved.ts)
+  'analysis.list': z.object({ workspace: z.string().min(1) }).strict(),
+  'analysis.open': z
+    .object({
+      workspace: z.string().min(1),
+      analysis: z.number().int().positive(),
+      /** A page of trial summaries to include, in report order. */
+      trials: z.object({ offset: z.number().int().nonnegative().default(0), limit: z.number().int().positive().max(10000).default(100) }).strict().optional(),
+    })
+    .strict(),
+  'analysis.trial': z.object({ workspace: z.string().min(1), analysis: z.number().int().positive(), trial: z.string().min(1) }).strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -35,7 +55,10 @@ export interface HandlerResults {
   'data.import': ImportOutcome;
   'trials.list': TrialListing[];
   'data.export': ExportedTable;
-  'analysis.run': AnalysisReport;
+  'analysis.run': AnyAnalysisReport;
+  'analysis.list': AnalysisListing[];
+  'analysis.open': SavedAnalysisSummary;
+  'analysis.trial': SavedTrialDetail;
 }
 
 export type HandlerMap = { [K in HandlerName]: (args: HandlerArgs<K>, ctx?: CallContext) => Promise<Result<HandlerResults[K]>> };
@@ -50,6 +73,9 @@ const implementations: Implementations = {
   'trials.list': async (a) => (await import('./workspace/browse.js')).listWorkspaceTrials(a.workspace),
   'data.export': async (a) => (await import('./workspace/browse.js')).exportWorkspaceTrait(a.workspace, a.trait),
   'analysis.run': (a, ctx) => runAnalysisFromSource(a, ctx),
+  'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
+  'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials),
+  'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),
 };
 
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {
@@ -72,4 +98,7 @@ export const api: HandlerMap = {
   'trials.list': bind('trials.list'),
   'data.export': bind('data.export'),
   'analysis.run': bind('analysis.run'),
+  'analysis.list': bind('analysis.list'),
+  'analysis.open': bind('analysis.open'),
+  'analysis.trial': bind('analysis.trial'),
 };

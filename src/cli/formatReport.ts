@@ -1,10 +1,10 @@
 // The plain-text summary of an analysis for the terminal: pooled contrasts with heterogeneity,
 // the one-stage model, agreement, the rate response, warnings and cautions.
-import type { AnalysisReport } from '../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../api/analysis/report.js';
 import { formatRateResponseText } from '../engine/rate/formatRateResponseText.js';
 import { num, pValue, textTable } from './textTable.js';
 
-export function formatReport(r: AnalysisReport): string {
+export function formatReport(r: AnyAnalysisReport): string {
   const parts: string[] = [];
   parts.push(`Trait ${r.trait}${r.unit ? ` (${r.unit})` : ''}: ${r.trialsAnalysed} trials analysed. Source ${r.provenance.source}, data ${r.provenance.dataFingerprint.slice(0, 12)}.`);
   if (r.twoStage.pooled.length > 0) {
@@ -58,12 +58,18 @@ export function formatReport(r: AnalysisReport): string {
  * Trial flags worth reading on a terminal. Cook's distance above 4/n marks several plots in
  * most trials, so those are counted here and listed in full only in the JSON diagnostics.
  */
-function formatTrialChecks(r: AnalysisReport): string[] {
+function formatTrialChecks(r: AnyAnalysisReport): string[] {
   const lines: string[] = [];
   let influential = 0;
   const influentialTrials = new Set<string>();
   for (const t of r.twoStage.trials) {
     if (!('flags' in t)) continue;
+    // a trial summary counts its influential plots instead of flagging each
+    const counted = 'n' in t ? t.diagnostics.influentialPlots : 0;
+    if (counted > 0) {
+      influential += counted;
+      influentialTrials.add(t.trial);
+    }
     for (const f of t.flags) {
       if (f.code === 'influential-plot') {
         influential++;
@@ -72,6 +78,6 @@ function formatTrialChecks(r: AnalysisReport): string[] {
     }
   }
   if (influential > 0)
-    lines.push(`  ${influential} plots in ${influentialTrials.size} trials have Cook's distance above 4/n (a loose screen; each is listed in the JSON diagnostics).`);
+    lines.push(`  ${influential} plots in ${influentialTrials.size} trials have Cook's distance above 4/n (a loose screen; each is listed in the trial's detail: --json --detail plots).`);
   return lines.length > 0 ? ['\nTrial checks (nothing is dropped unless you exclude it with a reason)', ...lines] : [];
 }

@@ -18,9 +18,11 @@ Commands:
                                                  load a plot file (CSV or XLSX) into W (created if new)
   trials   --workspace W [--json]               list the trials held in W
   export   --workspace W --trait T --out F.csv  write one trait's plots in long format
-  analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
+  analyze  --spec S.json (--data F | --workspace W) [--json] [--detail plots] [--out FILE]
                                                  run the trial stage, pooling, the one-stage model
-                                                 and the rate response the spec asks for
+                                                 and the rate response the spec asks for; per trial
+                                                 a summary, or with --detail plots every trial's
+                                                 full analysis with its per-plot diagnostics
 
 Exit codes: 0 done, 1 the operation failed (message on stderr), 2 the command line is wrong.`;
 
@@ -87,7 +89,9 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       }, out);
     }
     case 'analyze': {
-      const o = optionsFor(command, parsed, { values: ['spec', 'data', 'workspace', 'out'], flags: ['json', 'no-save'] });
+      const o = optionsFor(command, parsed, { values: ['spec', 'data', 'workspace', 'out', 'detail'], flags: ['json', 'no-save'] });
+      const detail = o.value('detail') ?? 'summary';
+      if (detail !== 'summary' && detail !== 'plots') throw new UsageError(`analyze: --detail is "summary" or "plots"; got "${detail}"`);
       const specPath = o.required('spec');
       const spec = readJson(specPath);
       const data = o.value('data');
@@ -98,7 +102,7 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const onSigint = () => controller.abort();
       process.once('SIGINT', onSigint);
       // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.
-      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal });
+      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save'), detail }, { onProgress: progress.onProgress, signal: controller.signal });
       process.off('SIGINT', onSigint);
       progress.done();
       const target = o.value('out');
@@ -125,10 +129,15 @@ function report<T>(r: Result<T>, render: (d: T) => string, out: Output): number 
   return 0;
 }
 
+/** Documents up to this size are indented for reading; larger ones are written on one line. */
+const INDENT_UP_TO = 1 << 20;
+
 // JSON.stringify already writes NaN and ±Infinity as null; a replacer function for that would be
-// called once per value of a megabyte-sized report for no change in the text.
+// called once per value of a megabyte-sized report for no change in the text. A large document
+// (thousands of trials) is for programs: indentation would nearly double it.
 function json(d: unknown): string {
-  return `${JSON.stringify(d, null, 2)}\n`;
+  const flat = JSON.stringify(d);
+  return `${flat.length <= INDENT_UP_TO ? JSON.stringify(d, null, 2) : flat}\n`;
 }
 
 function readJson(path: string): unknown {
