@@ -1,16 +1,20 @@
 // Generated networks shaped like the DESIGN §5 example: an untreated control plus 40/80/160 at
 // two timings (7 treatments) in 4 blocks per trial, with trial, block, treatment-by-trial and
 // residual noise, a yield response rising with rate and a small timing effect. Seeded, so every
-// run writes the same file. Columns: env,block,trt,rate,timing,y.
+// run writes the same file. Columns: site,year,env,block,trt,rate,timing,y; trials are site-years
+// (eight years per site), so cumulative pooling runs in order of year.
 import { mulberry32, normalSampler } from '../../src/engine/stats/random.js';
 import { EXAMPLE_CONTRASTS, EXAMPLE_TREATMENTS } from '../../test/support/exampleProtocol.js';
 
 export function exampleNetworkCsv(trials: number, seed: number): string {
   const uniform = mulberry32(seed);
   const normal = normalSampler(uniform);
-  const lines = ['env,block,trt,rate,timing,y'];
+  const lines = ['site,year,env,block,trt,rate,timing,y'];
+  const sites = Math.max(1, Math.ceil(trials / 8));
   for (let i = 0; i < trials; i++) {
     const env = `E${String(i + 1).padStart(5, '0')}`;
+    const site = `S${String(i % sites).padStart(4, '0')}`;
+    const year = 2011 + Math.floor(i / sites);
     const uTrial = 1.2 * normal();
     const uBlock = [0, 1, 2, 3].map(() => 0.3 * normal());
     const uInt = EXAMPLE_TREATMENTS.map(() => 0.2 * normal());
@@ -20,7 +24,7 @@ export function exampleNetworkCsv(trials: number, seed: number): string {
         const rate = Number(t.levels.rate);
         const mean = 6 + 2.2 * (1 - Math.exp(-rate / 70)) + (t.levels.timing === 'late' ? -0.15 : 0);
         const y = mean + uTrial + uBlock[b] + uInt[j] + sdE * normal();
-        lines.push(`${env},B${b + 1},${t.code},${rate},${t.levels.timing ?? ''},${y.toFixed(4)}`);
+        lines.push(`${site},${year},${env},B${b + 1},${t.code},${rate},${t.levels.timing ?? ''},${y.toFixed(4)}`);
       });
   }
   return `${lines.join('\n')}\n`;
@@ -30,7 +34,7 @@ export function exampleNetworkCsv(trials: number, seed: number): string {
 export function exampleSpec(parts: { twoStage: boolean; oneStage: boolean; lrt: boolean; rateBootstrap?: number }): object {
   return {
     trait: 'y',
-    columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
+    columns: { site: 'site', year: 'year', trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
     control: 'CTL',
     transform: 'none',
     contrasts: EXAMPLE_CONTRASTS,
@@ -41,3 +45,11 @@ export function exampleSpec(parts: { twoStage: boolean; oneStage: boolean; lrt: 
     ...(parts.rateBootstrap !== undefined ? { rateResponse: { factor: 'rate', model: 'quadratic', priceRatio: 0.01, at: { timing: 'early' }, bootstrap: parts.rateBootstrap, seed: 7 } } : {}),
   };
 }
+
+/** The mapping that imports these files into a workspace (trait "y"). */
+export const EXAMPLE_MAPPING = {
+  columns: { site: 'site', year: 'year', trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
+  trait: { name: 'y', unit: 't/ha' },
+  control: 'CTL',
+  factorUnits: { rate: 'kg/ha' },
+};
