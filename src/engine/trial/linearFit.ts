@@ -114,6 +114,39 @@ export function estimate(fit: LinearFit, l: ArrayLike<number>): number {
   return s;
 }
 
+// l' (X'X)^- m depends on the design alone. Vectors kept per layout (adjusted means, their
+// differences, contrasts) are the same objects for every trial laid out alike, so their products
+// are remembered by (matrix, l, m): computed once, the same numbers.
+const crossMemo = new WeakMap<Matrix, WeakMap<object, WeakMap<object, number>>>();
+
+/** unscaledCross for vectors that stay unchanged (the per-layout ones): remembered. */
+export function unscaledCrossKept(fit: LinearFit, l: Float64Array, m: Float64Array): number {
+  let byL = crossMemo.get(fit.unscaled);
+  if (!byL) crossMemo.set(fit.unscaled, (byL = new WeakMap()));
+  let byM = byL.get(l);
+  if (!byM) byL.set(l, (byM = new WeakMap()));
+  let v = byM.get(m);
+  if (v === undefined) {
+    v = unscaledCross(fit, l, m);
+    byM.set(m, v);
+  }
+  return v;
+}
+
+const estimableMemo = new WeakMap<readonly Float64Array[], WeakMap<object, boolean>>();
+
+/** isEstimable for a vector that stays unchanged: remembered per null space. */
+export function isEstimableKept(fit: LinearFit, l: Float64Array): boolean {
+  let byL = estimableMemo.get(fit.nullSpace);
+  if (!byL) estimableMemo.set(fit.nullSpace, (byL = new WeakMap()));
+  let v = byL.get(l);
+  if (v === undefined) {
+    v = isEstimable(fit, l);
+    byL.set(l, v);
+  }
+  return v;
+}
+
 /** l' (X'X)^- m, unscaled by sigma². */
 export function unscaledCross(fit: LinearFit, l: ArrayLike<number>, m: ArrayLike<number>): number {
   const p = fit.unscaled.cols;
