@@ -17,6 +17,9 @@ export const HANDLER_NAMES = [
   'exclusions.list',
   'data.preview',
   'data.validate',
+  'analysis.list',
+  'analysis.open',
+  'analysis.trial',
 ] as const;
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];

@@ -14,7 +14,6 @@ import type { DemoSummary } from './workspace/demo.js';
 import type { ImportOutcome } from './workspace/importFile.js';
 import type { ExportedTable } from './workspace/browse.js';
 import { runAnalysisFromSource } from './analysis/fromSource.js';
-import type { AnalysisReport } from './analysis/report.js';
 import type { TrialListing } from '../store/index.js';
 import type { WorkspaceDescription } from './workspace/describe.js';
 import type { SiteEntry } from './workspace/sites.js';
@@ -29,6 +28,9 @@ const workspacePath = z.string().min(1).max(4096);
 /** A data file: a path (CLI, Electron dialog) or an upload reference the browser server maps to one. */
 const fileRef = z.string().min(1).max(4096);
 const rowId = z.number().int().positive();
+import type { AnalysisListing } from '../store/analyses.js';
+import type { AnyAnalysisReport } from './analysis/report.js';
+import type { SavedAnalysisSummary, SavedTrialDetail } from './analysis/saved.js';
 
 export const handlerArgs = {
   'demo.build': z.object({ workspace: z.string().min(1), replace: z.boolean().default(false) }).strict(),
@@ -38,7 +40,14 @@ export const handlerArgs = {
   'trials.list': z.object({ workspace: z.string().min(1) }).strict(),
   'data.export': z.object({ workspace: z.string().min(1), trait: z.string().min(1) }).strict(),
   'analysis.run': z
-    .object({ workspace: z.string().min(1).optional(), data: z.string().min(1).optional(), spec: analysisSpecSchema, save: z.boolean().default(true) })
+    .object({
+      workspace: z.string().min(1).optional(),
+      data: z.string().min(1).optional(),
+      spec: analysisSpecSchema,
+      save: z.boolean().default(true),
+      /** 'summary': compact per-trial results (default); 'plots': every trial's full analysis. */
+      detail: z.enum(['summary', 'plots']).default('summary'),
+    })
     .strict()
     .refine((a) => (a.workspace === undefined) !== (a.data === undefined), 'give exactly one of "workspace" and "data"'),
   'workspace.describe': z.object({ workspace: workspacePath }).strict(),
@@ -51,6 +60,17 @@ export const handlerArgs = {
   'exclusions.list': z.object({ workspace: workspacePath }).strict(),
   'data.preview': z.object({ file: fileRef, sheet: z.string().min(1).optional() }).strict(),
   'data.validate': z.object({ workspace: workspacePath, file: fileRef, mapping: importMappingSchema }).strict(),
+  // Saved analyses (src/api/analysis/saved.ts)
+  'analysis.list': z.object({ workspace: workspacePath }).strict(),
+  'analysis.open': z
+    .object({
+      workspace: workspacePath,
+      analysis: z.number().int().positive(),
+      /** A page of trial summaries to include, in report order. */
+      trials: z.object({ offset: z.number().int().nonnegative().default(0), limit: z.number().int().positive().max(10000).default(100) }).strict().optional(),
+    })
+    .strict(),
+  'analysis.trial': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), trial: z.string().min(1) }).strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -61,7 +81,7 @@ export interface HandlerResults {
   'data.import': ImportOutcome;
   'trials.list': TrialListing[];
   'data.export': ExportedTable;
-  'analysis.run': AnalysisReport;
+  'analysis.run': AnyAnalysisReport;
   'workspace.describe': WorkspaceDescription;
   'workspace.create': WorkspaceDescription;
   'sites.list': SiteEntry[];
@@ -72,6 +92,9 @@ export interface HandlerResults {
   'exclusions.list': ExclusionEntry[];
   'data.preview': FilePreview;
   'data.validate': ValidationReport;
+  'analysis.list': AnalysisListing[];
+  'analysis.open': SavedAnalysisSummary;
+  'analysis.trial': SavedTrialDetail;
 }
 
 export { HANDLER_NAMES, LONG_HANDLERS } from './handlerNames.js';
@@ -103,6 +126,9 @@ const implementations: Implementations = {
   'exclusions.list': async (a) => (await import('./plots/exclusions.js')).listExclusions(a.workspace),
   'data.preview': async (a) => (await import('./intake/preview.js')).previewFile(a.file, basename(a.file), a.sheet),
   'data.validate': async (a, ctx) => (await import('./intake/validate.js')).validateFile(a.workspace, a.file, basename(a.file), a.mapping, ctx),
+  'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
+  'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials),
+  'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),
 };
 
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {

@@ -121,7 +121,9 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       }, out);
     }
     case 'analyze': {
-      const o = optionsFor(command, parsed, { values: ['spec', 'data', 'workspace', 'out'], flags: ['json', 'no-save'] });
+      const o = optionsFor(command, parsed, { values: ['spec', 'data', 'workspace', 'out', 'detail'], flags: ['json', 'no-save'] });
+      const detail = o.value('detail') ?? 'summary';
+      if (detail !== 'summary' && detail !== 'plots') throw new UsageError(`analyze: --detail is "summary" or "plots"; got "${detail}"`);
       const specPath = o.required('spec');
       const spec = readJson(specPath);
       const data = o.value('data');
@@ -142,7 +144,7 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
         if (target !== undefined) partial = writePartial(target, text);
       };
       // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.
-      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save') }, { onProgress: progress.onProgress, signal: controller.signal, deliver });
+      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save'), detail }, { onProgress: progress.onProgress, signal: controller.signal, deliver });
       process.off('SIGINT', onSigint);
       progress.done();
       if (!r.ok) {
@@ -179,10 +181,15 @@ function report<T>(r: Result<T>, render: (d: T) => string, out: Output): number 
   return 0;
 }
 
+/** Documents up to this size are indented for reading; larger ones are written on one line. */
+const INDENT_UP_TO = 1 << 20;
+
 // JSON.stringify already writes NaN and ±Infinity as null; a replacer function for that would be
-// called once per value of a megabyte-sized report for no change in the text.
+// called once per value of a megabyte-sized report for no change in the text. A large document
+// (thousands of trials) is for programs: indentation would nearly double it.
 function json(d: unknown): string {
-  return `${JSON.stringify(d, null, 2)}\n`;
+  const flat = JSON.stringify(d);
+  return `${flat.length <= INDENT_UP_TO ? JSON.stringify(d, null, 2) : flat}\n`;
 }
 
 function readJson(path: string): unknown {

@@ -3,6 +3,10 @@
 import { ManyfieldError } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
 import type { Workspace } from './workspace.js';
+import type { NetworkInput } from '../engine/types.js';
+import { compactPooled, isCompactPooled } from '../engine/pooling/compactPooled.js';
+import type { PooledResult } from '../engine/pooling/types.js';
+import { countAnalysisTrials, hasTrialRows, insertAnalysisTrials, listAnalysisTrials, type StoredTrialEntry } from './analysisTrials.js';
 
 export type AnalysisStatus = 'running' | 'complete' | 'failed' | 'cancelled';
 
@@ -10,11 +14,21 @@ export interface SaveAnalysisOptions {
   readonly status?: AnalysisStatus;
   readonly appVersion?: string;
   readonly now?: () => Date;
+  /** The data analysed: each trial's row then records the SHA-256 of its data, for detail on demand. */
+  readonly network?: NetworkInput;
+}
+
+/** The 'twoStage' result row of an analysis saved with per-trial rows: the pools, compact, and a count. */
+interface StoredTwoStage {
+  readonly pooled: readonly unknown[];
+  readonly trialCount: number;
 }
 
 /**
  * Store an analysis. Each own property of `results` (oneStage, twoStage, warnings ...) becomes
- * one analysis_result row of that kind, so parts can be read back without parsing the rest.
+ * one analysis_result row of that kind, so parts can be read back without parsing the rest;
+ * the trials of `twoStage` go to analysis_trial, one row per trial in compact form, and the
+ * pools stay in the 'twoStage' row with their per-trial tables column by column.
  */
 export function saveAnalysis(ws: Workspace, spec: unknown, fingerprint: string, results: object, options: SaveAnalysisOptions = {}): number {
   const specJson = JSON.stringify(spec);
@@ -28,7 +42,13 @@ export function saveAnalysis(ws: Workspace, spec: unknown, fingerprint: string, 
     );
     const insert = ws.db.prepare('INSERT INTO analysis_result (analysis_id, kind, payload_json) VALUES (?, ?, ?)');
     for (const [kind, payload] of Object.entries(results)) {
-      if (payload === undefined) continue;
+      if (payload === undefined || kind === 'detail') continue;
+      if (kind === 'twoStage' && isTwoStageWithTrials(payload)) {
+        insertAnalysisTrials(ws, id, payload.trials, options.network);
+        const stored: StoredTwoStage = { pooled: payload.pooled.map((p) => (isCompactPooled(p as PooledResult) ? p : compactPooled(p as PooledResult))), trialCount: payload.trials.length };
+        insert.run(id, kind, JSON.stringify(stored));
+        continue;
+      }
       insert.run(id, kind, JSON.stringify(payload));
     }
     return id;
@@ -55,6 +75,11 @@ export function loadAnalysis(ws: Workspace, id: number): StoredAnalysis {
   for (const r of ws.db.prepare('SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ? ORDER BY id').all(id) as { kind: string; payload_json: string }[]) {
     results[r.kind] = JSON.parse(r.payload_json);
   }
+  // Saved with per-trial rows: put the trials back where the report had them.
+  if (hasTrialRows(ws, id) && results.twoStage && typeof results.twoStage === 'object') {
+    const { trialCount: _count, ...twoStage } = results.twoStage as StoredTwoStage;
+    results.twoStage = { trials: listAnalysisTrials(ws, id).map((t) => t.summary), ...twoStage };
+  }
   return {
     id: row.id,
     spec: JSON.parse(row.spec_json),
@@ -64,4 +89,70 @@ export function loadAnalysis(ws: Workspace, id: number): StoredAnalysis {
     status: row.status,
     results,
   };
+}
+
+function isTwoStageWithTrials(payload: unknown): payload is { trials: readonly StoredTrialEntry[]; pooled: readonly unknown[] } {
+  return payload !== null && typeof payload === 'object' && Array.isArray((payload as { trials?: unknown }).trials) && Array.isArray((payload as { pooled?: unknown }).pooled);
+}
+
+export interface AnalysisListing {
+  readonly id: number;
+  readonly trait: string | null;
+  readonly dataFingerprint: string;
+  readonly appVersion: string;
+  readonly createdAt: string;
+  readonly status: AnalysisStatus;
+  readonly trials: number | null;
+}
+
+/** Every saved analysis, newest first, without its results. */
+export function listAnalyses(ws: Workspace): AnalysisListing[] {
+  const rows = ws.db
+    .prepare(
+      `SELECT a.id, a.spec_json, a.data_fingerprint, a.app_version, a.created_at, a.status,
+              (SELECT payload_json FROM analysis_result r WHERE r.analysis_id = a.id AND r.kind = 'trialsAnalysed') AS trials
+       FROM analysis a ORDER BY a.id DESC`,
+    )
+    .all() as { id: number; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus; trials: string | null }[];
+  return rows.map((r) => {
+    const spec = JSON.parse(r.spec_json) as { trait?: unknown };
+    return {
+      id: r.id,
+      trait: typeof spec.trait === 'string' ? spec.trait : null,
+      dataFingerprint: r.data_fingerprint,
+      appVersion: r.app_version,
+      createdAt: r.created_at,
+      status: r.status,
+      trials: r.trials === null ? null : Number(JSON.parse(r.trials)),
+    };
+  });
+}
+
+/**
+ * A saved analysis without its per-trial results: spec, provenance, pools, one-stage and rate
+ * results, with `twoStage.trialCount` in place of the trials. An analysis saved before per-trial
+ * rows existed is read as it is, its trials counted and left out.
+ */
+export function loadAnalysisSummary(ws: Workspace, id: number): StoredAnalysis {
+  const head = loadAnalysisHead(ws, id);
+  const results: Record<string, unknown> = {};
+  for (const r of ws.db.prepare('SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ? ORDER BY id').raw().all(id) as [string, string][]) {
+    results[r[0]] = JSON.parse(r[1]);
+  }
+  const twoStage = results.twoStage as { trials?: unknown[]; pooled?: unknown[]; trialCount?: number } | undefined;
+  if (twoStage && Array.isArray(twoStage.trials)) {
+    const { trials, pooled } = twoStage;
+    results.twoStage = { pooled: (pooled ?? []).map((p) => (isCompactPooled(p as PooledResult) ? p : compactPooled(p as PooledResult))), trialCount: trials.length };
+  } else if (twoStage && twoStage.trialCount === undefined) {
+    results.twoStage = { ...twoStage, trialCount: countAnalysisTrials(ws, id) };
+  }
+  return { ...head, results };
+}
+
+export function loadAnalysisHead(ws: Workspace, id: number): Omit<StoredAnalysis, 'results'> {
+  const row = ws.db
+    .prepare('SELECT id, spec_json, data_fingerprint, app_version, created_at, status FROM analysis WHERE id = ?')
+    .get(id) as { id: number; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus } | undefined;
+  if (!row) throw new ManyfieldError('not-found', `no analysis with id ${id} in this workspace`);
+  return { id: row.id, spec: JSON.parse(row.spec_json), dataFingerprint: row.data_fingerprint, appVersion: row.app_version, createdAt: row.created_at, status: row.status };
 }

@@ -29,5 +29,16 @@ export { loadNetwork, type LoadNetworkOptions } from './network.js';
 export { exportTrait, type ExportedTrait, type ExportCell } from './exportTrait.js';
 export { getMeta, setMeta } from './meta.js';
 export { excludePlot, includePlot, excludePlotByLabel, findPlotByLabel, listPlots, type PlotRow } from './plots.js';
-export { saveAnalysis, loadAnalysis, type SaveAnalysisOptions, type StoredAnalysis, type AnalysisStatus } from './analyses.js';
+export {
+  saveAnalysis,
+  loadAnalysis,
+  loadAnalysisHead,
+  loadAnalysisSummary,
+  listAnalyses,
+  type SaveAnalysisOptions,
+  type StoredAnalysis,
+  type AnalysisStatus,
+  type AnalysisListing,
+} from './analyses.js';
+export { hasTrialRows, listAnalysisTrials, findAnalysisTrial, trialIdByLabel, trialDataSha256, storedTrialSummary, type AnalysisTrialRow } from './analysisTrials.js';
 export { setSiteDetails, type SiteDetails } from './sites.js';

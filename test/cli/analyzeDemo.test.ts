@@ -12,7 +12,7 @@ const POOLED_KEYS = ['name', 'estimate', 'se', 'lower', 'upper', 'p', 'tau2', 't
 interface Flag { code: string; plotId?: string | number | null }
 interface Report {
   oneStage: { minusTwoLogLik: number; logLik: number; converged: boolean; iterations: number; variance: Record<string, unknown>; means: { treatment: string; estimate: number; se: number }[]; contrasts: { name: string; estimate: number; se: number; df: number; lower: number; upper: number; p: number }[] };
-  twoStage: { trials: { trial: string; model: { n: number }; flags: Flag[]; contrasts: { name: string }[] }[]; pooled: (Record<string, unknown> & { metaRegression?: { coefficients: { term: string; estimate: number; se: number }[] } })[] };
+  twoStage: { trials: { trial: string; n: number; flags: Flag[]; contrasts: { name: string }[] }[]; pooled: (Record<string, unknown> & { metaRegression?: { coefficients: { term: string; estimate: number; se: number }[] } })[] };
   rateResponse: { pooled: { optimum: number; optimumLower: number; optimumUpper: number; profitableLower: number; profitableUpper: number; netReturnAtOptimum: number; yieldGainAtOptimum: number }; trials: { trial: string; model: string; optimum: number | null; converged: boolean }[]; cautions: string[] };
   warnings: string[];
   cautions: string[];
@@ -48,10 +48,10 @@ describe('analyze on the demo workspace', () => {
   it('flags the column-trend trial and the outlier, and drops neither', () => {
     const inc = report.twoStage.trials.find((t) => t.trial === 'INC-2023')!;
     expect(inc.flags.map((f) => f.code)).toContain('spatial-trend');
-    expect(inc.model.n).toBe(28);
+    expect(inc.n).toBe(28);
     const jes = report.twoStage.trials.find((t) => t.trial === 'JES-2024')!;
     expect(jes.flags.map((f) => f.code)).toContain('outlier-residual');
-    expect(jes.model.n).toBe(28);
+    expect(jes.n).toBe(28);
   });
 
   it('leaves the trial missing a treatment out of those contrasts, with a warning', () => {

@@ -6,23 +6,25 @@ import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 import { toApiError } from '../errors.js';
 import { runAnalysis } from './runAnalysis.js';
+import type { AnyAnalysisReport, ReportDetail } from './report.js';
 
 export interface WorkerRequest {
   readonly network: NetworkInput;
   readonly spec: AnalysisSpec;
+  readonly detail: ReportDetail;
 }
 
 export type WorkerMessage =
   | { readonly type: 'progress'; readonly event: { stage: string; step?: string; fraction: number | null } }
-  | { readonly type: 'done'; readonly report: ReturnType<typeof runAnalysis> }
+  | { readonly type: 'done'; readonly report: Omit<AnyAnalysisReport, 'provenance'> }
   | { readonly type: 'failed'; readonly error: ReturnType<typeof toApiError> };
 
 const port = parentPort;
 if (port !== null) {
-  const { network, spec } = workerData as WorkerRequest;
+  const { network, spec, detail } = workerData as WorkerRequest;
   const post = (m: WorkerMessage): void => port.postMessage(m);
   try {
-    post({ type: 'done', report: runAnalysis(network, spec, { onProgress: (event) => post({ type: 'progress', event }) }) });
+    post({ type: 'done', report: runAnalysis(network, spec, { onProgress: (event) => post({ type: 'progress', event }) }, detail) });
   } catch (e) {
     const error = toApiError(e);
     // Stack traces stay in this thread; the details must survive the copy to the caller.

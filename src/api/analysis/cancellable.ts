@@ -10,8 +10,9 @@ import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 import type { WorkerMessage, WorkerRequest } from './analysisWorker.js';
 import { runAnalysis } from './runAnalysis.js';
+import type { AnyAnalysisReport, ReportDetail } from './report.js';
 
-type Report = ReturnType<typeof runAnalysis>;
+type Report = Omit<AnyAnalysisReport, 'provenance'>;
 
 const CANCELLED = 'cancelled by the user; nothing was stored';
 
@@ -31,12 +32,12 @@ function startWorker(request: WorkerRequest): Worker | null {
   return new Worker(boot, { eval: true, workerData: request });
 }
 
-export async function runAnalysisCancellable(network: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Promise<Report> {
+export async function runAnalysisCancellable(network: NetworkInput, spec: AnalysisSpec, ctx?: CallContext, detail: ReportDetail = 'summary'): Promise<Report> {
   throwIfCancelled(ctx);
   const signal = ctx?.signal;
-  const worker = signal ? startWorker({ network, spec }) : null;
+  const worker = signal ? startWorker({ network, spec, detail }) : null;
   // Nobody can cancel (no signal), or no worker file: run here.
-  if (signal === undefined || worker === null) return runAnalysis(network, spec, ctx);
+  if (signal === undefined || worker === null) return runAnalysis(network, spec, ctx, detail);
   return new Promise<Report>((resolve, reject) => {
     let settled = false;
     const settle = (f: () => void): void => {

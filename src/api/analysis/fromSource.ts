@@ -10,28 +10,31 @@ import { ManyfieldError } from '../result.js';
 import { networkFromTable } from './networkFromTable.js';
 import { runAnalysisCancellable } from './cancellable.js';
 import { poolSummaryRows } from './poolSummary.js';
-import type { AnalysisReport } from './report.js';
+import type { AnyAnalysisReport, ReportDetail } from './report.js';
 
 export interface AnalysisSource {
   readonly workspace?: string;
   readonly data?: string;
   readonly spec: AnalysisSpec;
   readonly save: boolean;
+  /** 'summary' (default): compact per-trial results; 'plots': every trial's full analysis. */
+  readonly detail?: ReportDetail;
 }
 
-export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallContext): Promise<AnalysisReport> {
+export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallContext): Promise<AnyAnalysisReport> {
+  const detail = source.detail ?? 'summary';
   const { spec } = source;
   if (source.data !== undefined) {
     if (spec.columns?.estimate !== undefined || spec.columns?.se !== undefined) {
       if (!spec.columns.estimate || !spec.columns.se) throw new ManyfieldError('invalid-argument', 'pooling a summary file needs both columns.estimate and columns.se');
       const rows = await readSummaryFile(source.data, spec.columns);
-      const pooled = withProvenance(poolSummaryRows(rows, spec), { source: source.data, fingerprint: fingerprint(rows) });
+      const pooled = withProvenance(poolSummaryRows(rows, spec, detail), { source: source.data, fingerprint: fingerprint(rows) });
       await ctx?.deliver?.(pooled);
       return pooled;
     }
     const { network, sha256, warnings } = specHasOneRowPerPlot(spec) ? await readNetworkForAnalysis(source.data, spec) : await readLongFile(source.data, spec);
     // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
-    const analysed = await runAnalysisCancellable(network, spec, ctx);
+    const analysed = await runAnalysisCancellable(network, spec, ctx, detail);
     const report = withProvenance({ ...analysed, warnings: [...warnings.map((w) => formatProblems([w])), ...analysed.warnings] }, { source: source.data, fingerprint: `sha256:${sha256}` });
     await ctx?.deliver?.(report);
     return report;
@@ -48,7 +51,7 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
       if (!trait) throw new ManyfieldError('invalid-argument', 'the spec must name a "trait" when analysing a workspace');
       const network = store.loadNetwork(ws, trait);
       const print = fingerprint(network);
-      const report = withProvenance(await runAnalysisCancellable(network, spec, ctx), { source: path, fingerprint: print });
+      const report = withProvenance(await runAnalysisCancellable(network, spec, ctx, detail), { source: path, fingerprint: print });
       // Stored last, after the caller has taken the result (written its output file): a failed
       // analysis — or one whose output could not be written — leaves no stored analysis behind.
       throwIfCancelled(ctx);
@@ -56,7 +59,7 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
       if (source.save) {
         // A computed result is worth waiting for: another writer gets a minute, not five seconds.
         ws.db.pragma('busy_timeout = 60000');
-        store.saveAnalysis(ws, spec, print, report);
+        store.saveAnalysis(ws, spec, print, report, { network });
       }
       return report;
     } finally {
@@ -79,6 +82,6 @@ function fingerprint(data: NetworkInput | unknown): string {
   return createHash('sha256').update(JSON.stringify(data)).digest('hex');
 }
 
-function withProvenance(report: Omit<AnalysisReport, 'provenance'>, p: { source: string; fingerprint: string }): AnalysisReport {
-  return { ...report, provenance: { source: p.source, dataFingerprint: p.fingerprint, appVersion: APP_VERSION, createdAt: new Date().toISOString() } };
+function withProvenance<R extends AnyAnalysisReport>(report: Omit<R, 'provenance'>, p: { source: string; fingerprint: string }): R {
+  return { ...report, provenance: { source: p.source, dataFingerprint: p.fingerprint, appVersion: APP_VERSION, createdAt: new Date().toISOString() } } as R;
 }

@@ -5,6 +5,16 @@ import type { PooledResult } from '../../engine/pooling/poolEstimates.js';
 import type { OneStageResult } from '../../engine/onestage/fitOneStage.js';
 import type { RateResponseResult } from '../../engine/rate/analyzeRateResponse.js';
 import type { StageAgreement } from './agreement.js';
+import type { TrialSummary } from '../../engine/trial/trialSummary.js';
+import type { CompactPooledResult } from '../../engine/pooling/compactPooled.js';
+
+/**
+ * How much of each trial a report carries: 'summary' (the default) gives per trial its contrasts,
+ * means, ANOVA rows, flags and diagnostic summaries, and the per-trial pooling tables column by
+ * column; 'plots' gives every trial's full analysis with the per-plot diagnostics, and the
+ * pooling tables row by row.
+ */
+export type ReportDetail = 'summary' | 'plots';
 
 export type TrialStageEntry = TrialAnalysis & {
   readonly trial: string;
@@ -41,7 +51,11 @@ export interface ReportSettings {
   readonly threshold: number;
 }
 
+export type CompactPooledEntry = CompactPooledResult<PooledEntry>;
+
+/** The report with every trial's full analysis (`detail: 'plots'`). */
 export interface AnalysisReport {
+  readonly detail?: 'plots';
   readonly provenance: Provenance;
   readonly trait: string;
   readonly unit: string | null;
@@ -56,3 +70,12 @@ export interface AnalysisReport {
   readonly warnings: readonly string[];
   readonly cautions: readonly string[];
 }
+
+/** The default, compact report (`detail: 'summary'`): the same numbers, per trial in summary. */
+export interface CompactAnalysisReport extends Omit<AnalysisReport, 'detail' | 'twoStage'> {
+  readonly detail: 'summary';
+  readonly twoStage: { readonly trials: readonly (TrialSummary | SummaryTrialEntry)[]; readonly pooled: readonly CompactPooledEntry[] };
+}
+
+export type ReportOf<D extends ReportDetail> = D extends 'plots' ? AnalysisReport : CompactAnalysisReport;
+export type AnyAnalysisReport = AnalysisReport | CompactAnalysisReport;

@@ -16,9 +16,20 @@ import { applyExclusions } from './exclusions.js';
 import { contrastUnits } from './contrastUnits.js';
 import { checkSpecAgainstData } from './checkSpec.js';
 import { networkLogOffset, transformNetwork } from './transformNetwork.js';
-import type { AnalysisReport, TrialStageEntry, PooledEntry } from './report.js';
+import type { TrialStageEntry, PooledEntry, ReportDetail, ReportOf } from './report.js';
+import { summariseTrial, type TrialSummary } from '../../engine/trial/trialSummary.js';
+import { compactPooled } from '../../engine/pooling/compactPooled.js';
 
-export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Omit<AnalysisReport, 'provenance'> {
+/** What pooling reads from a trial entry, full or summarised. */
+type PoolableTrial = TrialStageEntry | TrialSummary;
+
+/**
+ * `detail`: 'summary' (default) keeps each trial in summary as soon as it is analysed, so a large
+ * network never holds every plot's diagnostics; 'plots' keeps the full analyses.
+ */
+export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext): Omit<ReportOf<'summary'>, 'provenance'>;
+export function runAnalysis<D extends ReportDetail>(input: NetworkInput, spec: AnalysisSpec, ctx: CallContext | undefined, detail: D): Omit<ReportOf<D>, 'provenance'>;
+export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallContext, detail: ReportDetail = 'summary'): Omit<ReportOf<ReportDetail>, 'provenance'> {
   const warnings: string[] = [];
   checkSpecAgainstData(spec, input);
   const network = applyExclusions(input, spec.exclude, warnings);
@@ -36,11 +47,12 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
 
   // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
   // asks for the one-stage model alone and skips it.
-  const trials: TrialStageEntry[] = [];
+  const trials: PoolableTrial[] = [];
   if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
-    trials.push(analyseOneTrial(trial, network, contrasts, spec, logOffset));
+    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset);
+    trials.push(detail === 'plots' ? entry : summariseTrial(entry));
   });
 
   const pooled = spec.twoStage === null ? [] : poolContrasts(trials, contrasts, network, spec, warnings, ctx);
@@ -68,22 +80,24 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     });
   }
 
-  return {
+  const common = {
     trait: network.trait,
     unit: network.unit ?? null,
     settings: { transform: spec.transform, confidence: spec.confidence, threshold: spec.threshold },
     contrastUnits: contrastUnits(spec, network),
     trialsAnalysed: network.trials.length,
     oneStage,
-    twoStage: { trials, pooled },
     agreement,
     rateResponse,
     warnings,
     cautions: rateResponse ? RECOMMENDATION_CAUTIONS : [],
   };
+  if (detail === 'plots') return { detail: 'plots', ...common, twoStage: { trials: trials as TrialStageEntry[], pooled } };
+  return { detail: 'summary', ...common, twoStage: { trials: trials as TrialSummary[], pooled: pooled.map(compactPooled) } };
 }
 
-function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec, logOffset: number | undefined): TrialStageEntry {
+/** One trial's full analysis, as in the report with detail 'plots' (also recomputed on demand for a saved analysis). */
+export function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec, logOffset: number | undefined): TrialStageEntry {
   const result = analyzeTrial(trial, network.treatments, contrasts, {
     transform: spec.transform,
     logOffset,
@@ -94,7 +108,7 @@ function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: re
   return { ...result, trial: trial.trial, site: trial.site ?? null, year: trial.year ?? null, design: trial.design };
 }
 
-function poolContrasts(trials: readonly TrialStageEntry[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry[] {
+function poolContrasts(trials: readonly PoolableTrial[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry[] {
   const options = spec.twoStage ?? twoStageSchema.parse({});
   const covariatesByTrial = new Map(network.trials.map((t) => [t.trial, t.covariates ?? {}]));
   const yearByTrial = new Map(network.trials.map((t) => [t.trial, t.year ?? null]));

@@ -55,14 +55,14 @@ export function pooledOptimum(curves: readonly Curve[], r: number, lo: number, h
   const gridPoints = xs.length;
   const ns = new Float64Array(gridPoints);
   let best = 0;
-  for (let i = 0; i < gridPoints; i++) {
-    if (gains) {
-      let sum = 0;
-      for (const g of gains) sum += g[i];
-      ns[i] = sum / curves.length - r * xs[i];
-    } else ns[i] = net(xs[i]);
-    if (ns[i] > ns[best]) best = i;
-  }
+  if (gains) {
+    // Curve by curve over the grid (memory in order), each grid point's sum taking the curves
+    // in the same order as a point-by-point loop would: the same sums to the last bit.
+    const sums = new Float64Array(gridPoints);
+    for (const g of gains) for (let i = 0; i < gridPoints; i++) sums[i] += g[i];
+    for (let i = 0; i < gridPoints; i++) ns[i] = sums[i] / curves.length - r * xs[i];
+  } else for (let i = 0; i < gridPoints; i++) ns[i] = net(xs[i]);
+  for (let i = 0; i < gridPoints; i++) if (ns[i] > ns[best]) best = i;
   const last = gridPoints - 1;
   const flags: OptimumFlag[] = [];
   let x: number;

@@ -35,8 +35,20 @@ export function tCdf(t: number, df: number): number {
 /** Quantile of Student's t; infinite df gives the normal quantile. */
 export function tQuantile(p: number, df: number): number {
   if (!Number.isFinite(df)) return normalQuantileStd(p, 0, 1);
-  return tQuantileStd(p, df);
+  // Thousands of trials ask for the same few quantiles (one confidence level, a handful of df);
+  // each costs an incomplete-beta inversion, so the values already found are kept.
+  const key = `${p}|${df}`;
+  let q = quantileMemo.get(key);
+  if (q === undefined) {
+    q = tQuantileStd(p, df);
+    if (quantileMemo.size >= MEMO_LIMIT) quantileMemo.clear();
+    quantileMemo.set(key, q);
+  }
+  return q;
 }
+
+const MEMO_LIMIT = 4096;
+const quantileMemo = new Map<string, number>();
 
 /** Upper-tail probability P(F > f) for the F distribution. */
 export function fUpper(f: number, df1: number, df2: number): number {

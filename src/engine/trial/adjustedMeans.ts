@@ -3,7 +3,7 @@
 import { tQuantile } from '../stats/distributions.js';
 import type { DesignModel } from './modelMatrix.js';
 import { adjustedMeanVector } from './modelMatrix.js';
-import { estimate, isEstimable, unscaledCross, type LinearFit } from './linearFit.js';
+import { estimate, isEstimable, unscaledCrossKept, type LinearFit } from './linearFit.js';
 
 export interface MeanVectors {
   /** Protocol treatment codes in order. */
@@ -13,7 +13,22 @@ export interface MeanVectors {
   readonly estimable: readonly boolean[];
 }
 
+// The mean vectors depend on the layout alone (the model object and its null space are shared by
+// trials laid out alike): kept per model, the same objects every time.
+const meanMemo = new WeakMap<DesignModel, WeakMap<readonly Float64Array[], MeanVectors>>();
+
 export function meanVectors(model: DesignModel, fit: LinearFit, codes: readonly string[]): MeanVectors {
+  let byNull = meanMemo.get(model);
+  if (!byNull) meanMemo.set(model, (byNull = new WeakMap()));
+  let mv = byNull.get(fit.nullSpace);
+  if (!mv || mv.codes.length !== codes.length || mv.codes.some((c, i) => c !== codes[i])) {
+    mv = buildMeanVectors(model, fit, codes);
+    byNull.set(fit.nullSpace, mv);
+  }
+  return mv;
+}
+
+function buildMeanVectors(model: DesignModel, fit: LinearFit, codes: readonly string[]): MeanVectors {
   const levels = model.terms[model.treatmentTerm].levels;
   const vectors = codes.map((c) => {
     const level = levels.indexOf(c);
@@ -35,7 +50,7 @@ export function rawMeans(mv: MeanVectors, fit: LinearFit, confidence: number): R
   return mv.vectors.map((v, i) => {
     if (!v || !mv.estimable[i]) return { estimate: NaN, se: NaN, lower: NaN, upper: NaN };
     const est = estimate(fit, v);
-    const se = Math.sqrt(fit.sigma2 * unscaledCross(fit, v, v));
+    const se = Math.sqrt(fit.sigma2 * unscaledCrossKept(fit, v, v));
     return { estimate: est, se, lower: est - tq * se, upper: est + tq * se };
   });
 }
@@ -50,7 +65,7 @@ export function meansCovariance(mv: MeanVectors, fit: LinearFit): number[][] {
       const b = mv.vectors[j];
       if (!a || !b || !mv.estimable[i] || !mv.estimable[j]) continue;
       // Computed once per pair so the matrix is exactly symmetric.
-      out[i][j] = out[j][i] = fit.sigma2 * unscaledCross(fit, a, b);
+      out[i][j] = out[j][i] = fit.sigma2 * unscaledCrossKept(fit, a, b);
     }
   return out;
 }

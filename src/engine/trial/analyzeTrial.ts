@@ -7,7 +7,10 @@ import type { AdjustedMean, TrialAnalysis, TrialAnalysisOptions, TrialFlag, Plot
 import { splitPlots } from './usablePlots.js';
 import { makeTransform } from './transform.js';
 import { buildDesignModel } from './modelMatrix.js';
-import { fitLinear } from './linearFit.js';
+import { factorDesign, fitLinear, type DesignFactor } from './linearFit.js';
+import type { DesignModel } from './modelMatrix.js';
+import type { UsedPlot } from './usablePlots.js';
+import type { TrialDesign } from '../types.js';
 import { meanVectors, rawMeans, meansCovariance } from './adjustedMeans.js';
 import { estimateContrast } from './contrastEstimates.js';
 import { pairDifferences, pairwiseComparisons } from './pairwise.js';
@@ -30,6 +33,26 @@ function transformSuitability(options: TrialAnalysisOptions): TrialFlag[] {
   return [];
 }
 
+/**
+ * Trials laid out alike (same design, treatments, and plots' treatment, block, row and column in
+ * the same order) share the model matrix and its factorisation: computed once, the same numbers.
+ */
+const layouts = new Map<string, { model: DesignModel; factor: DesignFactor }>();
+const LAYOUT_LIMIT = 256;
+
+function designFor(design: TrialDesign, plots: readonly UsedPlot[], codes: readonly string[]): { model: DesignModel; factor: DesignFactor } {
+  let key = `${design}\u0002${codes.join('\u0001')}`;
+  for (const p of plots) key += `\u0002${p.treatment}\u0001${p.block}\u0001${p.row}\u0001${p.col}`;
+  let layout = layouts.get(key);
+  if (!layout) {
+    const model = buildDesignModel(design, plots, codes);
+    layout = { model, factor: factorDesign(model.x) };
+    if (layouts.size >= LAYOUT_LIMIT) layouts.clear();
+    layouts.set(key, layout);
+  }
+  return layout;
+}
+
 /** Studentised residuals beyond this (in absolute value) are flagged as possible outliers. */
 export const OUTLIER_THRESHOLD = 3.5;
 
@@ -47,8 +70,8 @@ export function analyzeTrial(
   const y = Float64Array.from(plots, (p) => transform.forward(p.value));
   const codes = treatments.map((t) => t.code);
 
-  const model = buildDesignModel(trial.design, plots, codes);
-  const fit = fitLinear(model.x, y);
+  const { model, factor } = designFor(trial.design, plots, codes);
+  const fit = fitLinear(model.x, y, factor);
   const mv = meanVectors(model, fit, codes);
   const raw = rawMeans(mv, fit, options.confidence);
   const cov = meansCovariance(mv, fit);

@@ -5,7 +5,7 @@ import type { ResolvedContrast } from '../contrasts/resolve.js';
 import { involvedTreatments } from '../contrasts/resolve.js';
 import type { TreatmentInfo } from '../types.js';
 import { tQuantile, tTwoSidedP } from '../stats/distributions.js';
-import { estimate, isEstimable, unscaledCross, type LinearFit } from './linearFit.js';
+import { estimate, isEstimableKept, unscaledCrossKept, type LinearFit } from './linearFit.js';
 import type { MeanVectors } from './adjustedMeans.js';
 import type { RatioRecord, TrialContrast, TransformKind } from './types.js';
 import { num } from '../jsonSafe.js';
@@ -21,6 +21,21 @@ export function contrastVector(c: ResolvedContrast, mv: MeanVectors, p: number):
   return l;
 }
 
+// A contrast's coefficient vector depends on the mean vectors (kept per layout) and the contrast.
+const vectorMemo = new WeakMap<MeanVectors, WeakMap<ResolvedContrast, { absent: string[]; l: Float64Array | null }>>();
+
+function keptVector(c: ResolvedContrast, mv: MeanVectors, p: number): { absent: string[]; l: Float64Array | null } {
+  let byContrast = vectorMemo.get(mv);
+  if (!byContrast) vectorMemo.set(mv, (byContrast = new WeakMap()));
+  let v = byContrast.get(c);
+  if (!v) {
+    const absent = involvedTreatments(c).filter((code) => !mv.codes.includes(code) || !mv.vectors[mv.codes.indexOf(code)]);
+    v = { absent, l: absent.length > 0 ? null : contrastVector(c, mv, p) };
+    byContrast.set(c, v);
+  }
+  return v;
+}
+
 export function estimateContrast(
   c: ResolvedContrast,
   mv: MeanVectors,
@@ -29,15 +44,16 @@ export function estimateContrast(
   transform: TransformKind,
   treatments: readonly TreatmentInfo[],
 ): TrialContrast {
-  const absent = involvedTreatments(c).filter((code) => !mv.codes.includes(code) || !mv.vectors[mv.codes.indexOf(code)]);
+  const kept = keptVector(c, mv, fit.coefficients.length);
+  const absent = kept.absent;
   if (absent.length > 0)
     return { name: c.name, kind: c.kind, estimable: false, reason: `treatment${absent.length > 1 ? 's' : ''} ${absent.join(', ')} ${absent.length > 1 ? 'have' : 'has'} no analysed plots in this trial` };
-  const l = contrastVector(c, mv, fit.coefficients.length) as Float64Array;
-  if (!isEstimable(fit, l))
+  const l = kept.l as Float64Array;
+  if (!isEstimableKept(fit, l))
     return { name: c.name, kind: c.kind, estimable: false, reason: 'not estimable from this trial: the layout leaves it confounded with aliased terms' };
   const df = fit.residualDf;
   const est = estimate(fit, l);
-  const se = Math.sqrt(fit.sigma2 * unscaledCross(fit, l, l));
+  const se = Math.sqrt(fit.sigma2 * unscaledCrossKept(fit, l, l));
   const tq = df > 0 ? tQuantile(1 - (1 - confidence) / 2, df) : NaN;
   const t = est / se;
   const lower = est - tq * se;

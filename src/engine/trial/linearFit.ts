@@ -25,8 +25,21 @@ export interface LinearFit {
 /** Relative tolerance of the estimability test l'N = 0. */
 const ESTIMABLE_TOLERANCE = 1e-7;
 
-export function fitLinear(x: Matrix, y: ArrayLike<number>): LinearFit {
+/** What depends on the design matrix alone: shared by every trial laid out alike. */
+export interface DesignFactor {
+  readonly qr: QrFactor;
+  readonly unscaled: Matrix;
+  readonly nullSpace: readonly Float64Array[];
+}
+
+export function factorDesign(x: Matrix): DesignFactor {
   const qr = qrFactor(x);
+  return { qr, unscaled: unscaledCovariance(qr), nullSpace: nullSpaceBasis(qr) };
+}
+
+/** `factor`: the factorisation of x when already known (a trial laid out like one fitted before). */
+export function fitLinear(x: Matrix, y: ArrayLike<number>, factor: DesignFactor = factorDesign(x)): LinearFit {
+  const qr = factor.qr;
   const coefficients = qrCoefficients(qr, y);
   const effects = qtMultiply(qr, y);
   const n = x.rows;
@@ -52,8 +65,8 @@ export function fitLinear(x: Matrix, y: ArrayLike<number>): LinearFit {
     rss,
     residualDf,
     sigma2: residualDf > 0 ? rss / residualDf : NaN,
-    unscaled: unscaledCovariance(qr),
-    nullSpace: nullSpaceBasis(qr),
+    unscaled: factor.unscaled,
+    nullSpace: factor.nullSpace,
   };
 }
 
@@ -101,6 +114,39 @@ export function estimate(fit: LinearFit, l: ArrayLike<number>): number {
   return s;
 }
 
+// l' (X'X)^- m depends on the design alone. Vectors kept per layout (adjusted means, their
+// differences, contrasts) are the same objects for every trial laid out alike, so their products
+// are remembered by (matrix, l, m): computed once, the same numbers.
+const crossMemo = new WeakMap<Matrix, WeakMap<object, WeakMap<object, number>>>();
+
+/** unscaledCross for vectors that stay unchanged (the per-layout ones): remembered. */
+export function unscaledCrossKept(fit: LinearFit, l: Float64Array, m: Float64Array): number {
+  let byL = crossMemo.get(fit.unscaled);
+  if (!byL) crossMemo.set(fit.unscaled, (byL = new WeakMap()));
+  let byM = byL.get(l);
+  if (!byM) byL.set(l, (byM = new WeakMap()));
+  let v = byM.get(m);
+  if (v === undefined) {
+    v = unscaledCross(fit, l, m);
+    byM.set(m, v);
+  }
+  return v;
+}
+
+const estimableMemo = new WeakMap<readonly Float64Array[], WeakMap<object, boolean>>();
+
+/** isEstimable for a vector that stays unchanged: remembered per null space. */
+export function isEstimableKept(fit: LinearFit, l: Float64Array): boolean {
+  let byL = estimableMemo.get(fit.nullSpace);
+  if (!byL) estimableMemo.set(fit.nullSpace, (byL = new WeakMap()));
+  let v = byL.get(l);
+  if (v === undefined) {
+    v = isEstimable(fit, l);
+    byL.set(l, v);
+  }
+  return v;
+}
+
 /** l' (X'X)^- m, unscaled by sigma². */
 export function unscaledCross(fit: LinearFit, l: ArrayLike<number>, m: ArrayLike<number>): number {
   const p = fit.unscaled.cols;
@@ -115,15 +161,27 @@ export function unscaledCross(fit: LinearFit, l: ArrayLike<number>, m: ArrayLike
   return s;
 }
 
-/** Diagonal of the hat matrix: squared row norms of the first `rank` columns of Q. */
+// Leverages depend on the design alone; trials laid out alike share the factorisation, and so these.
+const leverageMemo = new WeakMap<QrFactor, Float64Array>();
+
+/** Diagonal of the hat matrix: squared row norms of the first `rank` columns of Q. Read-only (shared). */
 export function leverages(fit: LinearFit): Float64Array {
-  const { n, rank } = fit.qr;
+  let h = leverageMemo.get(fit.qr);
+  if (!h) {
+    h = computeLeverages(fit.qr);
+    leverageMemo.set(fit.qr, h);
+  }
+  return h;
+}
+
+function computeLeverages(qr: QrFactor): Float64Array {
+  const { n, rank } = qr;
   const h = new Float64Array(n);
   const e = new Float64Array(n);
   for (let k = 0; k < rank; k++) {
     e.fill(0);
     e[k] = 1;
-    const q = qMultiply(fit.qr, e);
+    const q = qMultiply(qr, e);
     for (let i = 0; i < n; i++) h[i] += q[i] * q[i];
   }
   return h;

@@ -5,7 +5,7 @@
 // matching intervals, so the intervals are Bonferroni's (simultaneous, slightly conservative).
 import { tQuantile, tTwoSidedP } from '../stats/distributions.js';
 import type { LinearFit } from './linearFit.js';
-import { estimate, unscaledCross } from './linearFit.js';
+import { estimate, unscaledCrossKept } from './linearFit.js';
 import type { MeanVectors } from './adjustedMeans.js';
 import type { PairwiseComparison, PairwiseResult } from './types.js';
 import { ptukeyUpper, qtukey } from './studentizedRange.js';
@@ -20,18 +20,28 @@ interface RawPair {
   readonly se: number;
 }
 
+// The difference vectors depend on the mean vectors alone (kept per layout): kept with them.
+const pairMemo = new WeakMap<MeanVectors, { first: string; second: string; l: Float64Array }[]>();
+
+function pairVectors(mv: MeanVectors): { first: string; second: string; l: Float64Array }[] {
+  let pairs = pairMemo.get(mv);
+  if (!pairs) {
+    pairs = [];
+    const idx = mv.codes.map((_, i) => i).filter((i) => mv.estimable[i]);
+    for (let a = 0; a < idx.length; a++)
+      for (let b = a + 1; b < idx.length; b++) {
+        const va = mv.vectors[idx[a]] as Float64Array;
+        const vb = mv.vectors[idx[b]] as Float64Array;
+        pairs.push({ first: mv.codes[idx[a]], second: mv.codes[idx[b]], l: va.map((v, j) => v - vb[j]) });
+      }
+    pairMemo.set(mv, pairs);
+  }
+  return pairs;
+}
+
 /** Differences first minus second for every pair of estimable means, in protocol order. */
 export function pairDifferences(mv: MeanVectors, fit: LinearFit): RawPair[] {
-  const idx = mv.codes.map((_, i) => i).filter((i) => mv.estimable[i]);
-  const out: RawPair[] = [];
-  for (let a = 0; a < idx.length; a++)
-    for (let b = a + 1; b < idx.length; b++) {
-      const va = mv.vectors[idx[a]] as Float64Array;
-      const vb = mv.vectors[idx[b]] as Float64Array;
-      const l = va.map((v, j) => v - vb[j]);
-      out.push({ first: mv.codes[idx[a]], second: mv.codes[idx[b]], difference: estimate(fit, l), se: Math.sqrt(fit.sigma2 * unscaledCross(fit, l, l)) });
-    }
-  return out;
+  return pairVectors(mv).map(({ first, second, l }) => ({ first, second, difference: estimate(fit, l), se: Math.sqrt(fit.sigma2 * unscaledCrossKept(fit, l, l)) }));
 }
 
 export function pairwiseComparisons(method: 'tukey' | 'holm', pairs: readonly RawPair[], means: number, df: number, confidence: number, logScale: boolean): PairwiseResult {

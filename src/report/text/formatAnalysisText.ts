@@ -2,7 +2,7 @@
 // contrast, the treatment means, the pooled effects and their spread, the one-stage model,
 // moderators, each trial, pairwise comparisons, the rate recommendation, then trial checks,
 // warnings and cautions (each once). It restates the JSON's numbers and computes nothing new.
-import type { AnalysisReport } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import { headlineLines } from './headline.js';
 import { meansLines } from './meansTable.js';
 import { moderatorLines } from './moderatorsText.js';
@@ -15,7 +15,7 @@ import { rateTrialLines } from './rateTrialsText.js';
 import { trialEffectsLines } from './trialEffectsTable.js';
 import { section } from './table.js';
 
-export function formatAnalysisText(r: AnalysisReport): string {
+export function formatAnalysisText(r: AnyAnalysisReport): string {
   const opening = `${r.trait}${r.unit ? ` (${r.unit})` : ''}: ${r.trialsAnalysed} trials analysed. Source ${r.provenance.source}, data ${r.provenance.dataFingerprint.slice(0, 12)}.`;
   const rate = r.rateResponse;
   const parts = [

@@ -1,11 +1,11 @@
 // The lines a committee reads first: per contrast, what it measures and how large it is, in
 // words and numbers with units — across the trials, at a new site, how much it varies
 // between trials, and whether the one-stage model says the same.
-import type { AnalysisReport, PooledEntry } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import type { ContrastReport } from '../../engine/onestage/types.js';
 import { decimalsFromSe, effectCell, fixed, levelText, percent, pPhrase, rangeText, sig } from './numbers.js';
 
-export function headlineLines(r: AnalysisReport): string[] {
+export function headlineLines(r: AnyAnalysisReport): string[] {
   const names = contrastNames(r);
   const level = levelText(r.settings.confidence);
   return names.flatMap((name) => {
@@ -19,13 +19,16 @@ export function headlineLines(r: AnalysisReport): string[] {
   });
 }
 
-function contrastNames(r: AnalysisReport): string[] {
+function contrastNames(r: AnyAnalysisReport): string[] {
   const names = r.twoStage.pooled.map((p) => p.name);
   for (const c of r.oneStage?.contrasts ?? []) if (!names.includes(c.name)) names.push(c.name);
   return names;
 }
 
-function pooledSentences(p: PooledEntry, unit: string | null, level: string, threshold: number): string[] {
+/** Only the pooled fields every report shape shares (the compact one keeps weights column by column). */
+type PooledHeadline = AnyAnalysisReport['twoStage']['pooled'][number];
+
+function pooledSentences(p: PooledHeadline, unit: string | null, level: string, threshold: number): string[] {
   const d = decimalsFromSe(p.se);
   const out = [`  Across ${p.k} trial${p.k === 1 ? '' : 's'}: ${effectCell(p.estimate, p.lower, p.upper, unit, p.se)} (${level} interval), ${pPhrase(p.p)}.`];
   if (p.predictionLower !== null && p.predictionUpper !== null) {
@@ -38,7 +41,7 @@ function pooledSentences(p: PooledEntry, unit: string | null, level: string, thr
   return out;
 }
 
-function oneStageSentence(c: ContrastReport, unit: string | null, level: string, r: AnalysisReport, name: string, compared: boolean): string {
+function oneStageSentence(c: ContrastReport, unit: string | null, level: string, r: AnyAnalysisReport, name: string, compared: boolean): string {
   if (c.estimate === null) return `  One-stage mixed model: not estimable${c.note ? ` (${c.note})` : ''}.`;
   const agreement = r.agreement.find((a) => a.name === name);
   let tail = '';

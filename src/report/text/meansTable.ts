@@ -1,9 +1,9 @@
 // Treatment means of the one-stage mixed model with their intervals and the trait's unit.
-import type { AnalysisReport } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import { dfText, effectCell, levelText, seText } from './numbers.js';
 import { section, textTable } from './table.js';
 
-export function meansLines(r: AnalysisReport): string[] {
+export function meansLines(r: AnyAnalysisReport): string[] {
   const o = r.oneStage;
   if (!o || o.means.length === 0) return [];
   const unit = r.settings.transform === 'none' ? r.unit : `${r.settings.transform} scale`;

@@ -1,12 +1,12 @@
 // Meta-regression on trial covariates, per contrast: each moderator's slope with its interval,
 // the joint test of the moderators, the share of tau² they explain, the heterogeneity they
 // leave, and subgroup pooling for categorical moderators.
-import type { AnalysisReport } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import type { MetaRegression } from '../../engine/pooling/types.js';
 import { effectCell, levelText, percent, pPhrase, pText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 
-export function moderatorLines(r: AnalysisReport): string[] {
+export function moderatorLines(r: AnyAnalysisReport): string[] {
   const level = levelText(r.settings.confidence);
   return r.twoStage.pooled.flatMap((p) => {
     const m = p.metaRegression;

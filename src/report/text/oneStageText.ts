@@ -1,7 +1,7 @@
 // The one-stage mixed model: how it fitted, its effects with df, its variance components and
 // any covariate slopes. Words of the trade: restricted (REML) log-likelihood, "estimated at
 // zero (on the boundary)".
-import type { AnalysisReport } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import type { OneStageResult } from '../../engine/onestage/types.js';
 import { dfText, effectCell, fixed, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
@@ -13,7 +13,7 @@ const DF_WORDS: Record<OneStageResult['options']['df'], string> = {
   residual: 'residual df',
 };
 
-export function oneStageLines(r: AnalysisReport): string[] {
+export function oneStageLines(r: AnyAnalysisReport): string[] {
   const o = r.oneStage;
   if (!o) return [];
   const level = levelText(r.settings.confidence);

@@ -1,14 +1,14 @@
 // Pairwise comparisons asked for in the spec (within each trial, with its multiplicity
 // adjustment). One trial: each comparison with its interval. Several: per pair, in how many
 // trials each treatment came out ahead at the spec's level, and the median difference.
-import type { AnalysisReport, TrialStageEntry } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport, TrialStageEntry } from '../../api/analysis/report.js';
 import type { PairwiseResult } from '../../engine/trial/types.js';
 import { decimalsFromSe, effectCell, fixed, pText, seText } from './numbers.js';
 import { section, textTable } from './table.js';
 
 const METHOD_WORDS: Record<PairwiseResult['method'], string> = { tukey: 'Tukey–Kramer', holm: 'Holm' };
 
-export function pairwiseLines(r: AnalysisReport): string[] {
+export function pairwiseLines(r: AnyAnalysisReport): string[] {
   const withPairs = r.twoStage.trials.filter((t): t is TrialStageEntry & { pairwise: PairwiseResult } => 'pairwise' in t && t.pairwise !== null);
   if (withPairs.length === 0) return [];
   const method = METHOD_WORDS[withPairs[0].pairwise.method];

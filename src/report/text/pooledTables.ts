@@ -1,10 +1,10 @@
 // The two-stage pooled results as two tables: the effect with its interval, SE, df and p;
 // then the spread between trials and what it means for a new site.
-import type { AnalysisReport } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import { decimalsFromSe, dfText, effectCell, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 
-export function pooledLines(r: AnalysisReport): string[] {
+export function pooledLines(r: AnyAnalysisReport): string[] {
   const pooled = r.twoStage.pooled;
   if (pooled.length === 0) return [];
   const level = levelText(r.settings.confidence);
@@ -37,14 +37,14 @@ export function pooledLines(r: AnalysisReport): string[] {
 }
 
 /** Which method made the new-site interval, with the plug-in t interval beside a bootstrap one. */
-function newSiteMethodLine(p: AnalysisReport['twoStage']['pooled'][number]): string {
+function newSiteMethodLine(p: AnyAnalysisReport['twoStage']['pooled'][number]): string {
   const n = p.prediction;
   if (n.method === 'bootstrap-tau2')
     return `  ${p.name}: new-site interval by bootstrap over the confidence distribution of tau² (bootstrap-tau2, ${n.draws} draws, seed ${n.seed}); the plug-in t interval would be ${sig(n.plugInT.lower)} to ${sig(n.plugInT.upper)}`;
   return `  ${p.name}: new-site interval by plug-in t (plug-in-t: mean ± t(k−2)·sqrt(SE² + tau²), tau² taken as known)`;
 }
 
-function intervalWord(r: AnalysisReport): string {
+function intervalWord(r: AnyAnalysisReport): string {
   const m = r.twoStage.pooled[0]?.method.interval ?? '';
   if (/Hartung–Knapp/.test(m)) return 'Hartung–Knapp–Sidik–Jonkman';
   if (/Wald/.test(m)) return 'Wald';

@@ -1,7 +1,7 @@
 // Each trial's own effects (the trial stage), its CV and its flags. With many trials the table
 // shows the trials a committee must look at — the most extreme effects, the highest CVs and
 // every flagged trial — and counts the rest; every trial is in the JSON.
-import type { AnalysisReport, TrialStageEntry } from '../../api/analysis/report.js';
+import type { AnyAnalysisReport, TrialStageEntry } from '../../api/analysis/report.js';
 import type { TrialContrast } from '../../engine/trial/types.js';
 import { decimalsFromSe, fixed } from './numbers.js';
 import { section, textTable } from './table.js';
@@ -34,7 +34,7 @@ const FLAG_WORDS: Partial<Record<string, string>> = {
   'transform-unsuited': 'transform unsuited',
 };
 
-export function trialEffectsLines(r: AnalysisReport): string[] {
+export function trialEffectsLines(r: AnyAnalysisReport): string[] {
   const trials = r.twoStage.trials.filter((t): t is TrialStageEntry => 'anova' in t);
   if (trials.length === 0) return [];
   const names = r.twoStage.pooled.map((p) => p.name);

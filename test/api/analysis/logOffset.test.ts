@@ -31,7 +31,7 @@ describe('log offset shared across stages', () => {
 
   it('every trial uses half the smallest positive value of the whole network (0.3), also where it has no zeros', () => {
     const spec = analysisSpecSchema.parse({ transform: 'log', contrasts: [{ name: 't2_vs_ctl', coefficients: { CTL: -1, T2: 1 } }], oneStage: null });
-    const report = runAnalysis(network, spec);
+    const report = runAnalysis(network, spec, undefined, 'plots');
     const offsets = report.twoStage.trials.map((t) => ('transform' in t ? t.transform.logOffset : null));
     expect(offsets).toEqual([0.3, 0.3, 0.3]); // exact: 0.6 / 2
   });
@@ -39,7 +39,7 @@ describe('log offset shared across stages', () => {
   it('without zeros no offset is added anywhere', () => {
     const positive: NetworkInput = { ...network, trials: network.trials.slice(2) };
     const spec = analysisSpecSchema.parse({ transform: 'log', contrasts: [], oneStage: null });
-    const report = runAnalysis(positive, spec);
+    const report = runAnalysis(positive, spec, undefined, 'plots');
     expect(report.twoStage.trials.map((t) => ('transform' in t ? t.transform.logOffset : null))).toEqual([0]);
   });
 });

@@ -7,7 +7,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { generateDemoNetwork } from '../../../src/demo/generate.js';
 import { networkFromTable } from '../../../src/api/analysis/networkFromTable.js';
 import { runAnalysis } from '../../../src/api/analysis/runAnalysis.js';
-import type { AnalysisReport, TrialStageEntry } from '../../../src/api/analysis/report.js';
+import type { AnyAnalysisReport, TrialStageEntry } from '../../../src/api/analysis/report.js';
 import type { NetworkInput } from '../../../src/engine/types.js';
 import { analysisSpecSchema } from '../../../src/spec/analysisSpec.js';
 import { formatAnalysisText } from '../../../src/report/text/formatAnalysisText.js';
@@ -37,7 +37,7 @@ const spec = analysisSpecSchema.parse({
 });
 
 describe('the text summary carries what a committee reads first (issue 18, finding 6)', () => {
-  let report: AnalysisReport;
+  let report: AnyAnalysisReport;
   let text: string;
   beforeAll(() => {
     const network = untidyDemo();

@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { generateDemoNetwork } from '../../../src/demo/generate.js';
 import { networkFromTable } from '../../../src/api/analysis/networkFromTable.js';
 import { runAnalysis } from '../../../src/api/analysis/runAnalysis.js';
-import type { AnalysisReport, TrialStageEntry } from '../../../src/api/analysis/report.js';
+import type { AnyAnalysisReport, TrialStageEntry } from '../../../src/api/analysis/report.js';
 import { analysisSpecSchema } from '../../../src/spec/analysisSpec.js';
 import { EXTREMES_EACH_END, FULL_TABLE_MAX_TRIALS, trialEffectsLines } from '../../../src/report/text/trialEffectsTable.js';
 
@@ -14,7 +14,7 @@ describe('per-trial effects table', () => {
     const demo = networkFromTable(generateDemoNetwork().table, 'yield');
     const trials = Array.from({ length: 8 }, (_, copy) => demo.trials.map((t) => ({ ...t, trial: `${t.trial}-c${copy}` }))).flat();
     const spec = analysisSpecSchema.parse({ trait: 'yield', control: 'CTL', contrasts: [{ name: 'treated_vs_control', kind: 'treated-vs-control' }], oneStage: null });
-    const report = { ...runAnalysis({ ...demo, trials }, spec), provenance: { source: 't', dataFingerprint: '0', appVersion: 't', createdAt: '' } } as AnalysisReport;
+    const report = { ...runAnalysis({ ...demo, trials }, spec), provenance: { source: 't', dataFingerprint: '0', appVersion: 't', createdAt: '' } } as AnyAnalysisReport;
     const text = trialEffectsLines(report).join('\n');
     expect(trials.length).toBeGreaterThan(FULL_TABLE_MAX_TRIALS);
     const rows = text.split('\n').filter((l) => /-c\d /.test(l));

@@ -25,7 +25,7 @@ export function choleskyFactor(theta: ArrayLike<number>): Float64Array {
   return Float64Array.from([theta[0], 0, 0, theta[1], theta[2], 0, theta[3], theta[4], theta[5]]);
 }
 
-interface TrialPieces {
+export interface TrialPieces {
   /** Lower Cholesky factor of M_t, q x q row-major (upper part unused). */
   readonly chol: Float64Array;
   readonly cX: Float64Array; // q x 3, Lm⁻¹ Λ'Z'X
@@ -43,7 +43,7 @@ function forwardSolve(l: Float64Array, q: number, b: Float64Array, stride: numbe
   }
 }
 
-function trialPieces(t: MixedTrialData, theta: ArrayLike<number>): TrialPieces {
+export function trialPieces(t: MixedTrialData, theta: ArrayLike<number>): TrialPieces {
   const q = t.q;
   const l = choleskyFactor(theta);
   const diag = new Float64Array(q);
@@ -105,30 +105,105 @@ export interface RemlSolution {
   readonly unscaledCovariance: Matrix;
 }
 
+/**
+ * Trials with the same layout (Z'Z, Z'X, X'X and grouping columns equal) share everything in
+ * the criterion except their responses: the factor of M_t and Lm⁻¹ Λ'Z'X are computed once per
+ * layout and evaluation. The arithmetic per trial is unchanged (same operations, same order),
+ * so the criterion is the same to the last bit as computing every trial in full.
+ */
+interface LayoutGroups {
+  /** Layout index of each trial. */
+  readonly layoutOf: Int32Array;
+  /** One trial of each layout. */
+  readonly representatives: readonly MixedTrialData[];
+}
+
+const layoutCache = new WeakMap<MixedNetworkData, LayoutGroups>();
+
+function layoutGroups(d: MixedNetworkData): LayoutGroups {
+  let g = layoutCache.get(d);
+  if (g) return g;
+  const index = new Map<string, number>();
+  const representatives: MixedTrialData[] = [];
+  const layoutOf = new Int32Array(d.trials.length);
+  d.trials.forEach((t, i) => {
+    const key = `${t.q}|${t.indicatorFactor.join(',')}|${t.ztz.join(',')}|${t.ztx.join(',')}|${t.xtx.join(',')}`;
+    let j = index.get(key);
+    if (j === undefined) {
+      j = representatives.length;
+      index.set(key, j);
+      representatives.push(t);
+    }
+    layoutOf[i] = j;
+  });
+  g = { layoutOf, representatives };
+  layoutCache.set(d, g);
+  return g;
+}
+
+/** What one layout contributes at theta, whatever the responses. */
+interface LayoutPieces {
+  readonly pieces: TrialPieces;
+  /** 2 log of each diagonal entry of the factor of M. */
+  readonly logDiagonal: Float64Array;
+  /** X'X - (Lm⁻¹ Λ'Z'X)'(Lm⁻¹ Λ'Z'X), 3 x 3. */
+  readonly xhx: Float64Array;
+}
+
+function layoutPieces(t: MixedTrialData, theta: ArrayLike<number>): LayoutPieces {
+  const p = trialPieces(t, theta);
+  const q = t.q;
+  const logDiagonal = new Float64Array(q);
+  for (let i = 0; i < q; i++) logDiagonal[i] = 2 * Math.log(p.chol[i * q + i]);
+  const xhx = new Float64Array(9);
+  for (let a = 0; a < 3; a++)
+    for (let b = 0; b < 3; b++) {
+      let s = 0;
+      for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * p.cX[k * 3 + b];
+      xhx[a * 3 + b] = t.xtx[a * 3 + b] - s;
+    }
+  return { pieces: p, logDiagonal, xhx };
+}
+
+/** Lm⁻¹ Λ'Z'y of trial t into cy, with its layout's pieces. */
+function responsePiece(t: MixedTrialData, p: TrialPieces, cy: Float64Array): void {
+  const q = t.q;
+  const l = p.l;
+  for (let i = 0; i < 3; i++) {
+    let sy = 0;
+    for (let k = i; k < 3; k++) sy += l[k * 3 + i] * t.zty[k];
+    cy[i] = sy;
+  }
+  for (let i = 3; i < q; i++) cy[i] = p.diag[i] * t.zty[i];
+  forwardSolve(p.chol, q, cy, 1, 0);
+}
+
 /** The criterion and estimates at theta; deviance = Infinity where a factorisation fails. */
 export function remlSolution(d: MixedNetworkData, theta: ArrayLike<number>): RemlSolution {
   const xhx = new Float64Array(9);
   const xhy = new Float64Array(3);
   let yhy = 0;
   let logDetH = 0;
-  for (const t of d.trials) {
-    const p = trialPieces(t, theta);
+  const groups = layoutGroups(d);
+  const layouts = groups.representatives.map((t) => layoutPieces(t, theta));
+  let cy = new Float64Array(0);
+  d.trials.forEach((t, index) => {
+    const layout = layouts[groups.layoutOf[index]];
+    const p = layout.pieces;
     const q = t.q;
-    for (let i = 0; i < q; i++) logDetH += 2 * Math.log(p.chol[i * q + i]);
+    if (cy.length < q) cy = new Float64Array(q);
+    responsePiece(t, p, cy);
+    for (let i = 0; i < q; i++) logDetH += layout.logDiagonal[i];
     for (let a = 0; a < 3; a++) {
-      for (let b = 0; b < 3; b++) {
-        let s = 0;
-        for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * p.cX[k * 3 + b];
-        xhx[a * 3 + b] += t.xtx[a * 3 + b] - s;
-      }
+      for (let b = 0; b < 3; b++) xhx[a * 3 + b] += layout.xhx[a * 3 + b];
       let s = 0;
-      for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * p.cy[k];
+      for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * cy[k];
       xhy[a] += t.xty[a] - s;
     }
     let s = 0;
-    for (let k = 0; k < q; k++) s += p.cy[k] * p.cy[k];
+    for (let k = 0; k < q; k++) s += cy[k] * cy[k];
     yhy += t.yty - s;
-  }
+  });
   const lx = cholesky({ rows: 3, cols: 3, data: xhx });
   const beta = cholSolve(lx, xhy);
   const pwrss = yhy - (beta[0] * xhy[0] + beta[1] * xhy[1] + beta[2] * xhy[2]);
