@@ -31,6 +31,7 @@ export const MAPPING_KEYS: readonly MappingKeyDoc[] = [
   { key: 'sheet', meaning: 'XLSX: the sheet to read (default the first sheet)' },
   { key: 'decimalComma', meaning: 'true when numbers are written 12,4 (CSV then usually uses ";" between cells)' },
   { key: 'delimiter', meaning: 'CSV cell separator, one character (default: detected)' },
+  { key: 'encoding', meaning: 'CSV text encoding when not UTF-8: latin-1, windows-1252, utf-16, utf-16le, utf-16be (without it, invalid UTF-8 is refused with its row and byte offset)' },
 ];
 
 /** Cell text read as a missing value, besides an empty cell. */
