@@ -47,13 +47,21 @@ export function findColumn(header: readonly string[], name: string): number {
 /** Resolves every column the mapping names; adds a problem for each one missing or doubled. */
 export function resolveColumns(header: readonly string[], headerRow: number, mapping: ImportMapping, problems: ProblemList, sheets?: { read: string; all: readonly string[] }): PlotColumns | null {
   let ok = true;
-  let missing = 0;
+  const c = mapping.columns;
+  // A workbook whose first sheet holds notes or a cover page: say so first, before the list of
+  // columns it lacks, and name the sheets there are.
+  const named = [c.trial, c.site, c.year, c.block, c.treatment, c.response, c.row, c.col, c.design, c.trait, c.plot, ...Object.values(c.factors ?? {}), ...(c.covariates ?? [])];
+  const missing = named.filter((n) => n !== undefined && findColumn(header, n) < 0).length;
+  if (missing > 0 && sheets !== undefined && sheets.all.length > 1) {
+    const others = sheets.all.filter((s) => s !== sheets.read);
+    const fit = others.find((s) => /data|plot|yield|trial/i.test(s)) ?? others[0];
+    problems.add(headerRow, null, sheets.read, 'wrong-sheet', `${missing} mapped column${missing > 1 ? 's are' : ' is'} not on sheet "${sheets.read}"${mapping.sheet === undefined ? ' (the workbook\'s first sheet, read when the mapping names none)' : ''}; the workbook also has ${others.map((s) => `"${s}"`).join(', ')}: choose the sheet with "sheet": "${fit}" in the mapping`);
+  }
   const locate = (key: string, name: string | undefined): number => {
     if (name === undefined) return -1;
     const index = findColumn(header, name);
     if (index < 0) {
       ok = false;
-      missing++;
       problems.add(headerRow, name, null, 'missing-column', `column "${name}" (mapping key ${key}) is not in the header; the header has: ${listHeader(header)}`);
       return -1;
     }
@@ -63,7 +71,6 @@ export function resolveColumns(header: readonly string[], headerRow: number, map
     }
     return index;
   };
-  const c = mapping.columns;
   const resolved: PlotColumns = {
     trial: locate('columns.trial', c.trial),
     site: locate('columns.site', c.site),
@@ -80,11 +87,5 @@ export function resolveColumns(header: readonly string[], headerRow: number, map
     covariates: (c.covariates ?? []).map((column, i) => ({ name: column, column, index: locate(`columns.covariates.${i}`, column) })),
     header,
   };
-  if (missing > 0 && sheets !== undefined && sheets.all.length > 1) {
-    // A workbook whose first sheet holds notes or a cover page: say which sheets there are.
-    const others = sheets.all.filter((s) => s !== sheets.read);
-    const fit = others.find((s) => /data|plot|yield|trial/i.test(s)) ?? others[0];
-    problems.add(headerRow, null, sheets.read, 'wrong-sheet', `${missing} mapped column${missing > 1 ? 's are' : ' is'} not on sheet "${sheets.read}"${mapping.sheet === undefined ? ' (the workbook\'s first sheet, read when the mapping names none)' : ''}; the workbook also has ${others.map((s) => `"${s}"`).join(', ')}: choose the sheet with "sheet": "${fit}" in the mapping`);
-  }
   return ok ? resolved : null;
 }

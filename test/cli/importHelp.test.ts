@@ -77,6 +77,8 @@ describe('import: the mapping documented, hints where they help, a plausibility 
     writeFileSync(file, buildXlsx([{ name: 'Notes', rows: [['Nitrogen network 2024'], ['collected by the field team']] }, { name: 'Data', rows }]));
     const r = manyfield(['import', '--workspace', join(dir, 'book.manyfield'), '--file', file, '--map', map]);
     expect(r.status).toBe(1);
+    // The hint comes first, before the columns the notes sheet lacks.
+    expect(r.stderr.split('\n')[0]).toMatch(/\[wrong-sheet\]$/);
     expect(r.stderr).toMatch(/not on sheet "Notes" \(the workbook's first sheet, read when the mapping names none\); the workbook also has "Data": choose the sheet with "sheet": "Data" in the mapping \[wrong-sheet\]/);
     const withSheet = writeJson(dir, 'sheet-map.json', nitrogenMapping({ sheet: 'Data' }));
     const ok = manyfield(['import', '--workspace', join(dir, 'book.manyfield'), '--file', file, '--map', withSheet]);

@@ -39,10 +39,22 @@ function toColumns(network: NetworkInput): NetworkInput {
   return { ...network, trials };
 }
 
-/** The simulated network with plot ids (text on odd plots, numbers on even), as a file reader gives them. */
+/**
+ * The simulated network with plot ids (text on odd plots, numbers on even), as a file reader gives
+ * them: a text id is the plot's label, a number its file row (every plot's row is its place + 2).
+ */
 function withIds(network: NetworkInput): NetworkInput {
   let k = 0;
-  return { ...network, trials: network.trials.map((t) => ({ ...t, plots: t.plots.map((p) => ({ ...p, plotId: k++ % 2 ? `p${k}` : k + 1 })) })) };
+  return {
+    ...network,
+    trials: network.trials.map((t) => ({
+      ...t,
+      plots: t.plots.map((p) => {
+        const i = k++;
+        return i % 2 ? { ...p, plotId: `p${i + 1}`, label: `p${i + 1}`, sourceRow: i + 2 } : { ...p, plotId: i + 2, label: null, sourceRow: i + 2 };
+      }),
+    })),
+  };
 }
 
 describe('plot columns', () => {
@@ -59,8 +71,8 @@ describe('plot columns', () => {
       sourceRow: Int32Array.of(2, 3, 4),
     };
     expect(plotsFromColumns({ table, start: 1, count: 2 })).toEqual<PlotObservation[]>([
-      { plotId: 3, treatment: 'N1', block: null, row: null, col: null, value: null },
-      { plotId: 'p3', treatment: 'N1', block: 'I', row: 2, col: null, value: 0 },
+      { plotId: 3, label: null, sourceRow: 3, treatment: 'N1', block: null, row: null, col: null, value: null },
+      { plotId: 'p3', label: 'p3', sourceRow: 4, treatment: 'N1', block: 'I', row: 2, col: null, value: 0 },
     ]);
   });
 
