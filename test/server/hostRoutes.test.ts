@@ -58,6 +58,11 @@ describe('host endpoints', () => {
     expect(b.body).toEqual({ ok: true, data: { path } });
     const trials = await callApi(base, server.token, 'trials.list', { workspace: path });
     expect((trials.result as { data: unknown[] }).data).toHaveLength(42);
+    // The overview runs the trial stage of every trial: in the worker, with progress lines.
+    const overview = await callApi(base, server.token, 'trials.overview', { workspace: path, trait: 'yield' });
+    expect((overview.result as { data: unknown[] }).data).toHaveLength(42);
+    expect(overview.progress.length).toBeGreaterThan(0);
+    expect(overview.progress.every((p) => p.stage === 'trial-stage')).toBe(true);
     const recent = (await host(HOST_PATHS.recent)).body.data as { path: string }[];
     expect(recent[0].path).toBe(path);
     expect(recent.map((r) => r.path)).toContain(join(dir, 'launch.manyfield'));
