@@ -14,6 +14,7 @@ const time = async (f) => {
 const list = await time(() => api['analysis.list']({ workspace }));
 const first = await time(() => api['analysis.open']({ workspace, analysis: id }));
 const open = await time(() => api['analysis.open']({ workspace, analysis: id }));
+const tables = await time(() => api['analysis.open']({ workspace, analysis: id, tables: true }));
 const page = await time(() => api['analysis.open']({ workspace, analysis: id, trials: { offset: 0, limit: 100 } }));
 const detail = await time(() => api['analysis.trial']({ workspace, analysis: id, trial }));
 const detail2 = await time(() => api['analysis.trial']({ workspace, analysis: id, trial }));
@@ -23,6 +24,7 @@ process.stderr.write(
     openFirstMs: first.ms,
     openMs: open.ms,
     pageMs: page.ms,
+    tablesMs: tables.ms,
     detailMs: detail.ms,
     detailAgainMs: detail2.ms,
     detailPlots: detail.data.detail.diagnostics.plots.length,

@@ -68,6 +68,8 @@ export const handlerArgs = {
       analysis: z.number().int().positive(),
       /** A page of trial summaries to include, in report order. */
       trials: z.object({ offset: z.number().int().nonnegative().default(0), limit: z.number().int().positive().max(10000).default(100) }).strict().optional(),
+      /** Also the per-trial tables: pool weights, leave-one-out, influence, cumulative; one-stage per-trial results. */
+      tables: z.boolean().default(false),
     })
     .strict(),
   'analysis.trial': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), trial: z.string().min(1) }).strict(),
@@ -127,7 +129,7 @@ const implementations: Implementations = {
   'data.preview': async (a) => (await import('./intake/preview.js')).previewFile(a.file, basename(a.file), a.sheet),
   'data.validate': async (a, ctx) => (await import('./intake/validate.js')).validateFile(a.workspace, a.file, basename(a.file), a.mapping, ctx),
   'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
-  'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials),
+  'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials, a.tables),
   'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),
 };
 

@@ -4,7 +4,7 @@ import { ManyfieldError } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
 import type { Workspace } from './workspace.js';
 import type { NetworkInput } from '../engine/types.js';
-import { compactPooled, isCompactPooled } from '../engine/pooling/compactPooled.js';
+import { compactPooled, isCompactPooled, type CompactPooledResult } from '../engine/pooling/compactPooled.js';
 import type { PooledResult } from '../engine/pooling/types.js';
 import { countAnalysisTrials, hasTrialRows, insertAnalysisTrials, listAnalysisTrials, type StoredTrialEntry } from './analysisTrials.js';
 
@@ -18,10 +18,33 @@ export interface SaveAnalysisOptions {
   readonly network?: NetworkInput;
 }
 
-/** The 'twoStage' result row of an analysis saved with per-trial rows: the pools, compact, and a count. */
+/**
+ * The 'twoStage' result row of an analysis saved with per-trial rows: each pool's headline
+ * numbers and the trial count. The pools' per-trial tables (weights, leave-one-out, influence,
+ * cumulative; column by column) are the row POOLED_TABLES, and the one-stage model's per-trial
+ * results the row ONE_STAGE_TRIALS, so a summary opens without reading them.
+ */
 interface StoredTwoStage {
-  readonly pooled: readonly unknown[];
+  readonly pooled: readonly object[];
   readonly trialCount: number;
+}
+
+const POOLED_TABLES = 'twoStage.pooledTables';
+const ONE_STAGE_TRIALS = 'oneStage.trials';
+
+/** Put the split rows back into 'twoStage' and 'oneStage' (in place). */
+function mergeSplitRows(results: Record<string, unknown>): void {
+  const tables = results[POOLED_TABLES] as { weights: unknown; sensitivity: unknown }[] | undefined;
+  if (tables !== undefined) {
+    const twoStage = results.twoStage as StoredTwoStage;
+    results.twoStage = { ...twoStage, pooled: twoStage.pooled.map((p, i) => ({ ...p, ...tables[i] })) };
+    delete results[POOLED_TABLES];
+  }
+  const trials = results[ONE_STAGE_TRIALS];
+  if (trials !== undefined) {
+    results.oneStage = { ...(results.oneStage as object), trials };
+    delete results[ONE_STAGE_TRIALS];
+  }
 }
 
 /**
@@ -45,8 +68,16 @@ export function saveAnalysis(ws: Workspace, spec: unknown, fingerprint: string, 
       if (payload === undefined || kind === 'detail') continue;
       if (kind === 'twoStage' && isTwoStageWithTrials(payload)) {
         insertAnalysisTrials(ws, id, payload.trials, options.network);
-        const stored: StoredTwoStage = { pooled: payload.pooled.map((p) => (isCompactPooled(p as PooledResult) ? p : compactPooled(p as PooledResult))), trialCount: payload.trials.length };
+        const pooled = payload.pooled.map((p) => (isCompactPooled(p as PooledResult) ? (p as CompactPooledResult) : compactPooled(p as PooledResult)));
+        const stored: StoredTwoStage = { pooled: pooled.map(({ weights: _w, sensitivity: _s, ...headline }) => headline), trialCount: payload.trials.length };
         insert.run(id, kind, JSON.stringify(stored));
+        insert.run(id, POOLED_TABLES, JSON.stringify(pooled.map((p) => ({ weights: p.weights, sensitivity: p.sensitivity }))));
+        continue;
+      }
+      if (kind === 'oneStage' && payload !== null && typeof payload === 'object' && Array.isArray((payload as { trials?: unknown }).trials)) {
+        const { trials, ...headline } = payload as { trials: unknown[] };
+        insert.run(id, kind, JSON.stringify(headline));
+        insert.run(id, ONE_STAGE_TRIALS, JSON.stringify(trials));
         continue;
       }
       insert.run(id, kind, JSON.stringify(payload));
@@ -75,6 +106,7 @@ export function loadAnalysis(ws: Workspace, id: number): StoredAnalysis {
   for (const r of ws.db.prepare('SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ? ORDER BY id').all(id) as { kind: string; payload_json: string }[]) {
     results[r.kind] = JSON.parse(r.payload_json);
   }
+  mergeSplitRows(results);
   // Saved with per-trial rows: put the trials back where the report had them.
   if (hasTrialRows(ws, id) && results.twoStage && typeof results.twoStage === 'object') {
     const { trialCount: _count, ...twoStage } = results.twoStage as StoredTwoStage;
@@ -129,20 +161,31 @@ export function listAnalyses(ws: Workspace): AnalysisListing[] {
 }
 
 /**
- * A saved analysis without its per-trial results: spec, provenance, pools, one-stage and rate
- * results, with `twoStage.trialCount` in place of the trials. An analysis saved before per-trial
- * rows existed is read as it is, its trials counted and left out.
+ * A saved analysis without its per-trial results: spec, provenance, each pool's headline numbers,
+ * the one-stage and rate results, with `twoStage.trialCount` in place of the trials. `tables`:
+ * also the per-trial tables (pool weights, leave-one-out, influence, cumulative, column by column;
+ * the one-stage model's per-trial results). An analysis saved before per-trial rows existed is
+ * read as it is, its trials counted and left out.
  */
-export function loadAnalysisSummary(ws: Workspace, id: number): StoredAnalysis {
+export function loadAnalysisSummary(ws: Workspace, id: number, options: { tables?: boolean } = {}): StoredAnalysis {
   const head = loadAnalysisHead(ws, id);
   const results: Record<string, unknown> = {};
-  for (const r of ws.db.prepare('SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ? ORDER BY id').raw().all(id) as [string, string][]) {
-    results[r[0]] = JSON.parse(r[1]);
-  }
+  const rows = ws.db
+    .prepare(`SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ?${options.tables ? '' : ' AND kind NOT IN (?, ?)'} ORDER BY id`)
+    .raw()
+    .all(...(options.tables ? [id] : [id, POOLED_TABLES, ONE_STAGE_TRIALS])) as [string, string][];
+  for (const r of rows) results[r[0]] = JSON.parse(r[1]);
+  mergeSplitRows(results);
   const twoStage = results.twoStage as { trials?: unknown[]; pooled?: unknown[]; trialCount?: number } | undefined;
   if (twoStage && Array.isArray(twoStage.trials)) {
+    // saved before per-trial rows: the whole report is in this row
     const { trials, pooled } = twoStage;
-    results.twoStage = { pooled: (pooled ?? []).map((p) => (isCompactPooled(p as PooledResult) ? p : compactPooled(p as PooledResult))), trialCount: trials.length };
+    const compact = (pooled ?? []).map((p) => (isCompactPooled(p as PooledResult) ? (p as CompactPooledResult) : compactPooled(p as PooledResult)));
+    results.twoStage = { pooled: options.tables ? compact : compact.map(({ weights: _w, sensitivity: _s, ...headline }) => headline), trialCount: trials.length };
+    if (!options.tables && results.oneStage && typeof results.oneStage === 'object') {
+      const { trials: _t, ...oneStage } = results.oneStage as { trials?: unknown };
+      results.oneStage = oneStage;
+    }
   } else if (twoStage && twoStage.trialCount === undefined) {
     results.twoStage = { ...twoStage, trialCount: countAnalysisTrials(ws, id) };
   }

@@ -37,14 +37,16 @@ export function findTrait(ws: Workspace, name: string): TraitRow {
 
 /** Trials holding at least one observation row of the trait, in site, year, label order. */
 export function trialsWithTrait(ws: Workspace, traitId: number, only?: readonly number[]): TrialRow[] {
+  // A few named trials (one trial's detail) are looked up by id, not by scanning every trial.
+  const named = only !== undefined && only.length <= 100;
   const rows = ws.db
     .prepare(
       `SELECT t.id, t.label, s.code AS site, t.site_id, t.year, t.design, t.protocol_id
        FROM trial t JOIN site s ON s.id = t.site_id
-       WHERE EXISTS (SELECT 1 FROM plot p JOIN observation o ON o.plot_id = p.id AND o.trait_id = ? WHERE p.trial_id = t.id)
+       WHERE ${named ? `t.id IN (${only.map(() => '?').join(', ') || 'NULL'}) AND ` : ''}EXISTS (SELECT 1 FROM plot p JOIN observation o ON o.plot_id = p.id AND o.trait_id = ? WHERE p.trial_id = t.id)
        ORDER BY s.code, t.year, t.label`,
     )
-    .all(traitId) as TrialRow[];
+    .all(...(named ? only : []), traitId) as TrialRow[];
   if (only === undefined) return rows;
   const byId = new Map(rows.map((r) => [r.id, r]));
   return only.map((id) => {
@@ -90,7 +92,9 @@ export function loadProtocol(ws: Workspace, protocolId: number): { factors: Fact
 
 type Covariates = Record<string, number | string | null>;
 
-function covariateMaps(ws: Workspace): { bySite: Map<number, Covariates>; byTrial: Map<number, Covariates> } {
+/** `only`: the trials (and their sites) whose covariates are needed; default all. */
+function covariateMaps(ws: Workspace, only?: readonly TrialRow[]): { bySite: Map<number, Covariates>; byTrial: Map<number, Covariates> } {
+  const within = (column: string, ids: readonly number[] | undefined): string => (ids === undefined ? '' : ` WHERE ${column} IN (${ids.map(Number).join(', ') || 'NULL'})`);
   const collect = (sql: string): Map<number, Covariates> => {
     const out = new Map<number, Covariates>();
     for (const r of ws.db.prepare(sql).all() as (StoredLevel & { owner: number; name: string })[]) {
@@ -101,8 +105,8 @@ function covariateMaps(ws: Workspace): { bySite: Map<number, Covariates>; byTria
     return out;
   };
   return {
-    bySite: collect('SELECT site_id AS owner, name, value_num, value_text FROM site_covariate'),
-    byTrial: collect('SELECT trial_id AS owner, name, value_num, value_text FROM trial_covariate'),
+    bySite: collect(`SELECT site_id AS owner, name, value_num, value_text FROM site_covariate${within('site_id', only?.map((t) => t.site_id))}`),
+    byTrial: collect(`SELECT trial_id AS owner, name, value_num, value_text FROM trial_covariate${within('trial_id', only?.map((t) => t.id))}`),
   };
 }
 
@@ -116,7 +120,7 @@ export function loadNetwork(ws: Workspace, trait: string, options: LoadNetworkOp
     });
   }
   const protocol = protocols.size === 1 ? loadProtocol(ws, [...protocols][0]) : { factors: [], treatments: [], control: null };
-  const { bySite, byTrial } = covariateMaps(ws);
+  const { bySite, byTrial } = covariateMaps(ws, options.trials !== undefined && options.trials.length <= 100 ? trialRows : undefined);
   // Raw rows (arrays) halve the objects built for a large network.
   const plotsOf = ws.db
     .prepare(

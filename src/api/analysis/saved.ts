@@ -40,9 +40,9 @@ export async function listSavedAnalyses(workspace: string): Promise<AnalysisList
   return withWorkspace(workspace, (ws, store) => store.listAnalyses(ws));
 }
 
-export async function openSavedAnalysis(workspace: string, analysis: number, page?: { offset: number; limit: number }): Promise<SavedAnalysisSummary> {
+export async function openSavedAnalysis(workspace: string, analysis: number, page?: { offset: number; limit: number }, tables = false): Promise<SavedAnalysisSummary> {
   return withWorkspace(workspace, (ws, store) => {
-    const summary = store.loadAnalysisSummary(ws, analysis);
+    const summary = store.loadAnalysisSummary(ws, analysis, { tables });
     if (!page) return { ...summary, trials: [] };
     if (store.hasTrialRows(ws, analysis)) return { ...summary, trials: store.listAnalysisTrials(ws, analysis, page.offset, page.limit) };
     // saved before per-trial rows: the trials are inside the stored report

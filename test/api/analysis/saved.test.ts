@@ -47,14 +47,17 @@ describe('saved analyses through the api', () => {
     expect(list[0]).toMatchObject({ id: savedId, trait: 'yield', status: 'complete', trials: compact.trialsAnalysed });
   });
 
-  it('opens the summary without the trials: pools as reported, a count in place of the trials', async () => {
+  it("opens the summary without the trials: each pool's headline as reported, a count in place of the trials; the per-trial tables on request", async () => {
     const open = unwrap(await api['analysis.open']({ workspace, analysis: savedId }));
     const twoStage = open.results.twoStage as { pooled: unknown[]; trialCount: number; trials?: unknown };
     expect(twoStage.trials).toBeUndefined();
     expect(twoStage.trialCount).toBe(compact.twoStage.trials.length);
-    expect(twoStage.pooled).toEqual(JSON.parse(JSON.stringify(compact.twoStage.pooled)));
+    const headlines = compact.twoStage.pooled.map(({ weights: _w, sensitivity: _s, ...headline }) => headline);
+    expect(twoStage.pooled).toEqual(JSON.parse(JSON.stringify(headlines)));
     expect(open.trials).toEqual([]);
     expect(open.results.provenance).toEqual(compact.provenance);
+    const withTables = unwrap(await api['analysis.open']({ workspace, analysis: savedId, tables: true }));
+    expect((withTables.results.twoStage as { pooled: unknown[] }).pooled).toEqual(JSON.parse(JSON.stringify(compact.twoStage.pooled)));
   });
 
   it('gives a page of trials in report order, each the summary the report carried', async () => {
@@ -94,7 +97,7 @@ describe('saved analyses through the api', () => {
     } finally {
       ws.close();
     }
-    const open = unwrap(await api['analysis.open']({ workspace, analysis: oldId, trials: { offset: 0, limit: 3 } }));
+    const open = unwrap(await api['analysis.open']({ workspace, analysis: oldId, trials: { offset: 0, limit: 3 }, tables: true }));
     expect((open.results.twoStage as { trialCount: number }).trialCount).toBe(full.twoStage.trials.length);
     expect((open.results.twoStage as { pooled: unknown[] }).pooled).toEqual(JSON.parse(JSON.stringify(compact.twoStage.pooled)));
     expect(open.trials.map((t) => t.summary)).toEqual(JSON.parse(JSON.stringify(compact.twoStage.trials.slice(0, 3))));
