@@ -6,7 +6,7 @@ import { existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { callHandler } from '../src/api/handlers.js';
 import { readRecent, rememberRecent } from '../src/api/host/recentWorkspaces.js';
-import { ManyfieldError } from '../src/api/result.js';
+import { ManyfieldError, type Result } from '../src/api/result.js';
 import { runInWorker } from '../src/api/worker/runInWorker.js';
 import { appFile } from './appProtocol.js';
 import { MENU_CHANNEL, type MenuCommand } from './channels.js';
@@ -50,11 +50,15 @@ function remember(path: string): void {
 const runLong = (name: string, args: unknown, ctx: { onProgress: (e: import('../src/api/context.js').ProgressEvent) => void; signal: AbortSignal }) =>
   runInWorker(name, args, { ...ctx, workerFile });
 
+let demoBuild: Promise<Result<unknown>> | null = null;
+
 async function demoWorkspace(): Promise<string> {
   const path = join(app.getPath('userData'), 'demo.manyfield');
   if (!existsSync(path)) {
-    const built = await runLong('demo.build', { workspace: path }, { onProgress: () => {}, signal: new AbortController().signal });
-    if (!built.ok) throw new ManyfieldError(built.error.code, built.error.message);
+    // One build at a time: a second request (menu and start screen together) waits for the first.
+    demoBuild ??= runLong('demo.build', { workspace: path }, { onProgress: () => {}, signal: new AbortController().signal }).finally(() => (demoBuild = null));
+    const built = await demoBuild;
+    if (!built.ok && !existsSync(path)) throw new ManyfieldError(built.error.code, built.error.message);
   }
   remember(path);
   return policy.allowWorkspace(path);

@@ -21,5 +21,9 @@ export const HANDLER_NAMES = [
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];
 
-/** Handlers that can run long: the shells run them off the window's or server's thread, with progress and cancel. */
-export const LONG_HANDLERS: ReadonlySet<HandlerNameList> = new Set<HandlerNameList>(['demo.build', 'data.import', 'data.validate', 'analysis.run']);
+/**
+ * Handlers that can run long: the shells run them off the window's or server's thread, with
+ * progress and cancel. trials.overview runs the trial stage of every trial (about 2 s for
+ * 1,000 trials), so it is one of them.
+ */
+export const LONG_HANDLERS: ReadonlySet<HandlerNameList> = new Set<HandlerNameList>(['demo.build', 'data.import', 'data.validate', 'analysis.run', 'trials.overview']);

@@ -52,11 +52,19 @@ function workspacesIn(folder: string): WorkspaceFile[] {
     .map((f) => ({ path: join(folder, f), name: basename(f, extname(f)) }));
 }
 
+/** Demo builds in progress by path: a second request waits for the first instead of building beside it. */
+const demoBuilds = new Map<string, Promise<Result<unknown>>>();
+
 async function demo(state: HostState): Promise<Result<{ path: string }>> {
   const path = workspaceInFolder(state.folder, state.demoName);
   if (!existsSync(path)) {
-    const built = await runInWorker('demo.build', { workspace: path }, { workerFile: state.workerFile });
-    if (!built.ok && !(built.error.code === 'conflict' && existsSync(path))) return built;
+    let building = demoBuilds.get(path);
+    if (building === undefined) {
+      building = runInWorker('demo.build', { workspace: path }, { workerFile: state.workerFile }).finally(() => demoBuilds.delete(path));
+      demoBuilds.set(path, building);
+    }
+    const built = await building;
+    if (!built.ok && !(built.error.code === 'conflict' && existsSync(path))) return built as Result<never>;
   }
   state.remember(path);
   return ok({ path });

@@ -3,6 +3,7 @@
 import type { TrialDesign } from '../../engine/types.js';
 import { listTrials, loadNetwork, openWorkspace } from '../../store/index.js';
 import { findTrait, trialsWithTrait } from '../../store/network.js';
+import { throwIfCancelled, type CallContext } from '../context.js';
 import { runTrialStage } from './trialStage.js';
 
 export interface QualityFlag {
@@ -29,7 +30,7 @@ export interface TrialOverviewEntry {
   readonly flags: QualityFlag[];
 }
 
-export function trialsOverview(path: string, trait: string): TrialOverviewEntry[] {
+export function trialsOverview(path: string, trait: string, ctx?: CallContext): TrialOverviewEntry[] {
   const ws = openWorkspace(path);
   try {
     const t = findTrait(ws, trait);
@@ -41,9 +42,15 @@ export function trialsOverview(path: string, trait: string): TrialOverviewEntry[
     const byProtocol = new Map<number, number[]>();
     for (const r of trialsWithTrait(ws, t.id)) byProtocol.set(r.protocol_id, [...(byProtocol.get(r.protocol_id) ?? []), r.id]);
     const stage = new Map<number, Pick<TrialOverviewEntry, 'missing' | 'mean' | 'cv' | 'flags'>>();
+    const total = [...byProtocol.values()].reduce((n, ids) => n + ids.length, 0);
+    let done = 0;
     for (const ids of byProtocol.values()) {
       const network = loadNetwork(ws, trait, { trials: ids });
       network.trials.forEach((trial, i) => {
+        if (done++ % 50 === 0) {
+          ctx?.onProgress?.({ stage: 'trial-stage', fraction: done / total });
+          throwIfCancelled(ctx);
+        }
         const missing = trial.plots.filter((p) => !p.excluded && p.value === null).length;
         const outcome = runTrialStage(trial, network, []);
         stage.set(
