@@ -43,13 +43,13 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
       </div>
       <p className="facts">
         <span>
-          <strong>{info.counts.sites}</strong> sites
+          <strong>{info.counts.sites}</strong> {info.counts.sites === 1 ? 'site' : 'sites'}
         </span>
         <span>
-          <strong>{info.counts.trials}</strong> trials
+          <strong>{info.counts.trials}</strong> {info.counts.trials === 1 ? 'trial' : 'trials'}
         </span>
         <span>
-          <strong>{info.counts.plots.toLocaleString('en-GB')}</strong> plots
+          <strong>{info.counts.plots.toLocaleString('en-GB')}</strong> {info.counts.plots === 1 ? 'plot' : 'plots'}
         </span>
         <span>{years}</span>
         <span>
