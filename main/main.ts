@@ -4,6 +4,7 @@
 import { app, BrowserWindow, dialog, ipcMain, Menu, protocol, session } from 'electron';
 import { existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import type { ProgressEvent } from '../src/api/context.js';
 import { callHandler } from '../src/api/handlers.js';
 import { readRecent, rememberRecent } from '../src/api/host/recentWorkspaces.js';
 import { ManyfieldError, type Result } from '../src/api/result.js';
@@ -47,7 +48,7 @@ function remember(path: string): void {
   }
 }
 
-const runLong = (name: string, args: unknown, ctx: { onProgress: (e: import('../src/api/context.js').ProgressEvent) => void; signal: AbortSignal }) =>
+const runLong = (name: string, args: unknown, ctx: { onProgress: (e: ProgressEvent) => void; signal: AbortSignal }) =>
   runInWorker(name, args, { ...ctx, workerFile });
 
 let demoBuild: Promise<Result<unknown>> | null = null;
