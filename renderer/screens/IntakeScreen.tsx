@@ -8,6 +8,7 @@ import type { FilePreview, ValidationReport } from '../app/views.js';
 import type { PickedFile } from '../host/types.js';
 import { formFromGuess, formProblems, toMapping, type MappingForm as Form } from '../shape/mapping.js';
 import { importFraction, progressText } from '../shape/progress.js';
+import { plural } from '../shape/format.js';
 import { MappingForm } from '../intake/MappingForm.js';
 import { PreviewTable } from '../intake/PreviewTable.js';
 import { ProblemTable } from '../intake/ProblemTable.js';
@@ -102,7 +103,7 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
     setProgress(null);
     if (r.ok) {
       const s = r.data.summary;
-      setOutcome({ kind: 'done', text: `Imported ${s.trials.toLocaleString('en-GB')} trials, ${s.plots.toLocaleString('en-GB')} plots and ${s.observations.toLocaleString('en-GB')} values from ${file.name}.` });
+      setOutcome({ kind: 'done', text: `Imported ${plural(s.trials, 'trial')}, ${plural(s.plots, 'plot')} and ${plural(s.observations, 'value')} from ${file.name}.` });
       setCheck(null);
       await onImported();
     } else if (r.error.code === 'cancelled') {
@@ -223,7 +224,7 @@ function CheckSummary({ report, fileName }: { report: ValidationReport; fileName
   if (report.valid)
     return (
       <p className="banner banner-ok" role="status" data-testid="validation-ok">
-        {fileName} passes every check: {s.trials.toLocaleString('en-GB')} trials at {s.sites.toLocaleString('en-GB')} sites, {s.plots.toLocaleString('en-GB')} plots, traits {s.traits.join(', ')}. Ready to import.
+        {fileName} passes every check: {plural(s.trials, 'trial')} at {plural(s.sites, 'site')}, {plural(s.plots, 'plot')}, {s.traits.length === 1 ? 'trait' : 'traits'} {s.traits.join(', ')}. Ready to import.
       </p>
     );
   return (

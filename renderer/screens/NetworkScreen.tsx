@@ -8,6 +8,8 @@ import { TrialTable } from '../network/TrialTable.js';
 import { WhenLoaded } from '../ui/Status.js';
 import { flagCounts, sortTrials } from '../shape/trialTable.js';
 import { TraitPicker } from '../ui/TraitPicker.js';
+import { progressText } from '../shape/progress.js';
+import type { ProgressEvent } from '../host/types.js';
 import { SiteYearMatrix } from '../network/SiteYearMatrix.js';
 
 interface Props {
@@ -22,7 +24,11 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
   const path = workspace.path;
   const info = workspace.info;
   const [sites] = useLoad(() => host.call('sites.list', { workspace: path }), [host, path, info]);
-  const [trials] = useLoad(() => (trait ? host.call('trials.overview', { workspace: path, trait }) : Promise.resolve({ ok: true as const, data: [] })), [host, path, trait, info]);
+  const [progress, setProgress] = useState<ProgressEvent | null>(null);
+  const [trials] = useLoad(
+    (signal) => (trait ? host.call('trials.overview', { workspace: path, trait }, { signal, onProgress: setProgress }) : Promise.resolve({ ok: true as const, data: [] })),
+    [host, path, trait, info],
+  );
   const [site, setSite] = useState<number | null>(null);
   const siteCode = sites.status === 'ready' ? (sites.data.find((s) => s.id === site)?.code ?? null) : null;
   const rows = useMemo(() => (trials.status === 'ready' ? sortTrials(trials.data, siteCode) : []), [trials, siteCode]);
@@ -37,13 +43,13 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
       </div>
       <p className="facts">
         <span>
-          <strong>{info.counts.sites}</strong> sites
+          <strong>{info.counts.sites}</strong> {info.counts.sites === 1 ? 'site' : 'sites'}
         </span>
         <span>
-          <strong>{info.counts.trials}</strong> trials
+          <strong>{info.counts.trials}</strong> {info.counts.trials === 1 ? 'trial' : 'trials'}
         </span>
         <span>
-          <strong>{info.counts.plots.toLocaleString('en-GB')}</strong> plots
+          <strong>{info.counts.plots.toLocaleString('en-GB')}</strong> {info.counts.plots === 1 ? 'plot' : 'plots'}
         </span>
         <span>{years}</span>
         <span>
@@ -96,7 +102,7 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
           </button>
         ) : null}
       </div>
-      <WhenLoaded state={trials} what="trials">
+      <WhenLoaded state={trials} what={progress ? `trials (${progressText(progress.stage, progress.fraction)})` : 'trials'}>
         {() => <TrialTable rows={rows} unit={unit} onOpen={onOpenTrial} />}
       </WhenLoaded>
     </section>

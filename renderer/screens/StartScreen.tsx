@@ -38,8 +38,12 @@ export function StartScreen({ onOpen, current }: Props) {
     return attempt('Creating the workspace', async () => {
       const path = await host.pickWorkspace('new', newName);
       if (!path) return;
-      const made = await host.call('workspace.create', { workspace: path });
-      if (!made.ok) throw new Error(made.error.message);
+      // The browser mode's server makes the empty file itself; a desktop dialog only names it.
+      const exists = await host.call('workspace.describe', { workspace: path });
+      if (!exists.ok) {
+        const made = await host.call('workspace.create', { workspace: path });
+        if (!made.ok) throw new Error(made.error.message);
+      }
       await onOpen(path);
     });
   };

@@ -19,3 +19,8 @@ export function decimalsFor(scale: number): number {
   const mag = Math.floor(Math.log10(Math.abs(scale)));
   return Math.min(4, Math.max(0, 2 - mag));
 }
+
+/** "1 trial", "1,042 trials": a count with its noun in the right number. */
+export function plural(n: number, singular: string, pluralForm = `${singular}s`): string {
+  return `${n.toLocaleString('en-GB')} ${n === 1 ? singular : pluralForm}`;
+}

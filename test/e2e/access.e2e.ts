@@ -56,6 +56,20 @@ describe('keyboard', () => {
   });
 });
 
+describe('a new workspace', () => {
+  it('is made from the start screen and opens empty, ready for intake', async () => {
+    const { page } = browser;
+    await page.getByRole('navigation', { name: 'Screens' }).getByRole('button', { name: 'Start' }).click();
+    await page.getByLabel(/^Name/).fill('potash-network');
+    await page.getByRole('button', { name: 'Create', exact: true }).click();
+    const network = page.getByTestId('network-screen');
+    await network.waitFor();
+    expect(await page.locator('#network-title').innerText()).toBe('potash-network');
+    expect(await page.locator('.facts').innerText()).toMatch(/0\s+trials/);
+    expect(await network.innerText()).toContain('No trials imported yet');
+  });
+});
+
 describe('200 % zoom', () => {
   it('keeps every screen within the window width and saves what it looks like', async () => {
     const zoomed = await openBrowser(2);

@@ -28,6 +28,11 @@ describe('demo network in the browser', () => {
     const start = new StartPage(page);
     await start.goto(server.url);
     await screenshot(page, join(screensDir(), 'start.png'));
+    // The page is one script file and one style sheet: nothing inline for the CSP to allow.
+    const html = await (await fetch(`${server.origin}/`, { headers: { 'x-manyfield-token': server.token } })).text();
+    expect(html).toMatch(/<script type="module" crossorigin src="\.\/assets\/[^"]+\.js"><\/script>/);
+    expect(html).not.toMatch(/<script(?![^>]*\ssrc=)[^>]*>/);
+    expect(html).not.toMatch(/\sstyle="/);
     await start.openDemo();
     const network = new NetworkPage(page);
     expect(await network.rowCount()).toBe(42);
@@ -57,6 +62,15 @@ describe('demo network in the browser', () => {
       expect(await chart.locator('svg .recharts-scatter-symbol, svg .recharts-bar-rectangle').count(), id).toBeGreaterThan(0);
     }
     expect(await page.getByTestId('spatial-flag').innerText()).toMatch(/P /);
+    // Colouring by residual changes the legend and the cells' colours, and keeps the text in them.
+    const fills = async () => Promise.all((await trial.plots().locator('rect').all()).map((r) => r.getAttribute('fill')));
+    const fillsBefore = await fills();
+    expect(fillsBefore).toHaveLength(28);
+    await page.getByRole('radio', { name: 'residual' }).check();
+    expect(await page.getByTestId('field-grid').locator('.legend').textContent()).toMatch(/^Residual/);
+    const fillsAfter = await fills();
+    expect(fillsAfter).not.toEqual(fillsBefore);
+    await page.getByRole('radio', { name: 'measured value' }).check();
     const firstPlot = await trial.plots().first().getAttribute('data-plot-id');
     await trial.selectPlot(firstPlot as string);
     await screenshot(page, join(screensDir(), 'trial.png'));

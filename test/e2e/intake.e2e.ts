@@ -5,7 +5,9 @@ import { join } from 'node:path';
 import { callApi, startServer, type RunningServer } from './support/server.js';
 import { openBrowser, screenshot, type OpenBrowser } from './support/browser.js';
 import { screensDir } from './support/paths.js';
-import { writeBadFile, writeGoodFile } from './support/files.js';
+import { writeFileSync } from 'node:fs';
+import { HEADER, plotRows, writeBadFile, writeGoodFile } from './support/files.js';
+import { buildXlsx } from '../intake/xlsxBuilder.js';
 import { StartPage } from './pages/StartPage.js';
 import { NetworkPage } from './pages/NetworkPage.js';
 import { IntakePage } from './pages/IntakePage.js';
@@ -95,6 +97,29 @@ describe('intake in the browser', () => {
     expect(rules).toContain('trial-exists');
     expect(await intake.importButton().isDisabled()).toBe(true);
     expect(await counts()).toEqual(before);
+  });
+
+  it('reads an Excel workbook from the sheet the user chooses', async () => {
+    const { page } = browser;
+    const book = join(server.folder, 'qrn-2026.xlsx');
+    const plots = plotRows(['QRN'], [2026], 4);
+    writeFileSync(
+      book,
+      buildXlsx([
+        { name: 'Notes', rows: [['Trial notes'], ['Sown 12 April, harvested 3 December']] },
+        { name: 'Plots 2026', rows: [HEADER, ...plots.map((r) => r.map((v, i) => (i === 1 || i === 2 || i === 4 || i === 6 ? Number(v) : v === '' ? null : v)))] },
+      ]),
+    );
+    const intake = new IntakePage(page);
+    await intake.show();
+    await page.getByTestId('intake-file-input').setInputFiles(book);
+    const sheet = page.getByLabel('Sheet');
+    await sheet.waitFor();
+    await sheet.selectOption('Plots 2026');
+    await expect.poll(async () => page.getByTestId('intake-preview').locator('thead').innerText()).toContain('treatment');
+    expect(await page.locator('select[data-role="treatment"]').inputValue()).toBe('treatment');
+    await intake.validate();
+    expect(await page.getByTestId('validation-ok').innerText()).toMatch(/1 trial at 1 site, 28 plots/);
   });
 
   it('raised no page errors and no Content-Security-Policy violations', () => {

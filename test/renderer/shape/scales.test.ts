@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { extent, linearScale, niceTicks, symmetricExtent } from '../../../renderer/shape/scales.js';
-import { formatNumber, formatP, decimalsFor } from '../../../renderer/shape/format.js';
+import { formatNumber, formatP, decimalsFor, plural } from '../../../renderer/shape/format.js';
 import { toCsv, fileNameFor } from '../../../renderer/shape/csv.js';
 import { visibleRows } from '../../../renderer/shape/virtualWindow.js';
 
@@ -35,6 +35,9 @@ describe('format', () => {
     expect(decimalsFor(5.3)).toBe(2);
     expect(decimalsFor(5300)).toBe(0);
     expect(decimalsFor(0.05)).toBe(4);
+    expect(plural(1, 'trial')).toBe('1 trial');
+    expect(plural(1042, 'trial')).toBe('1,042 trials');
+    expect(plural(0, 'analysis', 'analyses')).toBe('0 analyses');
   });
 });
 
