@@ -3,6 +3,7 @@
 // and the same spec gives the same answer on a second, freshly built workspace (whose internal
 // plot ids differ) and with --data. Without a plot column, "plot" is refused (it never silently
 // means the file row); "row" names a file row explicitly.
+// Per-plot lists (flags, exclusions, missing plots) are in the full trial form: every run here asks for --detail plots.
 import { describe, expect, it, beforeAll } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -40,7 +41,7 @@ describe('plot labels from import to exclusion (workspace and --data)', () => {
   });
 
   it('flags name the user\'s plot label, not an internal id', () => {
-    const { report } = analyzeJson(['--workspace', ws1, '--spec', writeJson(dir, 'plain.json', BASE), '--no-save']);
+    const { report } = analyzeJson(['--detail', 'plots', '--workspace', ws1, '--spec', writeJson(dir, 'plain.json', BASE), '--no-save']);
     const trial = report.twoStage.trials.find((t) => t.trial === 'S2-2024')!;
     const outlier = trial.flags.find((f) => f.code === 'outlier-residual');
     expect(outlier?.label).toBe('304');
@@ -54,14 +55,14 @@ describe('plot labels from import to exclusion (workspace and --data)', () => {
 
   it('an exclusion by the user\'s label works, and the same spec gives the same answer on a second workspace and with --data', () => {
     const spec = writeJson(dir, 'exclude.json', { ...BASE, exclude: EXCLUDE });
-    const a = analyzeJson(['--workspace', ws1, '--spec', spec]).report;
-    const b = analyzeJson(['--workspace', ws2, '--spec', spec]).report;
+    const a = analyzeJson(['--detail', 'plots', '--workspace', ws1, '--spec', spec]).report;
+    const b = analyzeJson(['--detail', 'plots', '--workspace', ws2, '--spec', spec]).report;
     for (const r of [a, b]) {
       const trial = r.twoStage.trials.find((t) => t.trial === 'S2-2024')!;
       expect(trial.excluded.map((e) => [e.label, e.reason])).toEqual([['304', EXCLUDE[0].reason]]);
       expect(r.warnings.some((w) => /trial S2-2024, plot 304 \(treatment \w+, file row \d+\) excluded by the user/.test(w))).toBe(true);
     }
-    const fromFile = analyzeJson(['--data', data, '--spec', writeJson(dir, 'exclude-data.json', { ...BASE, columns: nitrogenColumns(), exclude: EXCLUDE })]).report;
+    const fromFile = analyzeJson(['--detail', 'plots', '--data', data, '--spec', writeJson(dir, 'exclude-data.json', { ...BASE, columns: nitrogenColumns(), exclude: EXCLUDE })]).report;
     // Same plots, same exclusion, same engine: the pooled numbers agree to rounding (1e-9 relative).
     for (const name of ['treated_vs_control', 'rate_linear']) {
       const ref = pooledOf(a, name);
@@ -71,7 +72,7 @@ describe('plot labels from import to exclusion (workspace and --data)', () => {
       }
     }
     // And the exclusion matters: without it the estimate moves.
-    const plain = analyzeJson(['--workspace', ws1, '--spec', writeJson(dir, 'plain2.json', BASE), '--no-save']).report;
+    const plain = analyzeJson(['--detail', 'plots', '--workspace', ws1, '--spec', writeJson(dir, 'plain2.json', BASE), '--no-save']).report;
     expect(Math.abs(pooledOf(plain, 'treated_vs_control').estimate - pooledOf(a, 'treated_vs_control').estimate)).toBeGreaterThan(1e-3);
   });
 
@@ -125,13 +126,13 @@ describe('plot labels from import to exclusion (workspace and --data)', () => {
           { trial: 'S1-2023', row: emptyRow, reason: 'lodged' },
         ],
       });
-      const { report } = analyzeJson(['--data', bare, '--spec', spec]);
+      const { report } = analyzeJson(['--detail', 'plots', '--data', bare, '--spec', spec]);
       const trial = report.twoStage.trials.find((t) => t.trial === 'S2-2024')!;
       expect(trial.excluded).toHaveLength(1);
       expect(trial.excluded[0].plotId).toBe(slipRow);
       expect(report.warnings.some((w) => w.includes(`the plot on file row ${emptyRow}`) && w.includes('changes nothing'))).toBe(true);
       // The slip plot is gone: the same answer as excluding it by label in the labelled file.
-      const labelled = analyzeJson(['--data', data, '--spec', writeJson(dir, 'lab.json', { ...BASE, columns: nitrogenColumns(), exclude: [EXCLUDE[0], { trial: 'S1-2023', plot: '102', reason: 'lodged' }] })]).report;
+      const labelled = analyzeJson(['--detail', 'plots', '--data', data, '--spec', writeJson(dir, 'lab.json', { ...BASE, columns: nitrogenColumns(), exclude: [EXCLUDE[0], { trial: 'S1-2023', plot: '102', reason: 'lodged' }] })]).report;
       expect(pooledOf(report, 'rate_linear').estimate).toBeCloseTo(pooledOf(labelled, 'rate_linear').estimate, 9);
     });
   });

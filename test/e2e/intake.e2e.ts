@@ -53,7 +53,7 @@ describe('intake in the browser', () => {
     await intake.validate();
     const errors = await intake.errors();
     for (const e of expected) expect(errors, JSON.stringify(e)).toContainEqual(expect.objectContaining({ row: String(e.row), column: e.column }));
-    expect(errors.find((e) => e.row === '6')?.value).toBe('n/a');
+    expect(errors.find((e) => e.row === '6')?.value).toBe('eight');
     expect(await intake.importButton().isDisabled()).toBe(true);
     // The picture shows the mapping and the problems together (the file's first rows are above).
     await page.evaluate('document.getElementById("intake-mapping-title").scrollIntoView()');

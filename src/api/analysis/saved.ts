@@ -81,7 +81,7 @@ function recomputeTrial(network: NetworkInput, spec: AnalysisSpec, summary: unkn
   const warnings: string[] = [];
   const one = applyExclusions(network, spec.exclude.filter((e) => e.trial === trial), warnings);
   const control = spec.control ?? one.control;
-  const contrasts = spec.contrasts.map((c) => resolveContrast(c, one.treatments, control));
+  const contrasts = spec.contrasts.map((c) => resolveContrast(c, one.treatments, control, one.factors));
   const storedOffset = (summary as { transform?: { logOffset?: number | null } }).transform?.logOffset;
   const logOffset = spec.transform === 'log' ? (spec.logOffset ?? (storedOffset || undefined)) : spec.logOffset;
   return analyseOneTrial(one.trials[0], one, contrasts, spec, logOffset);

@@ -16,7 +16,7 @@ export interface InclusionRecord {
 
 export interface ExclusionEntry {
   readonly plot: number;
-  /** The user's plot label; the plot id as text until the store keeps labels. */
+  /** The field's own plot label; the plot id as text when the file had none. */
   readonly label: string;
   readonly trial: number;
   readonly trialLabel: string;
@@ -51,12 +51,12 @@ export function listExclusions(path: string): ExclusionEntry[] {
   try {
     const rows = ws.db
       .prepare(
-        `SELECT p.id AS plot, p.trial_id AS trial, t.label AS trialLabel, p.exclusion_reason AS reason
+        `SELECT p.id AS plot, p.label AS label, p.trial_id AS trial, t.label AS trialLabel, p.exclusion_reason AS reason
          FROM plot p JOIN trial t ON t.id = p.trial_id JOIN site s ON s.id = t.site_id
          WHERE p.excluded = 1 ORDER BY s.code, t.year, t.label, p.id`,
       )
-      .all() as { plot: number; trial: number; trialLabel: string; reason: string }[];
-    return rows.map((r) => ({ plot: r.plot, label: String(r.plot), trial: r.trial, trialLabel: r.trialLabel, reason: r.reason }));
+      .all() as { plot: number; label: string | null; trial: number; trialLabel: string; reason: string }[];
+    return rows.map((r) => ({ plot: r.plot, label: r.label ?? String(r.plot), trial: r.trial, trialLabel: r.trialLabel, reason: r.reason }));
   } finally {
     ws.close();
   }

@@ -8,7 +8,7 @@ import { runTrialStage, screenContrasts } from './trialStage.js';
 
 export interface PlotDetail {
   readonly id: number;
-  /** The user's plot label once the store keeps one; the plot id as text until then. */
+  /** The field's own plot label (the file's plot column); the plot id as text when the file had none. */
   readonly label: string;
   readonly treatment: string;
   readonly block: string | null;
@@ -54,7 +54,7 @@ export function trialDetail(path: string, trialId: number, trait: string): Trial
       const d = diagnostics.get(id);
       return {
         id,
-        label: String(id),
+        label: p.label ?? String(id),
         treatment: p.treatment,
         block: p.block,
         row: p.row,

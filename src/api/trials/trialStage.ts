@@ -19,7 +19,7 @@ export function screenContrasts(network: NetworkInput): ResolvedContrast[] {
   const out: ResolvedContrast[] = [];
   for (const spec of specs) {
     try {
-      out.push(resolveContrast(spec, network.treatments, network.control));
+      out.push(resolveContrast(spec, network.treatments, network.control, network.factors));
     } catch {
       // e.g. a single rate level: no trend to estimate, so the screen shows none.
     }

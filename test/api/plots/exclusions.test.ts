@@ -5,18 +5,19 @@ import { readFileSync } from 'node:fs';
 import { api } from '../../../src/api/handlers.js';
 import { data, demoCopy } from '../support/demoWorkspace.js';
 
-async function somePlots(path: string): Promise<{ trial: number; trialLabel: string; plots: number[] }> {
+async function somePlots(path: string): Promise<{ trial: number; trialLabel: string; plots: number[]; labels: string[] }> {
   const trial = data(await api['trials.list']({ workspace: path }))[0];
   const detail = data(await api['trial.detail']({ workspace: path, trial: trial.id, trait: 'yield' }));
-  return { trial: trial.id, trialLabel: trial.label, plots: detail.plots.map((p) => p.id) };
+  return { trial: trial.id, trialLabel: trial.label, plots: detail.plots.map((p) => p.id), labels: detail.plots.map((p) => p.label) };
 }
 
 describe('exclusions', () => {
   it('records an exclusion with its reason, lists it, counts it, and undoes it', async () => {
     const path = await demoCopy();
-    const { trial, trialLabel, plots } = await somePlots(path);
+    const { trial, trialLabel, plots, labels } = await somePlots(path);
+    expect(labels[3]).not.toBe(String(plots[3])); // the demo's own plot labels, not workspace ids
     expect(data(await api['plots.exclude']({ workspace: path, plot: plots[3], reason: '  hail damage  ' }))).toEqual({ plot: plots[3], excluded: true, reason: 'hail damage' });
-    expect(data(await api['exclusions.list']({ workspace: path }))).toEqual([{ plot: plots[3], label: String(plots[3]), trial, trialLabel, reason: 'hail damage' }]);
+    expect(data(await api['exclusions.list']({ workspace: path }))).toEqual([{ plot: plots[3], label: labels[3], trial, trialLabel, reason: 'hail damage' }]);
     expect(data(await api['workspace.describe']({ workspace: path })).exclusions).toBe(1);
     const detail = data(await api['trial.detail']({ workspace: path, trial, trait: 'yield' }));
     expect(detail.plots.find((p) => p.id === plots[3])).toMatchObject({ excluded: true, reason: 'hail damage', fitted: null });

@@ -13,6 +13,7 @@ const REL = 1e-9;
 
 interface PlotValue {
   id: number;
+  label: string | null;
   block: string;
   treatment: string;
   value: number;
@@ -23,7 +24,7 @@ function plotValues(path: string, trialId: number): PlotValue[] {
   try {
     return db
       .prepare(
-        `SELECT p.id, p.block, tm.code AS treatment, o.value FROM plot p JOIN treatment tm ON tm.id = p.treatment_id
+        `SELECT p.id, p.label, p.block, tm.code AS treatment, o.value FROM plot p JOIN treatment tm ON tm.id = p.treatment_id
          JOIN observation o ON o.plot_id = p.id JOIN trait tr ON tr.id = o.trait_id AND tr.name = 'yield'
          WHERE p.trial_id = ? AND p.excluded = 0 AND o.value IS NOT NULL ORDER BY p.id`,
       )
@@ -121,7 +122,8 @@ describe('trial.detail', () => {
       const h = p / n;
       const e = q.value - fitted;
       const r = e / Math.sqrt(s2 * (1 - h));
-      expect(row.label).toBe(String(q.id));
+      // The field's own plot label as stored (the demo numbers its plots 101, 102, ...).
+      expect(row.label).toBe(q.label ?? String(q.id));
       expect(row.value).toBeCloseTo(q.value, 12);
       expect(row.fitted!).toBeCloseTo(fitted, 9);
       expect(row.residual!).toBeCloseTo(e, 9);

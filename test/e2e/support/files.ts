@@ -51,12 +51,12 @@ export function writeGoodFile(path: string): void {
  */
 export function writeBadFile(path: string): { row: number; column: string; value: string }[] {
   const rows = plotRows(['ZEL'], [2024, 2025], 4);
-  rows[4][6] = 'n/a';
+  rows[4][6] = 'eight';
   rows[10][3] = '';
   rows[17][1] = 'twenty';
   writeCsv(path, rows);
   return [
-    { row: 6, column: 'yield (t/ha)', value: 'n/a' },
+    { row: 6, column: 'yield (t/ha)', value: 'eight' },
     { row: 12, column: 'treatment', value: '' },
     { row: 19, column: 'year', value: 'twenty' },
   ];
