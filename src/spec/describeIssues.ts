@@ -144,6 +144,11 @@ export function describeIssues(schema: AnySchema, input: unknown, issues: readon
         break;
       }
       case 'invalid_value': {
+        // A schema that words its own refusal (a random term in formula notation) keeps its words.
+        if (!issue.message.startsWith('Invalid')) {
+          out.push(`${key}: ${issue.message}`);
+          break;
+        }
         const allowed = issue.values;
         out.push(`${key}: ${show(given)} is not allowed; use ${list(allowed)}${typeof given === 'string' ? didYouMean(given, allowed.map(String)) : ''}`);
         break;
