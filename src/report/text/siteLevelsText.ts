@@ -2,7 +2,7 @@
 // between sites and trials within a site, a new site, and each known site's own estimate with
 // the caution that it rests on that site's past trials.
 import type { AnyAnalysisReport } from '../../api/analysis/report.js';
-import { decimalsFromSe, effectCell, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
+import { decimalsFromSe, effectCell, fixed, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 
 /** Sites listed per contrast in the text (the JSON has them all). */
@@ -31,7 +31,7 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
     const s = p.siteLevels!;
     if (s.siteEstimates.length === 0) return [];
     const d = decimalsFromSe(s.se);
-    const rows = s.siteEstimates.slice(0, SITES_SHOWN).map((e) => [e.site, String(e.trials), sig(e.ownMean, 4), sig(e.estimate, 4), seText(e.se), rangeText(e.nextTrialLower, e.nextTrialUpper, unit(p.name), d)]);
+    const rows = s.siteEstimates.slice(0, SITES_SHOWN).map((e) => [e.site, String(e.trials), fixed(e.ownMean, d + 1), fixed(e.estimate, d + 1), seText(e.se), rangeText(e.nextTrialLower, e.nextTrialUpper, unit(p.name), d)]);
     const more = s.siteEstimates.length > SITES_SHOWN ? [`  … ${s.siteEstimates.length - SITES_SHOWN} more sites in the JSON (siteLevels.siteEstimates)`] : [];
     return [`  ${p.name}:`, textTable(['site', 'trials', 'own mean', 'shrunken', 'SE', `next trial there (${level})`], rows), ...more];
   });
