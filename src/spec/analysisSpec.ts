@@ -103,9 +103,10 @@ export const twoStageSchema = z
     /**
      * Levels of the pooling: 'trial' (each trial an independent environment) or 'site-and-trial'
      * (also trials nested in sites: a site tau² and a trial-within-site tau², by REML or ML,
-     * reported beside the trial-level pool as `siteLevels`).
+     * reported beside the trial-level pool as `siteLevels`); 'site-year-and-trial' adds a year
+     * effect crossed with the sites (year tau²).
      */
-    levels: looseEnum(['trial', 'site-and-trial']).default('trial'),
+    levels: looseEnum(['trial', 'site-and-trial', 'site-year-and-trial']).default('trial'),
     /**
      * New-site prediction interval and probabilities: 'bootstrap-tau2' carries the uncertainty in
      * tau² (parametric bootstrap over its confidence distribution); 'plug-in-t' is

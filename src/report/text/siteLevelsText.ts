@@ -20,11 +20,22 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
       return [p.name, effectCell(s.estimate, s.lower, s.upper, unit(p.name), s.se), seText(s.se), pText(s.p), String(s.sites), String(s.trials), rangeText(s.newSiteLower, s.newSiteUpper, unit(p.name), decimalsFromSe(s.se)), percent(s.newSiteProbPositive, 1)];
     }),
   );
+  const withYear = pooled.some((p) => p.siteLevels!.yearTau2 !== null);
+  const withInterval = (x: number | null, lo: number | null, hi: number | null) => `${sig(x)} (${sig(lo)} to ${sig(hi)})`;
   const spread = textTable(
-    ['contrast', `site tau² (${level} profile)`, `trial-within-site tau² (${level} profile)`, 'I² site', 'I² trial', 'repeatable by site'],
+    ['contrast', `site tau² (${level} profile)`, ...(withYear ? [`year tau² (${level} profile)`] : []), `trial-within-site tau² (${level} profile)`, 'I² site', ...(withYear ? ['I² year'] : []), 'I² trial', 'repeatable by site'],
     pooled.map((p) => {
       const s = p.siteLevels!;
-      return [p.name, `${sig(s.siteTau2)} (${sig(s.siteTau2Lower)} to ${sig(s.siteTau2Upper)})`, `${sig(s.trialTau2)} (${sig(s.trialTau2Lower)} to ${sig(s.trialTau2Upper)})`, percent(s.I2Site), percent(s.I2Trial), percent(s.siteRepeatability)];
+      return [
+        p.name,
+        withInterval(s.siteTau2, s.siteTau2Lower, s.siteTau2Upper),
+        ...(withYear ? [withInterval(s.yearTau2, s.yearTau2Lower, s.yearTau2Upper)] : []),
+        withInterval(s.trialTau2, s.trialTau2Lower, s.trialTau2Upper),
+        percent(s.I2Site),
+        ...(withYear ? [percent(s.I2Year)] : []),
+        percent(s.I2Trial),
+        percent(s.siteRepeatability),
+      ];
     }),
   );
   const bySite = pooled.flatMap((p) => {
@@ -38,9 +49,9 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
   const notes = pooled.flatMap((p) => p.siteLevels!.notes.map((n) => `  ${p.name}: ${n}`));
   const first = pooled[0].siteLevels!;
   return [
-    ...section(`Effects pooled with trials nested in sites (${first.method})`, [overview]),
-    ...section('Is the spread repeatable by site or seasonal?', [spread, '  repeatable by site = site tau² / (site tau² + trial-within-site tau²)']),
-    ...section('Each known site (its past trials shrunk towards the regional mean)', [...bySite, `  Caution: ${first.caution}`]),
+    ...section(`Effects pooled with trials nested in sites${withYear ? ', crossed with years' : ''} (${first.method})`, [overview]),
+    ...section('Is the spread repeatable by site or seasonal?', [spread, `  repeatable by site = site tau² / (site tau² + ${withYear ? 'year tau² + ' : ''}trial-within-site tau²)`]),
+    ...(bySite.length > 0 ? section('Each known site (its past trials shrunk towards the regional mean)', [...bySite, `  Caution: ${first.caution}`]) : []),
     ...(notes.length > 0 ? section('Notes on the site-level pooling', notes) : []),
   ];
 }

@@ -12,6 +12,9 @@ import { mulberry32, normalSampler } from '../../../src/engine/stats/random.js';
 import { formatAnalysisText } from '../../../src/report/text/formatAnalysisText.js';
 import { rowsFromColumns } from '../../../src/engine/pooling/compactPooled.js';
 import { ManyfieldError } from '../../../src/api/result.js';
+import { fitCrossedYear } from '../../../src/engine/pooling/multilevel/fitCrossedYear.js';
+import { groupBySite } from '../../../src/engine/pooling/multilevel/poolSiteLevels.js';
+import { chisqQuantile } from '../../../src/engine/stats/distributions.js';
 
 /** Sites over years with gaps; each site has its own response to T (invented, for behaviour only). */
 function network(seed: number, dropSite = false): NetworkInput {
@@ -68,5 +71,25 @@ describe('twoStage.levels "site-and-trial"', () => {
     expect(report.warnings.join('\n')).toMatch(/trial\(s\) have no site and count as a site of their own: S1-/);
     const sites = report.twoStage.pooled[0].siteLevels!.siteEstimates.map((s) => s.site);
     expect(sites.filter((s) => s.startsWith('S1-')).length).toBeGreaterThan(0);
+  });
+
+  it('"site-year-and-trial" adds the year tau², as the crossed engine fit gives it on the same trials', () => {
+    const report = runAnalysis(network(3), spec({ levels: 'site-year-and-trial' }));
+    const s = report.twoStage.pooled[0].siteLevels!;
+    expect(s.levels).toBe('site-year-and-trial');
+    const items = report.twoStage.trials.map((t) => {
+      const c = t.contrasts.find((x) => x.name === 'gain') as { estimate: number; se: number };
+      return { trial: t.trial, site: t.trial.split('-')[0], year: Number(t.trial.split('-')[1]), estimate: c.estimate, se: c.se };
+    });
+    const years = [...new Set(items.map((i) => i.year))].sort();
+    const groups = groupBySite(items).map((g) => ({ ...g, yearIndex: Int32Array.from(g.trials, (t) => years.indexOf(Number(t.split('-')[1]))) }));
+    const fit = fitCrossedYear(groups, years.length, 'reml', chisqQuantile(0.95, 1));
+    expect(s.years).toBe(years.length);
+    expect([s.siteTau2, s.yearTau2, s.trialTau2, s.estimate, s.logLik]).toEqual([fit.siteTau2, fit.yearTau2, fit.trialTau2, fit.mu, fit.logLik]);
+    expect(s.yearTau2Upper).toEqual(fit.intervals.year.upper);
+    expect(s.I2Site! + s.I2Year! + s.I2Trial!).toBeCloseTo(s.I2Total!, 12);
+    const text = formatAnalysisText({ ...report, provenance: { source: 'test', dataFingerprint: 'abcdef123456', appVersion: '0', createdAt: '' } });
+    expect(text).toContain('crossed with years');
+    expect(text).toMatch(/year tau² \(95% profile\)/);
   });
 });

@@ -4,6 +4,7 @@
 import { chisqQuantile, normalCdf, normalQuantile, tQuantile } from '../../stats/distributions.js';
 import { fitSiteTrial, profileInterval } from './fitSiteTrial.js';
 import { siteBlup, type SiteGroup } from './siteTrialLikelihood.js';
+import { poolCrossedWithYear } from './poolCrossedWithYear.js';
 import type { LeaveOneSiteOutRow, SiteEstimate, SiteLevelItem, SiteLevelOptions, SiteLevelPooling } from './types.js';
 
 export const SITE_LEVEL_DESCRIPTION =
@@ -28,7 +29,7 @@ export function groupBySite(items: readonly SiteLevelItem[]): SiteGroup[] {
 }
 
 /** Higgins & Thompson's (2002) typical within-trial variance: (k - 1) Σw / ((Σw)² - Σw²), w = 1/v. */
-function typicalSamplingVariance(groups: readonly SiteGroup[]): number | null {
+export function typicalSamplingVariance(groups: readonly SiteGroup[]): number | null {
   let k = 0;
   let sw = 0;
   let sw2 = 0;
@@ -44,10 +45,11 @@ function typicalSamplingVariance(groups: readonly SiteGroup[]): number | null {
 
 function emptyResult(groups: readonly SiteGroup[], method: string, notes: string[]): SiteLevelPooling {
   return {
-    levels: 'site-and-trial', method, sites: groups.length, trials: groups.reduce((n, g) => n + g.y.length, 0),
+    levels: 'site-and-trial', years: null, method, sites: groups.length, trials: groups.reduce((n, g) => n + g.y.length, 0),
     estimate: null, se: null, lower: null, upper: null, p: null, logLik: null, converged: false, evaluations: 0,
     siteTau2: null, siteTau2Lower: null, siteTau2Upper: null, trialTau2: null, trialTau2Lower: null, trialTau2Upper: null,
-    I2Site: null, I2Trial: null, I2Total: null, siteRepeatability: null,
+    yearTau2: null, yearTau2Lower: null, yearTau2Upper: null,
+    I2Site: null, I2Trial: null, I2Year: null, I2Total: null, siteRepeatability: null,
     newSiteLower: null, newSiteUpper: null, newSiteProbPositive: null, newSiteProbAboveThreshold: null,
     siteEstimates: [], leaveOneSiteOut: [], description: SITE_LEVEL_DESCRIPTION, caution: SITE_LEVEL_CAUTION, notes,
   };
@@ -63,6 +65,7 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
   if (groups.length < 2) return emptyResult(groups, method, [`site-level pooling needs trials from at least two sites (found ${groups.length})`]);
   if (repeated === 0) return emptyResult(groups, method, ['no site has two or more trials, so the site and trial-within-site tau² cannot be told apart; use the trial-level pooling']);
   if (repeated < 3) notes.push(`only ${repeated} site(s) have two or more trials: the split between site and trial-within-site tau² rests on them and is very uncertain`);
+  if (options.crossedWithYear) return poolCrossedWithYear(items, groups, method, options, notes);
 
   const fit = fitSiteTrial(groups, options.method);
   if (!fit.converged) notes.push('a tau² estimate reached the upper end of its search range; the fit is not trustworthy');
@@ -105,6 +108,7 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
 
   return {
     levels: 'site-and-trial',
+    years: null,
     method,
     sites: groups.length,
     trials: items.length,
@@ -122,8 +126,12 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
     trialTau2,
     trialTau2Lower: trialCi.lower,
     trialTau2Upper: trialCi.upper,
+    yearTau2: null,
+    yearTau2Lower: null,
+    yearTau2Upper: null,
     I2Site: total === null ? null : siteTau2 / total,
     I2Trial: total === null ? null : trialTau2 / total,
+    I2Year: null,
     I2Total: total === null ? null : between / total,
     siteRepeatability: between > 0 ? siteTau2 / between : null,
     newSiteLower: tMult === null ? null : mu - tMult * predictionSd,

@@ -4,6 +4,8 @@
 export interface SiteLevelItem {
   trial: string;
   site: string;
+  /** The trial's year; used when the years are crossed with the sites. */
+  year?: number | null;
   estimate: number;
   se: number;
 }
@@ -16,6 +18,8 @@ export interface SiteLevelOptions {
   /** Refit without each site in turn (default true; skipped above `leaveOneSiteOutLimit` sites). */
   leaveOneSiteOut?: boolean;
   leaveOneSiteOutLimit?: number;
+  /** Also a year effect shared by every trial of a year, crossed with the sites. */
+  crossedWithYear?: boolean;
 }
 
 /** A known site: its shrunken (BLUP) mean effect and what to expect from its next trial. */
@@ -42,8 +46,10 @@ export interface LeaveOneSiteOutRow {
 }
 
 export interface SiteLevelPooling {
-  /** "site-and-trial": trials nested in sites. */
-  levels: 'site-and-trial';
+  /** "site-and-trial": trials nested in sites; "site-year-and-trial": also a year effect crossed with the sites. */
+  levels: 'site-and-trial' | 'site-year-and-trial';
+  /** Years in the crossed model (null for the nested one). */
+  years: number | null;
   method: string;
   sites: number;
   trials: number;
@@ -55,7 +61,8 @@ export interface SiteLevelPooling {
   p: number | null;
   logLik: number | null;
   converged: boolean;
-  evaluations: number;
+  /** Likelihood evaluations of the fit (null for the crossed model, whose searches are not counted). */
+  evaluations: number | null;
   /** Variance of true effects between sites (site tau²) and between trials within a site (trial tau²), with profile-likelihood intervals. */
   siteTau2: number | null;
   siteTau2Lower: number | null;
@@ -63,13 +70,18 @@ export interface SiteLevelPooling {
   trialTau2: number | null;
   trialTau2Lower: number | null;
   trialTau2Upper: number | null;
+  /** Variance of true effects between years, shared by every site (crossed model only; null otherwise). */
+  yearTau2: number | null;
+  yearTau2Lower: number | null;
+  yearTau2Upper: number | null;
   /** Shares of the total variance (site tau² + trial tau² + typical sampling variance) at each level. */
   I2Site: number | null;
   I2Trial: number | null;
+  I2Year: number | null;
   I2Total: number | null;
-  /** Share of the between-trial variance in true effects that belongs to the site: site tau² / (site tau² + trial tau²). */
+  /** Share of the between-trial variance in true effects that belongs to the site: site tau² / (site tau² + year tau² + trial tau²). */
   siteRepeatability: number | null;
-  /** True effect at a new site (in a new year): mu ± t(sites - 2)·sqrt(SE² + site tau² + trial tau²). */
+  /** True effect at a new site in a new year: mu ± t(sites - 2)·sqrt(SE² + site tau² + year tau² + trial tau²). */
   newSiteLower: number | null;
   newSiteUpper: number | null;
   /** Probability that the true effect at a new site is above 0 and above the threshold (normal, variances plugged in). */
