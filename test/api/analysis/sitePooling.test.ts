@@ -15,6 +15,10 @@ import { ManyfieldError } from '../../../src/api/result.js';
 import { fitCrossedYear } from '../../../src/engine/pooling/multilevel/fitCrossedYear.js';
 import { groupBySite } from '../../../src/engine/pooling/multilevel/poolSiteLevels.js';
 import { chisqQuantile } from '../../../src/engine/stats/distributions.js';
+import { readFileSync } from 'node:fs';
+import { generateDemoNetwork } from '../../../src/demo/generate.js';
+import { networkFromTable } from '../../../src/api/analysis/networkFromTable.js';
+import { DEMO_YEARS } from '../../../src/demo/scenario.js';
 
 /** Sites over years with gaps; each site has its own response to T (invented, for behaviour only). */
 function network(seed: number, dropSite = false): NetworkInput {
@@ -91,5 +95,15 @@ describe('twoStage.levels "site-and-trial"', () => {
     const text = formatAnalysisText({ ...report, provenance: { source: 'test', dataFingerprint: 'abcdef123456', appVersion: '0', createdAt: '' } });
     expect(text).toContain('crossed with years');
     expect(text).toMatch(/year tau² \(95% profile\)/);
+  });
+
+  it('the example spec examples/sites-over-years.json runs on the demo network', () => {
+    const example = analysisSpecSchema.parse(JSON.parse(readFileSync(new URL('../../../examples/sites-over-years.json', import.meta.url), 'utf8')));
+    const report = runAnalysis(networkFromTable(generateDemoNetwork().table, 'yield'), example);
+    for (const p of report.twoStage.pooled) {
+      expect(p.siteLevels?.levels).toBe('site-year-and-trial');
+      expect(p.siteLevels?.years).toBe(DEMO_YEARS.length);
+      expect(p.siteLevels?.converged).toBe(true);
+    }
   });
 });
