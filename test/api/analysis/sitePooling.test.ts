@@ -90,7 +90,7 @@ describe('twoStage.levels "site-and-trial"', () => {
     const fit = fitCrossedYear(groups, years.length, 'reml', chisqQuantile(0.95, 1));
     expect(s.years).toBe(years.length);
     expect([s.siteTau2, s.yearTau2, s.trialTau2, s.estimate, s.logLik]).toEqual([fit.siteTau2, fit.yearTau2, fit.trialTau2, fit.mu, fit.logLik]);
-    expect(s.yearTau2Upper).toEqual(fit.intervals.year.upper);
+    expect(s.yearTau2Upper).toEqual(fit.intervals!.year.upper);
     expect(s.I2Site! + s.I2Year! + s.I2Trial!).toBeCloseTo(s.I2Total!, 12);
     const text = formatAnalysisText({ ...report, provenance: { source: 'test', dataFingerprint: 'abcdef123456', appVersion: '0', createdAt: '' } });
     expect(text).toContain('crossed with years');

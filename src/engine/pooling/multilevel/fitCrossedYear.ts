@@ -13,7 +13,8 @@ export interface CrossedEstimates {
   mu: number;
   muVariance: number;
   converged: boolean;
-  intervals: { site: Interval; trial: Interval; year: Interval };
+  /** Null when the profile intervals were not asked for. */
+  intervals: { site: Interval; trial: Interval; year: Interval } | null;
 }
 
 interface Interval {
@@ -22,7 +23,7 @@ interface Interval {
 }
 
 /** Order of the searched vector: [yearTau2, siteTau2, trialTau2] (year outermost: it is the costliest to vary). */
-export function fitCrossedYear(groups: readonly CrossedGroup[], years: number, kind: LikelihoodKind, chisqCut: number): CrossedEstimates {
+export function fitCrossedYear(groups: readonly CrossedGroup[], years: number, kind: LikelihoodKind, chisqCut: number, withIntervals = true): CrossedEstimates {
   const upper = searchUpper(groups);
   const ll = (x: readonly number[]) => crossedLogLik(groups, years, x[1], x[2], x[0], kind).logLik;
   const best = nestedMaximum(ll, 3, upper);
@@ -37,6 +38,6 @@ export function fitCrossedYear(groups: readonly CrossedGroup[], years: number, k
     mu: at.mu,
     muVariance: at.muVariance,
     converged: best.x.every((v) => v < upper) && Number.isFinite(at.logLik),
-    intervals: { year: interval(0), site: interval(1), trial: interval(2) },
+    intervals: withIntervals ? { year: interval(0), site: interval(1), trial: interval(2) } : null,
   };
 }

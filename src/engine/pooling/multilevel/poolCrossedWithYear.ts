@@ -21,7 +21,11 @@ export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: rea
   const crossed: CrossedGroup[] = groups.map((g) => ({ ...g, yearIndex: Int32Array.from(g.trials, (t) => index.get(yearOf.get(t) as number) as number) }));
   if (years.length < 2) throw new Error('site-by-year pooling needs trials from at least two years');
   if (years.length < 5) notes.push(`only ${years.length} years: year tau² rests on them and is very uncertain`);
-  const fit = fitCrossedYear(crossed, years.length, options.method, chisqQuantile(options.confidence, 1));
+  const profileLimit = options.crossedProfileLimit ?? 300;
+  const withIntervals = items.length <= profileLimit;
+  if (!withIntervals) notes.push(`profile-likelihood intervals for the three tau² are given up to ${profileLimit} trials (${items.length} here)`);
+  const fit = fitCrossedYear(crossed, years.length, options.method, chisqQuantile(options.confidence, 1), withIntervals);
+  const iv = fit.intervals;
   if (!fit.converged) notes.push('a tau² estimate reached the upper end of its search range; the fit is not trustworthy');
   notes.push("each site's shrunken estimate and leave-one-site-out are given by the nested model (levels \"site-and-trial\")");
   const z = normalQuantile(0.5 + options.confidence / 2);
@@ -48,14 +52,14 @@ export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: rea
     converged: fit.converged,
     evaluations: null,
     siteTau2,
-    siteTau2Lower: fit.intervals.site.lower,
-    siteTau2Upper: fit.intervals.site.upper,
+    siteTau2Lower: iv ? iv.site.lower : null,
+    siteTau2Upper: iv ? iv.site.upper : null,
     trialTau2,
-    trialTau2Lower: fit.intervals.trial.lower,
-    trialTau2Upper: fit.intervals.trial.upper,
+    trialTau2Lower: iv ? iv.trial.lower : null,
+    trialTau2Upper: iv ? iv.trial.upper : null,
     yearTau2,
-    yearTau2Lower: fit.intervals.year.lower,
-    yearTau2Upper: fit.intervals.year.upper,
+    yearTau2Lower: iv ? iv.year.lower : null,
+    yearTau2Upper: iv ? iv.year.upper : null,
     I2Site: total === null ? null : siteTau2 / total,
     I2Trial: total === null ? null : trialTau2 / total,
     I2Year: total === null ? null : yearTau2 / total,

@@ -65,7 +65,10 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
   if (groups.length < 2) return emptyResult(groups, method, [`site-level pooling needs trials from at least two sites (found ${groups.length})`]);
   if (repeated === 0) return emptyResult(groups, method, ['no site has two or more trials, so the site and trial-within-site tau² cannot be told apart; use the trial-level pooling']);
   if (repeated < 3) notes.push(`only ${repeated} site(s) have two or more trials: the split between site and trial-within-site tau² rests on them and is very uncertain`);
-  if (options.crossedWithYear) return poolCrossedWithYear(items, groups, method, options, notes);
+  const crossedLimit = options.crossedTrialLimit ?? 1000;
+  if (options.crossedWithYear && items.length <= crossedLimit) return poolCrossedWithYear(items, groups, method, options, notes);
+  if (options.crossedWithYear)
+    notes.push(`the year effect crossed with sites is not fitted above ${crossedLimit} trials (${items.length} here; its nested searches are still too slow for networks this large): this is the site-and-trial model without a year effect`);
 
   const fit = fitSiteTrial(groups, options.method);
   if (!fit.converged) notes.push('a tau² estimate reached the upper end of its search range; the fit is not trustworthy');

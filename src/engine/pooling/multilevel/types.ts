@@ -20,6 +20,9 @@ export interface SiteLevelOptions {
   leaveOneSiteOutLimit?: number;
   /** Also a year effect shared by every trial of a year, crossed with the sites. */
   crossedWithYear?: boolean;
+  /** Largest number of trials the crossed model is fitted for (default 1000), and given profile intervals for (default 300). */
+  crossedTrialLimit?: number;
+  crossedProfileLimit?: number;
 }
 
 /** A known site: its shrunken (BLUP) mean effect and what to expect from its next trial. */

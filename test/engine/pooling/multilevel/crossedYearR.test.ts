@@ -82,7 +82,7 @@ describe('site x year crossed pooling', () => {
     close(Math.sqrt(fit.muVariance), r.values.se, 1e-9);
   });
   it('profile interval for year tau² matches R', () => {
-    close(fit.intervals.year.upper!, r.values.year_upper, 1e-4);
-    expect(fit.intervals.year.lower!).toBeLessThanOrEqual(fit.yearTau2);
+    close(fit.intervals!.year.upper!, r.values.year_upper, 1e-4);
+    expect(fit.intervals!.year.lower!).toBeLessThanOrEqual(fit.yearTau2);
   });
 });

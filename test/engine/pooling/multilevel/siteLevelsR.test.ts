@@ -202,4 +202,11 @@ describe('site-and-trial pooling: what it reports around the fit', () => {
     expect(o.estimate).toBeNull();
     expect(o.notes.join(' ')).toMatch(/no site has two or more trials/);
   });
+  it('falls back to the nested model, saying so, above the crossed model’s trial limit', () => {
+    const items = cases[0].items;
+    const o = poolSiteLevels(items, { method: 'reml', confidence: 0.95, threshold: 0, crossedWithYear: true, crossedTrialLimit: 5 });
+    expect(o.levels).toBe('site-and-trial');
+    expect(o.notes.join(' ')).toMatch(/not fitted above 5 trials/);
+    expect(o.siteTau2).toBe(ours.get('a')!.siteTau2);
+  });
 });
