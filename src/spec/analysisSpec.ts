@@ -101,6 +101,13 @@ export const twoStageSchema = z
     /** Keep the HKSJ interval from being narrower than the Wald interval. */
     hksjFloor: z.boolean().default(false),
     /**
+     * Levels of the pooling: 'trial' (each trial an independent environment) or 'site-and-trial'
+     * (also trials nested in sites: a site tau² and a trial-within-site tau², by REML or ML,
+     * reported beside the trial-level pool as `siteLevels`); 'site-year-and-trial' adds a year
+     * effect crossed with the sites (year tau²).
+     */
+    levels: looseEnum(['trial', 'site-and-trial', 'site-year-and-trial']).default('trial'),
+    /**
      * New-site prediction interval and probabilities: 'bootstrap-tau2' carries the uncertainty in
      * tau² (parametric bootstrap over its confidence distribution); 'plug-in-t' is
      * mean ± t(k - 2) sqrt(SE² + tau²) with tau² taken as known.

@@ -7,6 +7,7 @@ import type { RateResponseResult } from '../../engine/rate/analyzeRateResponse.j
 import type { StageAgreement } from './agreement.js';
 import type { TrialSummary } from '../../engine/trial/trialSummary.js';
 import type { CompactPooledResult } from '../../engine/pooling/compactPooled.js';
+import type { SiteLevelPooling } from '../../engine/pooling/multilevel/types.js';
 
 /**
  * How much of each trial a report carries: 'summary' (the default) gives per trial its contrasts,
@@ -28,6 +29,8 @@ export type PooledEntry = PooledResult & {
   readonly meaning: string;
   /** Trials left out of this contrast's pooling, each with the reason. */
   readonly leftOut: readonly string[];
+  /** Trials nested in sites (twoStage.levels "site-and-trial"), pooled from the same trial estimates. */
+  readonly siteLevels?: SiteLevelPooling;
 };
 
 /** A trial known only by its per-trial summary (pooling a summary file). */

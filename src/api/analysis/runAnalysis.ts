@@ -19,6 +19,7 @@ import { networkLogOffset, transformNetwork } from './transformNetwork.js';
 import type { TrialStageEntry, PooledEntry, ReportDetail, ReportOf } from './report.js';
 import { summariseTrial, type TrialSummary } from '../../engine/trial/trialSummary.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
+import { addSiteLevels } from './sitePooling.js';
 
 /** What pooling reads from a trial entry, full or summarised. */
 type PoolableTrial = TrialStageEntry | TrialSummary;
@@ -55,7 +56,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     trials.push(detail === 'plots' ? entry : summariseTrial(entry));
   });
 
-  const pooled = spec.twoStage === null ? [] : poolContrasts(trials, contrasts, network, spec, warnings, ctx);
+  const pooled = spec.twoStage === null ? [] : addSiteLevels(poolContrasts(trials, contrasts, network, spec, warnings, ctx), trials, network, spec, warnings, ctx);
 
   let oneStage: ReturnType<typeof fitOneStage> | null = null;
   if (spec.oneStage !== null) {

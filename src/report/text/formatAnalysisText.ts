@@ -10,6 +10,7 @@ import { noticeLines, trialCheckLines } from './noticesText.js';
 import { oneStageLines } from './oneStageText.js';
 import { pairwiseLines } from './pairwiseSummary.js';
 import { pooledLines } from './pooledTables.js';
+import { siteLevelLines } from './siteLevelsText.js';
 import { recommendationLines } from './rateRecommendationText.js';
 import { rateTrialLines } from './rateTrialsText.js';
 import { trialEffectsLines } from './trialEffectsTable.js';
@@ -24,6 +25,7 @@ export function formatAnalysisText(r: AnyAnalysisReport): string {
     ...(rate ? section('Rate to recommend', recommendationLines(rate)) : []),
     ...meansLines(r),
     ...pooledLines(r),
+    ...siteLevelLines(r),
     ...oneStageLines(r),
     ...moderatorLines(r),
     ...trialEffectsLines(r),
