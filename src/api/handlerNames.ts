@@ -20,6 +20,9 @@ export const HANDLER_NAMES = [
   'analysis.list',
   'analysis.open',
   'analysis.trial',
+  'analysis.rename',
+  'analysis.delete',
+  'rates.optimum',
 ] as const;
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];
