@@ -23,6 +23,7 @@ export const HANDLER_NAMES = [
   'analysis.rename',
   'analysis.delete',
   'rates.optimum',
+  'trials.covariates',
 ] as const;
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];

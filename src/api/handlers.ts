@@ -32,6 +32,7 @@ import type { AnalysisListing } from '../store/analyses.js';
 import type { AnyAnalysisReport } from './analysis/report.js';
 import type { SavedAnalysisSummary, SavedTrialDetail } from './analysis/saved.js';
 import type { RateOptimumResult } from './analysis/rateOptimum.js';
+import type { TrialCovariates } from '../store/trialCovariates.js';
 
 export const handlerArgs = {
   'demo.build': z.object({ workspace: z.string().min(1), replace: z.boolean().default(false) }).strict(),
@@ -74,6 +75,7 @@ export const handlerArgs = {
   'analysis.trial': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), trial: z.string().min(1) }).strict(),
   'analysis.rename': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), name: z.string().max(200) }).strict(),
   'analysis.delete': z.object({ workspace: workspacePath, analysis: z.number().int().positive() }).strict(),
+  'trials.covariates': z.object({ workspace: workspacePath }).strict(),
   // The optimum at another price ratio from the fitted curves a rate-response result holds (no refit).
   'rates.optimum': z
     .object({
@@ -122,6 +124,7 @@ export interface HandlerResults {
   'analysis.rename': { id: number; name: string | null };
   'analysis.delete': { id: number };
   'rates.optimum': RateOptimumResult;
+  'trials.covariates': TrialCovariates[];
 }
 
 export { HANDLER_NAMES, LONG_HANDLERS } from './handlerNames.js';
@@ -158,6 +161,16 @@ const implementations: Implementations = {
   'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),
   'analysis.rename': async (a) => (await import('./analysis/saved.js')).renameSavedAnalysis(a.workspace, a.analysis, a.name),
   'analysis.delete': async (a) => (await import('./analysis/saved.js')).deleteSavedAnalysis(a.workspace, a.analysis),
+  'trials.covariates': async (a) => {
+    const store = await import('../store/index.js');
+    const { listTrialCovariates } = await import('../store/trialCovariates.js');
+    const ws = store.openWorkspace(a.workspace);
+    try {
+      return listTrialCovariates(ws);
+    } finally {
+      ws.close();
+    }
+  },
   'rates.optimum': async (a) => (await import('./analysis/rateOptimum.js')).rateOptimumAt(a),
 };
 

@@ -47,3 +47,19 @@ describe('renaming and deleting saved analyses', () => {
     expect(renameGone.ok ? null : renameGone.error.code).toBe('not-found');
   }, 120_000);
 });
+
+describe('trials.covariates', () => {
+  it('gives each trial the covariates its analysis sees: site values with the trial value on top', async () => {
+    const workspace = await demoCopy();
+    const list = unwrap(await api['trials.covariates']({ workspace }));
+    const network = openWorkspace(workspace);
+    try {
+      const { loadNetwork } = await import('../../../src/store/index.js');
+      const loaded = loadNetwork(network, 'yield');
+      expect(list).toHaveLength(loaded.trials.length);
+      for (const t of loaded.trials) expect(list.find((x) => x.trial === t.trial)?.covariates).toEqual(t.covariates);
+    } finally {
+      network.close();
+    }
+  }, 60_000);
+});

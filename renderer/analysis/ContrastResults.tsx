@@ -1,0 +1,113 @@
+// The results of one contrast: the forest plot with its sort, grouping, hover and click, the
+// pooled summary and heterogeneity beside it, then the two approaches, shrinkage,
+// meta-regression and sensitivity.
+import { useMemo, useState } from 'react';
+import type { ResultView } from '../shape/resultView.js';
+import { arrangeForest, FOREST_CSV, forestRows, leftOutEntries, type ForestGroup, type ForestRow, type ForestSort } from '../shape/forest.js';
+import { toCsv } from '../shape/csv.js';
+import { decimalsFor, formatNumber } from '../shape/format.js';
+import { ChartFrame } from '../charts/ChartFrame.js';
+import { ForestChart } from './ForestChart.js';
+import { HeterogeneityPanel, PooledSummary } from './PooledPanels.js';
+import { MetaRegressionPanel, SensitivityPanel, ShrinkagePlot, StageComparison } from './DeeperPanels.js';
+
+interface Props {
+  readonly view: ResultView;
+  readonly contrast: string;
+  readonly covariates: ReadonlyMap<string, Record<string, number | string | null>>;
+  readonly onOpenTrial: (trial: string) => void;
+}
+
+export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Props) {
+  const pooled = view.pooled.find((p) => p.name === contrast);
+  const [sort, setSort] = useState<ForestSort>('input');
+  const [group, setGroup] = useState<ForestGroup>('none');
+  const [hover, setHover] = useState<ForestRow | null>(null);
+  const rows = useMemo(() => forestRows(view.trials, contrast, pooled ? { trial: pooled.weights.trial, share: pooled.weights.share } : null), [view.trials, contrast, pooled]);
+  const groups = useMemo(() => arrangeForest(rows, sort, group), [rows, sort, group]);
+  const unit = view.contrastUnits[contrast] ?? view.unit ?? 'units';
+  const decimals = decimalsFor(pooled?.se ?? (rows[0]?.se || 1));
+  if (!pooled) return <p className="muted">Contrast {contrast} was not pooled (pooling is off in the spec).</p>;
+  const leftOut = leftOutEntries(pooled.leftOut);
+  const fmt = (v: number | null) => formatNumber(v, decimals);
+  const sorted = groups.flatMap((g) => g.rows);
+  return (
+    <div className="contrast-results">
+      <div className="forest-layout">
+        <ChartFrame
+          title={`Forest plot: ${contrast}`}
+          csv={() => toCsv(FOREST_CSV, sorted)}
+          testId="forest-frame"
+          note={`${rows.length} trials with this contrast. Squares: each trial's estimate (area ∝ its weight in the pool), lines: its ${Math.round(view.settings.confidence * 100)}% interval. Diamond: the pooled estimate; hatched bar: where the effect at a new site is expected. Click a trial to open it.`}
+        >
+          <div className="forest-controls" role="group" aria-label="Arrange the forest plot">
+            <label>
+              Sort by{' '}
+              <select value={sort} onChange={(e) => setSort(e.target.value as ForestSort)} aria-label="Sort trials by">
+                <option value="input">report order</option>
+                <option value="estimate">estimate</option>
+                <option value="site">site</option>
+                <option value="year">year</option>
+                <option value="weight">weight</option>
+              </select>
+            </label>
+            <label>
+              Group by{' '}
+              <select value={group} onChange={(e) => setGroup(e.target.value as ForestGroup)} aria-label="Group trials by">
+                <option value="none">no grouping</option>
+                <option value="site">site</option>
+                <option value="year">year</option>
+              </select>
+            </label>
+            <span className="forest-hover" data-testid="forest-hover" aria-live="polite">
+              {hover
+                ? `${hover.trial}${hover.site ? ` (site ${hover.site}, ${hover.year ?? ''})` : ''}: ${fmt(hover.estimate)} ${unit}, SE ${fmt(hover.se)}, interval ${fmt(hover.lower)} to ${fmt(hover.upper)}, df ${hover.df ?? '–'}, weight ${hover.weightShare === null ? '–' : `${(hover.weightShare * 100).toFixed(1)}%`}`
+                : 'Point at a trial to see its numbers.'}
+            </span>
+          </div>
+          <ForestChart
+            groups={groups}
+            pooled={pooled}
+            prediction={{ lower: pooled.predictionLower, upper: pooled.predictionUpper }}
+            threshold={view.settings.threshold}
+            unit={unit}
+            width={900}
+            decimals={decimals}
+            onRowHover={setHover}
+            onRowClick={(r) => onOpenTrial(r.trial)}
+          />
+        </ChartFrame>
+        <div className="side-panels">
+          <PooledSummary pooled={pooled} unit={unit} threshold={view.settings.threshold} decimals={decimals} confidence={view.settings.confidence} />
+          <HeterogeneityPanel pooled={pooled} unit={unit} threshold={view.settings.threshold} decimals={decimals} confidence={view.settings.confidence} />
+        </div>
+      </div>
+      {leftOut.length > 0 ? (
+        <section className="panel" data-testid="left-out">
+          <h3>Trials left out of this contrast ({leftOut.length})</h3>
+          <ul className="small-text">
+            {leftOut.map((l, i) => (
+              <li key={i}>
+                {l.trial ? <strong>{l.trial}: </strong> : null}
+                {l.reason}
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : (
+        <p className="small-text muted" data-testid="left-out">
+          No trial was left out of this contrast.
+        </p>
+      )}
+      <h2>One-stage and two-stage</h2>
+      <div className="panel-row">
+        <StageComparison agreement={view.agreement.find((a) => a.name === contrast) ?? null} decimals={decimals} />
+        <ShrinkagePlot oneStage={view.oneStage} contrast={contrast} unit={unit} />
+      </div>
+      <h2>What explains the differences (meta-regression)</h2>
+      <MetaRegressionPanel pooled={pooled} rows={rows} covariates={covariates} unit={unit} />
+      <h2>How robust is the answer (sensitivity)</h2>
+      <SensitivityPanel pooled={pooled} unit={unit} />
+    </div>
+  );
+}
