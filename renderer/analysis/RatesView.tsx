@@ -72,10 +72,12 @@ export function RatesView({ rate, within, cautions, prices }: Props) {
           </p>
         </section>
         <section className="panel optimum-panel" data-testid="optimum" aria-label="Economic optimum rate">
-          <h3>Economic optimum rate</h3>
+          <h3>Economic optimum rate of the pooled curve</h3>
           {problem ? <p className="status-error">{problem}</p> : null}
           <p className="big-number">
-            <span data-testid="optimum-value">{formatNumber(opt?.optimum ?? null, 1)}</span> {rateUnit}
+            <span data-testid="optimum-value" data-value={opt?.optimum ?? ''}>
+              {formatNumber(opt?.optimum ?? null, 1)}
+            </span> {rateUnit}
           </p>
           <p className="small-text">
             {atAnalysed && rec.lower !== null
@@ -84,6 +86,11 @@ export function RatesView({ rate, within, cautions, prices }: Props) {
             Profitable range (net return within {formatNumber(within, 3)} {yieldUnit} of the best): {formatNumber(opt?.profitableLower ?? null, 1)} to {formatNumber(opt?.profitableUpper ?? null, 1)} {rateUnit}.
             {opt && opt.flags.length > 0 ? ` Note: ${opt.flags.join(', ')}.` : ''}
           </p>
+          {atAnalysed ? (
+            <p className="small-text" data-testid="recommendation">
+              Recommended by the analysis: {formatNumber(rec.rate, 1)} {rateUnit} ({rec.source === 'pooled-curve' ? 'pooled curve' : 'mixed-model curve'}). {rate.recommendation.reason}
+            </p>
+          ) : null}
           <p className="small-text muted">
             From the mean of {opt?.trialsUsed ?? '–'} trials' fitted curves over {opt?.range ? `${formatNumber(opt.range[0], 0)}–${formatNumber(opt.range[1], 0)}` : '–'} {rateUnit}, the rates tested in every trial.
           </p>
