@@ -7,7 +7,8 @@ import { arrangeForest, FOREST_CSV, forestRows, leftOutEntries, type ForestGroup
 import { toCsv } from '../shape/csv.js';
 import { decimalsFor, formatNumber } from '../shape/format.js';
 import { ChartFrame } from '../charts/ChartFrame.js';
-import { ForestChart } from './ForestChart.js';
+import { ForestChart, VIRTUAL_FROM } from './ForestChart.js';
+import { ForestChart as SharedForestChart } from '../charts/shared/index.js';
 import { HeterogeneityPanel, PooledSummary } from './PooledPanels.js';
 import { MetaRegressionPanel, SensitivityPanel, ShrinkagePlot, StageComparison } from './DeeperPanels.js';
 
@@ -65,17 +66,34 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
                 : 'Point at a trial to see its numbers.'}
             </span>
           </div>
-          <ForestChart
-            groups={groups}
-            pooled={pooled}
-            prediction={{ lower: pooled.predictionLower, upper: pooled.predictionUpper }}
-            threshold={view.settings.threshold}
-            unit={unit}
-            width={900}
-            decimals={decimals}
-            onRowHover={setHover}
-            onRowClick={(r) => onOpenTrial(r.trial)}
-          />
+          {rows.length <= VIRTUAL_FROM && group === 'none' ? (
+            // the chart the report draws too (renderer/charts/shared)
+            <SharedForestChart
+              rows={sorted.map((r) => ({ trial: r.trial, site: r.site ?? '', year: r.year ?? '', estimate: r.estimate, lower: r.lower, upper: r.upper, weightShare: r.weightShare ?? 0 }))}
+              pooled={pooled.estimate !== null && pooled.lower !== null && pooled.upper !== null ? { estimate: pooled.estimate, lower: pooled.lower, upper: pooled.upper } : null}
+              prediction={pooled.predictionLower !== null && pooled.predictionUpper !== null ? { lower: pooled.predictionLower, upper: pooled.predictionUpper } : null}
+              threshold={view.settings.threshold}
+              unit={unit}
+              width={900}
+              decimals={decimals}
+              title={`Forest plot of ${contrast}`}
+              onRowHover={(r, i) => setHover(r ? sorted[i] : null)}
+              onRowClick={(_r, i) => onOpenTrial(sorted[i].trial)}
+            />
+          ) : (
+            // grouped (headings between groups) or long (only the rows in view are drawn)
+            <ForestChart
+              groups={groups}
+              pooled={pooled}
+              prediction={{ lower: pooled.predictionLower, upper: pooled.predictionUpper }}
+              threshold={view.settings.threshold}
+              unit={unit}
+              width={900}
+              decimals={decimals}
+              onRowHover={setHover}
+              onRowClick={(r) => onOpenTrial(r.trial)}
+            />
+          )}
         </ChartFrame>
         <div className="side-panels">
           <PooledSummary pooled={pooled} unit={unit} threshold={view.settings.threshold} decimals={decimals} confidence={view.settings.confidence} />

@@ -10,6 +10,7 @@ import { linearScale } from '../shape/linearScale.js';
 import { formatNumber } from '../shape/format.js';
 import { toCsv } from '../shape/csv.js';
 import { ChartFrame } from '../charts/ChartFrame.js';
+import { RateChart } from '../charts/shared/index.js';
 
 type Optimum = HandlerResults['rates.optimum'];
 
@@ -111,92 +112,40 @@ export function RatesView({ rate, within, cautions, prices }: Props) {
 
 function RateCharts({ opt, rate, rateUnit, yieldUnit, analysedInterval }: { opt: Optimum; rate: RateResponseResult; rateUnit: string; yieldUnit: string; analysedInterval: [number | null, number | null] | null }) {
   const W = 560;
-  const H = 300;
-  const m = { l: 60, r: 16, t: 12, b: 44 };
-  const xs = opt.curve.map((p) => p.rate);
-  const x = linearScale(xs, [m.l, W - m.r]);
-  const gains = opt.trialCurves.flatMap((t) => t.gains);
-  const yG = linearScale([...gains, 0], [H - m.b, m.t]);
-  const nets = opt.curve.map((p) => p.net);
-  const yN = linearScale([...nets, 0], [H - m.b, m.t]);
-  const path = (ys: readonly number[], y: (v: number) => number) => ys.map((v, i) => `${i ? 'L' : 'M'}${x(xs[i]).toFixed(1)},${y(v).toFixed(1)}`).join('');
-  const axes = (y: ReturnType<typeof linearScale>, yLabel: string) => (
-    <>
-      <rect x={m.l} y={m.t} width={W - m.l - m.r} height={H - m.t - m.b} fill="#fbfaf6" stroke="#d8d5cb" />
-      {x.ticks.map((t) => (
-        <text key={`x${t}`} x={x(t)} y={H - m.b + 14} fontSize={11} textAnchor="middle">
-          {formatNumber(t, 0)}
-        </text>
-      ))}
-      {y.ticks.map((t) => (
-        <text key={`y${t}`} x={m.l - 4} y={y(t) + 4} fontSize={11} textAnchor="end">
-          {formatNumber(t, 2)}
-        </text>
-      ))}
-      <text x={(m.l + W - m.r) / 2} y={H - 6} fontSize={12} textAnchor="middle">
-        Rate ({rateUnit})
-      </text>
-      <text x={12} y={(m.t + H - m.b) / 2} fontSize={12} textAnchor="middle" transform={`rotate(-90 12 ${(m.t + H - m.b) / 2})`}>
-        {yLabel}
-      </text>
-    </>
-  );
+  const m = { l: 60, r: 16 };
+  const x = linearScale(opt.curve.map((p) => p.rate), [m.l, W - m.r]);
   const o = opt.optimum;
   const band = opt.profitableLower !== null && opt.profitableUpper !== null ? [opt.profitableLower, opt.profitableUpper] : null;
   const quant = rate.siteOptima.quantiles;
   return (
     <div className="panel-row">
       <ChartFrame
-        title="Response to rate"
+        title="Response to rate and net return"
         testId="rate-curve"
         csv={() =>
           toCsv(
             [
               { header: 'rate', value: (i: number) => opt.curve[i].rate },
               { header: 'pooled_gain', value: (i: number) => opt.curve[i].gain },
+              { header: 'net_return', value: (i: number) => opt.curve[i].net },
               ...opt.trialCurves.map((t) => ({ header: `gain_${t.trial}`, value: (i: number) => t.gains[i] })),
             ],
             opt.curve.map((_, i) => i),
           )
         }
-        note={`Thin grey lines: each trial's fitted yield gain over the rates it shares with the others (${opt.trialCurves.length} trials); thick line: their mean, the pooled curve.`}
+        note={`Top: thin grey lines are each trial's fitted yield gain over the rates every trial tested (${opt.trialCurves.length} trials), the thick line their mean (the pooled curve). Bottom: net return = gain − price ratio ${Number(opt.priceRatio.toPrecision(4))} × rate, in ${yieldUnit}; solid line at the optimum${analysedInterval ? ' with its interval' : ''}, hatched band the profitable range.`}
       >
-        <svg className="chart-svg" width={W} height={H} viewBox={`0 0 ${W} ${H}`} role="img" aria-label="Yield gain against rate">
-          {axes(yG, `Yield gain (${yieldUnit})`)}
-          {opt.trialCurves.map((t) => (
-            <path key={t.trial} d={path(t.gains, yG)} fill="none" stroke="#9a9a9a" strokeWidth={0.8} opacity={0.7} />
-          ))}
-          <path d={path(opt.curve.map((p) => p.gain), yG)} fill="none" stroke="#23507a" strokeWidth={3} />
-        </svg>
-      </ChartFrame>
-      <ChartFrame
-        title="Net return against rate"
-        testId="net-return"
-        csv={() => toCsv([{ header: 'rate', value: (p: Optimum['curve'][number]) => p.rate }, { header: 'net_return', value: (p) => p.net }, { header: 'price_ratio', value: () => opt.priceRatio }], opt.curve)}
-        note={`Net return = yield gain − price ratio × rate, in ${yieldUnit}. Solid vertical line: the optimum; shaded (hatched) band: the profitable range${analysedInterval ? '; dashed lines: the optimum’s interval' : ''}.`}
-      >
-        <svg className="chart-svg" width={W} height={H} viewBox={`0 0 ${W} ${H}`} role="img" aria-label="Net return against rate">
-          <defs>
-            <pattern id="band-hatch" width="7" height="7" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
-              <line x1="0" y1="0" x2="0" y2="7" stroke="#3e8a6e" strokeWidth="2" opacity="0.5" />
-            </pattern>
-          </defs>
-          {axes(yN, `Net return (${yieldUnit})`)}
-          {band ? <rect x={x(band[0])} y={m.t} width={Math.max(1, x(band[1]) - x(band[0]))} height={H - m.t - m.b} fill="url(#band-hatch)" /> : null}
-          <line x1={m.l} x2={W - m.r} y1={yN(0)} y2={yN(0)} stroke="#6b6b6b" />
-          <path d={path(nets, yN)} fill="none" stroke="#23507a" strokeWidth={3} />
-          {analysedInterval && analysedInterval[0] !== null && analysedInterval[1] !== null
-            ? analysedInterval.map((v, i) => <line key={i} x1={x(v as number)} x2={x(v as number)} y1={m.t} y2={H - m.b} stroke="#8c3b5e" strokeDasharray="5 4" />)
-            : null}
-          {o !== null ? (
-            <>
-              <line x1={x(o)} x2={x(o)} y1={m.t} y2={H - m.b} stroke="#1b1f24" strokeWidth={2} />
-              <text x={Math.min(x(o) + 4, W - m.r - 110)} y={m.t + 14} fontSize={12} fontWeight={700}>
-                optimum {formatNumber(o, 1)} {rateUnit}
-              </text>
-            </>
-          ) : null}
-        </svg>
+        <RateChart
+          width={760}
+          rateUnit={rateUnit}
+          yieldUnit={yieldUnit}
+          trials={opt.trialCurves.map((t) => ({ id: t.trial, label: t.trial, points: t.gains.map((g, i) => ({ rate: opt.curve[i].rate, value: g })) }))}
+          pooled={{ id: 'pooled', label: 'pooled', points: opt.curve.map((p) => ({ rate: p.rate, value: p.gain })) }}
+          netReturn={opt.curve.map((p) => ({ rate: p.rate, value: p.net }))}
+          optimum={o === null ? null : { rate: o, lower: analysedInterval?.[0] ?? null, upper: analysedInterval?.[1] ?? null }}
+          profitable={band ? { lower: band[0], upper: band[1] } : null}
+          title="Response to rate and net return"
+        />
       </ChartFrame>
       <ChartFrame
         title="Where each site's own optimum falls"
