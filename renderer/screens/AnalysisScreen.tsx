@@ -36,6 +36,12 @@ export function newAnalysisMemory(): AnalysisMemory {
   return { draft: null, view: null, tab: 'build', contrast: null };
 }
 
+/** Marks for `npm run bench:screens`: results arrived here, the forest plot drawn in ContrastResults. */
+function markResultsArrived(): void {
+  performance.clearMarks('manyfield:results-arrived');
+  performance.mark('manyfield:results-arrived');
+}
+
 function startingDraft(trait: string, protocol: ProtocolShape): SpecDraft {
   return {
     trait,
@@ -99,6 +105,7 @@ export function AnalysisScreen({ workspace, trait, onOpenTrial, memory }: Props)
     setRunning({ stage: 'starting', fraction: null, step: null });
     const r = await host.call('analysis.run', { workspace: workspace.path, spec: spec as never, save: true }, { signal: controller.signal, onProgress: (e) => setRunning({ stage: e.stage, fraction: e.fraction ?? null, step: e.step ?? null }) });
     abort.current = null;
+    markResultsArrived();
     setRunning(null);
     if (!r.ok) {
       setProblem(controller.signal.aborted ? 'The analysis was cancelled; nothing was stored.' : r.error.message);
@@ -113,6 +120,7 @@ export function AnalysisScreen({ workspace, trait, onOpenTrial, memory }: Props)
 
   const openSaved = async (id: number): Promise<ResultView | null> => {
     const r = await host.call('analysis.open', { workspace: workspace.path, analysis: id, trials: { offset: 0, limit: 10000 } });
+    markResultsArrived();
     if (!r.ok) {
       setProblem(r.error.message);
       return null;

@@ -9,7 +9,7 @@ export class AnalysisPage {
     await this.page.getByTestId('spec-builder').waitFor();
   }
 
-  tab(name: string): Locator {
+  tab(name: string | RegExp): Locator {
     return this.page.getByRole('tab', { name });
   }
 
@@ -49,7 +49,8 @@ export class AnalysisPage {
   }
 
   async forestTrials(): Promise<string[]> {
-    return this.forestRows().evaluateAll((els) => els.map((e) => e.getAttribute('data-trial') ?? ''));
+    // the elements are the page's; typed here without the DOM library
+    return this.forestRows().evaluateAll((els) => els.map((e) => (e as unknown as { getAttribute(n: string): string | null }).getAttribute('data-trial') ?? ''));
   }
 
   /** Clicks a button and returns the download's name and text. */
