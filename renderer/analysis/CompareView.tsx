@@ -28,18 +28,48 @@ export function CompareView({ left, right }: { left: ResultView; right: ResultVi
       <h2>
         {title(left)} <span className="muted">against</span> {title(right)}
       </h2>
-      <div className="panel-row">
-        <section className="panel">
-          <h3>Data</h3>
-          <p data-testid="compare-data">
-            {sameData ? '✓ Same data: both ran on data with fingerprint ' : '⚠ Different data: the fingerprints differ ('}
-            <span className="mono">{left.provenance.dataFingerprint.slice(0, 12)}…</span>
-            {sameData ? '.' : <> against <span className="mono">{right.provenance.dataFingerprint.slice(0, 12)}…</span>): trials, plots or exclusions changed between the runs.</>}
-          </p>
-          <p className="small-text">
-            App versions {left.provenance.appVersion} and {right.provenance.appVersion}; run {new Date(left.provenance.createdAt).toLocaleString('en-GB')} and {new Date(right.provenance.createdAt).toLocaleString('en-GB')}.
-          </p>
+      <div className="compare-grid">
+        <div className="compare-col">
+          <section className="panel">
+            <h3>Data</h3>
+            <p data-testid="compare-data">
+              {sameData ? '✓ Same data: both ran on data with fingerprint ' : '⚠ Different data: the fingerprints differ ('}
+              <span className="mono">{left.provenance.dataFingerprint.slice(0, 12)}…</span>
+              {sameData ? '.' : <> against <span className="mono">{right.provenance.dataFingerprint.slice(0, 12)}…</span>): trials, plots or exclusions changed between the runs.</>}
+            </p>
+            <p className="small-text">
+              App versions {left.provenance.appVersion} and {right.provenance.appVersion}; run {new Date(left.provenance.createdAt).toLocaleString('en-GB')} and {new Date(right.provenance.createdAt).toLocaleString('en-GB')}.
+            </p>
+          </section>
+        <section className="panel" data-testid="compare-numbers">
+          <h3>
+            Numbers{' '}
+            <button type="button" className="small" onClick={() => void host.saveFile('comparison.csv', csv())}>
+              Export CSV
+            </button>
+          </h3>
+          <table className="data">
+            <thead>
+              <tr>
+                <th>Result</th>
+                <th>{title(left)}</th>
+                <th>{title(right)}</th>
+                <th>Change</th>
+              </tr>
+            </thead>
+            <tbody>
+              {numbers.map((r) => (
+                <tr key={r.what} className={r.change !== null && Math.abs(r.change) > 1e-12 ? 'changed' : ''}>
+                  <td>{r.what}</td>
+                  <td className="num">{formatNumber(r.left, 4)}</td>
+                  <td className="num">{formatNumber(r.right, 4)}</td>
+                  <td className="num">{r.change === null ? '–' : Math.abs(r.change) <= 1e-12 ? 'same' : `${r.change > 0 ? '+' : ''}${formatNumber(r.change, 4)}`}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
         </section>
+        </div>
         <section className="panel" data-testid="compare-spec">
           <h3>Spec: {changes.length === 0 ? 'identical' : `${changes.length} setting(s) differ`}</h3>
           {changes.length > 0 ? (
@@ -64,34 +94,6 @@ export function CompareView({ left, right }: { left: ResultView; right: ResultVi
           ) : null}
         </section>
       </div>
-      <section className="panel" data-testid="compare-numbers">
-        <h3>
-          Numbers{' '}
-          <button type="button" className="small" onClick={() => void host.saveFile('comparison.csv', csv())}>
-            Export CSV
-          </button>
-        </h3>
-        <table className="data">
-          <thead>
-            <tr>
-              <th>Result</th>
-              <th>{title(left)}</th>
-              <th>{title(right)}</th>
-              <th>Change</th>
-            </tr>
-          </thead>
-          <tbody>
-            {numbers.map((r) => (
-              <tr key={r.what} className={r.change !== null && Math.abs(r.change) > 1e-12 ? 'changed' : ''}>
-                <td>{r.what}</td>
-                <td className="num">{formatNumber(r.left, 4)}</td>
-                <td className="num">{formatNumber(r.right, 4)}</td>
-                <td className="num">{r.change === null ? '–' : Math.abs(r.change) <= 1e-12 ? 'same' : `${r.change > 0 ? '+' : ''}${formatNumber(r.change, 4)}`}</td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </section>
     </div>
   );
 }

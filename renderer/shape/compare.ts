@@ -20,11 +20,30 @@ export function flattenJson(value: unknown, prefix = '', out: Map<string, string
   return out;
 }
 
-export function specChanges(left: unknown, right: unknown): SpecChange[] {
-  const a = flattenJson(left);
-  const b = flattenJson(right);
-  const keys = [...new Set([...a.keys(), ...b.keys()])].sort();
-  return keys.filter((k) => a.get(k) !== b.get(k)).map((k) => ({ key: k, left: a.get(k) ?? '(not set)', right: b.get(k) ?? '(not set)' }));
+function isRecord(v: unknown): v is Record<string, unknown> {
+  return v !== null && typeof v === 'object' && !Array.isArray(v);
+}
+
+function shown(v: unknown): string {
+  if (v === undefined) return '(not set)';
+  if (v === null) return 'off';
+  const text = JSON.stringify(v);
+  return text.length > 90 ? `${text.slice(0, 87)}…` : text;
+}
+
+/**
+ * The settings that differ, by path ("twoStage.tau2"). Objects on both sides are compared key by
+ * key; anything else (a section switched off on one side, a changed list) is one row with both
+ * values, so a whole section turned off reads as one line.
+ */
+export function specChanges(left: unknown, right: unknown, prefix = ''): SpecChange[] {
+  if (isRecord(left) && isRecord(right)) {
+    const keys = [...new Set([...Object.keys(left), ...Object.keys(right)])].sort();
+    return keys.flatMap((k) => specChanges(left[k], right[k], prefix ? `${prefix}.${k}` : k));
+  }
+  if (Array.isArray(left) && Array.isArray(right) && left.length === right.length && left.every((x, i) => isRecord(x) && isRecord(right[i])))
+    return left.flatMap((x, i) => specChanges(x, right[i], `${prefix}[${i}]`));
+  return JSON.stringify(left) === JSON.stringify(right) ? [] : [{ key: prefix || '(spec)', left: shown(left), right: shown(right) }];
 }
 
 export interface NumberRow {

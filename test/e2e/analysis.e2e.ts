@@ -131,7 +131,7 @@ describe('analysis builder, results, rates and saved analyses', () => {
     const values = sorted.map((t) => estimateOf.get(t) as number);
     expect(values).toEqual([...values].sort((a, b) => a - b));
 
-    await ui.forestRows().first().hover();
+    await ui.forestRows().first().locator('text').first().hover();
     expect(await browser.page.getByTestId('forest-hover').innerText()).toContain(sorted[0]);
     await browser.page.getByTestId('heterogeneity').waitFor();
     expect(await browser.page.getByTestId('heterogeneity').innerText()).toMatch(/I²[\s\S]*real differences between site-years/);

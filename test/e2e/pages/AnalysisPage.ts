@@ -63,8 +63,8 @@ export class AnalysisPage {
   }
 
   async optimum(): Promise<number> {
-    const el = this.page.getByTestId('optimum-value');
-    await el.waitFor();
-    return Number(await el.getAttribute('data-value'));
+    // the value arrives from the core a moment after the screen opens
+    await this.page.waitForFunction(`(document.querySelector('[data-testid="optimum-value"]')?.getAttribute('data-value') ?? '') !== ''`);
+    return Number(await this.page.getByTestId('optimum-value').getAttribute('data-value'));
   }
 }

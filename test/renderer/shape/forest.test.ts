@@ -45,12 +45,13 @@ describe('forest rows', () => {
 });
 
 describe('comparing two analyses', () => {
-  it('lists the spec settings that differ by path', () => {
-    expect(specChanges({ twoStage: { tau2: 'reml' }, threshold: 0.3, moderators: ['a'] }, { twoStage: { tau2: 'dl' }, threshold: 0.3, moderators: [] })).toEqual([
-      { key: 'moderators', left: '(not set)', right: '[]' },
-      { key: 'moderators[0]', left: '"a"', right: '(not set)' },
+  it('lists the spec settings that differ by path, a section switched off as one line', () => {
+    expect(specChanges({ twoStage: { tau2: 'reml' }, threshold: 0.3, moderators: ['a'], oneStage: { df: 'residual' } }, { twoStage: { tau2: 'dl' }, threshold: 0.3, moderators: [], oneStage: null })).toEqual([
+      { key: 'moderators', left: '["a"]', right: '[]' },
+      { key: 'oneStage', left: '{"df":"residual"}', right: 'off' },
       { key: 'twoStage.tau2', left: '"reml"', right: '"dl"' },
     ]);
+    expect(specChanges({ contrasts: [{ name: 'a', divisor: 1 }] }, { contrasts: [{ name: 'a', divisor: 6 }] })).toEqual([{ key: 'contrasts[0].divisor', left: '1', right: '6' }]);
   });
 
   it('gives each pooled number with its change', () => {
