@@ -174,7 +174,7 @@ describe('analysis builder, results, rates and saved analyses', () => {
     const doubled = command.rateResponse.sensitivity.find((r) => r.multiplier === 2);
     if (!doubled) throw new Error('no ×2 row in the price sensitivity');
     await ui.fill('Input price for the optimum', 2.4); // the input price doubled: ratio × 2
-    await browser.page.waitForFunction(`Number(document.querySelector('[data-testid="optimum-value"]')?.getAttribute('data-value')) !== ${before}`);
+    await ui.attributeWhen(browser.page.getByTestId('optimum-value'), 'data-value', (v) => v !== '' && Number(v) !== before);
     const after = await ui.optimum();
     expect(after).toBeLessThan(before);
     close(after, doubled.optimum);

@@ -64,7 +64,20 @@ export class AnalysisPage {
 
   async optimum(): Promise<number> {
     // the value arrives from the core a moment after the screen opens
-    await this.page.waitForFunction(`(document.querySelector('[data-testid="optimum-value"]')?.getAttribute('data-value') ?? '') !== ''`);
-    return Number(await this.page.getByTestId('optimum-value').getAttribute('data-value'));
+    return Number(await this.attributeWhen(this.page.getByTestId('optimum-value'), 'data-value', (v) => v !== ''));
+  }
+
+  /**
+   * Polls an attribute until it passes (the page's Content-Security-Policy forbids the string
+   * evaluation page.waitForFunction would need).
+   */
+  async attributeWhen(locator: Locator, name: string, test: (value: string) => boolean, timeoutMs = 30_000): Promise<string> {
+    const end = Date.now() + timeoutMs;
+    for (;;) {
+      const value = (await locator.getAttribute(name).catch(() => null)) ?? '';
+      if (test(value)) return value;
+      if (Date.now() > end) throw new Error(`attribute ${name} never passed its test (last "${value}")`);
+      await this.page.waitForTimeout(50);
+    }
   }
 }
