@@ -7,6 +7,14 @@ import { toCsv } from '../shape/csv.js';
 import { useHost } from '../app/hostContext.js';
 import { savedTitle } from './SavedAnalyses.js';
 
+/** Counts without decimals; tiny values in scientific form so a change never reads as 0.0000. */
+function compareNumber(v: number | null): string {
+  if (v === null || !Number.isFinite(v)) return '–';
+  if (Number.isInteger(v)) return formatNumber(v, 0);
+  if (v !== 0 && Math.abs(v) < 5e-5) return v.toExponential(1);
+  return formatNumber(v, 4);
+}
+
 export function CompareView({ left, right }: { left: ResultView; right: ResultView }) {
   const host = useHost();
   const changes = specChanges(left.spec, right.spec);
@@ -73,7 +81,7 @@ export function CompareView({ left, right }: { left: ResultView; right: ResultVi
         <section className="panel" data-testid="compare-spec">
           <h3>Spec: {changes.length === 0 ? 'identical' : `${changes.length} setting(s) differ`}</h3>
           {changes.length > 0 ? (
-            <table className="data">
+            <table className="data spec-table">
               <thead>
                 <tr>
                   <th>Setting</th>

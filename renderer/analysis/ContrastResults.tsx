@@ -84,7 +84,7 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
               prediction={pooled.predictionLower !== null && pooled.predictionUpper !== null ? { lower: pooled.predictionLower, upper: pooled.predictionUpper } : null}
               threshold={view.settings.threshold}
               unit={unit}
-              width={900}
+              width={740}
               decimals={decimals}
               title={`Forest plot of ${contrast}`}
               onRowHover={(r, i) => setHover(r ? sorted[i] : null)}
@@ -98,7 +98,7 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
               prediction={{ lower: pooled.predictionLower, upper: pooled.predictionUpper }}
               threshold={view.settings.threshold}
               unit={unit}
-              width={900}
+              width={740}
               decimals={decimals}
               onRowHover={setHover}
               onRowClick={(r) => onOpenTrial(r.trial)}

@@ -88,9 +88,13 @@ export function RatesView({ rate, within, cautions, prices }: Props) {
             {opt && opt.flags.length > 0 ? ` Note: ${opt.flags.join(', ')}.` : ''}
           </p>
           {atAnalysed ? (
-            <p className="small-text" data-testid="recommendation">
-              Recommended by the analysis: {formatNumber(rec.rate, 1)} {rateUnit} ({rec.source === 'pooled-curve' ? 'pooled curve' : 'mixed-model curve'}). {rate.recommendation.reason}
-            </p>
+            <div className="small-text" data-testid="recommendation">
+              Recommended by the analysis: <strong>{formatNumber(rec.rate, 1)} {rateUnit}</strong> ({rec.source === 'pooled-curve' ? 'pooled curve' : 'mixed-model curve'}).{' '}
+              <details className="inline-details">
+                <summary>Why this one</summary>
+                {sentence(rate.recommendation.reason)}
+              </details>
+            </div>
           ) : null}
           <p className="small-text muted">
             From the mean of {opt?.trialsUsed ?? '–'} trials' fitted curves over {opt?.range ? `${formatNumber(opt.range[0], 0)}–${formatNumber(opt.range[1], 0)}` : '–'} {rateUnit}, the rates tested in every trial.
@@ -99,7 +103,7 @@ export function RatesView({ rate, within, cautions, prices }: Props) {
         <aside className="panel cautions" data-testid="rate-cautions" aria-label="Cautions">
           <h3>⚠ Before using a rate</h3>
           <ul>
-            {[...new Set([...rate.cautions, ...cautions])].map((c) => (
+            {(cautions.length > 0 ? cautions : rate.cautions).map((c) => (
               <li key={c}>{c}</li>
             ))}
           </ul>
@@ -110,8 +114,14 @@ export function RatesView({ rate, within, cautions, prices }: Props) {
   );
 }
 
+/** Engine reasons start in lower case and end without a stop; shown as a sentence. */
+function sentence(text: string): string {
+  const t = text.trim();
+  return t === '' ? t : `${t[0].toUpperCase()}${t.slice(1)}${/[.!?]$/.test(t) ? '' : '.'}`;
+}
+
 function RateCharts({ opt, rate, rateUnit, yieldUnit, analysedInterval }: { opt: Optimum; rate: RateResponseResult; rateUnit: string; yieldUnit: string; analysedInterval: [number | null, number | null] | null }) {
-  const W = 560;
+  const W = 470;
   const m = { l: 60, r: 16 };
   const x = linearScale(opt.curve.map((p) => p.rate), [m.l, W - m.r]);
   const o = opt.optimum;
@@ -136,7 +146,7 @@ function RateCharts({ opt, rate, rateUnit, yieldUnit, analysedInterval }: { opt:
         note={`Top: thin grey lines are each trial's fitted yield gain over the rates every trial tested (${opt.trialCurves.length} trials), the thick line their mean (the pooled curve). Bottom: net return = gain − price ratio ${Number(opt.priceRatio.toPrecision(4))} × rate, in ${yieldUnit}; solid line at the optimum${analysedInterval ? ' with its interval' : ''}, hatched band the profitable range.`}
       >
         <RateChart
-          width={760}
+          width={700}
           rateUnit={rateUnit}
           yieldUnit={yieldUnit}
           trials={opt.trialCurves.map((t) => ({ id: t.trial, label: t.trial, points: t.gains.map((g, i) => ({ rate: opt.curve[i].rate, value: g })) }))}

@@ -25,7 +25,7 @@ function isRecord(v: unknown): v is Record<string, unknown> {
 }
 
 function shown(v: unknown): string {
-  if (v === undefined) return '(not set)';
+  if (v === undefined) return 'not set';
   if (v === null) return 'off';
   const text = JSON.stringify(v);
   return text.length > 90 ? `${text.slice(0, 87)}…` : text;

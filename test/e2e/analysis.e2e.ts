@@ -139,6 +139,9 @@ describe('analysis builder, results, rates and saved analyses', () => {
     await browser.page.getByTestId('forest-frame').scrollIntoViewIfNeeded();
     await browser.page.evaluate('window.scrollBy(0, -60)');
     await screenshot(browser.page, join(screensDir(), 'analysis-forest.png'));
+    await browser.page.getByTestId('forest-pooled').scrollIntoViewIfNeeded();
+    await browser.page.evaluate('window.scrollBy(0, 300)');
+    await screenshot(browser.page, join(screensDir(), 'analysis-forest-pooled.png'));
   });
 
   it('exports the forest table as CSV with every number equal to the command output', async () => {
@@ -170,6 +173,10 @@ describe('analysis builder, results, rates and saved analyses', () => {
     expect(await browser.page.getByTestId('rate-cautions').innerText()).toMatch(/label limits/);
     await browser.page.evaluate('window.scrollTo(0, 0)');
     await screenshot(browser.page, join(screensDir(), 'analysis-rates.png'));
+    await browser.page.getByTestId('rate-curve').scrollIntoViewIfNeeded();
+    await browser.page.evaluate('window.scrollBy(0, 200)');
+    await screenshot(browser.page, join(screensDir(), 'analysis-rates-curves.png'));
+    await browser.page.evaluate('window.scrollTo(0, 0)');
     const before = await ui.optimum();
     const doubled = command.rateResponse.sensitivity.find((r) => r.multiplier === 2);
     if (!doubled) throw new Error('no ×2 row in the price sensitivity');
