@@ -26,15 +26,23 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
   const [hover, setHover] = useState<ForestRow | null>(null);
   const rows = useMemo(() => forestRows(view.trials, contrast, pooled ? { trial: pooled.weights.trial, share: pooled.weights.share } : null), [view.trials, contrast, pooled]);
   const groups = useMemo(() => arrangeForest(rows, sort, group), [rows, sort, group]);
+  // The panels below the forest plot are drawn after it has been painted, so a large analysis
+  // shows its forest plot first and the window never waits on all panels at once.
+  const [details, setDetails] = useState(false);
   // After the browser has painted the plot: the mark `npm run bench:screens` measures to.
   useEffect(() => {
-    const frame = requestAnimationFrame(() =>
-      setTimeout(() => {
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const frame = requestAnimationFrame(() => {
+      timer = setTimeout(() => {
         performance.clearMarks('manyfield:forest-drawn');
         performance.mark('manyfield:forest-drawn');
-      }, 0),
-    );
-    return () => cancelAnimationFrame(frame);
+        setDetails(true);
+      }, 0);
+    });
+    return () => {
+      cancelAnimationFrame(frame);
+      if (timer) clearTimeout(timer);
+    };
   }, [view, contrast]);
   const unit = view.contrastUnits[contrast] ?? view.unit ?? 'units';
   const decimals = decimalsFor(pooled?.se ?? (rows[0]?.se || 1));
@@ -127,15 +135,23 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
           No trial was left out of this contrast.
         </p>
       )}
-      <h2>One-stage and two-stage</h2>
-      <div className="panel-row">
-        <StageComparison agreement={view.agreement.find((a) => a.name === contrast) ?? null} decimals={decimals} />
-        <ShrinkagePlot oneStage={view.oneStage} contrast={contrast} unit={unit} />
-      </div>
-      <h2>What explains the differences (meta-regression)</h2>
-      <MetaRegressionPanel pooled={pooled} rows={rows} covariates={covariates} unit={unit} />
-      <h2>How robust is the answer (sensitivity)</h2>
-      <SensitivityPanel pooled={pooled} unit={unit} />
+      {details ? (
+        <>
+          <h2>One-stage and two-stage</h2>
+          <div className="panel-row">
+            <StageComparison agreement={view.agreement.find((a) => a.name === contrast) ?? null} decimals={decimals} />
+            <ShrinkagePlot oneStage={view.oneStage} contrast={contrast} unit={unit} />
+          </div>
+          <h2>What explains the differences (meta-regression)</h2>
+          <MetaRegressionPanel pooled={pooled} rows={rows} covariates={covariates} unit={unit} />
+          <h2>How robust is the answer (sensitivity)</h2>
+          <SensitivityPanel pooled={pooled} unit={unit} />
+        </>
+      ) : (
+        <p className="status" role="status">
+          Drawing the other panels…
+        </p>
+      )}
     </div>
   );
 }

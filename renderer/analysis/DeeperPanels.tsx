@@ -127,6 +127,24 @@ export function MetaRegressionPanel({ pooled, rows, covariates, unit }: { pooled
   );
 }
 
+/** Beyond this many trials the leave-one-out plot shows the trials that move the estimate most. */
+const LOO_SHOWN = 200;
+
+function mostInfluential(points: readonly ScatterPoint[], all: number | null, keep: number): ScatterPoint[] {
+  if (points.length <= keep || all === null) return [...points];
+  const chosen = [...points].sort((a, b) => Math.abs(b.y - all) - Math.abs(a.y - all) || Number(Boolean(b.flagged)) - Number(Boolean(a.flagged))).slice(0, keep);
+  return chosen.sort((a, b) => a.x - b.x);
+}
+
+function lastPerYear<R extends { year: number; k: number }>(rows: readonly R[]): R[] {
+  const byYear = new Map<number, R>();
+  for (const r of rows) {
+    const seen = byYear.get(r.year);
+    if (!seen || r.k > seen.k) byYear.set(r.year, r);
+  }
+  return [...byYear.values()].sort((a, b) => a.year - b.year);
+}
+
 export function SensitivityPanel({ pooled, unit }: { pooled: CompactPooledEntry; unit: string }) {
   const loo = rowsFromColumnsView(pooled.sensitivity.leaveOneOut);
   const infl = rowsFromColumnsView(pooled.sensitivity.influence);
@@ -134,8 +152,10 @@ export function SensitivityPanel({ pooled, unit }: { pooled: CompactPooledEntry;
   // flagged as influential: Cook's distance above 4/k, or a deleted residual beyond ±3 (common screening rules)
   const k = Math.max(1, pooled.k);
   const flagged = new Set(infl.filter((r) => (r.cooksDistance ?? 0) > 4 / k || Math.abs(r.studentisedDeletedResidual ?? 0) > 3).map((r) => r.trial));
-  const looPts: ScatterPoint[] = loo.flatMap((r, i) => (r.estimate === null ? [] : [{ label: r.trial, x: i + 1, y: r.estimate, lower: r.lower, upper: r.upper, flagged: flagged.has(r.trial) }]));
-  const cumPts: ScatterPoint[] = cum.flatMap((r) => (r.estimate === null ? [] : [{ label: `${r.year} (k=${r.k})`, x: r.year, y: r.estimate, lower: r.lower, upper: r.upper }]));
+  const allLoo: ScatterPoint[] = loo.flatMap((r, i) => (r.estimate === null ? [] : [{ label: r.trial, x: i + 1, y: r.estimate, lower: r.lower, upper: r.upper, flagged: flagged.has(r.trial) }]));
+  const looPts = mostInfluential(allLoo, pooled.estimate, LOO_SHOWN);
+  // one point per year: the pool once all trials up to that year are in
+  const cumPts: ScatterPoint[] = lastPerYear(cum).flatMap((r) => (r.estimate === null ? [] : [{ label: `${r.year} (k=${r.k})`, x: r.year, y: r.estimate, lower: r.lower, upper: r.upper }]));
   return (
     <div className="panel-row" data-testid="sensitivity">
       <ChartFrame
@@ -147,6 +167,11 @@ export function SensitivityPanel({ pooled, unit }: { pooled: CompactPooledEntry;
             : 'No trial stands out as influential (Cook’s distance above 4/k or a deleted residual beyond ±3). The dashed line is the estimate with every trial.'
         }
       >
+        {looPts.length < allLoo.length ? (
+          <p className="small-text muted">
+            Showing the {looPts.length} of {allLoo.length} trials whose removal moves the estimate most; the CSV has them all.
+          </p>
+        ) : null}
         <ScatterChart points={looPts} xLabel="Trial left out (in report order)" yLabel={`Pooled estimate (${unit})`} hline={pooled.estimate} />
       </ChartFrame>
       <ChartFrame
