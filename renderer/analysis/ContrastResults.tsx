@@ -44,6 +44,11 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
       if (timer) clearTimeout(timer);
     };
   }, [view, contrast]);
+  useEffect(() => {
+    if (!details) return;
+    const frame = requestAnimationFrame(() => setTimeout(() => performance.mark('manyfield:panels-drawn'), 0));
+    return () => cancelAnimationFrame(frame);
+  }, [details]);
   const unit = view.contrastUnits[contrast] ?? view.unit ?? 'units';
   const decimals = decimalsFor(pooled?.se ?? (rows[0]?.se || 1));
   if (!pooled) return <p className="muted">Contrast {contrast} was not pooled (pooling is off in the spec).</p>;
