@@ -26,7 +26,10 @@ export function linearScale(values: readonly (number | null | undefined)[], rang
   }
   const pad = (hi - lo) * 0.04;
   const step = niceStep(hi - lo + 2 * pad, tickCount);
+  const allNonNegative = lo >= 0;
   lo = Math.floor((lo - pad) / step) * step;
+  // rates, weights and counts never go below zero: no axis into negative values for them
+  if (allNonNegative) lo = Math.max(0, lo);
   hi = Math.ceil((hi + pad) / step) * step;
   const ticks: number[] = [];
   for (let v = lo; v <= hi + step / 2; v += step) ticks.push(Number(v.toPrecision(12)));
