@@ -62,7 +62,7 @@ export function ContrastResults({ view, contrast, covariates, onOpenTrial }: Pro
           title={`Forest plot: ${contrast}`}
           csv={() => toCsv(FOREST_CSV, sorted)}
           testId="forest-frame"
-          note={`${rows.length} trials with this contrast. Squares: each trial's estimate (area ∝ its weight in the pool), lines: its ${Math.round(view.settings.confidence * 100)}% interval. Diamond: the pooled estimate; hatched bar: where the effect at a new site is expected. Click a trial to open it.`}
+          note={`${rows.length} trials with this contrast. Squares: each trial's estimate (area ∝ its weight in the pool), lines: its ${Math.round(view.settings.confidence * 100)}% interval. Diamond: the pooled estimate; dashed bar: where the effect at a new site is expected. Click a trial to open it.`}
         >
           <div className="forest-controls" role="group" aria-label="Arrange the forest plot">
             <label>

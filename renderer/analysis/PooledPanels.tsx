@@ -66,11 +66,12 @@ export function HeterogeneityPanel({ pooled: p, decimals }: Props) {
         <dd>
           {fmt(p.Q, 2)} ({p.Qdf ?? '–'}), {formatP(p.Qp)}
         </dd>
-        <dt>Method</dt>
-        <dd className="small-text">
-          {p.method.tau2}; {p.method.interval}
-        </dd>
       </dl>
+      <details className="small-text">
+        <summary>How these were computed</summary>
+        <p>{p.method.tau2}</p>
+        <p>{p.method.interval}</p>
+      </details>
       <p className="words">{heterogeneityWords(p)}</p>
     </section>
   );
