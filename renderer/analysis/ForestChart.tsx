@@ -1,6 +1,6 @@
 // The forest plot, plain SVG: one row per trial (square marker with area proportional to its
 // pooling weight, line for its interval), the pooled estimate as a diamond, the new-site
-// prediction interval as a hatched bar with its own label, a solid line at zero and a dashed
+// prediction interval as a dashed bar with end caps and its own label (as the shared chart), a solid line at zero and a dashed
 // line at the break-even threshold. Beyond VIRTUAL_FROM rows only the rows in view are drawn,
 // so 4,000 trials scroll without freezing the window. Sorting and grouping are the caller's.
 import { useMemo, useState, type UIEvent } from 'react';
@@ -108,11 +108,6 @@ export function ForestChart({ groups, pooled, prediction, threshold, unit, width
     const yN = top + 36;
     return (
       <g>
-        <defs>
-          <pattern id="forest-hatch" width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
-            <line x1="0" y1="0" x2="0" y2="6" stroke="#d9822b" strokeWidth="2.5" />
-          </pattern>
-        </defs>
         <line x1={x(0)} x2={x(0)} y1={top} y2={top + 46} stroke="#6b6b6b" />
         <line x1={x(threshold)} x2={x(threshold)} y1={top} y2={top + 46} stroke="#9c3d12" strokeWidth={1.2} strokeDasharray="5 4" />
         {e !== null && pooled.lower !== null && pooled.upper !== null ? (
@@ -131,7 +126,9 @@ export function ForestChart({ groups, pooled, prediction, threshold, unit, width
             <text x={6} y={yN + 4} fontSize={12}>
               New site (prediction)
             </text>
-            <rect x={x(prediction.lower)} y={yN - 5} width={Math.max(1, x(prediction.upper) - x(prediction.lower))} height={10} fill="url(#forest-hatch)" stroke="#d9822b" />
+            <line x1={x(prediction.lower)} x2={x(prediction.upper)} y1={yN} y2={yN} stroke="#8c3b5e" strokeWidth={1.6} strokeDasharray="5 3" />
+            <line x1={x(prediction.lower)} x2={x(prediction.lower)} y1={yN - 4} y2={yN + 4} stroke="#8c3b5e" strokeWidth={1.6} />
+            <line x1={x(prediction.upper)} x2={x(prediction.upper)} y1={yN - 4} y2={yN + 4} stroke="#8c3b5e" strokeWidth={1.6} />
             <text x={width - NUM_W + 4} y={yN + 4} fontSize={12} className="mono">
               [{fmt(prediction.lower)}, {fmt(prediction.upper)}]
             </text>
