@@ -69,9 +69,9 @@ export function CompareView({ left, right }: { left: ResultView; right: ResultVi
               {numbers.map((r) => (
                 <tr key={r.what} className={r.change !== null && Math.abs(r.change) > 1e-12 ? 'changed' : ''}>
                   <td>{r.what}</td>
-                  <td className="num">{formatNumber(r.left, 4)}</td>
-                  <td className="num">{formatNumber(r.right, 4)}</td>
-                  <td className="num">{r.change === null ? '–' : Math.abs(r.change) <= 1e-12 ? 'same' : `${r.change > 0 ? '+' : ''}${formatNumber(r.change, 4)}`}</td>
+                  <td className="num">{compareNumber(r.left)}</td>
+                  <td className="num">{compareNumber(r.right)}</td>
+                  <td className="num">{r.change === null ? '–' : Math.abs(r.change) <= 1e-12 ? 'same' : `${r.change > 0 ? '+' : '−'}${compareNumber(Math.abs(r.change))}`}</td>
                 </tr>
               ))}
             </tbody>
