@@ -6,8 +6,14 @@ import { StartScreen } from '../screens/StartScreen.js';
 import { NetworkScreen } from '../screens/NetworkScreen.js';
 import { IntakeScreen } from '../screens/IntakeScreen.js';
 import { TrialScreen } from '../screens/TrialScreen.js';
+import { AnalysisScreen, newAnalysisMemory } from '../screens/AnalysisScreen.js';
 
-export type Route = { readonly screen: 'start' } | { readonly screen: 'network' } | { readonly screen: 'intake' } | { readonly screen: 'trial'; readonly trial: number };
+export type Route =
+  | { readonly screen: 'start' }
+  | { readonly screen: 'network' }
+  | { readonly screen: 'intake' }
+  | { readonly screen: 'analysis' }
+  | { readonly screen: 'trial'; readonly trial: number; readonly from?: 'network' | 'analysis' };
 
 export interface OpenWorkspace {
   readonly path: string;
@@ -25,6 +31,8 @@ export function App() {
   const [workspace, setWorkspace] = useState<OpenWorkspace | null>(null);
   const [trait, setTrait] = useState<string>('');
   const [problem, setProblem] = useState<string | null>(null);
+  // The analysis screen's builder and results survive a visit to another screen.
+  const [analysisMemory, setAnalysisMemory] = useState(newAnalysisMemory);
 
   /** Reads the workspace description again (after an import or an exclusion). */
   const refresh = useCallback(
@@ -35,7 +43,10 @@ export function App() {
         return false;
       }
       setProblem(null);
-      setWorkspace({ path, info: r.data });
+      setWorkspace((w) => {
+        if (w?.path !== path) setAnalysisMemory(newAnalysisMemory());
+        return { path, info: r.data };
+      });
       setTrait((t) => (r.data.traits.some((x) => x.name === t) ? t : defaultTrait(r.data.traits.map((x) => x.name))));
       return true;
     },
@@ -85,6 +96,7 @@ export function App() {
           {nav({ screen: 'start' }, 'Start', false)}
           {nav({ screen: 'network' }, 'Network', true)}
           {nav({ screen: 'intake' }, 'Intake', true)}
+          {nav({ screen: 'analysis' }, 'Analysis', true)}
         </nav>
         <span className="topbar-workspace" title={workspace?.path}>
           {workspace ? workspace.info.name : 'No workspace open'}
@@ -102,13 +114,25 @@ export function App() {
           <NetworkScreen workspace={workspace} trait={trait} onTrait={setTrait} onOpenTrial={(id) => setRoute({ screen: 'trial', trial: id })} />
         ) : route.screen === 'intake' ? (
           <IntakeScreen workspace={workspace} onImported={() => refresh(workspace.path)} onShowNetwork={() => setRoute({ screen: 'network' })} />
+        ) : route.screen === 'analysis' ? (
+          <AnalysisScreen
+            workspace={workspace}
+            trait={trait}
+            memory={analysisMemory}
+            onOpenTrial={async (label) => {
+              const r = await host.call('trials.overview', { workspace: workspace.path, trait });
+              const found = r.ok ? r.data.find((t) => t.label === label) : undefined;
+              if (found) setRoute({ screen: 'trial', trial: found.id, from: 'analysis' });
+              else setProblem(`Trial ${label} is not in this workspace any more.`);
+            }}
+          />
         ) : (
           <TrialScreen
             workspace={workspace}
             trial={route.trial}
             trait={trait}
             onTrait={setTrait}
-            onBack={() => setRoute({ screen: 'network' })}
+            onBack={() => setRoute({ screen: route.from ?? 'network' })}
             onChanged={() => refresh(workspace.path)}
           />
         )}

@@ -20,6 +20,10 @@ export const HANDLER_NAMES = [
   'analysis.list',
   'analysis.open',
   'analysis.trial',
+  'analysis.rename',
+  'analysis.delete',
+  'rates.optimum',
+  'trials.covariates',
 ] as const;
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];

@@ -31,6 +31,8 @@ const rowId = z.number().int().positive();
 import type { AnalysisListing } from '../store/analyses.js';
 import type { AnyAnalysisReport } from './analysis/report.js';
 import type { SavedAnalysisSummary, SavedTrialDetail } from './analysis/saved.js';
+import type { RateOptimumResult } from './analysis/rateOptimum.js';
+import type { TrialCovariates } from '../store/trialCovariates.js';
 
 export const handlerArgs = {
   'demo.build': z.object({ workspace: z.string().min(1), replace: z.boolean().default(false) }).strict(),
@@ -73,6 +75,30 @@ export const handlerArgs = {
     })
     .strict(),
   'analysis.trial': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), trial: z.string().min(1) }).strict(),
+  'analysis.rename': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), name: z.string().max(200) }).strict(),
+  'analysis.delete': z.object({ workspace: workspacePath, analysis: z.number().int().positive() }).strict(),
+  'trials.covariates': z.object({ workspace: workspacePath }).strict(),
+  // The optimum at another price ratio from the fitted curves a rate-response result holds (no refit).
+  'rates.optimum': z
+    .object({
+      trials: z
+        .array(
+          z
+            .object({
+              trial: z.string().min(1).max(200),
+              model: z.enum(['linear', 'quadratic', 'linear-plateau', 'quadratic-plateau', 'exponential']).nullable(),
+              params: z.record(z.string().max(40), z.number().nullable()),
+              testedRange: z.tuple([z.number().nullable(), z.number().nullable()]),
+              converged: z.boolean(),
+            })
+            .strip(),
+        )
+        .max(20000),
+      priceRatio: z.number().positive().finite(),
+      within: z.number().nonnegative().finite().default(0),
+      points: z.number().int().min(2).max(401).default(81),
+    })
+    .strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -97,6 +123,10 @@ export interface HandlerResults {
   'analysis.list': AnalysisListing[];
   'analysis.open': SavedAnalysisSummary;
   'analysis.trial': SavedTrialDetail;
+  'analysis.rename': { id: number; name: string | null };
+  'analysis.delete': { id: number };
+  'rates.optimum': RateOptimumResult;
+  'trials.covariates': TrialCovariates[];
 }
 
 export { HANDLER_NAMES, LONG_HANDLERS } from './handlerNames.js';
@@ -131,6 +161,19 @@ const implementations: Implementations = {
   'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
   'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials, a.tables),
   'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),
+  'analysis.rename': async (a) => (await import('./analysis/saved.js')).renameSavedAnalysis(a.workspace, a.analysis, a.name),
+  'analysis.delete': async (a) => (await import('./analysis/saved.js')).deleteSavedAnalysis(a.workspace, a.analysis),
+  'trials.covariates': async (a) => {
+    const store = await import('../store/index.js');
+    const { listTrialCovariates } = await import('../store/trialCovariates.js');
+    const ws = store.openWorkspace(a.workspace);
+    try {
+      return listTrialCovariates(ws);
+    } finally {
+      ws.close();
+    }
+  },
+  'rates.optimum': async (a) => (await import('./analysis/rateOptimum.js')).rateOptimumAt(a),
 };
 
 function bind<K extends HandlerName>(name: K): HandlerMap[K] {

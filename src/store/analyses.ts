@@ -89,6 +89,8 @@ export function saveAnalysis(ws: Workspace, spec: unknown, fingerprint: string, 
 
 export interface StoredAnalysis {
   readonly id: number;
+  /** The user's name for it (migration 0005); absent or null until named. */
+  readonly name?: string | null;
   readonly spec: unknown;
   readonly dataFingerprint: string;
   readonly appVersion: string;
@@ -129,6 +131,8 @@ function isTwoStageWithTrials(payload: unknown): payload is { trials: readonly S
 
 export interface AnalysisListing {
   readonly id: number;
+  /** The name the user gave the analysis (migration 0005); null until named. */
+  readonly name: string | null;
   readonly trait: string | null;
   readonly dataFingerprint: string;
   readonly appVersion: string;
@@ -141,15 +145,16 @@ export interface AnalysisListing {
 export function listAnalyses(ws: Workspace): AnalysisListing[] {
   const rows = ws.db
     .prepare(
-      `SELECT a.id, a.spec_json, a.data_fingerprint, a.app_version, a.created_at, a.status,
+      `SELECT a.id, a.name, a.spec_json, a.data_fingerprint, a.app_version, a.created_at, a.status,
               (SELECT payload_json FROM analysis_result r WHERE r.analysis_id = a.id AND r.kind = 'trialsAnalysed') AS trials
        FROM analysis a ORDER BY a.id DESC`,
     )
-    .all() as { id: number; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus; trials: string | null }[];
+    .all() as { id: number; name: string | null; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus; trials: string | null }[];
   return rows.map((r) => {
     const spec = JSON.parse(r.spec_json) as { trait?: unknown };
     return {
       id: r.id,
+      name: r.name,
       trait: typeof spec.trait === 'string' ? spec.trait : null,
       dataFingerprint: r.data_fingerprint,
       appVersion: r.app_version,
@@ -194,8 +199,33 @@ export function loadAnalysisSummary(ws: Workspace, id: number, options: { tables
 
 export function loadAnalysisHead(ws: Workspace, id: number): Omit<StoredAnalysis, 'results'> {
   const row = ws.db
-    .prepare('SELECT id, spec_json, data_fingerprint, app_version, created_at, status FROM analysis WHERE id = ?')
-    .get(id) as { id: number; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus } | undefined;
+    .prepare('SELECT id, name, spec_json, data_fingerprint, app_version, created_at, status FROM analysis WHERE id = ?')
+    .get(id) as { id: number; name: string | null; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus } | undefined;
   if (!row) throw new ManyfieldError('not-found', `no analysis with id ${id} in this workspace`);
-  return { id: row.id, spec: JSON.parse(row.spec_json), dataFingerprint: row.data_fingerprint, appVersion: row.app_version, createdAt: row.created_at, status: row.status };
+  return { id: row.id, name: row.name, spec: JSON.parse(row.spec_json), dataFingerprint: row.data_fingerprint, appVersion: row.app_version, createdAt: row.created_at, status: row.status };
+}
+
+/** The longest name an analysis may carry. */
+export const MAX_ANALYSIS_NAME = 200;
+
+/** Give a saved analysis a name (trimmed); an empty name clears it. Nothing else changes. */
+export function renameAnalysis(ws: Workspace, id: number, name: string): { id: number; name: string | null } {
+  const trimmed = name.trim();
+  if (trimmed.length > MAX_ANALYSIS_NAME) throw new ManyfieldError('invalid-argument', `an analysis name has at most ${MAX_ANALYSIS_NAME} characters (${trimmed.length} given)`);
+  const stored = trimmed === '' ? null : trimmed;
+  const changed = ws.db.prepare('UPDATE analysis SET name = ? WHERE id = ?').run(stored, id).changes;
+  if (changed === 0) throw new ManyfieldError('not-found', `no analysis with id ${id} in this workspace`);
+  return { id, name: stored };
+}
+
+/** Remove a saved analysis with its results and per-trial rows, in one transaction. */
+export function deleteAnalysis(ws: Workspace, id: number): { id: number } {
+  const run = ws.db.transaction(() => {
+    // explicit deletes: the cascade depends on the connection's foreign-key setting
+    ws.db.prepare('DELETE FROM analysis_trial WHERE analysis_id = ?').run(id);
+    ws.db.prepare('DELETE FROM analysis_result WHERE analysis_id = ?').run(id);
+    return ws.db.prepare('DELETE FROM analysis WHERE id = ?').run(id).changes;
+  });
+  if (run.immediate() === 0) throw new ManyfieldError('not-found', `no analysis with id ${id} in this workspace`);
+  return { id };
 }

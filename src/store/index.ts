@@ -35,6 +35,8 @@ export {
   loadAnalysisHead,
   loadAnalysisSummary,
   listAnalyses,
+  renameAnalysis,
+  deleteAnalysis,
   type SaveAnalysisOptions,
   type StoredAnalysis,
   type AnalysisStatus,

@@ -50,7 +50,9 @@ describe('browser-mode security', () => {
       expect((await rawRequest(server.port, path, {}, 'POST')).status).toBe(401);
       expect((await rawRequest(server.port, path, { 'x-manyfield-token': 'wrong' }, 'POST')).status).toBe(401);
       expect((await rawRequest(server.port, path, { cookie: `${TOKEN_COOKIE}=wrong` }, 'POST')).status).toBe(401);
-      expect((await rawRequest(server.port, `${path}?token=${server.token.slice(0, -1)}x`, {}, 'POST')).status).toBe(401);
+      // one character changed (a token that happens to end in "x" gets a "y")
+      const near = `${server.token.slice(0, -1)}${server.token.endsWith('x') ? 'y' : 'x'}`;
+      expect((await rawRequest(server.port, `${path}?token=${near}`, {}, 'POST')).status).toBe(401);
     }
   });
 

@@ -40,6 +40,14 @@ export async function listSavedAnalyses(workspace: string): Promise<AnalysisList
   return withWorkspace(workspace, (ws, store) => store.listAnalyses(ws));
 }
 
+export async function renameSavedAnalysis(workspace: string, analysis: number, name: string): Promise<{ id: number; name: string | null }> {
+  return withWorkspace(workspace, (ws, store) => store.renameAnalysis(ws, analysis, name));
+}
+
+export async function deleteSavedAnalysis(workspace: string, analysis: number): Promise<{ id: number }> {
+  return withWorkspace(workspace, (ws, store) => store.deleteAnalysis(ws, analysis));
+}
+
 export async function openSavedAnalysis(workspace: string, analysis: number, page?: { offset: number; limit: number }, tables = false): Promise<SavedAnalysisSummary> {
   return withWorkspace(workspace, (ws, store) => {
     const summary = store.loadAnalysisSummary(ws, analysis, { tables });
