@@ -20,6 +20,7 @@ export const HANDLER_NAMES = [
   'analysis.list',
   'analysis.open',
   'analysis.trial',
+  'report.build',
 ] as const;
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];

@@ -71,6 +71,8 @@ export const handlerArgs = {
     })
     .strict(),
   'analysis.trial': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), trial: z.string().min(1) }).strict(),
+  // The recommendation report of a saved analysis (src/api/report/buildReport.ts)
+  'report.build': z.object({ workspace: workspacePath, analysis: z.number().int().positive() }).strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -94,6 +96,7 @@ export interface HandlerResults {
   'data.validate': ValidationReport;
   'analysis.list': AnalysisListing[];
   'analysis.open': SavedAnalysisSummary;
+  'report.build': { readonly html: string; readonly reproduced: boolean | null };
   'analysis.trial': SavedTrialDetail;
 }
 
@@ -126,6 +129,10 @@ const implementations: Implementations = {
   'exclusions.list': async (a) => (await import('./plots/exclusions.js')).listExclusions(a.workspace),
   'data.preview': async (a) => (await import('./intake/preview.js')).previewFile(a.file, basename(a.file), a.sheet),
   'data.validate': async (a, ctx) => (await import('./intake/validate.js')).validateFile(a.workspace, a.file, basename(a.file), a.mapping, ctx),
+  'report.build': async (a, ctx) => {
+    const r = await (await import('./report/buildReport.js')).buildReport({ workspace: a.workspace, analysis: a.analysis }, ctx);
+    return { html: r.html, reproduced: r.reproduced };
+  },
   'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
   'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials),
   'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),
