@@ -32,6 +32,8 @@ export interface NumberOptions {
 export function num(key: string, value: Maybe, decimals: number, o: NumberOptions = {}): string {
   if (!finite(value)) return '<span class="na">n/a</span>';
   if (o.p && value < 0.0001) return `<span class="n" data-key="${esc(key)}" data-bound="below">&lt; 0.0001</span>`;
+  if (o.percent && value > 0.995) return `<span class="n" data-key="${esc(key)}" data-bound="above" data-scale="100">more than 99.5%</span>`;
+  if (o.percent && value < 0.005 && value > 0) return `<span class="n" data-key="${esc(key)}" data-bound="below" data-scale="100">less than 0.5%</span>`;
   const shown = o.percent ? value * 100 : value;
   const d = o.p ? (value < 0.01 ? 4 : 3) : decimals;
   return `<span class="n" data-key="${esc(key)}" data-decimals="${d}"${o.percent ? ' data-scale="100"' : ''}>${fixedText(shown, d)}${o.percent ? '%' : ''}</span>`;
@@ -56,4 +58,10 @@ export interface Section {
 
 export function sectionHtml(s: Section, number: number): string {
   return `<section id="${esc(s.id)}" class="${s.newPage ? 'new-page' : ''}"><h2>${number}. ${esc(s.title)}</h2>${s.html}</section>`;
+}
+
+/** Decimals that show three significant digits of x (0 to 8). */
+export function sigDecimals(x: Maybe): number {
+  if (!finite(x) || x === 0) return 2;
+  return Math.min(8, Math.max(0, 2 - Math.floor(Math.log10(Math.abs(x)))));
 }

@@ -3,7 +3,7 @@
 // With many trials the forest plot shows the heaviest-weighted ones; the appendix has them all.
 import type { CompactAnalysisReport } from '../../../api/analysis/report.js';
 import type { ForestRow } from '../../charts/chartData.js';
-import { decimalsFromSe, esc, finite, num, table, type Section } from '../markup.js';
+import { decimalsFromSe, esc, finite, num, sigDecimals, table, type Section } from '../markup.js';
 import { trialSummaries, type ReportCharts } from '../reportInput.js';
 import { contrastSentence } from './summarySentences.js';
 
@@ -30,9 +30,9 @@ function moderatorsHtml(a: CompactAnalysisReport, i: number): string {
   const mr = a.twoStage.pooled[i].metaRegression;
   if (!mr) return '';
   const key = `twoStage.pooled.${i}.metaRegression`;
-  const rows = mr.coefficients.map((c, j) => [esc(c.term), num(`${key}.coefficients.${j}.estimate`, c.estimate, 4), num(`${key}.coefficients.${j}.se`, c.se, 4), num(`${key}.coefficients.${j}.p`, c.p, 3, { p: true })]);
+  const rows = mr.coefficients.map((c, j) => [esc(c.term), num(`${key}.coefficients.${j}.estimate`, c.estimate, decimalsFromSe(c.se) + 1), num(`${key}.coefficients.${j}.se`, c.se, decimalsFromSe(c.se) + 1), num(`${key}.coefficients.${j}.p`, c.p, 3, { p: true })]);
   const test = mr.moderatorTest;
-  return `<h4>Moderators</h4>${table(['Term', 'Coefficient', 'SE', 'p'], rows, 'narrow')}<p>Joint test of the moderators: p = ${num(`${key}.moderatorTest.p`, test?.p, 3, { p: true })}; tau² left unexplained ${num(`${key}.residualTau2`, mr.residualTau2, 4)}, share of tau² explained ${num(`${key}.tau2Explained`, mr.tau2Explained, 0, { percent: true })}. A moderator that explains little is no reason to give different advice by site.</p>`;
+  return `<h4>Moderators</h4>${table(['Term', 'Coefficient', 'SE', 'p'], rows, 'narrow')}<p>Joint test of the moderators: p ${num(`${key}.moderatorTest.p`, test?.p, 3, { p: true })}; tau² left unexplained ${num(`${key}.residualTau2`, mr.residualTau2, sigDecimals(mr.residualTau2))}, share of tau² explained ${num(`${key}.tau2Explained`, mr.tau2Explained, 0, { percent: true })}. A moderator that explains little is no reason to give different advice by site.</p>`;
 }
 
 function sensitivityHtml(a: CompactAnalysisReport, i: number, d: number): string {

@@ -27,7 +27,7 @@ export function contrastSentence(a: CompactAnalysisReport, i: number): string {
       `At a new site the effect is expected between ${num(`${key}.predictionLower`, p.predictionLower, d)} and ${num(`${key}.predictionUpper`, p.predictionUpper, d)}${u} (${level} prediction interval)${spans ? ', so a loss at some sites cannot be ruled out' : ''}.`,
     );
     const t = a.settings.threshold;
-    if (t !== 0 && finite(p.probAboveThreshold))
+    if (t !== 0 && finite(p.probAboveThreshold) && unit === (a.unit ?? ''))
       parts.push(`The chance that a new site gains more than the break-even ${num('settings.threshold', t, Math.max(d, 1))}${u} (a profitable response at current prices) is ${num(`${key}.probAboveThreshold`, p.probAboveThreshold, 0, { percent: true })}.`);
     else if (finite(p.probPositive)) parts.push(`The chance of a positive effect at a new site is ${num(`${key}.probPositive`, p.probPositive, 0, { percent: true })}.`);
   } else parts.push('Too few trials for a prediction at a new site.');
