@@ -12,6 +12,8 @@ table.narrow{width:auto}table.keyvals td:first-child{color:#3a414b}
 table.appendix{font-size:8pt}table.appendix td,table.appendix th{padding:1px 4px}
 table.hashes code{font-size:7.5pt;word-break:break-all}
 tr{break-inside:avoid}
+h2,h3,h4{break-after:avoid;page-break-after:avoid}
+.sentence,.summary p{break-inside:avoid}
 figure.chart{margin:10px 0;break-inside:avoid;page-break-inside:avoid}
 figure.chart svg{max-width:100%;height:auto}
 figcaption{font-size:9pt;color:#3a414b;margin-top:4px}
