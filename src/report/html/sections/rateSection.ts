@@ -61,6 +61,7 @@ export function rateSection(a: CompactAnalysisReport, charts: ReportCharts): Sec
   const ru = esc(rr.rateUnit ?? '');
   const yu = esc(rr.yieldUnit ?? '');
   const parts: string[] = [rateSentence(a) ?? ''];
+  parts.push(`<figure class="chart">${charts.rate(rateChartData(rr, 680))}<figcaption>Top: yield gain over the control of each trial's fitted curve (thin) and the pooled curve (thick). Bottom: net return of the pooled curve after paying for the input, with the economic optimum (vertical line), its interval (capped bar) and the near-best rates (shaded and hatched).</figcaption></figure>`);
   const rec = rr.recommendation.recommended;
   const rk = 'rateResponse.recommendation.recommended';
   parts.push(
@@ -82,7 +83,6 @@ export function rateSection(a: CompactAnalysisReport, charts: ReportCharts): Sec
     const c = rr.recommendation.check;
     parts.push(`<p class="note">Check: the ${c.source === 'mixed-model-curve' ? 'mixed-model population curve' : 'pooled curve'} gives ${num('rateResponse.recommendation.check.rate', c.rate, 1)} ${ru}; ${esc(c.comparison)}.</p>`);
   }
-  parts.push(`<figure class="chart">${charts.rate(rateChartData(rr, 680))}<figcaption>Top: yield gain over the control of each trial's fitted curve (thin) and the pooled curve (thick). Bottom: net return of the pooled curve after paying for the input, with the economic optimum (vertical line), its interval (capped bar) and the near-best rates (shaded and hatched).</figcaption></figure>`);
   parts.push(
     '<h3>Price sensitivity</h3>',
     table(

@@ -50,5 +50,5 @@ export function rateSentence(a: CompactAnalysisReport): string | null {
     nb && finite(nb.lower) && finite(nb.upper) && nb.within > 0
       ? ` Rates from ${num('rateResponse.recommendation.nearBest.lower', nb.lower, 0)} to ${num('rateResponse.recommendation.nearBest.upper', nb.upper, 0)}${ru} return within ${num('rateResponse.recommendation.nearBest.within', nb.within, 2)} ${esc(rr.yieldUnit ?? '')} of the best.`
       : '';
-  return `<p class="sentence">At the price ratio of ${num('rateResponse.priceRatio', rr.priceRatio, 4)}, the economic optimum rate of ${esc(rr.factor)} is ${num(`${k}.rate`, rec.rate, 0)}${ru}${interval}.${near} This summarises these trials only; label limits and local advice come first.</p>`;
+  return `<p class="sentence">At the price ratio of ${num('rateResponse.priceRatio', rr.priceRatio, 4)}, the economic optimum ${rr.factor.toLowerCase() === 'rate' ? 'rate' : `rate of ${esc(rr.factor)}`} is ${num(`${k}.rate`, rec.rate, 0)}${ru}${interval}.${near} This summarises these trials only; label limits and local advice come first.</p>`;
 }
