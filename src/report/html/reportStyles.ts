@@ -11,6 +11,7 @@ th{background:#eeebe3}
 table.narrow{width:auto}table.keyvals td:first-child{color:#3a414b}
 table.appendix{font-size:8pt}table.appendix td,table.appendix th{padding:1px 4px}
 table.hashes code{font-size:7.5pt;word-break:break-all}
+td code{word-break:break-all;overflow-wrap:anywhere}
 tr{break-inside:avoid}
 h2,h3,h4{break-after:avoid;page-break-after:avoid}
 .sentence,.summary p{break-inside:avoid}
