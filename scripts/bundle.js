@@ -32,7 +32,7 @@ const noZodLocaleList = {
 
 // Files of earlier builds (the ES-module bundle and its chunks) are removed so dist/cli/ holds one build.
 const outDir = join(root, 'dist', 'cli');
-if (existsSync(outDir)) for (const f of readdirSync(outDir)) if (/^(chunk-.*\.mjs|bundle\.mjs|bundle\.cjs|analysisWorker\.cjs)$/.test(f)) rmSync(join(outDir, f));
+if (existsSync(outDir)) for (const f of readdirSync(outDir)) if (/^(chunk-.*\.mjs|bundle\.mjs|bundle\.cjs|analysisWorker\.cjs|reportCharts\.cjs)$/.test(f)) rmSync(join(outDir, f));
 await esbuild.build({
   absWorkingDir: root,
   // The analysis worker (src/api/analysis/cancellable.ts finds it beside the bundle).
@@ -51,11 +51,27 @@ await esbuild.build({
   bundle: true,
   platform: 'node',
   target: 'node20',
-  external: ['better-sqlite3'],
+  external: ['better-sqlite3', 'playwright-core'],
   // The one use of import.meta (the store finding ../../migrations from its own file): the
   // bundle's own URL, which sits in dist/cli/ like the compiled module, so the path is the same.
   define: { 'import.meta.url': '__manyfieldModuleUrl' },
   banner: { js: "const __manyfieldModuleUrl = require('node:url').pathToFileURL(__filename).href;" },
   plugins: [noZodLocaleList],
+  logLevel: 'warning',
+});
+// The shared charts (React, pure SVG) for the report, drawn to text in Node.
+await esbuild.build({
+  absWorkingDir: root,
+  entryPoints: { reportCharts: 'renderer/charts/shared/staticCharts.tsx' },
+  outdir: 'dist/cli',
+  outExtension: { '.js': '.cjs' },
+  format: 'cjs',
+  jsx: 'automatic',
+  minifyWhitespace: true,
+  minifySyntax: true,
+  bundle: true,
+  platform: 'node',
+  target: 'node20',
+  define: { 'process.env.NODE_ENV': '"production"' },
   logLevel: 'warning',
 });

@@ -24,6 +24,7 @@ export const HANDLER_NAMES = [
   'analysis.delete',
   'rates.optimum',
   'trials.covariates',
+  'report.build',
 ] as const;
 
 export type HandlerNameList = (typeof HANDLER_NAMES)[number];

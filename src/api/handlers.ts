@@ -99,6 +99,8 @@ export const handlerArgs = {
       points: z.number().int().min(2).max(401).default(81),
     })
     .strict(),
+  // The recommendation report of a saved analysis (src/api/report/buildReport.ts)
+  'report.build': z.object({ workspace: workspacePath, analysis: z.number().int().positive() }).strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -122,6 +124,7 @@ export interface HandlerResults {
   'data.validate': ValidationReport;
   'analysis.list': AnalysisListing[];
   'analysis.open': SavedAnalysisSummary;
+  'report.build': { readonly html: string; readonly reproduced: boolean | null };
   'analysis.trial': SavedTrialDetail;
   'analysis.rename': { id: number; name: string | null };
   'analysis.delete': { id: number };
@@ -158,6 +161,10 @@ const implementations: Implementations = {
   'exclusions.list': async (a) => (await import('./plots/exclusions.js')).listExclusions(a.workspace),
   'data.preview': async (a) => (await import('./intake/preview.js')).previewFile(a.file, basename(a.file), a.sheet),
   'data.validate': async (a, ctx) => (await import('./intake/validate.js')).validateFile(a.workspace, a.file, basename(a.file), a.mapping, ctx),
+  'report.build': async (a, ctx) => {
+    const r = await (await import('./report/buildReport.js')).buildReport({ workspace: a.workspace, analysis: a.analysis }, ctx);
+    return { html: r.html, reproduced: r.reproduced };
+  },
   'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
   'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials, a.tables),
   'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),

@@ -17,6 +17,8 @@ Commands:
   analyze  --spec S.json (--data F | --workspace W) [--json] [--out FILE]
                                                  run the trial stage, pooling, the one-stage model
                                                  and the rate response the spec asks for
+  report   (--spec S.json | --analysis ID) (--data F | --workspace W) --out R.html [--pdf R.pdf]
+                                                 write the recommendation report (HTML, and PDF)
 
 The spec (JSON) names the trait, contrasts, the one-stage model, pooling and the rate response;
 the README lists every key. One-stage random terms are named in words: trial, block,
@@ -64,6 +66,16 @@ Lists the trials held in W: site, year, design, plots, treatments and traits.`,
 
 Writes one trait's plots in long format (site, year, trial, design, block, row, col,
 treatment, plot label, factors, covariates, value), readable back by import.`,
+
+  report: `manyfield report (--spec S.json | --analysis ID) (--data F | --workspace W) --out R.html [--pdf R.pdf]
+
+Writes the recommendation report for a committee: one self-contained HTML file (no script,
+no network) with the question, the data, the methods cited, each contrast's results with
+its forest plot, the rate to recommend, diagnostics, cautions and provenance (the spec, the
+data fingerprint and the imported files' SHA-256), and every trial in an appendix.
+  --analysis ID  re-run a saved analysis of W (its spec) and check its data fingerprint
+  --pdf R.pdf    also print it to PDF with Chromium (/usr/bin/chromium or MANYFIELD_CHROMIUM)
+Nothing is stored in the workspace.`,
 
   analyze: `manyfield analyze --spec S.json (--data F | --workspace W) [--json] [--out FILE] [--no-save]
 

@@ -161,6 +161,37 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       } else out.stdout.push(text);
       return 0;
     }
+    case 'report': {
+      const o = optionsFor(command, parsed, { values: ['spec', 'data', 'workspace', 'out', 'pdf', 'analysis'], flags: [] });
+      const data = o.value('data');
+      const workspace = o.value('workspace');
+      if ((data === undefined) === (workspace === undefined)) throw new UsageError('report: give exactly one of --data and --workspace');
+      const analysisText = o.value('analysis');
+      const specPath = o.value('spec');
+      if ((analysisText === undefined) === (specPath === undefined)) throw new UsageError('report: give exactly one of --spec and --analysis');
+      const analysis = analysisText === undefined ? undefined : plotId(command, analysisText);
+      const target = o.required('out');
+      checkOutputFolder(target);
+      const pdf = o.value('pdf');
+      if (pdf !== undefined) checkOutputFolder(pdf);
+      const progress = terminalProgress();
+      const { buildReport } = await import('../api/report/buildReport.js');
+      let built: Awaited<ReturnType<typeof buildReport>>;
+      try {
+        built = await buildReport({ workspace, data, spec: specPath === undefined ? undefined : readJson(specPath), analysis }, { onProgress: progress.onProgress });
+      } finally {
+        progress.done();
+      }
+      writeAtomically(target, built.html);
+      out.stdout.push(`Wrote the report to ${target}\n`);
+      if (built.reproduced === false) process.stderr.write(`manyfield: warning: the data changed since analysis ${analysis} was saved (fingerprints differ); the report says so\n`);
+      if (pdf !== undefined) {
+        const { printReportPdf } = await import('../report/pdf/printPdf.js');
+        await printReportPdf(built.html, pdf, `Recommendation report: ${built.analysis.trait}`);
+        out.stdout.push(`Printed the report to ${pdf}\n`);
+      }
+      return 0;
+    }
     default:
       throw new UsageError(`unknown command "${command}"`);
   }

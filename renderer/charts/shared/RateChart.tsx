@@ -64,10 +64,11 @@ export function RateChart(props: RateChartProps) {
       </g>
       {L.pooledPath && <path data-testid="rate-pooled-curve" d={L.pooledPath} fill="none" stroke={POOLED} strokeWidth={3} />}
       <g fontSize={10} fill={INK}>
-        <line x1={L.right - 170} x2={L.right - 148} y1={L.gain.top + 8} y2={L.gain.top + 8} stroke="#9aa1a9" />
-        <text x={L.right - 144} y={L.gain.top + 11}>each trial (thin)</text>
-        <line x1={L.right - 170} x2={L.right - 148} y1={L.gain.top + 22} y2={L.gain.top + 22} stroke={POOLED} strokeWidth={3} />
-        <text x={L.right - 144} y={L.gain.top + 25}>pooled curve (thick)</text>
+        <rect x={L.right - 176} y={L.gain.bottom - 40} width={172} height={34} fill="#ffffff" fillOpacity={0.85} />
+        <line x1={L.right - 170} x2={L.right - 148} y1={L.gain.bottom - 30} y2={L.gain.bottom - 30} stroke="#9aa1a9" />
+        <text x={L.right - 144} y={L.gain.bottom - 27}>each trial (thin)</text>
+        <line x1={L.right - 170} x2={L.right - 148} y1={L.gain.bottom - 16} y2={L.gain.bottom - 16} stroke={POOLED} strokeWidth={3} />
+        <text x={L.right - 144} y={L.gain.bottom - 13}>pooled curve (thick)</text>
       </g>
       <YAxis p={L.net} left={L.left} right={L.right} label={`Net return of the pooled curve${yu}, input cost deducted`} />
       {L.profitable && (
@@ -90,7 +91,7 @@ export function RateChart(props: RateChartProps) {
           )}
           <text
             x={L.optimum.x + (L.optimum.x > (L.left + L.right) / 2 ? -4 : 4)}
-            y={L.net.top + 26}
+            y={L.net.bottom - 28}
             textAnchor={L.optimum.x > (L.left + L.right) / 2 ? 'end' : 'start'}
             fontSize={10}
             fill={INK}

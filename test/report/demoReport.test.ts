@@ -1,0 +1,129 @@
+// The demo report end to end through the built command (run "npm run build" first): the HTML
+// stands alone, every marked number equals the analysis JSON obtained by re-running the spec
+// read back from the report itself (so the same run checks reproduction: same fingerprint, same
+// numbers), and the PDF has the sections and page numbers (poppler's pdfinfo and pdftotext).
+// Page images go to test-output/report/ for a person to look at. Tolerance: half a unit of the
+// last decimal shown (plus 1e-12), for numbers that are rounded for reading.
+import { spawnSync } from 'node:child_process';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+
+const ROOT = fileURLToPath(new URL('../..', import.meta.url));
+const BIN = join(ROOT, 'bin', 'manyfield.cjs');
+const OUT = join(ROOT, 'test-output', 'report');
+const SPEC = join(ROOT, 'examples', 'demo-analysis.json');
+
+function run(args: string[]): string {
+  const r = spawnSync(process.execPath, [BIN, ...args], { encoding: 'utf8', timeout: 300_000, maxBuffer: 64 << 20 });
+  if (r.status !== 0) throw new Error(`manyfield ${args[0]} failed (${r.status}): ${r.stderr}`);
+  return r.stdout;
+}
+
+function unescapeHtml(s: string): string {
+  return s.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&amp;/g, '&');
+}
+
+/** Every element carrying data-key, with its attributes and text, read from the markup. */
+function markedNumbers(html: string): { key: string; attrs: Record<string, string>; text: string }[] {
+  const out: { key: string; attrs: Record<string, string>; text: string }[] = [];
+  for (const m of html.matchAll(/<span ([^>]*data-key="[^"]*"[^>]*)>([^<]*)<\/span>/g)) {
+    const attrs: Record<string, string> = {};
+    for (const a of m[1].matchAll(/([\w-]+)="([^"]*)"/g)) attrs[a[1]] = unescapeHtml(a[2]);
+    out.push({ key: attrs['data-key'], attrs, text: unescapeHtml(m[2]) });
+  }
+  return out;
+}
+
+function at(doc: unknown, path: string): unknown {
+  return path.split('.').reduce<unknown>((o, k) => (o === null || o === undefined ? undefined : (o as Record<string, unknown>)[k]), doc);
+}
+
+let dir: string;
+let html: string;
+let rerun: Record<string, unknown>;
+
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), 'mf-report-'));
+  mkdirSync(OUT, { recursive: true });
+  for (const f of readdirSync(OUT)) rmSync(join(OUT, f), { force: true });
+  const ws = join(dir, 'demo.manyfield');
+  run(['demo', '--workspace', ws]);
+  run(['report', '--workspace', ws, '--spec', SPEC, '--out', join(OUT, 'demo.html'), '--pdf', join(OUT, 'demo.pdf')]);
+  html = readFileSync(join(OUT, 'demo.html'), 'utf8');
+  // Reproduction: the spec as printed in the report, re-run on the same workspace.
+  const spec = unescapeHtml(/<pre class="spec" data-provenance="spec">([\s\S]*?)<\/pre>/.exec(html)![1]);
+  writeFileSync(join(dir, 'spec-from-report.json'), spec);
+  rerun = JSON.parse(run(['analyze', '--workspace', ws, '--spec', join(dir, 'spec-from-report.json'), '--json', '--no-save']));
+}, 600_000);
+
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+describe('the demo report (HTML)', () => {
+  it('refers to nothing outside itself and runs no script', () => {
+    expect(html).not.toMatch(/<script|<link|<iframe|<img|@import|url\(\s*['"]?(https?:|\/\/)/i);
+    expect(html).not.toMatch(/(src|href)="(?!#)[^"]*"/i);
+    const hosts = [...html.matchAll(/https?:\/\/[^\s"'<)]+/g)].map((m) => m[0]).filter((u) => u !== 'http://www.w3.org/2000/svg');
+    expect(hosts).toEqual([]);
+  });
+
+  it('has forest plots for every contrast and the rate chart, inline', () => {
+    const contrasts = (rerun.twoStage as { pooled: unknown[] }).pooled.length;
+    expect(html.match(/data-testid="forest-plot"/g)).toHaveLength(contrasts);
+    expect(html.match(/data-testid="rate-chart"/g)).toHaveLength(1);
+  });
+
+  it('reproduces the data fingerprint when the spec printed in it is re-run', () => {
+    const fp = /data-provenance="dataFingerprint">([^<]+)</.exec(html)![1];
+    expect(fp).toBe((rerun.provenance as { dataFingerprint: string }).dataFingerprint);
+  });
+
+  it('shows every marked number as in the analysis JSON of the re-run (half a unit of the last decimal shown)', () => {
+    const marked = markedNumbers(html);
+    expect(marked.length).toBeGreaterThan(300);
+    const wrong: string[] = [];
+    for (const m of marked) {
+      const value = at(rerun, m.key);
+      if (typeof value !== 'number') {
+        wrong.push(`${m.key}: not a number in the JSON (${String(value)})`);
+        continue;
+      }
+      const scale = Number(m.attrs['data-scale'] ?? '1');
+      const v = value * scale;
+      if (m.attrs['data-bound'] === 'below') {
+        if (!(v < Number(/[\d.]+/.exec(m.text)![0]))) wrong.push(`${m.key}: ${v} not below "${m.text}"`);
+        continue;
+      }
+      if (m.attrs['data-bound'] === 'above') {
+        if (!(v > Number(/[\d.]+/.exec(m.text)![0]))) wrong.push(`${m.key}: ${v} not above "${m.text}"`);
+        continue;
+      }
+      const decimals = Number(m.attrs['data-decimals']);
+      const shown = Number(m.text.replace('%', ''));
+      if (!(Math.abs(shown - v) <= 0.5 * 10 ** -decimals + 1e-12)) wrong.push(`${m.key}: shown ${m.text}, JSON ${v}`);
+    }
+    expect(wrong).toEqual([]);
+  });
+});
+
+describe('the demo report (PDF)', () => {
+  const pdf = () => join(OUT, 'demo.pdf');
+  it('has several pages with page numbers and every section', () => {
+    const info = spawnSync('pdfinfo', [pdf()], { encoding: 'utf8' });
+    const pages = Number(/Pages:\s+(\d+)/.exec(info.stdout)![1]);
+    expect(pages).toBeGreaterThanOrEqual(8);
+    const text = spawnSync('pdftotext', ['-layout', pdf(), '-'], { encoding: 'utf8', maxBuffer: 64 << 20 }).stdout;
+    for (const title of ['Contents', 'In short', 'The question', 'The data', 'Methods', 'Results by contrast', 'Rate to recommend', 'Diagnostics', 'Cautions', 'Provenance', 'Appendix A: every trial'])
+      expect(text, title).toContain(title);
+    expect(text).toContain(`Page 1 of ${pages}`);
+    expect(text).toContain(`Page ${pages} of ${pages}`);
+    expect(text).toContain('label limits');
+  });
+
+  it('saves page images for a person to look at', () => {
+    spawnSync('pdftoppm', ['-r', '60', '-png', pdf(), join(OUT, 'page')]);
+    expect(readdirSync(OUT).filter((f) => f.startsWith('page') && f.endsWith('.png')).length).toBeGreaterThanOrEqual(8);
+  });
+});
