@@ -21,6 +21,7 @@ import { summariseTrial, type TrialSummary } from '../../engine/trial/trialSumma
 import { resolveForTrial } from '../../engine/contrasts/perTrial.js';
 import { testedTreatments } from './testedTreatments.js';
 import { nothingToPool } from './nothingToPool.js';
+import { notComparable } from './stageComparability.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
 
 /** What pooling reads from a trial entry, full or summarised. */
@@ -71,7 +72,12 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     });
   }
 
-  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings) : [];
+  const tested = network.trials.map((t) => testedTreatments(t, network.treatments));
+  const notCompared = new Map(spec.contrasts.flatMap((c) => {
+    const note = notComparable(c, network, tested);
+    return note === null ? [] : [[c.name, note] as const];
+  }));
+  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings, notCompared) : [];
 
   let rateResponse: ReturnType<typeof analyzeRateResponse> | null = null;
   if (spec.rateResponse) {

@@ -82,6 +82,17 @@ for (name in strsplit(Sys.getenv('CONTRASTS'), ',')[[1]]) {
 }
 `;
 
+/** A trial's contrast as the report's JSON carries it, estimable or not. */
+interface Shown {
+  readonly name: string;
+  readonly estimable?: boolean;
+  readonly estimate?: number | null;
+  readonly se?: number | null;
+  readonly reason?: string;
+  readonly meaning?: string;
+}
+const contrastsOf = (t: { readonly contrasts: readonly unknown[] }): readonly Shown[] => t.contrasts as readonly Shown[];
+
 describe('contrasts follow what each trial tested (protocol changed over the years, treatments dropped)', () => {
   const csv = protocolChangeCsv(20260);
   let report: Awaited<ReturnType<typeof runAnalysisFromSource>>;
@@ -97,16 +108,16 @@ describe('contrasts follow what each trial tested (protocol changed over the yea
     let compared = 0;
     for (const t of report.twoStage.trials) {
       for (const name of NAMES) {
-        const c = t.contrasts.find((x) => x.name === name);
+        const c = contrastsOf(t).find((x) => x.name === name);
         expect(c).toBeDefined();
         const rEst = r.values[`${name}_est_${t.trial}`];
         if (rEst === undefined) {
-          expect(c && 'reason' in c ? c.reason : '', `${name} in ${t.trial}`).toMatch(/\w+/);
-          expect(c && 'estimable' in c ? c.estimable : true).toBe(false);
+          expect(c?.reason ?? '', `${name} in ${t.trial}`).toMatch(/\w+/);
+          expect(c?.estimable).toBe(false);
           continue;
         }
-        expect(c && c.estimable, `${name} in ${t.trial}`).toBe(true);
-        if (!c || !c.estimable) continue;
+        expect(c?.estimable, `${name} in ${t.trial}`).toBe(true);
+        if (!c?.estimable) continue;
         expect(Math.abs((c.estimate as number) - rEst)).toBeLessThan(1e-8);
         expect(Math.abs((c.se as number) - r.values[`${name}_se_${t.trial}`])).toBeLessThan(1e-8);
         compared++;
@@ -136,7 +147,20 @@ describe('contrasts follow what each trial tested (protocol changed over the yea
     // Early against late uses only the rates tested at both timings, and says which.
     const s1 = report.twoStage.trials.find((t) => t.trial === 'S1-2024');
     expect(DROPPED['S1-2024']).toEqual(['L120']);
-    expect(s1?.contrasts.find((c) => c.name === 'early_vs_late')?.estimable).toBe(true);
+    const s1Comparison = s1 && contrastsOf(s1).find((c) => c.name === 'early_vs_late');
+    expect(s1Comparison?.estimable).toBe(true);
+    expect(s1Comparison?.meaning).toMatch(/over the 1 combination tested at both \(rate 60\); left out, tested at one level only: rate 120/);
+  });
+
+  it('compares the stages where they estimate the same quantity and says why not elsewhere', () => {
+    const byName = new Map(report.agreement.map((a) => [a.name, a]));
+    // Trials of 2021–22 tested 0 to 240, the network's whole range: the slopes are comparable.
+    expect(byName.get('rate_linear')?.agree).not.toBeNull();
+    expect(byName.get('rate_linear')?.note).toBeUndefined();
+    // A quadratic component is scaled on each trial's own spacing: not compared, with the reason.
+    expect(byName.get('rate_quadratic')?.agree).toBeNull();
+    expect(byName.get('rate_quadratic')?.note).toMatch(/^not compared: a degree-2 component/);
+    expect(report.warnings.some((w) => w.startsWith('contrast "rate_quadratic": one-stage and two-stage estimates are not compared'))).toBe(true);
   });
 
   it('one-stage means and contrasts (on the population treatment means) equal lme4 / lmerTest on the same unbalanced network (1e-5; df 1e-3)', () => {
