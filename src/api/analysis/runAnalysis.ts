@@ -22,6 +22,7 @@ import { resolveForTrial } from '../../engine/contrasts/perTrial.js';
 import { testedTreatments } from './testedTreatments.js';
 import { nothingToPool } from './nothingToPool.js';
 import { notComparable } from './stageComparability.js';
+import { checkNetwork } from './networkChecks.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
 
 /** What pooling reads from a trial entry, full or summarised. */
@@ -49,6 +50,9 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     }
   });
 
+  const tested = network.trials.map((t) => testedTreatments(t, network.treatments));
+  warnings.push(...checkNetwork(network, tested).warnings);
+
   // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
   // asks for the one-stage model alone and skips it.
   const trials: PoolableTrial[] = [];
@@ -72,7 +76,6 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     });
   }
 
-  const tested = network.trials.map((t) => testedTreatments(t, network.treatments));
   const notCompared = new Map(spec.contrasts.flatMap((c) => {
     const note = notComparable(c, network, tested);
     return note === null ? [] : [[c.name, note] as const];

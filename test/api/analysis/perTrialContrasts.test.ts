@@ -31,6 +31,8 @@ const spec = analysisSpecSchema.parse({
     { name: 'treated_vs_control', kind: 'treated-vs-control' },
     { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
     { name: 'e60_vs_control', coefficients: { E60: 1, CTL: -1 }, divisor: 1 },
+    // No trial tested both: nothing to pool, said in words.
+    { name: 'e50_vs_e60', coefficients: { E50: 1, E60: -1 }, divisor: 1 },
   ],
   oneStage: { random: ['trial', 'block', 'treatment-by-trial'], residual: 'common', df: 'satterthwaite', lrt: false, profile: false },
   twoStage: { tau2: 'reml', interval: 'wald', prediction: 'plug-in-t' },
@@ -150,6 +152,24 @@ describe('contrasts follow what each trial tested (protocol changed over the yea
     const s1Comparison = s1 && contrastsOf(s1).find((c) => c.name === 'early_vs_late');
     expect(s1Comparison?.estimable).toBe(true);
     expect(s1Comparison?.meaning).toMatch(/over the 1 combination tested at both \(rate 60\); left out, tested at one level only: rate 120/);
+  });
+
+  it('a contrast no trial can carry is not pooled; the warning names it, every trial with its reason, and what to change', () => {
+    expect(report.twoStage.pooled.some((p) => p.name === 'e50_vs_e60')).toBe(false);
+    const w = report.warnings.find((x) => x.startsWith('contrast "e50_vs_e60": not pooled'));
+    expect(w).toMatch(/none of the 18 trials can carry it/);
+    expect(w).toMatch(/S1-2019 \(not tested here: E60/);
+    expect(w).toMatch(/S1-2021 \(not tested here: E50/);
+    expect(w).toMatch(/To change: write the coefficients over treatments that some trials tested together/);
+    expect(report.warnings.join('\n')).not.toMatch(/Nothing to pool/);
+  });
+
+  it('warns that trials tested different rate ranges, naming them', () => {
+    const w = report.warnings.find((x) => x.startsWith('trials tested different rate ranges'));
+    expect(w).toMatch(/0 to 150 in 4 trials \(S2-2019, S3-2019, S1-2020, S3-2020\)/);
+    expect(w).toMatch(/0 to 100 in 1 trial \(S2-2020\)/);
+    expect(w).toMatch(/0 to 50 in 1 trial \(S1-2019\)/);
+    expect(w).toMatch(/60 to 180 in 1 trial \(S3-2023\)/);
   });
 
   it('compares the stages where they estimate the same quantity and says why not elsewhere', () => {
