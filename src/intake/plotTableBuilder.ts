@@ -222,7 +222,10 @@ export class PlotTableBuilder {
       const existing = this.sink.plotAt(plotIndex);
       const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block?.label ?? ''}" and treatment "${treatment.code}"`;
       if (cols.trait < 0 || this.wasObserved(plotIndex, trait.index)) {
-        problems.add(rowNo, this.cellName(keyColumn), r.text(keyColumn), 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}`);
+        // Without a plot column a plot is known by its block and treatment (or row and column), so a
+        // treatment replicated within a block (fractional or central-point designs) looks like a repeat.
+        const hint = cols.plot < 0 ? '; if the treatment is replicated within the block (a fractional or central-point design), map the plot column (columns.plot) so each plot is told apart' : '';
+        problems.add(rowNo, this.cellName(keyColumn), r.text(keyColumn), 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}${hint}`);
         return;
       }
       if (existing.treatment !== treatment.code || existing.block !== (block?.label ?? null)) {
