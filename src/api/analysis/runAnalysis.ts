@@ -23,6 +23,7 @@ import { testedTreatments } from './testedTreatments.js';
 import { nothingToPool } from './nothingToPool.js';
 import { notComparable } from './stageComparability.js';
 import { checkNetwork } from './networkChecks.js';
+import { siteAmountsWarning } from './siteAmounts.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
 
 /** What pooling reads from a trial entry, full or summarised. */
@@ -52,6 +53,8 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
 
   const tested = network.trials.map((t) => testedTreatments(t, network.treatments));
   warnings.push(...checkNetwork(network, tested).warnings);
+  const amounts = siteAmountsWarning(network);
+  if (amounts) warnings.push(amounts);
 
   // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
   // asks for the one-stage model alone and skips it.

@@ -8,6 +8,8 @@ import type { NetworkInput, TreatmentInfo } from '../../engine/types.js';
 
 export function notComparable(spec: ContrastSpec, network: NetworkInput, tested: readonly (readonly TreatmentInfo[])[]): string | null {
   if (!('trend' in spec)) return null;
+  if (network.trials.some((t) => Object.values(t.appliedLevels ?? {}).some((l) => spec.trend in l)))
+    return `not compared: treatments were applied at different ${spec.trend} amounts in different trials, so a treatment's population mean has no single ${spec.trend}; each trial's trend uses the amounts applied there`;
   const ratesOf = (ts: readonly TreatmentInfo[]): number[] => [...new Set(ts.map((t) => t.levels[spec.trend]).filter((v): v is number => typeof v === 'number'))].sort((a, b) => a - b);
   const all = ratesOf(network.treatments);
   if (all.length === 0) return null;
