@@ -515,7 +515,9 @@ export class PlotTableBuilder {
     }
     for (let k = 0; k < factors.length; k++) {
       const a = parseDecimal(cells[k], this.mode);
-      if (cells[k] === own[k] || (!Number.isNaN(a) && a === parseDecimal(own[k], this.mode))) continue;
+      const b = parseDecimal(own[k], this.mode);
+      // Only amounts: a categorical level that differs was reported by treatmentOf already.
+      if (cells[k] === own[k] || Number.isNaN(a) || Number.isNaN(b) || a === b) continue;
       this.problems.add(rowNo, factors[k].column, cells[k], 'treatment-levels-disagree', `treatment "${t.code}" has ${factors[k].name} "${own[k]}" earlier in trial "${trial.key}": within a trial a treatment has one level`);
     }
   }
