@@ -49,6 +49,12 @@ export interface TrialInput {
    * enumerable: copies of the trial drop it, and engines that can read columns use it when present.
    */
   readonly plotColumns?: PlotColumns;
+  /**
+   * Numeric levels applied in this trial where they differ from the treatment's level in the
+   * protocol (a treatment coded by level number, with a site-specific amount): code -> factor ->
+   * amount. Trends and rate responses use these.
+   */
+  readonly appliedLevels?: Readonly<Record<string, Readonly<Record<string, number>>>>;
   /** Trial-level covariates (soil pH, rainfall, previous crop ...) for meta-regression. */
   readonly covariates?: Readonly<Record<string, number | string | null>>;
 }

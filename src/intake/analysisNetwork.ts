@@ -19,7 +19,7 @@ export function assembleNetwork(parts: NetworkParts, trait: ParsedTrait, plotsBy
   for (const t of parts.trials) {
     const plots = plotsByTrial.get(t.key);
     if (plots === undefined) continue;
-    const fields = { trial: t.key, site: t.site, year: t.year, design: t.design, covariates: parts.trialCovariates[t.key] ?? {} };
+    const fields = { trial: t.key, site: t.site, year: t.year, design: t.design, covariates: parts.trialCovariates[t.key] ?? {}, ...(t.appliedLevels ? { appliedLevels: t.appliedLevels } : {}) };
     trials.push('table' in plots ? trialOverColumns(fields, plots) : { ...fields, plots });
   }
   return {

@@ -58,6 +58,8 @@ interface TrialState {
   /** Plots per treatment id, for ids below DENSE_TREATMENTS; the rest in morePlotsPerTreatment. */
   readonly plotsPerTreatment: number[];
   morePlotsPerTreatment: Map<number, number> | null;
+  /** Treatment code -> its factor cells in this trial, where a numeric level differs from the treatment's first-seen one. */
+  applied: Map<string, string[]> | null;
   readonly covariates: (string | null)[];
   readonly covariateRows: number[];
 }
@@ -98,6 +100,8 @@ export class PlotTableBuilder {
   private readonly treatments = new Map<string, TreatmentState>();
   private readonly treatmentList: TreatmentState[] = [];
   private readonly allowedTreatments: Set<string> | null;
+  /** First row whose numeric level differs from its treatment's first-seen level (0 = none). */
+  private firstAppliedRow = 0;
   private readonly trials = new Map<string, TrialState>();
   /** Per plot, a bit per trait already observed (traits 0..29); later traits in observedMore. */
   private readonly observedMask: number[] = [];
@@ -177,7 +181,7 @@ export class PlotTableBuilder {
     }
 
     const trial = this.trialOf(r, rowNo);
-    const treatment = this.treatmentOf(r, rowNo);
+    const treatment = this.treatmentOf(r, rowNo, trial);
 
     // Layout: block, row, column, plot id.
     const plotRow = this.layoutNumber(r, cols.row, rowNo);
@@ -222,7 +226,10 @@ export class PlotTableBuilder {
       const existing = this.sink.plotAt(plotIndex);
       const what = cols.plot >= 0 ? `plot "${plotId}"` : plotRow !== null && plotCol !== null ? `row ${plotRow}, column ${plotCol}` : `block "${block?.label ?? ''}" and treatment "${treatment.code}"`;
       if (cols.trait < 0 || this.wasObserved(plotIndex, trait.index)) {
-        problems.add(rowNo, this.cellName(keyColumn), r.text(keyColumn), 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}`);
+        // Without a plot column a plot is known by its block and treatment (or row and column), so a
+        // treatment replicated within a block (fractional or central-point designs) looks like a repeat.
+        const hint = cols.plot < 0 ? '; if the treatment is replicated within the block (a fractional or central-point design), map the plot column (columns.plot) so each plot is told apart' : '';
+        problems.add(rowNo, this.cellName(keyColumn), r.text(keyColumn), 'duplicate-plot', `trial "${trial.key}" already has ${what} on row ${existing.sourceRow}${cols.trait >= 0 ? ` for trait "${trait.trait.name}"` : ''}${hint}`);
         return;
       }
       if (existing.treatment !== treatment.code || existing.block !== (block?.label ?? null)) {
@@ -384,6 +391,7 @@ export class PlotTableBuilder {
       lastBlock: null,
       plotsPerTreatment: [],
       morePlotsPerTreatment: null,
+      applied: null,
       covariates: this.cols.covariates.map(() => null),
       covariateRows: this.cols.covariates.map(() => 0),
     };
@@ -448,7 +456,7 @@ export class PlotTableBuilder {
     return this.treatments.get(r.text(i));
   }
 
-  private treatmentOf(r: RowCells, rowNo: number): TreatmentState | null {
+  private treatmentOf(r: RowCells, rowNo: number, trial: TrialState | null): TreatmentState | null {
     const i = this.cols.treatment;
     const column = this.cellName(i);
     let t = this.findTreatment(r);
@@ -467,6 +475,7 @@ export class PlotTableBuilder {
       this.treatments.set(code, t);
       this.treatmentList.push(t);
     } else {
+      let differs = false;
       for (let k = 0; k < factors.length; k++) {
         const fi = factors[k].index;
         const first = t.raw[k];
@@ -474,11 +483,62 @@ export class PlotTableBuilder {
         const a = r.number(fi, this.mode);
         if (!Number.isNaN(a) && a === parseDecimal(first, this.mode)) continue;
         if (this.sameControlLevel(t.code, factors[k].name, first, r.text(fi))) continue;
+        // A numeric level that differs between trials is the amount applied at that site (a
+        // treatment coded by level number): kept per trial. Anything else is a disagreement.
+        if (trial !== null && !Number.isNaN(a) && !Number.isNaN(parseDecimal(first, this.mode))) {
+          differs = true;
+          continue;
+        }
         this.problems.add(rowNo, factors[k].column, r.text(fi), 'treatment-levels-disagree', `treatment "${t.code}" has ${factors[k].name} "${first}" on row ${t.firstRow}`);
       }
+      if (trial !== null) this.checkApplied(r, rowNo, trial, t, differs);
     }
     this.lastTreatment = t;
     return t;
+  }
+
+  /** Within one trial a treatment has one applied level: the first row of the trial sets it. */
+  private checkApplied(r: RowCells, rowNo: number, trial: TrialState, t: TreatmentState, differs: boolean): void {
+    const factors = this.cols.factors;
+    const cells = factors.map((fc) => r.text(fc.index));
+    const own = trial.applied?.get(t.code);
+    const seenHere = (t.id < DENSE_TREATMENTS ? trial.plotsPerTreatment[t.id] : trial.morePlotsPerTreatment?.get(t.id)) ?? 0;
+    if (own === undefined && !differs) return;
+    if (own === undefined) {
+      if (seenHere > 0) {
+        this.problems.add(rowNo, factors[0]?.column ?? null, cells.join(' '), 'treatment-levels-disagree', `treatment "${t.code}" has other levels (${t.raw.join(' ')}) earlier in trial "${trial.key}": within a trial a treatment has one level`);
+        return;
+      }
+      (trial.applied ??= new Map()).set(t.code, cells);
+      if (this.firstAppliedRow === 0) this.firstAppliedRow = rowNo;
+      return;
+    }
+    for (let k = 0; k < factors.length; k++) {
+      const a = parseDecimal(cells[k], this.mode);
+      const b = parseDecimal(own[k], this.mode);
+      // Only amounts: a categorical level that differs was reported by treatmentOf already.
+      if (cells[k] === own[k] || Number.isNaN(a) || Number.isNaN(b) || a === b) continue;
+      this.problems.add(rowNo, factors[k].column, cells[k], 'treatment-levels-disagree', `treatment "${t.code}" has ${factors[k].name} "${own[k]}" earlier in trial "${trial.key}": within a trial a treatment has one level`);
+    }
+  }
+
+  /** Each trial's applied levels in canonical units, only the numeric factors that differ. */
+  private attachApplied(trials: ParsedTrial[], factors: readonly { readonly name: string; readonly kind: string }[], scales: readonly number[]): void {
+    trials.forEach((p, i) => {
+      const applied = this.trials.get(p.key)?.applied;
+      if (!applied) return;
+      const out: Record<string, Record<string, number>> = {};
+      for (const [code, cells] of applied) {
+        const first = this.treatments.get(code)?.raw ?? [];
+        const levels: Record<string, number> = {};
+        cells.forEach((cell, k) => {
+          const v = parseDecimal(cell, this.mode);
+          if (factors[k].kind === 'numeric' && !Number.isNaN(v) && v !== parseDecimal(first[k], this.mode)) levels[factors[k].name] = v * scales[k];
+        });
+        if (Object.keys(levels).length > 0) out[code] = levels;
+      }
+      trials[i] = { ...p, appliedLevels: out };
+    });
   }
 
   /** A blank and the control's stated level (0 unless the mapping says otherwise) are the same level of the control. */
@@ -565,7 +625,8 @@ export class PlotTableBuilder {
       trials.push({ key: t.key, site: t.site, year: t.year, design });
     }
     problems.throwIfAny();
-    const { factors, treatments } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode, { control, controlLevels: this.mapping.controlLevels });
+    const { factors, treatments, scales } = factorsAndTreatments(this.treatmentList, cols.factors, this.mapping.factorUnits, this.mode, { control, controlLevels: this.mapping.controlLevels });
+    if (this.firstAppliedRow > 0) this.attachApplied(trials, factors, scales);
     return {
       rowsRead: this.rowsRead,
       protocol: this.mapping.protocol ?? 'default',

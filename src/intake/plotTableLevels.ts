@@ -34,7 +34,7 @@ export function factorsAndTreatments(
   factorUnits: Readonly<Record<string, string>> | undefined,
   mode: DecimalMode,
   rule: ControlRule = { control: null },
-): { factors: FactorInfo[]; treatments: TreatmentInfo[] } {
+): { factors: FactorInfo[]; treatments: TreatmentInfo[]; scales: number[] } {
   const factors: FactorInfo[] = [];
   const scales: number[] = [];
   factorColumns.forEach((fc, k) => {
@@ -62,7 +62,7 @@ export function factorsAndTreatments(
     });
     return { code: t.code, levels };
   });
-  return { factors, treatments };
+  return { factors, treatments, scales };
 }
 
 export interface SeenTrialCovariates {

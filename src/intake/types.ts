@@ -88,6 +88,8 @@ export interface ParsedTrial {
   /** 0 when the file gives no year (a trial column without a year column). */
   readonly year: number;
   readonly design: TrialDesign;
+  /** Numeric levels applied in this trial that differ from the treatment's first-seen level (canonical units). */
+  readonly appliedLevels?: Readonly<Record<string, Readonly<Record<string, number>>>>;
 }
 
 export interface ParsedPlot {

@@ -8,6 +8,7 @@ import { ImportRefusedError } from './errors.js';
 import { mergeProtocol } from './mergeProtocol.js';
 import { mergeSites, mergeTraits } from './mergeReference.js';
 import { checkTableConsistency, refuseInconsistent } from './tableConsistency.js';
+import { refuseAppliedLevels } from './appliedLevels.js';
 import { checkStoredBounds } from './storedBounds.js';
 import type { Workspace } from './workspace.js';
 
@@ -166,6 +167,7 @@ function uniqueLabel(labels: Set<string>, key: string, site: string, year: numbe
 
 export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options: ImportOptions = {}): ImportSummary {
   checkTableConsistency(table);
+  refuseAppliedLevels(table);
   const db = ws.db;
   const now = options.now ?? (() => new Date());
   const total = table.plots.length + table.observations.length;

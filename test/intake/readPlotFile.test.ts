@@ -177,15 +177,18 @@ describe('every kind of bad input names its row and column', () => {
 
   it('a treatment whose factor levels disagree between rows', async () => {
     const rows = validRows();
-    setCell(rows, 13, 'rate', '50'); // row 13 is an A1 plot; A1 has rate 40 on row 3
-    setCell(rows, 18, 'timing', 'late'); // row 18 is A1 too, first seen "early"
+    // Row 13 is an A1 plot of another trial than row 3 (A1 at rate 40): a site-specific amount,
+    // kept for that trial. Row 18 is A1 in row 13's trial: there A1 has one amount (50) and timing.
+    setCell(rows, 13, 'rate', '50');
+    setCell(rows, 18, 'timing', 'late'); // A1 was first seen "early"
     setCell(rows, 23, 'rate', '40.0'); // the same number written differently is fine
     const p = await problemsOf(() => readPlotFile(file('levels.csv', rows), MAPPING));
     expect(brief(p)).toEqual([
-      ['treatment-levels-disagree', 13, 'rate', '50'],
       ['treatment-levels-disagree', 18, 'timing', 'late'],
+      ['treatment-levels-disagree', 18, 'rate', '40'],
     ]);
     expect(p[0].message).toContain('row 3');
+    expect(p[1].message).toMatch(/has rate "50" earlier in trial .*: within a trial a treatment has one level/);
   });
 
   it('duplicate plot: same trial, block and treatment', async () => {
@@ -268,14 +271,17 @@ describe('every kind of bad input names its row and column', () => {
     setCell(rows, 3, 'yield', 'abc');
     setCell(rows, 10, 'year', '2O21');
     setCell(rows, 20, 'trt', '');
+    // Row 25 is its treatment's first plot in its trial, so 99 reads as that trial's amount (a
+    // site-specific amount); the trial's next plot of the treatment, row 30, then disagrees with it.
     setCell(rows, 25, 'rate', '99');
     const p = await problemsOf(() => readPlotFile(file('many.csv', rows), MAPPING));
     expect(brief(p)).toEqual([
       ['not-a-number', 3, 'yield', 'abc'],
       ['bad-year', 10, 'year', '2O21'],
       ['unknown-treatment', 20, 'trt', ''],
-      ['treatment-levels-disagree', 25, 'rate', '99'],
+      ['treatment-levels-disagree', 30, 'rate', '40'],
     ]);
+    expect(p[3].message).toMatch(/has rate "99" earlier in trial/);
   });
 
   it('stops at maxProblems and says the list is truncated', async () => {

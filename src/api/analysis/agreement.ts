@@ -9,6 +9,8 @@ export interface StageAgreement {
   /** Difference in units of the two-stage standard error. */
   readonly differenceInSe: number | null;
   readonly agree: boolean | null;
+  /** Why the two are not compared (they estimate different quantities), when they are not. */
+  readonly note?: string;
 }
 
 const USUAL_REASONS =
@@ -20,9 +22,14 @@ interface NamedEstimate {
   readonly se: number | null;
 }
 
-export function compareStages(oneStage: readonly NamedEstimate[], twoStage: readonly NamedEstimate[], warnings: string[]): StageAgreement[] {
+export function compareStages(oneStage: readonly NamedEstimate[], twoStage: readonly NamedEstimate[], warnings: string[], notCompared: ReadonlyMap<string, string> = new Map()): StageAgreement[] {
   return twoStage.map((two) => {
     const one = oneStage.find((o) => o.name === two.name);
+    const note = notCompared.get(two.name);
+    if (note !== undefined) {
+      warnings.push(`contrast "${two.name}": one-stage and two-stage estimates are ${note}`);
+      return { name: two.name, oneStage: one?.estimate ?? null, oneStageSe: one?.se ?? null, twoStage: two.estimate, twoStageSe: two.se, differenceInSe: null, agree: null, note };
+    }
     if (!one || one.estimate === null || two.estimate === null || two.se === null || !(two.se > 0))
       return { name: two.name, oneStage: one?.estimate ?? null, oneStageSe: one?.se ?? null, twoStage: two.estimate, twoStageSe: two.se, differenceInSe: null, agree: null };
     const d = (one.estimate - two.estimate) / two.se;

@@ -4,11 +4,14 @@ import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
 import type { SummaryRow } from '../../intake/index.js';
 import { twoStageSchema, type AnalysisSpec } from '../../spec/analysisSpec.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
+import { ManyfieldError } from '../result.js';
 import type { ReportDetail, ReportOf } from './report.js';
 
 export function poolSummaryRows<D extends ReportDetail>(rows: readonly SummaryRow[], spec: AnalysisSpec, detail: D): Omit<ReportOf<D>, 'provenance'> {
   const name = spec.contrasts[0]?.name ?? spec.trait ?? 'estimate';
   const options = spec.twoStage ?? twoStageSchema.parse({});
+  if (rows.length === 0)
+    throw new ManyfieldError('invalid-input', `contrast "${name}": nothing to pool — the summary file has no trial row with both an estimate and a standard error; fill in at least one trial's estimate and SE (columns named by spec.columns.estimate and spec.columns.se)`);
   const result = poolEstimates(
     rows.map((r) => ({ trial: r.trial, estimate: r.estimate, se: r.se, df: r.df, covariates: r.covariates })),
     { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators, prediction: options.prediction, predictionDraws: options.predictionDraws, predictionSeed: options.predictionSeed },

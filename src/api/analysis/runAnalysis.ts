@@ -1,7 +1,7 @@
 // One analysis from a spec: trial stage for every trial, two-stage pooling of each contrast,
 // the one-stage mixed model, their agreement, and the rate response. Pure orchestration:
 // the numbers come from src/engine.
-import { resolveContrast, involvedTreatments, type ResolvedContrast } from '../../engine/contrasts/resolve.js';
+import { resolveContrast, type ResolvedContrast } from '../../engine/contrasts/resolve.js';
 import type { NetworkInput, TrialInput } from '../../engine/types.js';
 import { analyzeTrial } from '../../engine/trial/analyzeTrial.js';
 import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
@@ -18,6 +18,12 @@ import { checkSpecAgainstData } from './checkSpec.js';
 import { networkLogOffset, transformNetwork } from './transformNetwork.js';
 import type { TrialStageEntry, PooledEntry, ReportDetail, ReportOf } from './report.js';
 import { summariseTrial, type TrialSummary } from '../../engine/trial/trialSummary.js';
+import { resolveForTrial } from '../../engine/contrasts/perTrial.js';
+import { testedTreatments } from './testedTreatments.js';
+import { nothingToPool } from './nothingToPool.js';
+import { notComparable } from './stageComparability.js';
+import { checkNetwork } from './networkChecks.js';
+import { siteAmountsWarning } from './siteAmounts.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
 import { addSiteLevels } from './sitePooling.js';
 
@@ -46,6 +52,11 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     }
   });
 
+  const tested = network.trials.map((t) => testedTreatments(t, network.treatments));
+  warnings.push(...checkNetwork(network, tested).warnings);
+  const amounts = siteAmountsWarning(network);
+  if (amounts) warnings.push(amounts);
+
   // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
   // asks for the one-stage model alone and skips it.
   const trials: PoolableTrial[] = [];
@@ -69,7 +80,11 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     });
   }
 
-  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings) : [];
+  const notCompared = new Map(spec.contrasts.flatMap((c) => {
+    const note = notComparable(c, network, tested);
+    return note === null ? [] : [[c.name, note] as const];
+  }));
+  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings, notCompared) : [];
 
   let rateResponse: ReturnType<typeof analyzeRateResponse> | null = null;
   if (spec.rateResponse) {
@@ -99,7 +114,10 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
 
 /** One trial's full analysis, as in the report with detail 'plots' (also recomputed on demand for a saved analysis). */
 export function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec, logOffset: number | undefined): TrialStageEntry {
-  const result = analyzeTrial(trial, network.treatments, contrasts, {
+  const control = spec.control ?? network.control;
+  const present = testedTreatments(trial, network.treatments);
+  const own = contrasts.map((c, i) => resolveForTrial(spec.contrasts[i], c, present, control, network.factors));
+  const result = analyzeTrial(trial, network.treatments, own, {
     transform: spec.transform,
     logOffset,
     confidence: spec.confidence,
@@ -110,27 +128,34 @@ export function analyseOneTrial(trial: TrialInput, network: NetworkInput, contra
 }
 
 function poolContrasts(trials: readonly PoolableTrial[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry[] {
+  return contrasts.map((c) => poolOneContrast(trials, c, network, spec, warnings, ctx)).filter((p): p is PooledEntry => p !== null);
+}
+
+/** One contrast pooled over the trials that carry it; null (with a warning saying why) when none does. */
+function poolOneContrast(trials: readonly PoolableTrial[], contrast: ResolvedContrast, network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry | null {
   const options = spec.twoStage ?? twoStageSchema.parse({});
   const covariatesByTrial = new Map(network.trials.map((t) => [t.trial, t.covariates ?? {}]));
   const yearByTrial = new Map(network.trials.map((t) => [t.trial, t.year ?? null]));
-  return contrasts.map((contrast) => {
-    throwIfCancelled(ctx);
-    const items = [];
-    const left: string[] = [];
-    for (const t of trials) {
-      const c = t.contrasts.find((x) => x.name === contrast.name);
-      if (!c || !('estimate' in c) || c.estimate === null || c.se === null || !(c.se > 0)) {
-        left.push(`${t.trial} (${c && 'reason' in c ? c.reason : 'not estimable'})`);
-        continue;
-      }
-      items.push({ trial: t.trial, estimate: c.estimate, se: c.se, df: c.df, year: yearByTrial.get(t.trial) ?? null, covariates: covariatesByTrial.get(t.trial) ?? {} });
+  throwIfCancelled(ctx);
+  const items = [];
+  const left: string[] = [];
+  for (const t of trials) {
+    const c = t.contrasts.find((x) => x.name === contrast.name);
+    if (!c || !('estimate' in c) || c.estimate === null || c.se === null || !(c.se > 0)) {
+      left.push(`${t.trial} (${c && 'reason' in c ? c.reason : 'not estimable'})`);
+      continue;
     }
-    if (left.length > 0)
-      warnings.push(`contrast "${contrast.name}": ${left.length} trial(s) left out of the pooling because it is not estimable there: ${left.join('; ')} (needs ${involvedTreatments(contrast).join(', ')})`);
-    const result = poolEstimates(items, { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators, prediction: options.prediction, predictionDraws: options.predictionDraws, predictionSeed: options.predictionSeed }, {
-      signal: ctx?.signal,
-      onProgress: (f) => ctx?.onProgress?.({ stage: 'new-site prediction', step: contrast.name, fraction: f }),
-    });
-    return { name: contrast.name, meaning: contrast.meaning, leftOut: left, ...result };
+    items.push({ trial: t.trial, estimate: c.estimate, se: c.se, df: c.df, year: yearByTrial.get(t.trial) ?? null, covariates: covariatesByTrial.get(t.trial) ?? {} });
+  }
+  if (items.length === 0) {
+    warnings.push(nothingToPool(contrast, left, trials.length));
+    return null;
+  }
+  if (left.length > 0)
+    warnings.push(`contrast "${contrast.name}": pooled over ${items.length} of ${trials.length} trials; left out, with the reason: ${left.join('; ')}`);
+  const result = poolEstimates(items, { tau2: options.tau2, interval: options.interval, hksjFloor: options.hksjFloor, confidence: spec.confidence, threshold: spec.threshold, moderators: spec.moderators, prediction: options.prediction, predictionDraws: options.predictionDraws, predictionSeed: options.predictionSeed }, {
+    signal: ctx?.signal,
+    onProgress: (f) => ctx?.onProgress?.({ stage: 'new-site prediction', step: contrast.name, fraction: f }),
   });
+  return { name: contrast.name, meaning: contrast.meaning, leftOut: left, ...result };
 }

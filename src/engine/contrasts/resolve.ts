@@ -6,6 +6,8 @@ import type { ContrastSpec } from '../../spec/analysisSpec.js';
 import type { FactorInfo, TreatmentInfo } from '../types.js';
 import { orthogonalPolynomialScores } from './orthogonalPolynomial.js';
 
+import { factorLevelsContrast } from './factorLevels.js';
+
 export type ContrastKind = 'coefficients' | 'factor-levels' | 'trend' | 'treated-vs-control';
 
 export interface ResolvedContrast {
@@ -16,6 +18,11 @@ export interface ResolvedContrast {
   readonly divisor: number;
   /** Plain description of what the estimate measures (shown beside results). */
   readonly meaning: string;
+  /**
+   * Set when this trial cannot carry the contrast (resolved on what the trial tested): why, in
+   * words, and what would let it in. The coefficients are then all zero.
+   */
+  readonly leftOut?: string;
 }
 
 export class ContrastDefinitionError extends Error {
@@ -62,22 +69,9 @@ export function resolveContrast(spec: ContrastSpec, treatments: readonly Treatme
     };
   }
   if ('factor' in spec) {
-    const [a, b] = spec.levels.map(String);
-    const atA = treatments.filter((t) => levelMatches(t.levels[spec.factor], a));
-    const atB = treatments.filter((t) => levelMatches(t.levels[spec.factor], b));
     if (!treatments.some((t) => spec.factor in t.levels)) throw new ContrastDefinitionError(spec.name, `unknown factor "${spec.factor}"`);
-    if (atA.length === 0) throw new ContrastDefinitionError(spec.name, `no treatment has ${spec.factor} = ${a}`);
-    if (atB.length === 0) throw new ContrastDefinitionError(spec.name, `no treatment has ${spec.factor} = ${b}`);
-    const coefficients = zero();
-    for (const t of atA) coefficients[t.code] = atB.length;
-    for (const t of atB) coefficients[t.code] = -atA.length;
-    return {
-      name: spec.name,
-      kind: 'factor-levels',
-      coefficients,
-      divisor: atA.length * atB.length,
-      meaning: `mean at ${spec.factor} = ${a} minus mean at ${spec.factor} = ${b}, over the other factors (treatments where ${spec.factor} does not apply get 0)`,
-    };
+    const [a, b] = spec.levels.map(String);
+    return factorLevelsContrast(spec.name, spec.factor, a, b, treatments, zero());
   }
   const factor = spec.trend;
   const points = treatments.filter((t) => typeof t.levels[factor] === 'number');

@@ -11,7 +11,7 @@ import { pooledOptimum, type PooledPoint } from './pooledOptimum.js';
 import { quadraticDeltaInterval } from './deltaMethod.js';
 import { bootstrapOptimum } from './bootstrap.js';
 import { quantileType7 } from './quantile.js';
-import { treatmentRates } from './rateData.js';
+import { appliedRates, treatmentRates } from './rateData.js';
 import { analyseTrialRate, type PooledTrial } from './trialRate.js';
 import { analyzeMixedQuadratic } from './mixed/analyzeMixedQuadratic.js';
 import type { MixedRateResult } from './mixed/types.js';
@@ -51,7 +51,7 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
   const pooled: PooledTrial[] = [];
   network.trials.forEach((t, i) => {
     signal?.throwIfAborted();
-    const entry = analyseTrialRate(t, rates, options);
+    const entry = analyseTrialRate(t, appliedRates(t, rates, options.factor), options);
     trials.push(entry.result);
     warnings.push(...entry.warnings);
     if (entry.pooled) pooled.push(entry.pooled);
@@ -91,7 +91,9 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
       flags: p?.flags ?? ['no-curve'],
     };
   });
-  const mixedModel = options.model === 'quadratic' || options.model === 'best' ? mixedQuadraticOrWarning(network, rates, options, warnings) : undefined;
+  const siteAmounts = network.trials.some((t) => Object.values(t.appliedLevels ?? {}).some((l) => options.factor in l));
+  if (siteAmounts) warnings.push(`Some treatments were applied at different ${options.factor} amounts in different trials: each trial's curve uses the amounts applied there; the mixed-model curve, which needs one ${options.factor} per treatment, is not fitted.`);
+  const mixedModel = !siteAmounts && (options.model === 'quadratic' || options.model === 'best') ? mixedQuadraticOrWarning(network, rates, options, warnings) : undefined;
   progress('done', 1);
   const factorInfo = network.factors.find((f) => f.name === options.factor);
   const rateUnit = factorInfo?.unit ?? null;

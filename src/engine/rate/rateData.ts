@@ -43,6 +43,15 @@ export function treatmentRates(network: NetworkInput, factor: string, at: Readon
   return out;
 }
 
+/** The rates of one trial: a treatment applied at a site-specific amount there takes that amount. */
+export function appliedRates(trial: TrialInput, rates: Map<string, number>, factor: string): Map<string, number> {
+  const applied = trial.appliedLevels;
+  if (!applied) return rates;
+  const own = new Map(rates);
+  for (const [code, levels] of Object.entries(applied)) if (own.has(code) && factor in levels) own.set(code, levels[factor]);
+  return own;
+}
+
 function rateOf(t: TreatmentInfo, factor: string, control: string | undefined): number | null {
   const v = t.levels[factor];
   if (typeof v === 'number' && Number.isFinite(v)) return v;

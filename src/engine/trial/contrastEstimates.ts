@@ -44,6 +44,7 @@ export function estimateContrast(
   transform: TransformKind,
   treatments: readonly TreatmentInfo[],
 ): TrialContrast {
+  if (c.leftOut !== undefined) return { name: c.name, kind: c.kind, estimable: false, reason: c.leftOut };
   const kept = keptVector(c, mv, fit.coefficients.length);
   const absent = kept.absent;
   if (absent.length > 0)

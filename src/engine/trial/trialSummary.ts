@@ -13,7 +13,18 @@ export interface TrialSummaryMean {
 }
 
 export type TrialSummaryContrast =
-  | { readonly name: string; readonly estimable: true; readonly estimate: Num; readonly se: Num; readonly df: number; readonly p: Num; readonly lower: Num; readonly upper: Num }
+  | {
+      readonly name: string;
+      readonly estimable: true;
+      readonly estimate: Num;
+      readonly se: Num;
+      readonly df: number;
+      readonly p: Num;
+      readonly lower: Num;
+      readonly upper: Num;
+      /** For a trend or a factor comparison, what this trial's contrast was fitted on (its own rates, the combinations it tested at both levels). */
+      readonly meaning?: string;
+    }
   | { readonly name: string; readonly estimable: false; readonly reason: string };
 
 export interface TrialDiagnosticSummary {
@@ -86,7 +97,7 @@ export function summariseTrial(t: Identified): TrialSummary {
     means: t.means.map((m) => ({ treatment: m.treatment, estimate: m.estimate, se: m.se, n: m.n })),
     contrasts: t.contrasts.map((c) =>
       c.estimable
-        ? { name: c.name, estimable: true, estimate: c.estimate, se: c.se, df: c.df, p: c.p, lower: c.lower, upper: c.upper }
+        ? { name: c.name, estimable: true, estimate: c.estimate, se: c.se, df: c.df, p: c.p, lower: c.lower, upper: c.upper, ...(c.kind === 'trend' || c.kind === 'factor-levels' ? { meaning: c.meaning } : {}) }
         : { name: c.name, estimable: false, reason: c.reason },
     ),
     anova: {
