@@ -119,7 +119,7 @@ export function AnalysisScreen({ workspace, trait, onOpenTrial, memory }: Props)
   };
 
   const openSaved = async (id: number): Promise<ResultView | null> => {
-    const r = await host.call('analysis.open', { workspace: workspace.path, analysis: id, trials: { offset: 0, limit: 10000 } });
+    const r = await host.call('analysis.open', { workspace: workspace.path, analysis: id, trials: { offset: 0, limit: 10000 }, tables: true });
     markResultsArrived();
     if (!r.ok) {
       setProblem(r.error.message);

@@ -93,6 +93,7 @@ export function FieldGrid({ plots, colouring, onColouring, selected, onSelect, u
                 key={p.id}
                 data-testid="field-plot"
                 data-plot-id={p.id}
+                data-plot-label={p.label}
                 data-state={cell.state}
                 className={`plot-cell ${isSel ? 'selected' : ''}`}
                 role="button"
