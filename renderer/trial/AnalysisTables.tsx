@@ -2,6 +2,22 @@
 import type { TrialAnalysis } from '../app/views.js';
 import { formatNumber, formatP } from '../shape/format.js';
 
+/** A table's header: the first column names the rows, the others hold numbers (right-aligned). */
+function HeaderRow({ first, numeric }: { first: string; numeric: readonly string[] }) {
+  return (
+    <thead>
+      <tr>
+        <th scope="col">{first}</th>
+        {numeric.map((h) => (
+          <th key={h} scope="col" className="num">
+            {h}
+          </th>
+        ))}
+      </tr>
+    </thead>
+  );
+}
+
 const TERM_WORDS: Record<string, string> = { block: 'Blocks', row: 'Rows', col: 'Columns', treatment: 'Treatments' };
 
 export function AnovaTable({ anova, unit }: { anova: TrialAnalysis['anova']; unit: string | null }) {
@@ -9,26 +25,7 @@ export function AnovaTable({ anova, unit }: { anova: TrialAnalysis['anova']; uni
     <div className="table-block">
       <table className="data-table" data-testid="anova-table">
         <caption>Analysis of variance (sequential sums of squares, treatments after the design terms)</caption>
-        <thead>
-          <tr>
-            <th scope="col">Source</th>
-            <th scope="col" className="num">
-              df
-            </th>
-            <th scope="col" className="num">
-              Sum of squares
-            </th>
-            <th scope="col" className="num">
-              Mean square
-            </th>
-            <th scope="col" className="num">
-              F
-            </th>
-            <th scope="col" className="num">
-              P
-            </th>
-          </tr>
-        </thead>
+        <HeaderRow first="Source" numeric={['df', 'Sum of squares', 'Mean square', 'F', 'P']} />
         <tbody>
           {anova.rows.map((r) => (
             <tr key={r.term} data-term={r.term}>
@@ -76,26 +73,7 @@ export function MeansTable({ means, labels, unit, confidence }: { means: TrialAn
       <caption>
         Adjusted treatment means{unit ? ` (${unit})` : ''} with {Math.round(confidence * 100)} % confidence intervals
       </caption>
-      <thead>
-        <tr>
-          <th scope="col">Treatment</th>
-          <th scope="col" className="num">
-            Plots
-          </th>
-          <th scope="col" className="num">
-            Mean
-          </th>
-          <th scope="col" className="num">
-            SE
-          </th>
-          <th scope="col" className="num">
-            Lower
-          </th>
-          <th scope="col" className="num">
-            Upper
-          </th>
-        </tr>
-      </thead>
+      <HeaderRow first="Treatment" numeric={['Plots', 'Mean', 'SE', 'Lower', 'Upper']} />
       <tbody>
         {means.map((m) => (
           <tr key={m.treatment}>
@@ -119,26 +97,7 @@ export function ContrastsTable({ contrasts, unit }: { contrasts: TrialAnalysis['
   return (
     <table className="data-table" data-testid="contrasts-table">
       <caption>Contrasts{unit ? ` (${unit}; a trend per unit of the factor)` : ''}</caption>
-      <thead>
-        <tr>
-          <th scope="col">Contrast</th>
-          <th scope="col" className="num">
-            Estimate
-          </th>
-          <th scope="col" className="num">
-            SE
-          </th>
-          <th scope="col" className="num">
-            df
-          </th>
-          <th scope="col" className="num">
-            Interval
-          </th>
-          <th scope="col" className="num">
-            P
-          </th>
-        </tr>
-      </thead>
+      <HeaderRow first="Contrast" numeric={['Estimate', 'SE', 'df', 'Interval', 'P']} />
       <tbody>
         {contrasts.length === 0 ? (
           <tr>

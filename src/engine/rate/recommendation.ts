@@ -40,25 +40,11 @@ function atLimit(x: Num, limit: Num): boolean {
   return x !== null && limit !== null && Math.abs(x - limit) <= AT_LIMIT_TOLERANCE * Math.max(1, Math.abs(limit));
 }
 
-function fromPooled(p: PooledRateResult): RecommendedRate {
+/** Both curves report an optimum the same way; only the field names of their results differ. */
+function recommended(source: RecommendedRate['source'], o: { rate: number | null; lower: number | null; upper: number | null; method: RecommendedRate['intervalMethod']; range: RecommendedRate['testedRange']; flags: RecommendedRate['flags'] }): RecommendedRate {
   return {
-    source: 'pooled-curve',
-    rate: p.optimum,
-    lower: p.optimumLower,
-    upper: p.optimumUpper,
-    intervalMethod: p.method,
-    lowerAtTestedLimit: atLimit(p.optimumLower, p.range[0]),
-    upperAtTestedLimit: atLimit(p.optimumUpper, p.range[1]),
-    flags: p.flags,
-    testedRange: p.range,
-  };
-}
-
-function fromMixed(m: MixedRateResult): RecommendedRate {
-  const o = m.optimum;
-  return {
-    source: 'mixed-model-curve',
-    rate: o.optimum,
+    source,
+    rate: o.rate,
     lower: o.lower,
     upper: o.upper,
     intervalMethod: o.method,
@@ -67,6 +53,15 @@ function fromMixed(m: MixedRateResult): RecommendedRate {
     flags: o.flags,
     testedRange: o.range,
   };
+}
+
+function fromPooled(p: PooledRateResult): RecommendedRate {
+  return recommended('pooled-curve', { rate: p.optimum, lower: p.optimumLower, upper: p.optimumUpper, method: p.method, range: p.range, flags: p.flags });
+}
+
+function fromMixed(m: MixedRateResult): RecommendedRate {
+  const o = m.optimum;
+  return recommended('mixed-model-curve', { rate: o.optimum, lower: o.lower, upper: o.upper, method: o.method, range: o.range, flags: o.flags });
 }
 
 function usable(r: RecommendedRate): boolean {
