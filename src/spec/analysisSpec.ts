@@ -116,6 +116,8 @@ export const twoStageSchema = z
     /** Bootstrap draws and seed: the same seed gives the same interval. */
     predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
     predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
+    /** Refits of the site-level (multilevel) bootstrap prediction, each a full REML/ML fit. */
+    siteLevelDraws: z.number().int().min(100).max(100_000).default(1000),
   })
   .strict();
 

@@ -50,8 +50,12 @@ export function addSiteLevels(pooled: readonly PooledEntry[], trials: readonly T
     ctx?.onProgress?.({ stage: 'site-level pooling', step: p.name, fraction: null });
     let siteLevels;
     try {
-      siteLevels = poolSiteLevels(items, { method: options.tau2 === 'ml' ? 'ml' : 'reml', confidence: spec.confidence, threshold: spec.threshold, crossedWithYear });
+      siteLevels = poolSiteLevels(items, {
+        method: options.tau2 === 'ml' ? 'ml' : 'reml', confidence: spec.confidence, threshold: spec.threshold, crossedWithYear,
+        prediction: options.prediction === 'plug-in-t' ? 'plug-in-t' : 'bootstrap-tau2', predictionDraws: options.siteLevelDraws, predictionSeed: options.predictionSeed, signal: ctx?.signal,
+      });
     } catch (e) {
+      throwIfCancelled(ctx);
       throw new ManyfieldError('invalid-argument', `contrast "${p.name}": ${(e as Error).message}`);
     }
     return { ...p, siteLevels };

@@ -20,6 +20,13 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
       return [p.name, effectCell(s.estimate, s.lower, s.upper, unit(p.name), s.se), seText(s.se), pText(s.p), String(s.sites), String(s.trials), rangeText(s.newSiteLower, s.newSiteUpper, unit(p.name), decimalsFromSe(s.se)), percent(s.newSiteProbPositive, 1)];
     }),
   );
+  const predictionLines = pooled.flatMap((p) => {
+    const n = p.siteLevels!.newSitePrediction;
+    if (!n) return [];
+    const d = decimalsFromSe(p.siteLevels!.se);
+    const plugIn = n.method === 'plug-in-t' ? '' : `; the plug-in t interval would be ${rangeText(n.plugInT.lower, n.plugInT.upper, unit(p.name), d)}`;
+    return [`  ${p.name}: ${n.description}${plugIn}`];
+  });
   const withYear = pooled.some((p) => p.siteLevels!.yearTau2 !== null);
   const withInterval = (x: number | null, lo: number | null, hi: number | null) => `${sig(x)} (${sig(lo)} to ${sig(hi)})`;
   const spread = textTable(
@@ -49,7 +56,7 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
   const notes = pooled.flatMap((p) => p.siteLevels!.notes.map((n) => `  ${p.name}: ${n}`));
   const first = pooled[0].siteLevels!;
   return [
-    ...section(`Effects pooled with trials nested in sites${withYear ? ', crossed with years' : ''} (${first.method})`, [overview]),
+    ...section(`Effects pooled with trials nested in sites${withYear ? ', crossed with years' : ''} (${first.method})`, [overview, ...predictionLines]),
     ...section('Is the spread repeatable by site or seasonal?', [spread, `  repeatable by site = site tau² / (site tau² + ${withYear ? 'year tau² + ' : ''}trial-within-site tau²)`]),
     ...(bySite.length > 0 ? section('Each known site (its past trials shrunk towards the regional mean)', [...bySite, `  Caution: ${first.caution}`]) : []),
     ...(notes.length > 0 ? section('Notes on the site-level pooling', notes) : []),

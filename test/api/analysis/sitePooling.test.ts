@@ -52,10 +52,12 @@ describe('twoStage.levels "site-and-trial"', () => {
       return used.has(t.trial) ? [{ trial: t.trial, site: t.trial.split('-')[0], estimate: c.estimate, se: c.se }] : [];
     });
     expect(items.length).toBe(p.k);
-    expect(p.siteLevels).toEqual(poolSiteLevels(items, { method: 'reml', confidence: 0.95, threshold: 0 }));
+    expect(p.siteLevels).toEqual(poolSiteLevels(items, { method: 'reml', confidence: 0.95, threshold: 0, prediction: 'bootstrap-tau2', predictionDraws: 1000, predictionSeed: 20190601 }));
     expect(p.siteLevels!.sites).toBe(8);
     const text = formatAnalysisText({ ...report, provenance: { source: 'test', dataFingerprint: 'abcdef123456', appVersion: '0', createdAt: '' } });
     expect(text).toContain('Effects pooled with trials nested in sites (restricted maximum likelihood (REML))');
+    expect(p.siteLevels!.newSitePrediction!.method).toBe('bootstrap-pivot');
+    expect(text).toContain('new-site interval and probabilities by parametric bootstrap of the studentised prediction error');
     expect(text).toContain('Is the spread repeatable by site or seasonal?');
     expect(text).toContain(`Caution: ${p.siteLevels!.caution}`);
   });

@@ -36,15 +36,16 @@ export function searchUpper(groups: readonly SiteGroup[]): number {
   return 10 * (variance + vMax) + 1e-12;
 }
 
-export function fitSiteTrial(groups: readonly SiteGroup[], kind: LikelihoodKind): SiteTrialEstimates {
+/** relTol: the searches' relative tolerance (looser for bootstrap refits, which need a few digits). */
+export function fitSiteTrial(groups: readonly SiteGroup[], kind: LikelihoodKind, relTol = 1e-9): SiteTrialEstimates {
   const upper = searchUpper(groups);
   let evaluations = 0;
   const ll = (s: number, t: number) => {
     evaluations++;
     return siteTrialLogLik(groups, s, t, kind).logLik;
   };
-  const siteGivenTrial = (t: number) => brentMaximum((s) => ll(s, t), 0, upper);
-  const outer = brentMaximum((t) => siteGivenTrial(t).value, 0, upper);
+  const siteGivenTrial = (t: number) => brentMaximum((s) => ll(s, t), 0, upper, relTol);
+  const outer = brentMaximum((t) => siteGivenTrial(t).value, 0, upper, relTol);
   const trialTau2 = outer.x;
   const siteTau2 = siteGivenTrial(trialTau2).x;
   const at = siteTrialLogLik(groups, siteTau2, trialTau2, kind);

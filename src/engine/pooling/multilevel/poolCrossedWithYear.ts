@@ -2,11 +2,13 @@
 // trial-within-site tau² with profile intervals, multilevel I², repeatability by site and the
 // interval for a new site in a new year. Site estimates and leave-one-site-out are given by the
 // nested model only (said in the notes).
-import { chisqQuantile, normalCdf, normalQuantile, tQuantile } from '../../stats/distributions.js';
+import { chisqQuantile, normalCdf, normalQuantile } from '../../stats/distributions.js';
 import type { CrossedGroup } from './crossedYearLikelihood.js';
 import { fitCrossedYear } from './fitCrossedYear.js';
 import { SITE_LEVEL_CAUTION, typicalSamplingVariance } from './poolSiteLevels.js';
 import type { SiteGroup } from './siteTrialLikelihood.js';
+import { crossedPivotModel } from './pivotModels.js';
+import { siteLevelPrediction } from './siteLevelPrediction.js';
 import type { SiteLevelItem, SiteLevelOptions, SiteLevelPooling } from './types.js';
 
 export const CROSSED_DESCRIPTION =
@@ -34,9 +36,11 @@ export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: rea
   const between = siteTau2 + trialTau2 + yearTau2;
   const vTypical = typicalSamplingVariance(groups);
   const total = vTypical === null ? null : between + vTypical;
-  const tMult = groups.length >= 3 ? tQuantile(0.5 + options.confidence / 2, groups.length - 2) : null;
-  const sd = Math.sqrt(fit.muVariance + between);
-  const probAbove = (x: number) => (sd > 0 ? 1 - normalCdf((x - mu) / sd) : mu > x ? 1 : 0);
+  const fitted = { mu, siteTau2, trialTau2, yearTau2 };
+  // The bootstrap needs a refit per draw, and the crossed model's nested searches take a second or
+  // more per fit: the plug-in interval until the crossed model has a fast refit (said in the notes).
+  if (options.prediction !== 'plug-in-t') notes.push('the new-site-in-a-new-year interval of this model is the plug-in t interval (variances taken as known): its bootstrap is not yet available, so it may be too narrow when there are few sites or years');
+  const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), () => crossedPivotModel(crossed, years.length, fitted, options.method), { ...options, prediction: 'plug-in-t' }, notes);
   return {
     levels: 'site-year-and-trial',
     years: years.length,
@@ -65,10 +69,11 @@ export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: rea
     I2Year: total === null ? null : yearTau2 / total,
     I2Total: total === null ? null : between / total,
     siteRepeatability: between > 0 ? siteTau2 / between : null,
-    newSiteLower: tMult === null ? null : mu - tMult * sd,
-    newSiteUpper: tMult === null ? null : mu + tMult * sd,
-    newSiteProbPositive: probAbove(0),
-    newSiteProbAboveThreshold: probAbove(options.threshold),
+    newSiteLower: prediction.lower,
+    newSiteUpper: prediction.upper,
+    newSiteProbPositive: prediction.probPositive,
+    newSiteProbAboveThreshold: prediction.probAboveThreshold,
+    newSitePrediction: prediction,
     siteEstimates: [],
     leaveOneSiteOut: [],
     description: CROSSED_DESCRIPTION,

@@ -5,10 +5,12 @@ import { chisqQuantile, normalCdf, normalQuantile, tQuantile } from '../../stats
 import { fitSiteTrial, profileInterval } from './fitSiteTrial.js';
 import { siteBlup, type SiteGroup } from './siteTrialLikelihood.js';
 import { poolCrossedWithYear } from './poolCrossedWithYear.js';
+import { nestedPivotModel } from './pivotModels.js';
+import { siteLevelPrediction } from './siteLevelPrediction.js';
 import type { LeaveOneSiteOutRow, SiteEstimate, SiteLevelItem, SiteLevelOptions, SiteLevelPooling } from './types.js';
 
 export const SITE_LEVEL_DESCRIPTION =
-  'Trials nested in sites: each trial contrast = regional mean + site effect (variance site tau²) + trial-within-site effect (variance trial tau²) + sampling error (the trial SE², taken as known). Variances by restricted (REML) or full (ML) likelihood; intervals for each tau² by profile likelihood; the mean by GLS with a Wald interval; new-site and next-trial intervals with t on (sites - 2) df and the variances plugged in.';
+  'Trials nested in sites: each trial contrast = regional mean + site effect (variance site tau²) + trial-within-site effect (variance trial tau²) + sampling error (the trial SE², taken as known). Variances by restricted (REML) or full (ML) likelihood; intervals for each tau² by profile likelihood; the mean by GLS with a Wald interval; the new-site interval and probabilities by parametric bootstrap of the studentised prediction error (plug-in t interval beside it); next-trial intervals at known sites with t on (sites - 2) df and the variances plugged in.';
 
 export const SITE_LEVEL_CAUTION =
   "A site's own estimate and its next-trial interval rest on that site's past trials only (shrunk towards the regional mean by the site tau²); they say what these trials showed, not a guarantee for next season, and hold only while management and conditions at the site stay like its past years.";
@@ -50,7 +52,7 @@ function emptyResult(groups: readonly SiteGroup[], method: string, notes: string
     siteTau2: null, siteTau2Lower: null, siteTau2Upper: null, trialTau2: null, trialTau2Lower: null, trialTau2Upper: null,
     yearTau2: null, yearTau2Lower: null, yearTau2Upper: null,
     I2Site: null, I2Trial: null, I2Year: null, I2Total: null, siteRepeatability: null,
-    newSiteLower: null, newSiteUpper: null, newSiteProbPositive: null, newSiteProbAboveThreshold: null,
+    newSiteLower: null, newSiteUpper: null, newSiteProbPositive: null, newSiteProbAboveThreshold: null, newSitePrediction: null,
     siteEstimates: [], leaveOneSiteOut: [], description: SITE_LEVEL_DESCRIPTION, caution: SITE_LEVEL_CAUTION, notes,
   };
 }
@@ -86,8 +88,8 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
   const between = siteTau2 + trialTau2;
   const tMult = groups.length >= 3 ? tQuantile(0.5 + options.confidence / 2, groups.length - 2) : null;
   if (tMult === null) notes.push('prediction intervals need at least three sites');
-  const predictionSd = Math.sqrt(fit.muVariance + between);
-  const probAbove = (x: number) => (predictionSd > 0 ? 1 - normalCdf((x - mu) / predictionSd) : mu > x ? 1 : 0);
+  const fitted = { mu, siteTau2, trialTau2, yearTau2: 0 };
+  const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), () => nestedPivotModel(groups, fitted, options.method), options, notes);
 
   const siteEstimates: SiteEstimate[] = groups.map((g) => {
     const b = siteBlup(g, siteTau2, trialTau2, mu, fit.muVariance);
@@ -137,10 +139,11 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
     I2Year: null,
     I2Total: total === null ? null : between / total,
     siteRepeatability: between > 0 ? siteTau2 / between : null,
-    newSiteLower: tMult === null ? null : mu - tMult * predictionSd,
-    newSiteUpper: tMult === null ? null : mu + tMult * predictionSd,
-    newSiteProbPositive: probAbove(0),
-    newSiteProbAboveThreshold: probAbove(options.threshold),
+    newSiteLower: prediction.lower,
+    newSiteUpper: prediction.upper,
+    newSiteProbPositive: prediction.probPositive,
+    newSiteProbAboveThreshold: prediction.probAboveThreshold,
+    newSitePrediction: prediction,
     siteEstimates,
     leaveOneSiteOut,
     description: SITE_LEVEL_DESCRIPTION,

@@ -23,6 +23,25 @@ export interface SiteLevelOptions {
   /** Largest number of trials the crossed model is fitted for (default 1000), and given profile intervals for (default 300). */
   crossedTrialLimit?: number;
   crossedProfileLimit?: number;
+  /** New-site prediction: 'bootstrap-tau2' (default) gives the bootstrap of the studentised prediction error here ('bootstrap-pivot'); 'plug-in-t' the plug-in interval. */
+  prediction?: 'bootstrap-tau2' | 'plug-in-t';
+  /** Bootstrap refits (default 1000) and seed. */
+  predictionDraws?: number;
+  predictionSeed?: number;
+  signal?: AbortSignal;
+}
+
+/** How the new-site interval and probabilities were made, with the plug-in interval beside. */
+export interface SiteLevelPrediction {
+  method: 'bootstrap-pivot' | 'plug-in-t';
+  lower: number | null;
+  upper: number | null;
+  probPositive: number | null;
+  probAboveThreshold: number | null;
+  plugInT: { lower: number | null; upper: number | null };
+  draws: number | null;
+  seed: number | null;
+  description: string;
 }
 
 /** A known site: its shrunken (BLUP) mean effect and what to expect from its next trial. */
@@ -84,12 +103,14 @@ export interface SiteLevelPooling {
   I2Total: number | null;
   /** Share of the between-trial variance in true effects that belongs to the site: site tau² / (site tau² + year tau² + trial tau²). */
   siteRepeatability: number | null;
-  /** True effect at a new site in a new year: mu ± t(sites - 2)·sqrt(SE² + site tau² + year tau² + trial tau²). */
+  /** Interval for the true effect at a new site in a new year, by the method in newSitePrediction (the bootstrap of the studentised prediction error by default). */
   newSiteLower: number | null;
   newSiteUpper: number | null;
-  /** Probability that the true effect at a new site is above 0 and above the threshold (normal, variances plugged in). */
+  /** Probability that the true effect at a new site is above 0 and above the threshold, from the same predictive distribution. */
   newSiteProbPositive: number | null;
   newSiteProbAboveThreshold: number | null;
+  /** Which method made the four numbers above, with the plug-in t interval mu ± t(sites - 2)·sqrt(SE² + sum of tau²) beside it. */
+  newSitePrediction: SiteLevelPrediction | null;
   siteEstimates: SiteEstimate[];
   leaveOneSiteOut: LeaveOneSiteOutRow[];
   description: string;
