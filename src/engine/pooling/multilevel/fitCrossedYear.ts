@@ -23,10 +23,10 @@ interface Interval {
 }
 
 /** Order of the searched vector: [yearTau2, siteTau2, trialTau2] (year outermost: it is the costliest to vary). */
-export function fitCrossedYear(groups: readonly CrossedGroup[], years: number, kind: LikelihoodKind, chisqCut: number, withIntervals = true, relTol = 1e-9): CrossedEstimates {
+export function fitCrossedYear(groups: readonly CrossedGroup[], years: number, kind: LikelihoodKind, chisqCut: number, withIntervals = true): CrossedEstimates {
   const upper = searchUpper(groups);
   const ll = (x: readonly number[]) => crossedLogLik(groups, years, x[1], x[2], x[0], kind).logLik;
-  const best = nestedMaximum(ll, 3, upper, [], relTol);
+  const best = nestedMaximum(ll, 3, upper);
   const [yearTau2, siteTau2, trialTau2] = best.x;
   const at = crossedLogLik(groups, years, siteTau2, trialTau2, yearTau2, kind);
   const interval = (which: number) => nestedProfileInterval(ll, 3, upper, best.x, at.logLik, which, chisqCut / 2);

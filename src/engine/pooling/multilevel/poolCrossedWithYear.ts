@@ -7,7 +7,6 @@ import type { CrossedGroup } from './crossedYearLikelihood.js';
 import { fitCrossedYear } from './fitCrossedYear.js';
 import { SITE_LEVEL_CAUTION, typicalSamplingVariance } from './poolSiteLevels.js';
 import type { SiteGroup } from './siteTrialLikelihood.js';
-import { crossedPivotModel } from './pivotModels.js';
 import { siteLevelPrediction } from './siteLevelPrediction.js';
 import type { SiteLevelItem, SiteLevelOptions, SiteLevelPooling } from './types.js';
 
@@ -36,11 +35,10 @@ export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: rea
   const between = siteTau2 + trialTau2 + yearTau2;
   const vTypical = typicalSamplingVariance(groups);
   const total = vTypical === null ? null : between + vTypical;
-  const fitted = { mu, siteTau2, trialTau2, yearTau2 };
   // The bootstrap needs a refit per draw, and the crossed model's nested searches take a second or
   // more per fit: the plug-in interval until the crossed model has a fast refit (said in the notes).
   if (options.prediction !== 'plug-in-t') notes.push('the new-site-in-a-new-year interval of this model is the plug-in t interval (variances taken as known): its bootstrap is not yet available, so it may be too narrow when there are few sites or years');
-  const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), () => crossedPivotModel(crossed, years.length, fitted, options.method), { ...options, prediction: 'plug-in-t' }, notes);
+  const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), null, options, notes);
   return {
     levels: 'site-year-and-trial',
     years: years.length,

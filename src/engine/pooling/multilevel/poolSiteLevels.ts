@@ -88,7 +88,7 @@ export function poolSiteLevels(items: readonly SiteLevelItem[], options: SiteLev
   const between = siteTau2 + trialTau2;
   const tMult = groups.length >= 3 ? tQuantile(0.5 + options.confidence / 2, groups.length - 2) : null;
   if (tMult === null) notes.push('prediction intervals need at least three sites');
-  const fitted = { mu, siteTau2, trialTau2, yearTau2: 0 };
+  const fitted = { mu, siteTau2, trialTau2 };
   const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), () => nestedPivotModel(groups, fitted, options.method), options, notes);
 
   const siteEstimates: SiteEstimate[] = groups.map((g) => {

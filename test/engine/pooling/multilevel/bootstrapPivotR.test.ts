@@ -90,7 +90,7 @@ let r: RRun;
 beforeAll(() => {
   ours = poolSiteLevels(items, { method: 'reml', confidence: 0.95, threshold, predictionDraws: DRAWS, predictionSeed: 9 });
   const groups = groupBySite(items);
-  const fitted = { mu: ours.estimate as number, siteTau2: ours.siteTau2 as number, trialTau2: ours.trialTau2 as number, yearTau2: 0 };
+  const fitted = { mu: ours.estimate as number, siteTau2: ours.siteTau2 as number, trialTau2: ours.trialTau2 as number };
   // the same-draws part: record what our simulation draws and what our refits make of it
   const model = nestedPivotModel(groups, fitted, 'reml');
   const normal = normalSampler(mulberry32(3));
