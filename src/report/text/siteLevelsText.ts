@@ -20,13 +20,16 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
       return [p.name, effectCell(s.estimate, s.lower, s.upper, unit(p.name), s.se), seText(s.se), pText(s.p), String(s.sites), String(s.trials), rangeText(s.newSiteLower, s.newSiteUpper, unit(p.name), decimalsFromSe(s.se)), percent(s.newSiteProbPositive, 1)];
     }),
   );
-  const predictionLines = pooled.flatMap((p) => {
-    const n = p.siteLevels!.newSitePrediction;
-    if (!n) return [];
-    const d = decimalsFromSe(p.siteLevels!.se);
-    const plugIn = n.method === 'plug-in-t' ? '' : `; the plug-in t interval would be ${rangeText(n.plugInT.lower, n.plugInT.upper, unit(p.name), d)}`;
-    return [`  ${p.name}: ${n.description}${plugIn}`];
-  });
+  const methodOf = pooled.map((p) => p.siteLevels!.newSitePrediction).find((n) => n);
+  const predictionLines = methodOf
+    ? [
+        `  new site: ${methodOf.description}`,
+        ...pooled.flatMap((p) => {
+          const n = p.siteLevels!.newSitePrediction;
+          return n && n.method !== 'plug-in-t' ? [`  ${p.name}: the plug-in t interval would be ${rangeText(n.plugInT.lower, n.plugInT.upper, unit(p.name), decimalsFromSe(p.siteLevels!.se))}`] : [];
+        }),
+      ]
+    : [];
   const withYear = pooled.some((p) => p.siteLevels!.yearTau2 !== null);
   const withInterval = (x: number | null, lo: number | null, hi: number | null) => `${sig(x)} (${sig(lo)} to ${sig(hi)})`;
   const spread = textTable(
