@@ -6,6 +6,7 @@ import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 import { toApiError } from '../errors.js';
 import { runAnalysis } from './runAnalysis.js';
+import { throttleProgress } from './progressThrottle.js';
 import type { AnyAnalysisReport, ReportDetail } from './report.js';
 
 export interface WorkerRequest {
@@ -23,8 +24,9 @@ const port = parentPort;
 if (port !== null) {
   const { network, spec, detail } = workerData as WorkerRequest;
   const post = (m: WorkerMessage): void => port.postMessage(m);
+  const onProgress = throttleProgress((event: { stage: string; step?: string; fraction: number | null }) => post({ type: 'progress', event }));
   try {
-    post({ type: 'done', report: runAnalysis(network, spec, { onProgress: (event) => post({ type: 'progress', event }) }, detail) });
+    post({ type: 'done', report: runAnalysis(network, spec, { onProgress }, detail) });
   } catch (e) {
     const error = toApiError(e);
     // Stack traces stay in this thread; the details must survive the copy to the caller.
