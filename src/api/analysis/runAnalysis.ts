@@ -60,11 +60,13 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
   // asks for the one-stage model alone and skips it.
   const trials: PoolableTrial[] = [];
+  // A trial's contrast meaning equal to its pool's is carried once, by the pool (trialSummary.ts).
+  const sharedMeanings = new Map(contrasts.map((c) => [c.name, c.meaning]));
   if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
     const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset);
-    trials.push(detail === 'plots' ? entry : summariseTrial(entry));
+    trials.push(detail === 'plots' ? entry : summariseTrial(entry, sharedMeanings));
   });
 
   const pooled = spec.twoStage === null ? [] : addSiteLevels(poolContrasts(trials, contrasts, network, spec, warnings, ctx), trials, network, spec, warnings, ctx);
