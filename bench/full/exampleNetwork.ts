@@ -38,7 +38,7 @@ export function exampleSpec(parts: { twoStage: boolean; oneStage: boolean; lrt: 
     control: 'CTL',
     transform: 'none',
     contrasts: EXAMPLE_CONTRASTS,
-    oneStage: parts.oneStage ? { random: ['trial', 'block', 'treatment:trial'], residual: 'common', df: 'satterthwaite', lrt: parts.lrt, profile: false } : null,
+    oneStage: parts.oneStage ? { random: ['trial', 'block', 'treatment-by-trial'], residual: 'common', df: 'satterthwaite', lrt: parts.lrt, profile: false } : null,
     twoStage: parts.twoStage ? { tau2: 'reml', interval: 'hksj' } : null,
     moderators: [],
     threshold: 0,

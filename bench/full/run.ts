@@ -160,6 +160,6 @@ for (const n of savedOnly ? [] : sizes) {
   console.log(`saved analysis of ${trials.n} trials (workspace analyze + save: command ${fmt(saved.inner)}, peak ${saved.peakMb.toFixed(0)} MB)`);
   console.log(`  stored: ${mb(stored)} (${mb(results)} in result rows, ${mb(trials.b)} in ${trials.n} trial rows) — target <= 10 MB: ${verdict(stored <= 10e6)}`);
   console.log(`  api analysis.list ${fmt(b.listMs)}; analysis.open summary ${fmt(b.openMs)} (first call, loading the store: ${fmt(b.openFirstMs)}) — target < 100 ms: ${verdict(b.openMs < 100)}; with the per-trial tables ${fmt(b.tablesMs)}`);
-  console.log(`  api analysis.open with a page of 100 trials ${fmt(b.pageMs)}; analysis.trial detail of ${someTrial} (${b.detailPlots} plots, recomputed) ${fmt(b.detailAgainMs)} (first ${fmt(b.detailMs)}) — target < 20 ms: ${verdict(b.detailAgainMs < 20)}`);
+  console.log(`  api analysis.open with a page of 100 trials ${fmt(b.pageMs)}; analysis.trial detail of ${someTrial} (${b.detailPlots} plots, recomputed) ${fmt(b.detailAgainMs)} (first ${fmt(b.detailMs)}); median over ${b.detailTrials} other trials ${fmt(b.detailMedianMs)} — target < 20 ms: ${verdict(b.detailMedianMs < 20)}`);
   console.log(`  (child process wall ${fmt(wall)})`);
 }

@@ -3,6 +3,7 @@
 import { ManyfieldError } from '../api/result.js';
 import { APP_VERSION } from '../version.js';
 import type { Workspace } from './workspace.js';
+import { decodeStoredJson, encodeStoredJson } from './storedJson.js';
 import type { NetworkInput } from '../engine/types.js';
 import { compactPooled, isCompactPooled, type CompactPooledResult } from '../engine/pooling/compactPooled.js';
 import type { PooledResult } from '../engine/pooling/types.js';
@@ -70,17 +71,17 @@ export function saveAnalysis(ws: Workspace, spec: unknown, fingerprint: string, 
         insertAnalysisTrials(ws, id, payload.trials, options.network);
         const pooled = payload.pooled.map((p) => (isCompactPooled(p as PooledResult) ? (p as CompactPooledResult) : compactPooled(p as PooledResult)));
         const stored: StoredTwoStage = { pooled: pooled.map(({ weights: _w, sensitivity: _s, ...headline }) => headline), trialCount: payload.trials.length };
-        insert.run(id, kind, JSON.stringify(stored));
-        insert.run(id, POOLED_TABLES, JSON.stringify(pooled.map((p) => ({ weights: p.weights, sensitivity: p.sensitivity }))));
+        insert.run(id, kind, encodeStoredJson(stored));
+        insert.run(id, POOLED_TABLES, encodeStoredJson(pooled.map((p) => ({ weights: p.weights, sensitivity: p.sensitivity }))));
         continue;
       }
       if (kind === 'oneStage' && payload !== null && typeof payload === 'object' && Array.isArray((payload as { trials?: unknown }).trials)) {
         const { trials, ...headline } = payload as { trials: unknown[] };
-        insert.run(id, kind, JSON.stringify(headline));
-        insert.run(id, ONE_STAGE_TRIALS, JSON.stringify(trials));
+        insert.run(id, kind, encodeStoredJson(headline));
+        insert.run(id, ONE_STAGE_TRIALS, encodeStoredJson(trials));
         continue;
       }
-      insert.run(id, kind, JSON.stringify(payload));
+      insert.run(id, kind, encodeStoredJson(payload));
     }
     return id;
   });
@@ -105,8 +106,8 @@ export function loadAnalysis(ws: Workspace, id: number): StoredAnalysis {
     .get(id) as { id: number; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus } | undefined;
   if (!row) throw new ManyfieldError('not-found', `no analysis with id ${id} in this workspace`);
   const results: Record<string, unknown> = {};
-  for (const r of ws.db.prepare('SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ? ORDER BY id').all(id) as { kind: string; payload_json: string }[]) {
-    results[r.kind] = JSON.parse(r.payload_json);
+  for (const r of ws.db.prepare('SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ? ORDER BY id').all(id) as { kind: string; payload_json: string | Uint8Array }[]) {
+    results[r.kind] = decodeStoredJson(r.payload_json);
   }
   mergeSplitRows(results);
   // Saved with per-trial rows: put the trials back where the report had them.
@@ -149,7 +150,7 @@ export function listAnalyses(ws: Workspace): AnalysisListing[] {
               (SELECT payload_json FROM analysis_result r WHERE r.analysis_id = a.id AND r.kind = 'trialsAnalysed') AS trials
        FROM analysis a ORDER BY a.id DESC`,
     )
-    .all() as { id: number; name: string | null; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus; trials: string | null }[];
+    .all() as { id: number; name: string | null; spec_json: string; data_fingerprint: string; app_version: string; created_at: string; status: AnalysisStatus; trials: string | Uint8Array | null }[];
   return rows.map((r) => {
     const spec = JSON.parse(r.spec_json) as { trait?: unknown };
     return {
@@ -160,7 +161,7 @@ export function listAnalyses(ws: Workspace): AnalysisListing[] {
       appVersion: r.app_version,
       createdAt: r.created_at,
       status: r.status,
-      trials: r.trials === null ? null : Number(JSON.parse(r.trials)),
+      trials: r.trials === null ? null : Number(decodeStoredJson(r.trials)),
     };
   });
 }
@@ -178,8 +179,8 @@ export function loadAnalysisSummary(ws: Workspace, id: number, options: { tables
   const rows = ws.db
     .prepare(`SELECT kind, payload_json FROM analysis_result WHERE analysis_id = ?${options.tables ? '' : ' AND kind NOT IN (?, ?)'} ORDER BY id`)
     .raw()
-    .all(...(options.tables ? [id] : [id, POOLED_TABLES, ONE_STAGE_TRIALS])) as [string, string][];
-  for (const r of rows) results[r[0]] = JSON.parse(r[1]);
+    .all(...(options.tables ? [id] : [id, POOLED_TABLES, ONE_STAGE_TRIALS])) as [string, string | Uint8Array][];
+  for (const r of rows) results[r[0]] = decodeStoredJson(r[1]);
   mergeSplitRows(results);
   const twoStage = results.twoStage as { trials?: unknown[]; pooled?: unknown[]; trialCount?: number } | undefined;
   if (twoStage && Array.isArray(twoStage.trials)) {

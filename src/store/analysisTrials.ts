@@ -8,6 +8,7 @@ import { ManyfieldError } from '../api/result.js';
 import type { NetworkInput, TrialInput } from '../engine/types.js';
 import { isFullTrialAnalysis, summariseTrial } from '../engine/trial/trialSummary.js';
 import type { Workspace } from './workspace.js';
+import { decodeStoredJson, encodeStoredJson } from './storedJson.js';
 
 /** A trial entry as a report carries it: the full analysis, its summary, or a summary-file row. */
 export type StoredTrialEntry = { readonly trial: string } & object;
@@ -28,7 +29,7 @@ export function insertAnalysisTrials(ws: Workspace, analysisId: number, trials: 
   const insert = ws.db.prepare('INSERT INTO analysis_trial (analysis_id, position, trial, data_sha256, summary_json) VALUES (?, ?, ?, ?, ?)');
   trials.forEach((entry, position) => {
     const input = inputs.get(entry.trial);
-    insert.run(analysisId, position, entry.trial, input ? trialDataSha256(input) : null, JSON.stringify(storedTrialSummary(entry)));
+    insert.run(analysisId, position, entry.trial, input ? trialDataSha256(input) : null, encodeStoredJson(storedTrialSummary(entry)));
   });
 }
 
@@ -53,15 +54,15 @@ export function listAnalysisTrials(ws: Workspace, analysisId: number, offset = 0
   const rows = ws.db
     .prepare('SELECT position, trial, data_sha256, summary_json FROM analysis_trial WHERE analysis_id = ? ORDER BY position LIMIT ? OFFSET ?')
     .raw()
-    .all(analysisId, limit, offset) as [number, string, string | null, string][];
-  return rows.map(([position, trial, dataSha256, json]) => ({ position, trial, dataSha256, summary: JSON.parse(json) }));
+    .all(analysisId, limit, offset) as [number, string, string | null, string | Uint8Array][];
+  return rows.map(([position, trial, dataSha256, json]) => ({ position, trial, dataSha256, summary: decodeStoredJson(json) }));
 }
 
 export function findAnalysisTrial(ws: Workspace, analysisId: number, trial: string): AnalysisTrialRow | null {
   const row = ws.db.prepare('SELECT position, trial, data_sha256, summary_json FROM analysis_trial WHERE analysis_id = ? AND trial = ?').raw().get(analysisId, trial) as
-    | [number, string, string | null, string]
+    | [number, string, string | null, string | Uint8Array]
     | undefined;
-  return row ? { position: row[0], trial: row[1], dataSha256: row[2], summary: JSON.parse(row[3]) } : null;
+  return row ? { position: row[0], trial: row[1], dataSha256: row[2], summary: decodeStoredJson(row[3]) } : null;
 }
 
 /** The id of the workspace trial with this label, or a not-found error naming it. */

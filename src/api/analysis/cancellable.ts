@@ -8,7 +8,8 @@ import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
-import type { WorkerMessage, WorkerRequest } from './analysisWorker.js';
+import type { WorkerMessage, WorkerRead, WorkerRequest } from './analysisWorker.js';
+import { readAnalysisFile } from './readAnalysisFile.js';
 import { runAnalysis } from './runAnalysis.js';
 import type { AnyAnalysisReport, ReportDetail } from './report.js';
 
@@ -38,7 +39,25 @@ export async function runAnalysisCancellable(network: NetworkInput, spec: Analys
   const worker = signal ? startWorker({ network, spec, detail }) : null;
   // Nobody can cancel (no signal), or no worker file: run here.
   if (signal === undefined || worker === null) return runAnalysis(network, spec, ctx, detail);
-  return new Promise<Report>((resolve, reject) => {
+  return (await awaitWorker(worker, signal, ctx)).report;
+}
+
+/** The analysis of a plot file (`analyze --data`), read where the analysis runs. */
+export async function runFileAnalysisCancellable(file: string, spec: AnalysisSpec, ctx?: CallContext, detail: ReportDetail = 'summary'): Promise<{ report: Report } & WorkerRead> {
+  throwIfCancelled(ctx);
+  const signal = ctx?.signal;
+  const worker = signal ? startWorker({ file, spec, detail }) : null;
+  if (signal === undefined || worker === null) {
+    const { network, sha256, warnings } = await readAnalysisFile(file, spec);
+    return { report: runAnalysis(network, spec, ctx, detail), sha256, warnings };
+  }
+  const done = await awaitWorker(worker, signal, ctx);
+  if (done.read === undefined) throw new ManyfieldError('internal', 'the analysis worker did not say what it read');
+  return { report: done.report, ...done.read };
+}
+
+function awaitWorker(worker: Worker, signal: AbortSignal, ctx?: CallContext): Promise<{ report: Report; read?: WorkerRead }> {
+  return new Promise((resolve, reject) => {
     let settled = false;
     const settle = (f: () => void): void => {
       if (settled) return;
@@ -53,7 +72,7 @@ export async function runAnalysisCancellable(network: NetworkInput, spec: Analys
     signal.addEventListener('abort', onAbort);
     worker.on('message', (m: WorkerMessage) => {
       if (m.type === 'progress') ctx?.onProgress?.(m.event);
-      else if (m.type === 'done') settle(() => resolve(m.report));
+      else if (m.type === 'done') settle(() => resolve({ report: m.report, read: m.read }));
       else settle(() => reject(new ManyfieldError(m.error.code, m.error.message, m.error.details)));
     });
     worker.on('error', (e) => settle(() => reject(e)));

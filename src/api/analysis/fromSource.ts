@@ -1,14 +1,13 @@
 // Runs an analysis on a plot file, a per-trial summary file, or a workspace, and records
 // where the data came from so any number can be traced and reproduced.
 import { createHash } from 'node:crypto';
-import { formatProblems, readDataForAnalysis, readNetworkForAnalysis, readSummaryFile, specHasOneRowPerPlot, type IntakeProblem } from '../../intake/index.js';
+import { formatProblems, readSummaryFile } from '../../intake/index.js';
 import type { NetworkInput } from '../../engine/types.js';
 import type { AnalysisSpec } from '../../spec/analysisSpec.js';
 import { APP_VERSION } from '../../version.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
-import { networkFromTable } from './networkFromTable.js';
-import { runAnalysisCancellable } from './cancellable.js';
+import { runAnalysisCancellable, runFileAnalysisCancellable } from './cancellable.js';
 import { poolSummaryRows } from './poolSummary.js';
 import type { AnyAnalysisReport, ReportDetail } from './report.js';
 
@@ -32,9 +31,9 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
       await ctx?.deliver?.(pooled);
       return pooled;
     }
-    const { network, sha256, warnings } = specHasOneRowPerPlot(spec) ? await readNetworkForAnalysis(source.data, spec) : await readLongFile(source.data, spec);
+    // Read where the analysis runs (the worker, when there is one), so the network is not copied.
+    const { report: analysed, sha256, warnings } = await runFileAnalysisCancellable(source.data, spec, ctx, detail);
     // The file's own SHA-256 identifies the data; the spec (stored beside it) says what was used.
-    const analysed = await runAnalysisCancellable(network, spec, ctx, detail);
     const report = withProvenance({ ...analysed, warnings: [...warnings.map((w) => formatProblems([w])), ...analysed.warnings] }, { source: source.data, fingerprint: `sha256:${sha256}` });
     await ctx?.deliver?.(report);
     return report;
@@ -68,14 +67,6 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
   } catch (e) {
     throw store.explainSqliteError(e, path);
   }
-}
-
-/** A file with a trait column (one row per plot and trait): read as a table, then one trait taken. */
-async function readLongFile(file: string, spec: AnalysisSpec): Promise<{ network: NetworkInput; sha256: string; warnings: readonly IntakeProblem[] }> {
-  const { table } = await readDataForAnalysis(file, spec);
-  const trait = spec.trait ?? table.traits[0]?.name;
-  if (!trait) throw new ManyfieldError('invalid-input', `${file} holds no trait values`);
-  return { network: networkFromTable(table, trait), sha256: table.sha256, warnings: (table.warnings ?? []).filter((w) => w.message.startsWith(`${trait} `)) };
 }
 
 function fingerprint(data: NetworkInput | unknown): string {

@@ -2,7 +2,7 @@
 // the one-stage mixed model, their agreement, and the rate response. Pure orchestration:
 // the numbers come from src/engine.
 import { resolveContrast, type ResolvedContrast } from '../../engine/contrasts/resolve.js';
-import type { NetworkInput, TrialInput } from '../../engine/types.js';
+import type { NetworkInput, TreatmentInfo, TrialInput } from '../../engine/types.js';
 import { analyzeTrial } from '../../engine/trial/analyzeTrial.js';
 import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
 import { fitOneStage } from '../../engine/onestage/fitOneStage.js';
@@ -26,6 +26,7 @@ import { checkNetwork } from './networkChecks.js';
 import { siteAmountsWarning } from './siteAmounts.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
 import { addSiteLevels } from './sitePooling.js';
+import { TrialContrastCache } from './trialContrastCache.js';
 
 /** What pooling reads from a trial entry, full or summarised. */
 type PoolableTrial = TrialStageEntry | TrialSummary;
@@ -60,11 +61,14 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   // The trial stage feeds the two-stage pooling; a spec that turns pooling off (twoStage: null)
   // asks for the one-stage model alone and skips it.
   const trials: PoolableTrial[] = [];
+  // A trial's contrast meaning equal to its pool's is carried once, by the pool (trialSummary.ts).
+  const sharedMeanings = new Map(contrasts.map((c) => [c.name, c.meaning]));
+  const resolved = new TrialContrastCache();
   if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
-    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset);
-    trials.push(detail === 'plots' ? entry : summariseTrial(entry));
+    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset, resolved, tested[i]);
+    trials.push(detail === 'plots' ? entry : summariseTrial(entry, sharedMeanings));
   });
 
   const pooled = spec.twoStage === null ? [] : addSiteLevels(poolContrasts(trials, contrasts, network, spec, warnings, ctx), trials, network, spec, warnings, ctx);
@@ -112,11 +116,23 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   return { detail: 'summary', ...common, twoStage: { trials: trials as TrialSummary[], pooled: pooled.map(compactPooled) } };
 }
 
-/** One trial's full analysis, as in the report with detail 'plots' (also recomputed on demand for a saved analysis). */
-export function analyseOneTrial(trial: TrialInput, network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec, logOffset: number | undefined): TrialStageEntry {
+/**
+ * One trial's full analysis, as in the report with detail 'plots' (also recomputed on demand for
+ * a saved analysis). `cache` shares the contrasts resolved for trials that tested the same
+ * treatments; `present`, when given, is testedTreatments(trial, network.treatments).
+ */
+export function analyseOneTrial(
+  trial: TrialInput,
+  network: NetworkInput,
+  contrasts: readonly ResolvedContrast[],
+  spec: AnalysisSpec,
+  logOffset: number | undefined,
+  cache?: TrialContrastCache,
+  present: readonly TreatmentInfo[] = testedTreatments(trial, network.treatments),
+): TrialStageEntry {
   const control = spec.control ?? network.control;
-  const present = testedTreatments(trial, network.treatments);
-  const own = contrasts.map((c, i) => resolveForTrial(spec.contrasts[i], c, present, control, network.factors));
+  const resolve = () => contrasts.map((c, i) => resolveForTrial(spec.contrasts[i], c, present, control, network.factors));
+  const own = cache ? cache.resolve(present, resolve) : resolve();
   const result = analyzeTrial(trial, network.treatments, own, {
     transform: spec.transform,
     logOffset,

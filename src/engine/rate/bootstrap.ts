@@ -2,9 +2,13 @@
 // replacement (whole trials, so between-site variation is what is resampled) and
 // re-maximises the mean net return of their fitted curves. Percentile limits.
 // Draws: index = floor(u * k) with u from mulberry32(seed), k per replicate, in order.
+// A replicate's mean curve is the curves weighted by how often each was drawn: the same mean
+// as listing the drawn curves, with quadratic and linear coefficients summed (meanCurve.ts), so
+// a replicate costs O(k) for its draws and not O(k) per rate of the search grid.
 import { mulberry32 } from '../stats/random.js';
 import type { Curve } from './curves.js';
-import { gridGains, gridRates, pooledOptimum } from './pooledOptimum.js';
+import { summedMeanCurve } from './meanCurve.js';
+import { optimumOfMean } from './pooledOptimum.js';
 import { quantileType7 } from './quantile.js';
 
 export interface BootstrapOutcome {
@@ -28,24 +32,19 @@ export function bootstrapOptimum(
   const u = mulberry32(seed);
   const optima: number[] = [];
   const every = Math.max(1, Math.floor(replicates / 100));
-  // Gains on the full-data grid, reused by every replicate whose range is the same.
-  const lo0 = Math.max(...ranges.map((q) => q[0]));
-  const hi0 = Math.min(...ranges.map((q) => q[1]));
-  const cache = gridGains(curves, gridRates(lo0, hi0));
+  const counts = new Float64Array(k);
   for (let rep = 0; rep < replicates; rep++) {
     signal?.throwIfAborted();
-    const sample: Curve[] = [];
-    const gains: Float64Array[] = [];
+    counts.fill(0);
     let lo = -Infinity;
     let hi = Infinity;
     for (let i = 0; i < k; i++) {
       const j = Math.min(k - 1, Math.floor(u() * k));
-      sample.push(curves[j]);
-      gains.push(cache[j]);
+      counts[j] += 1;
       lo = Math.max(lo, ranges[j][0]);
       hi = Math.min(hi, ranges[j][1]);
     }
-    optima.push(pooledOptimum(sample, r, lo, hi, 0, lo === lo0 && hi === hi0 ? gains : undefined).optimum);
+    optima.push(optimumOfMean(summedMeanCurve(curves, counts), r, lo, hi, 0).optimum);
     if (onProgress && ((rep + 1) % every === 0 || rep + 1 === replicates)) onProgress((rep + 1) / replicates);
   }
   const alpha = 1 - confidence;

@@ -4,7 +4,8 @@
 // concave), then bisection on the sign of the mean slope — or golden section when the
 // slope does not change sign — refines it. The profitable range is the stretch of rates
 // around the optimum whose mean net return is within `within` of the maximum.
-import { curveSlope, yieldGain, type Curve } from './curves.js';
+import { yieldGain, type Curve } from './curves.js';
+import { summedMeanCurve, type MeanCurve } from './meanCurve.js';
 import { goldenSection } from './profileSearch.js';
 import type { OptimumFlag } from './types.js';
 
@@ -25,12 +26,6 @@ export function meanYieldGain(curves: readonly Curve[], x: number): number {
   return s / curves.length;
 }
 
-function meanSlope(curves: readonly Curve[], x: number): number {
-  let s = 0;
-  for (const c of curves) s += curveSlope(c, x);
-  return s / curves.length;
-}
-
 /** The search grid over [lo, hi]. */
 export function gridRates(lo: number, hi: number, gridPoints = POOLED_GRID_POINTS): Float64Array {
   const step = (hi - lo) / (gridPoints - 1);
@@ -39,29 +34,19 @@ export function gridRates(lo: number, hi: number, gridPoints = POOLED_GRID_POINT
   return xs;
 }
 
-/** Each curve's yield gain on gridRates(lo, hi): lets the bootstrap reuse them. */
-export function gridGains(curves: readonly Curve[], xs: Float64Array): Float64Array[] {
-  return curves.map((c) => xs.map((x) => yieldGain(c, x)));
+/** The optimum of the trials' mean curve (their coefficients summed where they can be: meanCurve.ts). */
+export function pooledOptimum(curves: readonly Curve[], r: number, lo: number, hi: number, within: number): PooledPoint {
+  return optimumOfMean(summedMeanCurve(curves), r, lo, hi, within);
 }
 
-/**
- * `gains`, when given, must be gridGains(curves, gridRates(lo, hi)) in the order of
- * `curves`; it gives the same numbers as evaluating the curves afresh.
- */
-export function pooledOptimum(curves: readonly Curve[], r: number, lo: number, hi: number, within: number, gains?: readonly Float64Array[]): PooledPoint {
-  const net = (x: number) => meanYieldGain(curves, x) - r * x;
-  const slope = (x: number) => meanSlope(curves, x) - r;
+export function optimumOfMean(mean: MeanCurve, r: number, lo: number, hi: number, within: number): PooledPoint {
+  const net = (x: number) => mean.gain(x) - r * x;
+  const slope = (x: number) => mean.slope(x) - r;
   const xs = gridRates(lo, hi);
   const gridPoints = xs.length;
   const ns = new Float64Array(gridPoints);
   let best = 0;
-  if (gains) {
-    // Curve by curve over the grid (memory in order), each grid point's sum taking the curves
-    // in the same order as a point-by-point loop would: the same sums to the last bit.
-    const sums = new Float64Array(gridPoints);
-    for (const g of gains) for (let i = 0; i < gridPoints; i++) sums[i] += g[i];
-    for (let i = 0; i < gridPoints; i++) ns[i] = sums[i] / curves.length - r * xs[i];
-  } else for (let i = 0; i < gridPoints; i++) ns[i] = net(xs[i]);
+  for (let i = 0; i < gridPoints; i++) ns[i] = net(xs[i]);
   for (let i = 0; i < gridPoints; i++) if (ns[i] > ns[best]) best = i;
   const last = gridPoints - 1;
   const flags: OptimumFlag[] = [];
@@ -80,7 +65,7 @@ export function pooledOptimum(curves: readonly Curve[], r: number, lo: number, h
   if (x === lo) flags.push(lo <= 0 ? 'no-input-pays' : 'below-tested-range');
   const nMax = net(x);
   const range = profitableRange(net, xs, ns, x, nMax - Math.max(0, within), within > 0);
-  return { optimum: x, netReturn: nMax, yieldGain: meanYieldGain(curves, x), profitableLower: range[0], profitableUpper: range[1], flags };
+  return { optimum: x, netReturn: nMax, yieldGain: mean.gain(x), profitableLower: range[0], profitableUpper: range[1], flags };
 }
 
 function refineMaximum(net: (x: number) => number, slope: (x: number) => number, a: number, b: number): number {

@@ -22,7 +22,12 @@ export type TrialSummaryContrast =
       readonly p: Num;
       readonly lower: Num;
       readonly upper: Num;
-      /** For a trend or a factor comparison, what this trial's contrast was fitted on (its own rates, the combinations it tested at both levels). */
+      /**
+       * For a trend or a factor comparison, what this trial's contrast was fitted on (its own
+       * rates, the combinations it tested at both levels). In an analysis's summary report it is
+       * left out where it is the pooled contrast's meaning (twoStage.pooled[].meaning), as it is
+       * in every trial that tested the whole protocol: thousands of copies of one sentence.
+       */
       readonly meaning?: string;
     }
   | { readonly name: string; readonly estimable: false; readonly reason: string };
@@ -78,7 +83,8 @@ export interface TrialSummary {
 
 type Identified = TrialAnalysis & { readonly site: string | null; readonly year: number | null; readonly design: string };
 
-export function summariseTrial(t: Identified): TrialSummary {
+/** `sharedMeanings`: contrast name to the meaning its pool carries; a trial's equal meaning is left out. */
+export function summariseTrial(t: Identified, sharedMeanings?: ReadonlyMap<string, string>): TrialSummary {
   let maxStudentized: number | null = null;
   let maxCooks: number | null = null;
   for (const p of t.diagnostics.plots) {
@@ -97,7 +103,7 @@ export function summariseTrial(t: Identified): TrialSummary {
     means: t.means.map((m) => ({ treatment: m.treatment, estimate: m.estimate, se: m.se, n: m.n })),
     contrasts: t.contrasts.map((c) =>
       c.estimable
-        ? { name: c.name, estimable: true, estimate: c.estimate, se: c.se, df: c.df, p: c.p, lower: c.lower, upper: c.upper, ...(c.kind === 'trend' || c.kind === 'factor-levels' ? { meaning: c.meaning } : {}) }
+        ? { name: c.name, estimable: true, estimate: c.estimate, se: c.se, df: c.df, p: c.p, lower: c.lower, upper: c.upper, ...((c.kind === 'trend' || c.kind === 'factor-levels') && sharedMeanings?.get(c.name) !== c.meaning ? { meaning: c.meaning } : {}) }
         : { name: c.name, estimable: false, reason: c.reason },
     ),
     anova: {

@@ -41,13 +41,15 @@ export const SINGULAR_THETA = 1e-4;
 
 export interface MixedFitOptions {
   readonly maxEvaluations?: number;
+  /** How the criterion sums the responses (profiledReml.ts): per layout (default) or trial by trial. */
+  readonly sums?: 'layout' | 'trial';
 }
 
 export function fitMixedQuadratic(d: MixedNetworkData, o: MixedFitOptions = {}): MixedQuadraticFit {
   if (d.n <= FIXED) throw new Error(`mixed quadratic: ${d.n} plots for ${FIXED} fixed effects`);
   if (d.distinctRates < 3) throw new Error(`mixed quadratic: ${d.distinctRates} distinct rates; a curvature needs at least 3`);
   const k = parameterCount(d);
-  const f = (th: Float64Array) => remlDeviance(d, th);
+  const f = (th: Float64Array) => remlDeviance(d, th, o.sums);
   const startAt = (diag: number) => {
     const s = new Float64Array(k);
     s[0] = diag;
@@ -60,7 +62,7 @@ export function fitMixedQuadratic(d: MixedNetworkData, o: MixedFitOptions = {}):
   const best = runs.reduce((a, b) => (b.value < a.value ? b : a));
   const values = runs.map((r) => r.value);
   const theta = best.x;
-  const sol = remlSolution(d, theta);
+  const sol = remlSolution(d, theta, o.sums);
   const s2 = sol.sigma2;
   const c = d.rateScale;
   const back = [1, 1 / c, 1 / (c * c)];

@@ -75,7 +75,8 @@ export function mixedQuadraticData(network: NetworkInput, rates: Map<string, num
     raw.push({ trial: t.trial, rate: plots.map((p) => rates.get(p.treatment) as number), y: plots.map((p) => p.value as number), groups });
   }
   const all = raw.flatMap((r) => r.rate);
-  const rateScale = Math.max(...all);
+  // A loop, not Math.max(...all): spreading hundreds of thousands of plots overflows the stack.
+  const rateScale = all.reduce((m, x) => (x > m ? x : m), -Infinity);
   if (!(rateScale > 0)) throw new RateResponseInputError('mixed quadratic: no positive rate among the plots used');
   const grouping = (['block', 'row', 'col'] as GroupingFactor[]).filter((g) => raw.some((r) => r.groups.some((x) => x.factor === g)));
   const trials = raw.map((r) => trialStatistics(r, rateScale, grouping));

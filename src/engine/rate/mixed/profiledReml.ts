@@ -12,6 +12,7 @@ import { cholesky, cholSolve, cholLogDet, cholInverse } from '../../linalg/chole
 import type { Matrix } from '../../linalg/matrix.js';
 import type { MixedNetworkData, MixedTrialData } from './mixedData.js';
 import { choleskyInPlace } from '../../linalg/inPlace.js';
+import { layoutResponseSums, type LayoutResponseSums } from './layoutSums.js';
 
 export const FIXED = 3;
 
@@ -108,14 +109,18 @@ export interface RemlSolution {
 /**
  * Trials with the same layout (Z'Z, Z'X, X'X and grouping columns equal) share everything in
  * the criterion except their responses: the factor of M_t and Lm⁻¹ Λ'Z'X are computed once per
- * layout and evaluation. The arithmetic per trial is unchanged (same operations, same order),
- * so the criterion is the same to the last bit as computing every trial in full.
+ * layout and evaluation; the responses enter through each layout's sums (layoutSums.ts), so an
+ * evaluation's cost does not grow with the number of trials of a layout.
  */
 interface LayoutGroups {
   /** Layout index of each trial. */
   readonly layoutOf: Int32Array;
   /** One trial of each layout. */
   readonly representatives: readonly MixedTrialData[];
+  /** Each layout's response sums. */
+  readonly responses: readonly LayoutResponseSums[];
+  /** The trials of each layout (indices into d.trials). */
+  readonly members: readonly number[][];
 }
 
 const layoutCache = new WeakMap<MixedNetworkData, LayoutGroups>();
@@ -136,7 +141,9 @@ function layoutGroups(d: MixedNetworkData): LayoutGroups {
     }
     layoutOf[i] = j;
   });
-  g = { layoutOf, representatives };
+  const members: number[][] = representatives.map(() => []);
+  layoutOf.forEach((j, i) => members[j].push(i));
+  g = { layoutOf, representatives, responses: layoutResponseSums(d, layoutOf, representatives.length), members };
   layoutCache.set(d, g);
   return g;
 }
@@ -165,45 +172,127 @@ function layoutPieces(t: MixedTrialData, theta: ArrayLike<number>): LayoutPieces
   return { pieces: p, logDiagonal, xhx };
 }
 
-/** Lm⁻¹ Λ'Z'y of trial t into cy, with its layout's pieces. */
-function responsePiece(t: MixedTrialData, p: TrialPieces, cy: Float64Array): void {
-  const q = t.q;
+/** Lm⁻¹ Λ' z into out (z: a trial's Z'y or a layout's mean of them). */
+function applyB(q: number, p: TrialPieces, z: ArrayLike<number>, out: Float64Array): void {
   const l = p.l;
   for (let i = 0; i < 3; i++) {
     let sy = 0;
-    for (let k = i; k < 3; k++) sy += l[k * 3 + i] * t.zty[k];
-    cy[i] = sy;
+    for (let k = i; k < 3; k++) sy += l[k * 3 + i] * z[k];
+    out[i] = sy;
   }
-  for (let i = 3; i < q; i++) cy[i] = p.diag[i] * t.zty[i];
-  forwardSolve(p.chol, q, cy, 1, 0);
+  for (let i = 3; i < q; i++) out[i] = p.diag[i] * z[i];
+  forwardSolve(p.chol, q, out, 1, 0);
 }
 
-/** The criterion and estimates at theta; deviance = Infinity where a factorisation fails. */
-export function remlSolution(d: MixedNetworkData, theta: ArrayLike<number>): RemlSolution {
-  const xhx = new Float64Array(9);
-  const xhy = new Float64Array(3);
-  let yhy = 0;
-  let logDetH = 0;
+/** What the criterion sums over trials: X'H⁻¹X, X'H⁻¹y, y'H⁻¹y (without the s² factor) and log|H|. */
+interface CriterionSums {
+  readonly xhx: Float64Array;
+  readonly xhy: Float64Array;
+  readonly yhy: number;
+  readonly logDetH: number;
+}
+
+interface Accumulator {
+  xhx: Float64Array;
+  xhy: Float64Array;
+  yhy: number;
+  logDetH: number;
+  /** Scratch for one trial's Lm⁻¹ Λ'Z'y. */
+  cy: Float64Array;
+}
+
+function accumulator(): Accumulator {
+  return { xhx: new Float64Array(9), xhy: new Float64Array(3), yhy: 0, logDetH: 0, cy: new Float64Array(0) };
+}
+
+/** One trial's terms, through its layout's pieces. */
+function addTrial(acc: Accumulator, t: MixedTrialData, layout: LayoutPieces): void {
+  const p = layout.pieces;
+  const q = t.q;
+  if (acc.cy.length < q) acc.cy = new Float64Array(q);
+  const cy = acc.cy;
+  applyB(q, p, t.zty, cy);
+  for (let i = 0; i < q; i++) acc.logDetH += layout.logDiagonal[i];
+  for (let a = 0; a < 3; a++) {
+    for (let b = 0; b < 3; b++) acc.xhx[a * 3 + b] += layout.xhx[a * 3 + b];
+    let s = 0;
+    for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * cy[k];
+    acc.xhy[a] += t.xty[a] - s;
+  }
+  let s = 0;
+  for (let k = 0; k < q; k++) s += cy[k] * cy[k];
+  acc.yhy += t.yty - s;
+}
+
+/** The sums trial by trial (the plain path). */
+function sumsByTrial(d: MixedNetworkData, groups: LayoutGroups, layouts: readonly LayoutPieces[]): CriterionSums {
+  const acc = accumulator();
+  d.trials.forEach((t, index) => addTrial(acc, t, layouts[groups.layoutOf[index]]));
+  return acc;
+}
+
+/**
+ * The same sums from each layout's response sums (layoutSums.ts): O(q³) per layout. A layout of
+ * fewer than q trials is cheaper trial by trial, and is summed so.
+ */
+function sumsByLayout(d: MixedNetworkData, groups: LayoutGroups, layouts: readonly LayoutPieces[]): CriterionSums {
+  const acc = accumulator();
+  layouts.forEach((layout, j) => {
+    const p = layout.pieces;
+    const sums = groups.responses[j];
+    const q = sums.zMean.length;
+    const m = sums.count;
+    if (m < q) {
+      for (const index of groups.members[j]) addTrial(acc, d.trials[index], layout);
+      return;
+    }
+    let logDiag = 0;
+    for (let i = 0; i < q; i++) logDiag += layout.logDiagonal[i];
+    acc.logDetH += m * logDiag;
+    // B = Lm⁻¹ Λ', column by column (Λ' is the unit columns scaled/mixed by L' and θ).
+    const b = new Float64Array(q * q);
+    const unit = new Float64Array(q);
+    const col = new Float64Array(q);
+    for (let c = 0; c < q; c++) {
+      unit.fill(0);
+      unit[c] = 1;
+      applyB(q, p, unit, col);
+      for (let i = 0; i < q; i++) b[i * q + c] = col[i];
+    }
+    const cyMean = new Float64Array(q);
+    applyB(q, p, sums.zMean, cyMean);
+    // tr(B C B') = Σ_k Σ_ij B_ki C_ij B_kj
+    let spread = 0;
+    for (let k = 0; k < q; k++)
+      for (let i = 0; i < q; i++) {
+        const bki = b[k * q + i];
+        if (bki === 0) continue;
+        let s = 0;
+        for (let jj = 0; jj < q; jj++) s += sums.zScatter[i * q + jj] * b[k * q + jj];
+        spread += bki * s;
+      }
+    let meanPart = 0;
+    for (let k = 0; k < q; k++) meanPart += cyMean[k] * cyMean[k];
+    acc.yhy += sums.yty - (spread + m * meanPart);
+    for (let a = 0; a < 3; a++) {
+      for (let c = 0; c < 3; c++) acc.xhx[a * 3 + c] += m * layout.xhx[a * 3 + c];
+      let s = 0;
+      for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * cyMean[k];
+      acc.xhy[a] += sums.xty[a] - m * s;
+    }
+  });
+  return acc;
+}
+
+/**
+ * The criterion and estimates at theta; deviance = Infinity where a factorisation fails.
+ * `sums`: 'layout' (default) sums the responses per layout; 'trial' goes trial by trial, the
+ * plain computation the fast one is tested against (1e-10 relative: rounding of the sums only).
+ */
+export function remlSolution(d: MixedNetworkData, theta: ArrayLike<number>, sums: 'layout' | 'trial' = 'layout'): RemlSolution {
   const groups = layoutGroups(d);
   const layouts = groups.representatives.map((t) => layoutPieces(t, theta));
-  let cy = new Float64Array(0);
-  d.trials.forEach((t, index) => {
-    const layout = layouts[groups.layoutOf[index]];
-    const p = layout.pieces;
-    const q = t.q;
-    if (cy.length < q) cy = new Float64Array(q);
-    responsePiece(t, p, cy);
-    for (let i = 0; i < q; i++) logDetH += layout.logDiagonal[i];
-    for (let a = 0; a < 3; a++) {
-      for (let b = 0; b < 3; b++) xhx[a * 3 + b] += layout.xhx[a * 3 + b];
-      let s = 0;
-      for (let k = 0; k < q; k++) s += p.cX[k * 3 + a] * cy[k];
-      xhy[a] += t.xty[a] - s;
-    }
-    let s = 0;
-    for (let k = 0; k < q; k++) s += cy[k] * cy[k];
-    yhy += t.yty - s;
-  });
+  const { xhx, xhy, yhy, logDetH } = sums === 'layout' ? sumsByLayout(d, groups, layouts) : sumsByTrial(d, groups, layouts);
   const lx = cholesky({ rows: 3, cols: 3, data: xhx });
   const beta = cholSolve(lx, xhy);
   const pwrss = yhy - (beta[0] * xhy[0] + beta[1] * xhy[1] + beta[2] * xhy[2]);
@@ -213,9 +302,9 @@ export function remlSolution(d: MixedNetworkData, theta: ArrayLike<number>): Rem
   return { deviance, beta, sigma2, unscaledCovariance: cholInverse(lx) };
 }
 
-export function remlDeviance(d: MixedNetworkData, theta: ArrayLike<number>): number {
+export function remlDeviance(d: MixedNetworkData, theta: ArrayLike<number>, sums: 'layout' | 'trial' = 'layout'): number {
   try {
-    const v = remlSolution(d, theta).deviance;
+    const v = remlSolution(d, theta, sums).deviance;
     return Number.isFinite(v) ? v : Infinity;
   } catch {
     return Infinity;
