@@ -83,7 +83,7 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
         { onProgress: progress.onProgress },
       );
       progress.done();
-      if (r.ok) for (const w of r.data.warnings) process.stderr.write(`manyfield: warning: ${w}\n`);
+      if (r.ok) for (const w of [...r.data.notes, ...r.data.warnings]) process.stderr.write(`manyfield: warning: ${w}\n`);
       return report(r, (d) => (o.flag('json') ? json(d) : `Imported ${d.file} into ${d.workspace}${d.created ? ' (new workspace)' : ''}: ${describeSummary(d.summary)}${d.warnings.length ? `; ${d.warnings.length} value${d.warnings.length > 1 ? 's' : ''} to check (listed above)` : ''}\n`), out);
     }
     case 'trials': {
