@@ -39,6 +39,11 @@ export function StageComparison({ agreement, decimals }: { agreement: StageAgree
         {agreement.agree === null ? 'Agreement cannot be judged.' : agreement.agree ? '✓ They agree' : '⚠ They differ'}
         {agreement.differenceInSe === null ? '' : ` (gap ${formatNumber(agreement.differenceInSe, 2)} standard errors; more than 0.5 is worth a look).`}
       </p>
+      {agreement.note ? (
+        <p className="small-text muted" data-testid="stage-note">
+          {agreement.note}
+        </p>
+      ) : null}
     </section>
   );
 }

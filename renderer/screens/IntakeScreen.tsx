@@ -103,7 +103,7 @@ export function IntakeScreen({ workspace, onImported, onShowNetwork }: Props) {
     setProgress(null);
     if (r.ok) {
       const s = r.data.summary;
-      setOutcome({ kind: 'done', text: `Imported ${plural(s.trials, 'trial')}, ${plural(s.plots, 'plot')} and ${plural(s.observations, 'value')} from ${file.name}.` });
+      setOutcome({ kind: 'done', text: `Imported ${plural(s.trials, 'trial')}, ${plural(s.plots, 'plot')} and ${plural(s.observations, 'value')} from ${file.name}.${r.data.notes.map((n) => ` Note: ${n}`).join('')}` });
       setCheck(null);
       await onImported();
     } else if (r.error.code === 'cancelled') {

@@ -11,6 +11,7 @@ import { TraitPicker } from '../ui/TraitPicker.js';
 import { progressText } from '../shape/progress.js';
 import type { ProgressEvent } from '../host/types.js';
 import { SiteYearMatrix } from '../network/SiteYearMatrix.js';
+import { NetworkChecks } from '../network/NetworkChecks.js';
 
 interface Props {
   readonly workspace: OpenWorkspace;
@@ -29,6 +30,7 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
     (signal) => (trait ? host.call('trials.overview', { workspace: path, trait }, { signal, onProgress: setProgress }) : Promise.resolve({ ok: true as const, data: [] })),
     [host, path, trait, info],
   );
+  const [checks] = useLoad(() => (trait ? host.call('trials.checks', { workspace: path, trait }) : Promise.resolve({ ok: false as const, error: { code: 'not-found', message: 'no trait chosen' } })), [host, path, trait, info]);
   const [site, setSite] = useState<number | null>(null);
   const siteCode = sites.status === 'ready' ? (sites.data.find((s) => s.id === site)?.code ?? null) : null;
   const rows = useMemo(() => (trials.status === 'ready' ? sortTrials(trials.data, siteCode) : []), [trials, siteCode]);
@@ -88,6 +90,12 @@ export function NetworkScreen({ workspace, trait, onTrait, onOpenTrial }: Props)
                 ))}
                 {flagCounts(trials.data).length === 0 ? <li className="muted">No trial is flagged.</li> : null}
               </ul>
+            </>
+          ) : null}
+          {checks.status === 'ready' && checks.data.trials > 0 ? (
+            <>
+              <h2>Network checks</h2>
+              <NetworkChecks checks={checks.data} />
             </>
           ) : null}
         </div>

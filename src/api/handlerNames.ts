@@ -11,6 +11,7 @@ export const HANDLER_NAMES = [
   'workspace.create',
   'sites.list',
   'trials.overview',
+  'trials.checks',
   'trial.detail',
   'plots.exclude',
   'plots.include',

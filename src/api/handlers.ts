@@ -18,6 +18,7 @@ import type { TrialListing } from '../store/index.js';
 import type { WorkspaceDescription } from './workspace/describe.js';
 import type { SiteEntry } from './workspace/sites.js';
 import type { TrialOverviewEntry } from './trials/overview.js';
+import type { TrialNetworkChecks } from './trials/networkChecks.js';
 import type { TrialDetail } from './trials/detail.js';
 import type { ExclusionEntry, ExclusionRecord, InclusionRecord } from './plots/exclusions.js';
 import type { FilePreview } from './intake/preview.js';
@@ -56,6 +57,7 @@ export const handlerArgs = {
   'workspace.create': z.object({ workspace: workspacePath }).strict(),
   'sites.list': z.object({ workspace: workspacePath }).strict(),
   'trials.overview': z.object({ workspace: workspacePath, trait: z.string().min(1) }).strict(),
+  'trials.checks': z.object({ workspace: workspacePath, trait: z.string().min(1) }).strict(),
   'trial.detail': z.object({ workspace: workspacePath, trial: rowId, trait: z.string().min(1) }).strict(),
   'plots.exclude': z.object({ workspace: workspacePath, plot: rowId, reason: z.string().trim().min(1, 'an exclusion needs a reason').max(500) }).strict(),
   'plots.include': z.object({ workspace: workspacePath, plot: rowId }).strict(),
@@ -116,6 +118,7 @@ export interface HandlerResults {
   'workspace.create': WorkspaceDescription;
   'sites.list': SiteEntry[];
   'trials.overview': TrialOverviewEntry[];
+  'trials.checks': TrialNetworkChecks;
   'trial.detail': TrialDetail;
   'plots.exclude': ExclusionRecord;
   'plots.include': InclusionRecord;
@@ -155,6 +158,7 @@ const implementations: Implementations = {
   'workspace.create': async (a) => (await import('./workspace/describe.js')).createWorkspace(a.workspace),
   'sites.list': async (a) => (await import('./workspace/sites.js')).listSites(a.workspace),
   'trials.overview': async (a, ctx) => (await import('./trials/overview.js')).trialsOverview(a.workspace, a.trait, ctx),
+  'trials.checks': async (a) => (await import('./trials/networkChecks.js')).trialNetworkChecks(a.workspace, a.trait),
   'trial.detail': async (a) => (await import('./trials/detail.js')).trialDetail(a.workspace, a.trial, a.trait),
   'plots.exclude': async (a) => (await import('./plots/exclusions.js')).excludeStoredPlot(a.workspace, a.plot, a.reason),
   'plots.include': async (a) => (await import('./plots/exclusions.js')).includeStoredPlot(a.workspace, a.plot),

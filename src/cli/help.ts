@@ -8,7 +8,7 @@ Commands:
   demo     --workspace W [--replace]            build the invented demo network into W
   import   --workspace W --file F --map M.json [--replace]
                                                  load a plot file (CSV or XLSX) into W (created if new)
-  trials   --workspace W [--json]               list the trials held in W
+  trials   --workspace W [--trait T] [--json]   list the trials held in W (with T: network checks)
   sites    --workspace W [--json]               list the sites with position and covariates
   exclude  --workspace W --plot ID --reason "…"  set a plot aside (it stays stored; analyses skip it)
   include  --workspace W --plot ID              undo an exclusion
@@ -58,9 +58,12 @@ The control's rate: a blank level of a numeric factor (a rate) is 0 for the cont
 received none of the input — unless controlLevels says otherwise; other blanks are "not
 applicable".`,
 
-  trials: `manyfield trials --workspace W [--json]
+  trials: `manyfield trials --workspace W [--trait T] [--json]
 
-Lists the trials held in W: site, year, design, plots, treatments and traits.`,
+Lists the trials held in W: site, year, design, plots, treatments and traits.
+With --trait, the network checks for that trait follow: treatments tested in one trial
+only, trials that share no treatment with the rest (disconnected), and each trial's
+range of every numeric factor (the amounts applied there).`,
 
   export: `manyfield export --workspace W --trait T --out F.csv
 

@@ -10,6 +10,7 @@ import { optionsFor, parseArgs, UsageError } from './args.js';
 import { toCsv } from './csv.js';
 import { formatReport } from './formatReport.js';
 import { formatTrials } from './formatTrials.js';
+import { formatNetworkChecks } from './formatNetworkChecks.js';
 import { commandHelp, USAGE } from './help.js';
 import { formatExclusions, formatSites } from './formatSites.js';
 import { terminalProgress } from './progressBar.js';
@@ -83,13 +84,17 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
         { onProgress: progress.onProgress },
       );
       progress.done();
-      if (r.ok) for (const w of r.data.warnings) process.stderr.write(`manyfield: warning: ${w}\n`);
+      if (r.ok) for (const w of [...r.data.notes, ...r.data.warnings]) process.stderr.write(`manyfield: warning: ${w}\n`);
       return report(r, (d) => (o.flag('json') ? json(d) : `Imported ${d.file} into ${d.workspace}${d.created ? ' (new workspace)' : ''}: ${describeSummary(d.summary)}${d.warnings.length ? `; ${d.warnings.length} value${d.warnings.length > 1 ? 's' : ''} to check (listed above)` : ''}\n`), out);
     }
     case 'trials': {
-      const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });
+      const o = optionsFor(command, parsed, { values: ['workspace', 'trait'], flags: ['json'] });
       const r = await api['trials.list']({ workspace: o.required('workspace') });
-      return report(r, (d) => (o.flag('json') ? json(d) : formatTrials(d)), out);
+      const trait = o.value('trait');
+      if (trait === undefined || !r.ok) return report(r, (d) => (o.flag('json') ? json(d) : formatTrials(d)), out);
+      // With a trait, the network checks follow the list (JSON: both under one object).
+      const checks = await api['trials.checks']({ workspace: o.required('workspace'), trait });
+      return report(checks, (c) => (o.flag('json') ? json({ trials: r.data, checks: c }) : `${formatTrials(r.data)}${formatNetworkChecks(c)}`), out);
     }
     case 'sites': {
       const o = optionsFor(command, parsed, { values: ['workspace'], flags: ['json'] });

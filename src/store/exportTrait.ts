@@ -4,6 +4,7 @@ import type { LevelValue } from '../engine/types.js';
 import type { ImportMapping } from '../intake/types.js';
 import { levelFromColumns, type StoredLevel } from './levels.js';
 import { findTrait, trialsWithTrait } from './network.js';
+import { loadAppliedLevels } from './appliedLevels.js';
 import type { Workspace } from './workspace.js';
 
 export type ExportCell = string | number | null;
@@ -81,11 +82,17 @@ export function exportTrait(ws: Workspace, trait: string): ExportedTrait {
   const nFactors = factorNames.length;
   const nCovariates = covariateNames.length;
   const rows: ExportCell[][] = [];
+  // A treatment applied at a site-specific amount is written with that trial's amount, so the
+  // re-import stores the same amounts.
+  const applied = loadAppliedLevels(db, trials.map((r) => r.id));
   for (const trial of trials) {
+    const own = new Map(Object.entries(applied.get(trial.id) ?? {}));
     const cov = new Map((covariatesOf.all(trial.id) as (StoredLevel & { name: string })[]).map((c) => [c.name, levelFromColumns(c)]));
     const covCells = covariateNames.map((n) => cov.get(n) ?? null);
     for (const p of plotsOf.all(t.id, trial.id) as [number, string, string | null, number | null, number | null, number | null, string | null][]) {
-      const f = factorCells.get(p[0]) ?? noLevels;
+      const amounts = own.get(p[1]);
+      const planned = factorCells.get(p[0]) ?? noLevels;
+      const f = amounts === undefined ? planned : planned.map((cell, i) => amounts[factorNames[i]] ?? cell);
       const row: ExportCell[] = new Array(width);
       row[0] = trial.site;
       row[1] = trial.year;

@@ -8,7 +8,7 @@ import { ImportRefusedError } from './errors.js';
 import { mergeProtocol } from './mergeProtocol.js';
 import { mergeSites, mergeTraits } from './mergeReference.js';
 import { checkTableConsistency, refuseInconsistent } from './tableConsistency.js';
-import { refuseAppliedLevels } from './appliedLevels.js';
+import { storeAppliedLevels } from './appliedLevels.js';
 import { checkStoredBounds } from './storedBounds.js';
 import type { Workspace } from './workspace.js';
 
@@ -119,6 +119,7 @@ function deleteTrials(db: Database.Database, trialIds: readonly number[], batchI
   db.prepare(`DELETE FROM observation WHERE plot_id IN (SELECT id FROM plot WHERE trial_id IN (${inTrials}))`).run({ ids });
   db.prepare(`DELETE FROM plot WHERE trial_id IN (${inTrials})`).run({ ids });
   db.prepare(`DELETE FROM trial_covariate WHERE trial_id IN (${inTrials})`).run({ ids });
+  db.prepare(`DELETE FROM trial_applied_level WHERE trial_id IN (${inTrials})`).run({ ids });
   db.prepare(`DELETE FROM trial WHERE id IN (${inTrials})`).run({ ids });
   const batches = [...new Set(batchIds.filter((b): b is number => b !== null))];
   const dropEmpty = db.prepare('DELETE FROM import_batch WHERE id = ? AND NOT EXISTS (SELECT 1 FROM trial WHERE import_batch_id = ?)');
@@ -137,6 +138,7 @@ function deleteBatch(db: Database.Database, batchId: number): void {
   db.prepare(`DELETE FROM observation WHERE plot_id IN (SELECT id FROM plot WHERE trial_id IN (${trials}))`).run({ b: batchId });
   db.prepare(`DELETE FROM plot WHERE trial_id IN (${trials})`).run({ b: batchId });
   db.prepare(`DELETE FROM trial_covariate WHERE trial_id IN (${trials})`).run({ b: batchId });
+  db.prepare(`DELETE FROM trial_applied_level WHERE trial_id IN (${trials})`).run({ b: batchId });
   db.prepare('DELETE FROM trial WHERE import_batch_id = @b').run({ b: batchId });
   db.prepare('DELETE FROM import_batch WHERE id = @b').run({ b: batchId });
 }
@@ -167,7 +169,6 @@ function uniqueLabel(labels: Set<string>, key: string, site: string, year: numbe
 
 export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options: ImportOptions = {}): ImportSummary {
   checkTableConsistency(table);
-  refuseAppliedLevels(table);
   const db = ws.db;
   const now = options.now ?? (() => new Date());
   const total = table.plots.length + table.observations.length;
@@ -214,6 +215,7 @@ export function importParsedTable(ws: Workspace, table: ParsedPlotTable, options
         insertCovariate.run(id, name, typeof value === 'number' ? value : null, typeof value === 'string' ? value : null);
       }
     }
+    storeAppliedLevels(db, table, protocol.protocolId, trialIds, protocol.treatmentIds);
 
     // Plot ids are assigned here, so observations can name their plot without a lookup; the
     // IMMEDIATE lock guarantees nobody else takes ids meanwhile.

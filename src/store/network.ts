@@ -4,6 +4,7 @@
 import { ManyfieldError } from '../api/result.js';
 import type { FactorInfo, LevelValue, NetworkInput, PlotObservation, TreatmentInfo, TrialDesign, TrialInput } from '../engine/types.js';
 import { levelFromColumns, type StoredLevel } from './levels.js';
+import { loadAppliedLevels } from './appliedLevels.js';
 import type { Workspace } from './workspace.js';
 
 export interface LoadNetworkOptions {
@@ -130,6 +131,8 @@ export function loadNetwork(ws: Workspace, trait: string, options: LoadNetworkOp
        WHERE p.trial_id = ? ORDER BY p.id`,
     )
     .raw();
+  // Amounts applied per trial (a treatment coded by level number), as the file path builds them.
+  const applied = loadAppliedLevels(ws.db, trialRows.map((r) => r.id));
   type PlotRow = [number, string, string | null, number | null, number | null, number, string | null, number | null, string | null, number | null];
   const trials: TrialInput[] = trialRows.map((r) => {
     const rows = plotsOf.all(t.id, r.id) as PlotRow[];
@@ -139,7 +142,8 @@ export function loadNetwork(ws: Workspace, trait: string, options: LoadNetworkOp
       plots[i] = { plotId: p[0], label: p[8], sourceRow: p[9], treatment: p[1], block: p[2], row: p[3], col: p[4], value: p[7], excluded: p[5] ? { reason: p[6] ?? '' } : null };
     }
     const covariates = { ...bySite.get(r.site_id), ...byTrial.get(r.id) };
-    return { trial: r.label, site: r.site, year: r.year, design: r.design, plots, covariates };
+    const own = applied.get(r.id);
+    return { trial: r.label, site: r.site, year: r.year, design: r.design, plots, covariates, ...(own ? { appliedLevels: own } : {}) };
   });
   return {
     trait: t.name,

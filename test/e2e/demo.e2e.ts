@@ -41,6 +41,13 @@ describe('demo network in the browser', () => {
     expect(await network.siteMarkers().count()).toBe(14);
     const labels = await network.trialLabels();
     expect(new Set(labels).size).toBe(42);
+    // The demo's one protocol at every site: connected, each treatment in many trials, one rate range.
+    await network.checks().first().waitFor();
+    expect(await network.checks().allInnerTexts()).toEqual([
+      'Every treatment was tested in at least two trials.',
+      'Connected: every trial shares a treatment with the rest.',
+      'rate 0–160 kg/ha in 42 trials',
+    ]);
     await screenshot(page, join(screensDir(), 'network.png'));
   });
 

@@ -22,6 +22,7 @@ import { resolveForTrial } from '../../engine/contrasts/perTrial.js';
 import { testedTreatments } from './testedTreatments.js';
 import { nothingToPool } from './nothingToPool.js';
 import { notComparable } from './stageComparability.js';
+import { treatedSetNote } from './treatedSets.js';
 import { checkNetwork } from './networkChecks.js';
 import { siteAmountsWarning } from './siteAmounts.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
@@ -88,7 +89,11 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
     const note = notComparable(c, network, tested);
     return note === null ? [] : [[c.name, note] as const];
   }));
-  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings, notCompared) : [];
+  const treatedSets = new Map(spec.contrasts.flatMap((c) => {
+    const note = treatedSetNote(c, network, tested, control);
+    return note === null ? [] : [[c.name, note] as const];
+  }));
+  const agreement = oneStage && pooled.length > 0 ? compareStages(oneStage.contrasts, pooled, warnings, notCompared, treatedSets) : [];
 
   let rateResponse: ReturnType<typeof analyzeRateResponse> | null = null;
   if (spec.rateResponse) {

@@ -15,6 +15,7 @@ import {
   type Workspace,
 } from '../../store/index.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
+import { describeSiteAmounts } from '../analysis/siteAmounts.js';
 
 export interface ImportOutcome {
   readonly workspace: string;
@@ -23,6 +24,14 @@ export interface ImportOutcome {
   readonly summary: ImportSummary;
   /** Values kept but worth a look (the plausibility screen), each naming file, row and column. */
   readonly warnings: readonly string[];
+  /** What the import did that the user should know, in words (site-specific amounts stored per trial). */
+  readonly notes: readonly string[];
+}
+
+/** Once per import: the treatments whose amounts differ between trials, now stored per trial. */
+function importNotes(table: ParsedPlotTable): string[] {
+  const amounts = describeSiteAmounts({ treatments: table.treatments, trials: table.trials.map((t) => ({ trial: t.key, appliedLevels: t.appliedLevels })) });
+  return amounts === null ? [] : [`${amounts}: the amount applied in each trial is stored with it, and trends and rate curves analysed from this workspace use those amounts.`];
 }
 
 export async function importFile(args: { workspace: string; file: string; mapping: string | ImportMapping; replace: boolean }, ctx?: CallContext): Promise<ImportOutcome> {
@@ -33,13 +42,14 @@ export async function importFile(args: { workspace: string; file: string; mappin
   const store = (ws: Workspace): ImportSummary => storeTable(ws, table, args.replace, ctx);
   try {
     const warnings = (table.warnings ?? []).map((w) => formatProblems([w]));
+    const notes = importNotes(table);
     if (!existsSync(target)) {
       const made = createWorkspaceWith(target, store);
-      if (made.created) return { workspace: args.workspace, file: args.file, created: true, summary: made.result, warnings };
+      if (made.created) return { workspace: args.workspace, file: args.file, created: true, summary: made.result, warnings, notes };
     }
     const ws = openWorkspace(target);
     try {
-      return { workspace: args.workspace, file: args.file, created: false, summary: store(ws), warnings };
+      return { workspace: args.workspace, file: args.file, created: false, summary: store(ws), warnings, notes };
     } finally {
       ws.close();
     }

@@ -92,8 +92,8 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
     };
   });
   const siteAmounts = network.trials.some((t) => Object.values(t.appliedLevels ?? {}).some((l) => options.factor in l));
-  if (siteAmounts) warnings.push(`Some treatments were applied at different ${options.factor} amounts in different trials: each trial's curve uses the amounts applied there; the mixed-model curve, which needs one ${options.factor} per treatment, is not fitted.`);
-  const mixedModel = !siteAmounts && (options.model === 'quadratic' || options.model === 'best') ? mixedQuadraticOrWarning(network, rates, options, warnings) : undefined;
+  if (siteAmounts) warnings.push(`Some treatments were applied at different ${options.factor} amounts in different trials: each trial's curve, and each trial's plots in the mixed-model curve, use the amounts applied there.`);
+  const mixedModel = options.model === 'quadratic' || options.model === 'best' ? mixedQuadraticOrWarning(network, rates, options, warnings) : undefined;
   progress('done', 1);
   const factorInfo = network.factors.find((f) => f.name === options.factor);
   const rateUnit = factorInfo?.unit ?? null;
@@ -120,7 +120,7 @@ export function analyzeRateResponse(network: NetworkInput, options: RateResponse
 
 function mixedQuadraticOrWarning(network: NetworkInput, rates: Map<string, number>, options: RateResponseOptions, warnings: string[]): MixedRateResult | null {
   try {
-    const m = analyzeMixedQuadratic(network, rates, { priceRatio: options.priceRatio, confidence: options.confidence });
+    const m = analyzeMixedQuadratic(network, rates, { priceRatio: options.priceRatio, confidence: options.confidence, factor: options.factor });
     if (!m.convergence.converged) warnings.push(`Mixed-model quadratic: ${m.convergence.note ?? 'did not converge'}; read its figures with care.`);
     return m;
   } catch (e) {

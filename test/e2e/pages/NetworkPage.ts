@@ -33,6 +33,11 @@ export class NetworkPage {
     return this.rows().locator('th').allInnerTexts();
   }
 
+  /** The network checks beside the flags, one item per finding or tested range. */
+  checks(): Locator {
+    return this.page.getByTestId('network-checks').locator('li');
+  }
+
   siteMarkers(): Locator {
     return this.page.getByTestId('site-map').locator('.site-marker');
   }

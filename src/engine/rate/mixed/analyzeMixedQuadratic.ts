@@ -16,10 +16,12 @@ export const MIXED_SITE_QUANTILES: readonly number[] = [0.1, 0.25, 0.5, 0.75, 0.
 export interface MixedRateOptions extends MixedFitOptions {
   readonly priceRatio: number;
   readonly confidence: number;
+  /** The rate factor: trials take their own applied amounts of it (see mixedQuadraticData). */
+  readonly factor?: string;
 }
 
 export function analyzeMixedQuadratic(network: NetworkInput, rates: Map<string, number>, o: MixedRateOptions): MixedRateResult {
-  const data = mixedQuadraticData(network, rates);
+  const data = mixedQuadraticData(network, rates, o.factor);
   if (data.trials.length < 2) throw new Error(`mixed quadratic: ${data.trials.length} trial(s) with usable plots; random trial deviations need at least 2`);
   const fit = fitMixedQuadratic(data, o);
   const [b0, b1, b2] = fit.fixed;

@@ -7,6 +7,7 @@
 // trial's n x n covariance is never formed.
 import type { NetworkInput, TrialInput } from '../../types.js';
 import { RateResponseInputError } from '../errors.js';
+import { appliedRates } from '../rateData.js';
 
 /** Blocking factors modelled as random within trial (variance common to all trials). */
 export type GroupingFactor = 'block' | 'row' | 'col';
@@ -60,9 +61,15 @@ interface RawTrial {
   readonly groups: { factor: GroupingFactor; level: number[]; levels: number }[];
 }
 
-export function mixedQuadraticData(network: NetworkInput, rates: Map<string, number>): MixedNetworkData {
+/**
+ * `factor`: the rate factor, so that a treatment applied at a site-specific amount in a trial
+ * (TrialInput.appliedLevels) enters that trial at the amount applied there, as in the per-trial
+ * curves; without it every trial takes `rates` as given.
+ */
+export function mixedQuadraticData(network: NetworkInput, planned: Map<string, number>, factor?: string): MixedNetworkData {
   const raw: RawTrial[] = [];
   for (const t of network.trials) {
+    const rates = factor === undefined ? planned : appliedRates(t, planned, factor);
     const plots = t.plots.filter((p) => rates.has(p.treatment) && p.value !== null && Number.isFinite(p.value) && !p.excluded);
     if (plots.length === 0) continue;
     const groups: RawTrial['groups'] = [];
