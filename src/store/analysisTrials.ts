@@ -18,9 +18,9 @@ export function trialDataSha256(trial: TrialInput): string {
   return createHash('sha256').update(JSON.stringify(trial)).digest('hex');
 }
 
-/** The compact form kept for a trial (full analyses are summarised; other entries kept as given). */
-export function storedTrialSummary(entry: StoredTrialEntry): object {
-  return isFullTrialAnalysis(entry) ? summariseTrial(entry) : entry;
+/** The compact form kept for a trial (full analyses are summarised; other entries kept as given); `sharedMeanings` as for summariseTrial. */
+export function storedTrialSummary(entry: StoredTrialEntry, sharedMeanings?: ReadonlyMap<string, string>): object {
+  return isFullTrialAnalysis(entry) ? summariseTrial(entry, sharedMeanings) : entry;
 }
 
 /** Insert the trial rows of analysis `analysisId` (inside the caller's transaction). */

@@ -54,10 +54,14 @@ export async function openSavedAnalysis(workspace: string, analysis: number, pag
     if (!page) return { ...summary, trials: [] };
     if (store.hasTrialRows(ws, analysis)) return { ...summary, trials: store.listAnalysisTrials(ws, analysis, page.offset, page.limit) };
     // saved before per-trial rows: the trials are inside the stored report
-    const legacy = legacyTrials(store.loadAnalysis(ws, analysis));
+    const stored = store.loadAnalysis(ws, analysis);
+    const legacy = legacyTrials(stored);
+    // a trial's contrast meaning equal to its pool's is carried once, by the pool, as a new save does
+    const pooled = (stored.results.twoStage as { pooled?: { name?: unknown; meaning?: unknown }[] } | undefined)?.pooled ?? [];
+    const shared = new Map(pooled.flatMap((p) => (typeof p.name === 'string' && typeof p.meaning === 'string' ? [[p.name, p.meaning] as const] : [])));
     return {
       ...summary,
-      trials: legacy.slice(page.offset, page.offset + page.limit).map((t, i) => ({ position: page.offset + i, trial: t.trial, dataSha256: null, summary: store.storedTrialSummary(t) })),
+      trials: legacy.slice(page.offset, page.offset + page.limit).map((t, i) => ({ position: page.offset + i, trial: t.trial, dataSha256: null, summary: store.storedTrialSummary(t, shared) })),
     };
   });
 }
