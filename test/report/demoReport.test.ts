@@ -122,6 +122,21 @@ describe('the demo report (PDF)', () => {
     expect(text).toContain('label limits');
   });
 
+  it('numbers the contents with the page each section starts on (pdftotext page by page)', () => {
+    const page = (n: number) => spawnSync('pdftotext', ['-layout', '-f', String(n), '-l', String(n), pdf(), '-'], { encoding: 'utf8' }).stdout;
+    const lines = [...page(1).matchAll(/^\s*(\d+)\. (.+?)\s+(\d+)\s*$/gm)].map((m) => ({ heading: `${m[1]}. ${m[2].trim()}`, page: Number(m[3]) }));
+    expect(lines.map((l) => l.heading)).toContain('1. In short');
+    expect(lines.length).toBeGreaterThanOrEqual(10);
+    const squash = (s: string) => s.replace(/\s+/g, ' ').trim();
+    for (const l of lines) {
+      const text = page(l.page).split('\n').map(squash);
+      // On its page the heading stands alone on a line (the contents line has the number after it).
+      expect(text, `${l.heading} on page ${l.page}`).toContain(l.heading);
+    }
+    // Pages never go back: the sections print in order.
+    expect(lines.map((l) => l.page)).toEqual([...lines.map((l) => l.page)].sort((x, y) => x - y));
+  });
+
   it('saves page images for a person to look at', () => {
     spawnSync('pdftoppm', ['-r', '60', '-png', pdf(), join(OUT, 'page')]);
     expect(readdirSync(OUT).filter((f) => f.startsWith('page') && f.endsWith('.png')).length).toBeGreaterThanOrEqual(8);
