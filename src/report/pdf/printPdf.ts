@@ -4,6 +4,7 @@
 // Figures do not split (the stylesheet's print rules).
 import { existsSync } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
+import { PAGE_MARGINS_MM, pageTemplates } from './pageTemplates.js';
 import { printWithContentsPages, type PrintedReport } from './twoPass.js';
 
 export const DEFAULT_CHROMIUM = '/usr/bin/chromium';
@@ -12,16 +13,6 @@ export const DEFAULT_CHROMIUM = '/usr/bin/chromium';
 export function chromiumPath(): string | null {
   const p = process.env.MANYFIELD_CHROMIUM ?? DEFAULT_CHROMIUM;
   return existsSync(p) ? p : null;
-}
-
-const esc = (s: string) => s.replace(/[&<>]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[c] ?? c);
-
-/** The header and footer every print of the report carries (Chromium's and Electron's share the template fields). */
-export function pageTemplates(title: string): { headerTemplate: string; footerTemplate: string } {
-  return {
-    headerTemplate: `<div style="font-size:7pt;color:#5b6470;width:100%;padding:0 14mm;">${esc(title)}</div>`,
-    footerTemplate: '<div style="font-size:8pt;color:#5b6470;width:100%;text-align:center;">Page <span class="pageNumber"></span> of <span class="totalPages"></span></div>',
-  };
 }
 
 /** The report printed to PDF bytes, `what` naming the output in errors. */
@@ -46,7 +37,7 @@ export async function printReportPdfBytes(html: string, title: string, what = 't
         printBackground: true,
         displayHeaderFooter: true,
         ...pageTemplates(title),
-        margin: { top: '16mm', bottom: '16mm', left: '14mm', right: '14mm' },
+        margin: { top: `${PAGE_MARGINS_MM.top}mm`, bottom: `${PAGE_MARGINS_MM.bottom}mm`, left: `${PAGE_MARGINS_MM.left}mm`, right: `${PAGE_MARGINS_MM.right}mm` },
         outline: true,
         tagged: true,
       });
