@@ -14,7 +14,7 @@ describe('reading numbers back from a report', () => {
   });
 
   it('rejects a wrong last digit, a false bound and a missing key', () => {
-    const html = span('a.b.0', '1.24', ' data-decimals="2"') + span('a.b.0', 'more than 99.5%', ' data-bound="above" data-scale="100"') + span('a.c', '3', ' data-decimals="0"');
+    const html = span('a.b.0', '1.24', ' data-decimals="2"') + span('a.b.2', 'more than 99.5%', ' data-bound="above" data-scale="100"') + span('a.c', '3', ' data-decimals="0"');
     const wrong = disagreements(markedNumbers(html), doc);
     expect(wrong).toHaveLength(3);
     expect(wrong[0]).toMatch(/shown 1\.24/);

@@ -7,7 +7,7 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { callHandler } from '../../../src/api/handlers.js';
+import { api, callHandler } from '../../../src/api/handlers.js';
 import type { ProgressEvent } from '../../../src/api/context.js';
 import { tempDir } from '../../support/cli.js';
 import { contentsTitles, disagreements, markedNumbers } from '../../support/reportNumbers.js';
@@ -24,7 +24,7 @@ beforeAll(async () => {
   const run = await callHandler('analysis.run', { workspace, spec: SPEC, save: true });
   if (!run.ok) throw new Error(run.error.message);
   analysis = run.data;
-  const list = await callHandler('analysis.list', { workspace });
+  const list = await api['analysis.list']({ workspace });
   if (!list.ok) throw new Error(list.error.message);
   id = list.data[0].id;
 }, 600_000);
@@ -32,7 +32,7 @@ beforeAll(async () => {
 describe('report.build', () => {
   it('answers the HTML of a saved analysis, numbers equal to its run, with progress and a file name', async () => {
     const events: ProgressEvent[] = [];
-    const r = await callHandler('report.build', { workspace, analysis: id }, { onProgress: (e) => events.push(e) });
+    const r = await api['report.build']({ workspace, analysis: id }, { onProgress: (e) => events.push(e) });
     if (!r.ok) throw new Error(r.error.message);
     expect(r.data.fileStem).toBe(`yield-analysis-${id}-report`);
     expect(r.data.reproduced).toBe(true);
@@ -50,19 +50,19 @@ describe('report.build', () => {
   it('stops when cancelled, and says nothing was stored', async () => {
     const controller = new AbortController();
     controller.abort();
-    const r = await callHandler('report.build', { workspace, analysis: id }, { signal: controller.signal });
+    const r = await api['report.build']({ workspace, analysis: id }, { signal: controller.signal });
     expect(r).toMatchObject({ ok: false, error: { code: 'cancelled' } });
   });
 
   it('refuses an analysis the workspace does not hold', async () => {
-    const r = await callHandler('report.build', { workspace, analysis: 999 });
+    const r = await api['report.build']({ workspace, analysis: 999 });
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.error.message).toMatch(/999/);
   });
 
   it('prints the PDF when asked: numbered contents, the sections, several pages', async () => {
     const events: ProgressEvent[] = [];
-    const r = await callHandler('report.build', { workspace, analysis: id, pdf: true }, { onProgress: (e) => events.push(e) });
+    const r = await api['report.build']({ workspace, analysis: id, pdf: true }, { onProgress: (e) => events.push(e) });
     expect(events.at(-1)?.stage).toBe('report-print');
     if (!r.ok) throw new Error(r.error.message);
     expect(r.data.pdfProblem).toBeNull();
