@@ -58,6 +58,6 @@ describe('a 4,000-trial network', () => {
     for (const k of keys) expect(Math.abs(Number(k.text) - Math.sin(k.i))).toBeLessThanOrEqual(0.0005 + 1e-9);
     const positive = trials.filter((_, i) => Math.sin(i) > 0).length;
     const above = trials.filter((_, i) => Math.sin(i) > 0.5).length;
-    expect(html).toContain(`${positive.toLocaleString('en-GB')} of 4,000 (${Math.round((100 * positive) / K)}%) trials showed a positive effect, ${above.toLocaleString('en-GB')} of 4,000`);
+    expect(html).toContain(`positive in ${positive.toLocaleString('en-GB')} of 4,000 (${Math.round((100 * positive) / K)}%) trials and above the break-even 0.5 in ${above.toLocaleString('en-GB')} of 4,000 (${Math.round((100 * above) / K)}%).`);
   });
 });
