@@ -7,7 +7,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { PAGE_MARGINS_MM, pageTemplates, reportTitle } from '../src/report/pdf/pageTemplates.js';
+import { PAGE_MARGINS_MM, pageTemplates, reportTitle, tagPdf } from '../src/report/pdf/pageTemplates.js';
 import { printWithContentsPages } from '../src/report/pdf/twoPass.js';
 import { ManyfieldError } from '../src/api/result.js';
 
@@ -35,7 +35,7 @@ export async function printReportInWindow(html: unknown): Promise<Uint8Array> {
         ...pageTemplates(reportTitle(html)),
         margins: { top: PAGE_MARGINS_MM.top / MM_PER_INCH, bottom: PAGE_MARGINS_MM.bottom / MM_PER_INCH, left: PAGE_MARGINS_MM.left / MM_PER_INCH, right: PAGE_MARGINS_MM.right / MM_PER_INCH },
         generateDocumentOutline: true,
-        generateTaggedPDF: true,
+        generateTaggedPDF: tagPdf(html),
       });
       return new Uint8Array(pdf);
     });

@@ -56,7 +56,7 @@ console.log(`trials analysed: ${analysis.twoStage.trials.length}; forest plots d
 
 const info = spawnSync('pdfinfo', [pdf], { encoding: 'utf8' }).stdout;
 const pages = Number(/Pages:\s+(\d+)/.exec(info)?.[1]);
-console.log(`PDF: ${(statSync(pdf).size / 1e6).toFixed(2)} MB, ${pages} pages`);
+console.log(`PDF: ${(statSync(pdf).size / 1e6).toFixed(2)} MB, ${pages} pages, ${/Tagged:\s+yes/.test(info) ? 'tagged' : 'untagged'}`);
 const page = (n: number) => spawnSync('pdftotext', ['-layout', '-f', String(n), '-l', String(n), pdf, '-'], { encoding: 'utf8' }).stdout;
 const squash = (s: string) => s.replace(/\s+/g, ' ').trim();
 const contents = [...page(1).matchAll(/^\s*(\d+)\. (.+?)\s+(\d+)\s*$/gm)].map((m) => ({ heading: `${m[1]}. ${m[2].trim()}`, page: Number(m[3]) }));

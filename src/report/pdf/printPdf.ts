@@ -4,7 +4,7 @@
 // Figures do not split (the stylesheet's print rules).
 import { existsSync } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
-import { PAGE_MARGINS_MM, pageTemplates } from './pageTemplates.js';
+import { PAGE_MARGINS_MM, pageTemplates, tagPdf } from './pageTemplates.js';
 import { printWithContentsPages, type PrintedReport } from './twoPass.js';
 
 export const DEFAULT_CHROMIUM = '/usr/bin/chromium';
@@ -39,7 +39,7 @@ export async function printReportPdfBytes(html: string, title: string, what = 't
         ...pageTemplates(title),
         margin: { top: `${PAGE_MARGINS_MM.top}mm`, bottom: `${PAGE_MARGINS_MM.bottom}mm`, left: `${PAGE_MARGINS_MM.left}mm`, right: `${PAGE_MARGINS_MM.right}mm` },
         outline: true,
-        tagged: true,
+        tagged: tagPdf(html),
       });
     });
   } finally {
