@@ -3,7 +3,8 @@
 // downloads the HTML and the PDF (the server prints with the system Chromium). The HTML's
 // numbers equal `manyfield analyze --json` of the same spec (half a unit of the last decimal
 // shown); the PDF has the sections and numbered contents (pdfinfo, pdftotext). A screenshot of
-// the saved analyses with the outcome goes to test-output/screens/.
+// the saved analyses with the outcome goes to test-output/screens/, with one of the pooled panel,
+// whose chances are worded as the report words them.
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -65,7 +66,8 @@ describe('the report from the saved analyses', () => {
     await screenshot(browser.page, join(screensDir(), 'report-writing.png'));
     const outcome = browser.page.getByTestId('report-outcome');
     await outcome.waitFor({ timeout: 400_000 });
-    expect(await outcome.innerText()).toMatch(/Report written: .*\.html and .*\.pdf/);
+    const said = await outcome.innerText();
+    expect(said, said).toMatch(/Report written: .*\.html and .*\.pdf/);
     await screenshot(browser.page, join(screensDir(), 'report-written.png'));
     const files = await Promise.all(downloads.map(saved));
     expect(files.map((f) => f.name).sort()).toEqual([`yield-analysis-${id}-report.html`, `yield-analysis-${id}-report.pdf`]);
@@ -98,5 +100,17 @@ describe('the report from the saved analyses', () => {
     const outcome = browser.page.getByTestId('report-outcome');
     await outcome.waitFor({ timeout: 30_000 });
     expect(await outcome.innerText()).toMatch(/cancelled/);
+  });
+
+  it('words the chances on the pooled panel as the report does (no rounded 100%)', async () => {
+    await ui.tab(/^Saved/).click();
+    await browser.page.getByTestId('saved-row').first().getByRole('button', { name: /^Open/ }).click();
+    const summary = browser.page.getByTestId('pooled-summary');
+    await summary.waitFor({ timeout: 60_000 });
+    const text = await summary.innerText();
+    // treated_vs_control on the demo: the report's summary says "more than 99.5%" for both chances
+    expect(text).toMatch(/Chance of a positive response\s+more than 99\.5%/);
+    expect(text).not.toMatch(/100(\.0)?%/);
+    await screenshot(browser.page, join(screensDir(), 'report-pooled-wording.png'));
   });
 });
