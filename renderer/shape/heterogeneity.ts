@@ -34,6 +34,6 @@ export function pooledWords(p: PooledNumbers, unit: string, threshold: number, f
   const ci = `${fmt(p.lower)} to ${fmt(p.upper)}`;
   const pred = p.predictionLower === null ? '' : ` At a new site-year like these, the effect is expected between ${fmt(p.predictionLower)} and ${fmt(p.predictionUpper)} ${unit}.`;
   const pos = p.probPositive === null ? '' : ` The chance of a positive response at a new site is ${formatProbability(p.probPositive)}`;
-  const prof = p.probAboveThreshold === null ? '' : `, and of a response above the break-even ${fmt(threshold)} ${unit} ${formatProbability(p.probAboveThreshold)}.`;
+  const prof = p.probAboveThreshold === null ? '' : `, and of a response above the break-even ${fmt(threshold)} ${unit}, ${formatProbability(p.probAboveThreshold)}.`;
   return `On average over the ${p.k} trials the contrast shows a ${sign} of ${fmt(Math.abs(p.estimate))} ${unit} (interval ${ci}).${pred}${pos}${prof}`;
 }

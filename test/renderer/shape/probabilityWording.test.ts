@@ -24,7 +24,7 @@ describe('probability wording, screens and report', () => {
     const p = { estimate: 1.37, lower: 1.24, upper: 1.5, p: 1e-9, tau2: 0.1, I2: 0.8, Qp: 0.001, k: 41, predictionLower: 0.69, predictionUpper: 2.05, probPositive: 0.99993, probAboveThreshold: 0.9971 };
     const words = pooledWords(p, 't/ha', 0.3, (v) => (v === null ? '–' : v.toFixed(2)));
     expect(words).toContain('The chance of a positive response at a new site is more than 99.5%');
-    expect(words).toContain('above the break-even 0.30 t/ha more than 99.5%.');
+    expect(words).toContain('above the break-even 0.30 t/ha, more than 99.5%.');
     expect(words).not.toMatch(/100%/);
   });
 });
