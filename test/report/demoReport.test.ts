@@ -98,6 +98,16 @@ describe('the demo report (PDF)', () => {
     expect(lines.map((l) => l.page)).toEqual([...lines.map((l) => l.page)].sort((x, y) => x - y));
   });
 
+  it('keeps each chart whole: its first text, last text and caption print on one page', () => {
+    const pages = spawnSync('pdftotext', ['-layout', pdf(), '-'], { encoding: 'utf8', maxBuffer: 64 << 20 }).stdout.split('\f');
+    const onOnePage = (parts: string[]) => pages.some((t) => parts.every((x) => t.includes(x)));
+    const contrasts = (rerun.twoStage as { pooled: { name: string }[] }).pooled.map((p) => p.name);
+    // forest plot: column header (top), pooled row and axis title (bottom), caption
+    for (const name of contrasts) expect(onOnePage(['Site and year', 'Pooled (mean effect)', 'solid line at 0, dotted at break-even', `Forest plot for ${name}:`]), name).toBe(true);
+    // rate chart: upper panel title, lower panel axis, caption
+    expect(onOnePage(['Yield gain over the control', 'Net return of the pooled curve', 'Top: yield gain over the control'])).toBe(true);
+  });
+
   it('saves page images for a person to look at', () => {
     spawnSync('pdftoppm', ['-r', '60', '-png', pdf(), join(OUT, 'page')]);
     expect(readdirSync(OUT).filter((f) => f.startsWith('page') && f.endsWith('.png')).length).toBeGreaterThanOrEqual(8);
