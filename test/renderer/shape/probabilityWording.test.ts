@@ -5,13 +5,18 @@ import { describe, expect, it } from 'vitest';
 import { formatProbability } from '../../../renderer/shape/format.js';
 import { pooledWords } from '../../../renderer/shape/heterogeneity.js';
 import { num } from '../../../src/report/html/markup.js';
+import { probabilityText } from '../../../src/report/text/numbers.js';
 
 const reportText = (v: number) => num('k', v, 0, { percent: true }).replace(/<[^>]+>/g, '').replace(/&lt;/g, '<');
 
-describe('probability wording, screens and report', () => {
+describe('probability wording, screens, report and text summary', () => {
   it('agrees value for value', () => {
     const values = [0, 1e-12, 0.001, 0.0049, 0.005, 0.0051, 0.03, 0.125, 0.5, 0.875, 0.994, 0.9949, 0.995, 0.99501, 0.999, 1 - 1e-12, 1];
-    for (const v of values) expect(formatProbability(v), String(v)).toBe(reportText(v));
+    for (const v of values) {
+      expect(formatProbability(v), String(v)).toBe(reportText(v));
+      // and the command's text summary
+      expect(probabilityText(v), String(v)).toBe(reportText(v));
+    }
   });
 
   it('never shows a rounded certainty', () => {
