@@ -27,6 +27,8 @@ export interface ManyfieldBridge {
   demoWorkspace(): Promise<unknown>;
   launchWorkspace(): Promise<unknown>;
   saveFile(name: string, data: string | Uint8Array): Promise<unknown>;
+  /** The report's HTML printed to PDF by the main process (Electron's print engine). */
+  printReport(html: string): Promise<unknown>;
   onMenu(listener: (command: MenuCommand) => void): () => void;
 }
 
@@ -61,6 +63,7 @@ export function buildBridge(ipc: IpcRendererLike): ManyfieldBridge {
     demoWorkspace: host('demoWorkspace'),
     launchWorkspace: host('launchWorkspace'),
     saveFile: host('saveFile'),
+    printReport: host('printReport'),
     onMenu: (listener: (command: MenuCommand) => void) => subscribe(ipc, MENU_CHANNEL, (_event, command) => listener(command as MenuCommand)),
   });
 }

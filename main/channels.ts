@@ -9,7 +9,7 @@ export const PROGRESS_CHANNEL = 'manyfield:progress';
 /** main -> window: a menu command the screens act on */
 export const MENU_CHANNEL = 'manyfield:menu';
 
-export const HOST_ACTIONS = ['pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'demoWorkspace', 'launchWorkspace', 'saveFile'] as const;
+export const HOST_ACTIONS = ['pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'demoWorkspace', 'launchWorkspace', 'saveFile', 'printReport'] as const;
 export type HostAction = (typeof HOST_ACTIONS)[number];
 export const HOST_CHANNEL_PREFIX = 'manyfield:host:';
 

@@ -15,6 +15,7 @@ import { guardContents, guardSession } from './guards.js';
 import { registerIpc } from './ipcDispatch.js';
 import { menuTemplate } from './menu.js';
 import { PickedFiles } from './pickedFiles.js';
+import { printReportInWindow } from './printReport.js';
 import { APP_SCHEME, APP_START_URL, windowOptions } from './windowOptions.js';
 
 const here = __dirname; // dist/main in the bundle
@@ -147,6 +148,7 @@ void app.whenReady().then(() => {
       recentWorkspaces: () => recentWorkspaces(),
       demoWorkspace: () => demoWorkspace(),
       saveFile: (name, data) => saveFile(name, data),
+      printReport: (html) => printReportInWindow(html),
     },
     onWorkspaceUsed: remember,
   });

@@ -31,7 +31,8 @@ await esbuild.build({
   bundle: true,
   platform: 'node',
   target: 'node20',
-  external: ['electron', 'better-sqlite3'],
+  // playwright-core prints the report's PDF from the job worker in the browser mode; loaded on use.
+  external: ['electron', 'better-sqlite3', 'playwright-core'],
   // The store finds ../../migrations from its own URL; the bundles sit in dist/main/, two levels
   // below the project like dist/store/, so the same relative path holds.
   define: { 'import.meta.url': '__manyfieldModuleUrl' },

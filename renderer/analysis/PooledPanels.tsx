@@ -1,6 +1,6 @@
 // The pooled summary and the heterogeneity panel of one contrast: numbers and the same in words.
 import type { CompactPooledEntry } from '../shape/resultView.js';
-import { formatNumber, formatP } from '../shape/format.js';
+import { formatNumber, formatP, formatProbability } from '../shape/format.js';
 import { heterogeneityWords, pooledWords } from '../shape/heterogeneity.js';
 
 interface Props {
@@ -36,9 +36,9 @@ export function PooledSummary({ pooled: p, unit, threshold, decimals, confidence
           {fmt(p.predictionLower)} to {fmt(p.predictionUpper)}
         </dd>
         <dt>Chance of a positive response</dt>
-        <dd>{pct(p.probPositive)}</dd>
+        <dd>{formatProbability(p.probPositive)}</dd>
         <dt>Chance of a profitable response (above {fmt(threshold)})</dt>
-        <dd>{pct(p.probAboveThreshold)}</dd>
+        <dd>{formatProbability(p.probAboveThreshold)}</dd>
         <dt>Trials pooled</dt>
         <dd>{p.k}</dd>
       </dl>

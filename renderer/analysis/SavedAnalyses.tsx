@@ -1,5 +1,5 @@
-// The analyses stored in the workspace: open (without recomputing), run again, rename, delete,
-// and pick two to compare.
+// The analyses stored in the workspace: open (without recomputing), run again, write the report,
+// rename, delete, and pick two to compare.
 import { useState } from 'react';
 import type { HandlerResults } from '../host/types.js';
 import { formatNumber } from '../shape/format.js';
@@ -13,13 +13,15 @@ interface Props {
   readonly onRename: (id: number, name: string) => void;
   readonly onDelete: (id: number) => void;
   readonly onCompare: (a: number, b: number) => void;
+  /** Write the recommendation report of an analysis; null while one is being written. */
+  readonly onReport: ((id: number) => void) | null;
 }
 
 export function savedTitle(a: { id: number; name?: string | null; trait?: string | null; createdAt: string }): string {
   return a.name ?? `Analysis ${a.id}${a.trait ? ` of ${a.trait}` : ''}`;
 }
 
-export function SavedAnalyses({ list, onOpen, onRerun, onRename, onDelete, onCompare }: Props) {
+export function SavedAnalyses({ list, onOpen, onRerun, onRename, onDelete, onCompare, onReport }: Props) {
   const [picked, setPicked] = useState<number[]>([]);
   const [editing, setEditing] = useState<{ id: number; name: string } | null>(null);
   const toggle = (id: number) => setPicked((p) => (p.includes(id) ? p.filter((x) => x !== id) : [...p.slice(-1), id]));
@@ -81,6 +83,9 @@ export function SavedAnalyses({ list, onOpen, onRerun, onRename, onDelete, onCom
                 </button>
                 <button type="button" className="small" onClick={() => onRerun(a.id)} aria-label={`Run ${savedTitle(a)} again`}>
                   Run again
+                </button>
+                <button type="button" className="small" disabled={onReport === null} onClick={() => onReport?.(a.id)} aria-label={`Write the report of ${savedTitle(a)}`}>
+                  Report
                 </button>
                 <button type="button" className="small" onClick={() => setEditing({ id: a.id, name: a.name ?? '' })} aria-label={`Rename ${savedTitle(a)}`}>
                   Rename

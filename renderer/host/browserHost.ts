@@ -69,7 +69,7 @@ async function pickWorkspace(mode: 'open' | 'new', name?: string): Promise<strin
 }
 
 async function saveFile(name: string, data: Blob | string): Promise<void> {
-  const blob = typeof data === 'string' ? new Blob([data], { type: name.endsWith('.csv') ? 'text/csv' : 'image/svg+xml' }) : data;
+  const blob = typeof data === 'string' ? new Blob([data], { type: name.endsWith('.csv') ? 'text/csv' : name.endsWith('.html') ? 'text/html' : 'image/svg+xml' }) : data;
   const url = URL.createObjectURL(blob);
   const a = document.createElement('a');
   a.href = url;

@@ -48,5 +48,6 @@ export const electronHost = {
   saveFile: async (name: string, data: Blob | string) => {
     await bridge().saveFile(name, typeof data === 'string' ? data : new Uint8Array(await data.arrayBuffer()));
   },
+  printReport: async (html: string) => new Uint8Array((await bridge().printReport(html)) as Uint8Array),
   onMenu: (listener) => bridge().onMenu(listener),
 } satisfies Host;

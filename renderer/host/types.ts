@@ -39,6 +39,8 @@ export interface Host {
   /** The workspace the shell was launched on, if any. */
   launchWorkspace(): Promise<string | null>;
   saveFile(name: string, data: Blob | string): Promise<void>;
+  /** The report's HTML printed to PDF by the shell's own engine (Electron); absent where the core prints it. */
+  printReport?(html: string): Promise<Uint8Array<ArrayBuffer>>;
   /** Commands from the shell's own menu (Electron); the browser mode has none. */
   onMenu?(listener: (command: ShellCommand) => void): () => void;
 }

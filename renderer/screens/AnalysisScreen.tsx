@@ -14,6 +14,7 @@ import { ContrastResults } from '../analysis/ContrastResults.js';
 import { RatesView } from '../analysis/RatesView.js';
 import { SavedAnalyses, savedTitle, type SavedListing } from '../analysis/SavedAnalyses.js';
 import { CompareView } from '../analysis/CompareView.js';
+import { ReportProgress, useReportWriter } from '../analysis/ReportWriter.js';
 
 export type AnalysisTab = 'build' | 'results' | 'rates' | 'saved' | 'compare';
 
@@ -73,6 +74,7 @@ export function AnalysisScreen({ workspace, trait, onOpenTrial, memory }: Props)
   const [compare, setCompare] = useState<[ResultView, ResultView] | null>(null);
   const [covariates, setCovariates] = useState<Map<string, Record<string, number | string | null>>>(new Map());
   const abort = useRef<AbortController | null>(null);
+  const reports = useReportWriter(host, workspace.path);
   const setDraft = (d: SpecDraft) => setDraftState((memory.draft = d));
   const setView = (v: ResultView | null) => setViewState((memory.view = v));
   const setTab = (t: AnalysisTab) => setTabState((memory.tab = t));
@@ -194,9 +196,11 @@ export function AnalysisScreen({ workspace, trait, onOpenTrial, memory }: Props)
           prices={prices && Math.abs(prices.input / prices.crop - viewRate.priceRatio) <= 1e-12 * viewRate.priceRatio ? prices : { input: viewRate.priceRatio, crop: 1 }}
         />
       ) : null}
+      {tab === 'saved' ? <ReportProgress writer={reports} /> : null}
       {tab === 'saved' ? (
         <SavedAnalyses
           list={saved}
+          onReport={reports.job ? null : (id) => void reports.write(id)}
           onOpen={async (id) => {
             const v = await openSaved(id);
             if (!v) return;

@@ -13,6 +13,20 @@ export function formatP(p: number | null | undefined): string {
   return p.toFixed(3);
 }
 
+/**
+ * A probability as the report words it (src/report/html/markup.ts, num with percent): whole
+ * percent, and "more than 99.5%" / "less than 0.5%" near the ends, where a rounded "100%" or "0%"
+ * would claim a certainty the interval does not give. test/renderer/shape/probabilityWording.test.ts
+ * checks the two agree.
+ */
+export function formatProbability(v: number | null | undefined): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '–';
+  if (v > 0.995) return 'more than 99.5%';
+  if (v < 0.005 && v > 0) return 'less than 0.5%';
+  const s = (v * 100).toFixed(0);
+  return `${s === '-0' ? '0' : s}%`;
+}
+
 /** Enough decimals for a value of this size to keep three significant digits. */
 export function decimalsFor(scale: number): number {
   if (!Number.isFinite(scale) || scale === 0) return 2;

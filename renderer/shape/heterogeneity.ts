@@ -1,4 +1,5 @@
 // Heterogeneity and pooled results in plain words, beside the numbers.
+import { formatProbability } from './format.js';
 
 export interface PooledNumbers {
   readonly estimate: number | null;
@@ -32,7 +33,7 @@ export function pooledWords(p: PooledNumbers, unit: string, threshold: number, f
   const sign = p.estimate >= 0 ? 'gain' : 'loss';
   const ci = `${fmt(p.lower)} to ${fmt(p.upper)}`;
   const pred = p.predictionLower === null ? '' : ` At a new site-year like these, the effect is expected between ${fmt(p.predictionLower)} and ${fmt(p.predictionUpper)} ${unit}.`;
-  const pos = p.probPositive === null ? '' : ` The chance of a positive response at a new site is ${pct(p.probPositive)}`;
-  const prof = p.probAboveThreshold === null ? '' : `, and of a response above the break-even ${fmt(threshold)} ${unit} ${pct(p.probAboveThreshold)}.`;
+  const pos = p.probPositive === null ? '' : ` The chance of a positive response at a new site is ${formatProbability(p.probPositive)}`;
+  const prof = p.probAboveThreshold === null ? '' : `, and of a response above the break-even ${fmt(threshold)} ${unit}, ${formatProbability(p.probAboveThreshold)}.`;
   return `On average over the ${p.k} trials the contrast shows a ${sign} of ${fmt(Math.abs(p.estimate))} ${unit} (interval ${ci}).${pred}${pos}${prof}`;
 }

@@ -7,6 +7,8 @@ const STAGES: Record<string, string> = {
   'one-stage': 'Fitting the mixed model',
   pooling: 'Pooling across trials',
   'rate-response': 'Fitting rate responses',
+  'report-write': 'Writing the report',
+  'report-print': 'Printing the report to PDF',
 };
 
 export function progressText(stage: string, fraction: number | null): string {

@@ -33,6 +33,6 @@ export type HandlerNameList = (typeof HANDLER_NAMES)[number];
 /**
  * Handlers that can run long: the shells run them off the window's or server's thread, with
  * progress and cancel. trials.overview runs the trial stage of every trial (about 2 s for
- * 1,000 trials), so it is one of them.
+ * 1,000 trials), so it is one of them; report.build re-runs an analysis and may print it.
  */
-export const LONG_HANDLERS: ReadonlySet<HandlerNameList> = new Set<HandlerNameList>(['demo.build', 'data.import', 'data.validate', 'analysis.run', 'trials.overview']);
+export const LONG_HANDLERS: ReadonlySet<HandlerNameList> = new Set<HandlerNameList>(['demo.build', 'data.import', 'data.validate', 'analysis.run', 'trials.overview', 'report.build']);

@@ -31,6 +31,7 @@ const fileRef = z.string().min(1).max(4096);
 const rowId = z.number().int().positive();
 import type { AnalysisListing } from '../store/analyses.js';
 import type { AnyAnalysisReport } from './analysis/report.js';
+import type { AppReport } from './report/reportForApp.js';
 import type { SavedAnalysisSummary, SavedTrialDetail } from './analysis/saved.js';
 import type { RateOptimumResult } from './analysis/rateOptimum.js';
 import type { TrialCovariates } from '../store/trialCovariates.js';
@@ -102,7 +103,7 @@ export const handlerArgs = {
     })
     .strict(),
   // The recommendation report of a saved analysis (src/api/report/buildReport.ts)
-  'report.build': z.object({ workspace: workspacePath, analysis: z.number().int().positive() }).strict(),
+  'report.build': z.object({ workspace: workspacePath, analysis: z.number().int().positive(), pdf: z.boolean().optional() }).strict(),
 } as const;
 
 export type HandlerName = keyof typeof handlerArgs;
@@ -127,7 +128,7 @@ export interface HandlerResults {
   'data.validate': ValidationReport;
   'analysis.list': AnalysisListing[];
   'analysis.open': SavedAnalysisSummary;
-  'report.build': { readonly html: string; readonly reproduced: boolean | null };
+  'report.build': AppReport;
   'analysis.trial': SavedTrialDetail;
   'analysis.rename': { id: number; name: string | null };
   'analysis.delete': { id: number };
@@ -165,10 +166,7 @@ const implementations: Implementations = {
   'exclusions.list': async (a) => (await import('./plots/exclusions.js')).listExclusions(a.workspace),
   'data.preview': async (a) => (await import('./intake/preview.js')).previewFile(a.file, basename(a.file), a.sheet),
   'data.validate': async (a, ctx) => (await import('./intake/validate.js')).validateFile(a.workspace, a.file, basename(a.file), a.mapping, ctx),
-  'report.build': async (a, ctx) => {
-    const r = await (await import('./report/buildReport.js')).buildReport({ workspace: a.workspace, analysis: a.analysis }, ctx);
-    return { html: r.html, reproduced: r.reproduced };
-  },
+  'report.build': async (a, ctx) => (await import('./report/reportForApp.js')).reportForApp(a, ctx),
   'analysis.list': async (a) => (await import('./analysis/saved.js')).listSavedAnalyses(a.workspace),
   'analysis.open': async (a) => (await import('./analysis/saved.js')).openSavedAnalysis(a.workspace, a.analysis, a.trials, a.tables),
   'analysis.trial': async (a) => (await import('./analysis/saved.js')).savedTrialDetail(a.workspace, a.analysis, a.trial),

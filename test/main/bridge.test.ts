@@ -26,9 +26,9 @@ function fakeIpc() {
 }
 
 describe('preload bridge', () => {
-  it('exposes call, cancel, progress, the six host actions and menu commands — nothing else', () => {
+  it('exposes call, cancel, progress, the seven host actions and menu commands — nothing else', () => {
     const bridge = buildBridge(fakeIpc().ipc);
-    expect(Object.keys(bridge).sort()).toEqual(['call', 'cancel', 'demoWorkspace', 'launchWorkspace', 'onMenu', 'onProgress', 'pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'saveFile']);
+    expect(Object.keys(bridge).sort()).toEqual(['call', 'cancel', 'demoWorkspace', 'launchWorkspace', 'onMenu', 'onProgress', 'pickDataFile', 'pickWorkspace', 'printReport', 'recentWorkspaces', 'saveFile']);
     expect(Object.isFrozen(bridge)).toBe(true);
   });
 
@@ -36,10 +36,10 @@ describe('preload bridge', () => {
     const f = fakeIpc();
     const bridge = buildBridge(f.ipc);
     for (const name of HANDLER_NAMES) await bridge.call(name, { workspace: 'w' }, `id-${name}`);
-    for (const action of ['pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'demoWorkspace', 'launchWorkspace', 'saveFile'] as const) await bridge[action]('open' as never, 'x' as never);
+    for (const action of ['pickDataFile', 'pickWorkspace', 'recentWorkspaces', 'demoWorkspace', 'launchWorkspace', 'saveFile', 'printReport'] as const) await bridge[action]('open' as never, 'x' as never);
     bridge.cancel('c1');
     expect(f.invoked.map((i) => i.channel).sort()).toEqual(invokeChannels().sort());
-    expect(new Set(f.invoked.map((i) => i.channel)).size).toBe(HANDLER_NAMES.length + 6);
+    expect(new Set(f.invoked.map((i) => i.channel)).size).toBe(HANDLER_NAMES.length + 7);
     expect(f.invoked.find((i) => i.channel === 'manyfield:call:trials.list')!.args).toEqual([{ workspace: 'w' }, 'id-trials.list']);
     expect(f.sent).toEqual([{ channel: CANCEL_CHANNEL, args: ['c1'] }]);
   });

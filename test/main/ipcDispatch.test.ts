@@ -32,7 +32,7 @@ function windowEvent(url = 'app://manyfield/index.html') {
 }
 
 const quick: Runner = (name, args, ctx) => callHandler(name, args, ctx);
-const noHost = { pickDataFile: async () => null, pickWorkspace: async () => null, recentWorkspaces: async () => [], demoWorkspace: async () => '', launchWorkspace: async () => null, saveFile: async () => false };
+const noHost = { pickDataFile: async () => null, pickWorkspace: async () => null, recentWorkspaces: async () => [], demoWorkspace: async () => '', launchWorkspace: async () => null, saveFile: async () => false, printReport: async () => new Uint8Array() };
 
 describe('IPC dispatch', () => {
   it('registers one channel per handler, the host actions and cancel — nothing else', () => {
@@ -41,7 +41,7 @@ describe('IPC dispatch', () => {
     expect([...f.handlers.keys()].sort()).toEqual(invokeChannels().sort());
     expect([...f.listeners.keys()]).toEqual([CANCEL_CHANNEL]);
     expect(channels.sort()).toEqual([...invokeChannels(), CANCEL_CHANNEL].sort());
-    expect(f.handlers.size).toBe(HANDLER_NAMES.length + 6);
+    expect(f.handlers.size).toBe(HANDLER_NAMES.length + 7);
   });
 
   it('answers with the handler\'s Result for a workspace the user chose, and refuses one they did not', async () => {

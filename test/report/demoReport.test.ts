@@ -10,6 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { disagreements, markedNumbers, unescapeHtml } from '../support/reportNumbers.js';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const BIN = join(ROOT, 'bin', 'manyfield.cjs');
@@ -20,25 +21,6 @@ function run(args: string[]): string {
   const r = spawnSync(process.execPath, [BIN, ...args], { encoding: 'utf8', timeout: 300_000, maxBuffer: 64 << 20 });
   if (r.status !== 0) throw new Error(`manyfield ${args[0]} failed (${r.status}): ${r.stderr}`);
   return r.stdout;
-}
-
-function unescapeHtml(s: string): string {
-  return s.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&amp;/g, '&');
-}
-
-/** Every element carrying data-key, with its attributes and text, read from the markup. */
-function markedNumbers(html: string): { key: string; attrs: Record<string, string>; text: string }[] {
-  const out: { key: string; attrs: Record<string, string>; text: string }[] = [];
-  for (const m of html.matchAll(/<span ([^>]*data-key="[^"]*"[^>]*)>([^<]*)<\/span>/g)) {
-    const attrs: Record<string, string> = {};
-    for (const a of m[1].matchAll(/([\w-]+)="([^"]*)"/g)) attrs[a[1]] = unescapeHtml(a[2]);
-    out.push({ key: attrs['data-key'], attrs, text: unescapeHtml(m[2]) });
-  }
-  return out;
-}
-
-function at(doc: unknown, path: string): unknown {
-  return path.split('.').reduce<unknown>((o, k) => (o === null || o === undefined ? undefined : (o as Record<string, unknown>)[k]), doc);
 }
 
 let dir: string;
@@ -83,28 +65,7 @@ describe('the demo report (HTML)', () => {
   it('shows every marked number as in the analysis JSON of the re-run (half a unit of the last decimal shown)', () => {
     const marked = markedNumbers(html);
     expect(marked.length).toBeGreaterThan(300);
-    const wrong: string[] = [];
-    for (const m of marked) {
-      const value = at(rerun, m.key);
-      if (typeof value !== 'number') {
-        wrong.push(`${m.key}: not a number in the JSON (${String(value)})`);
-        continue;
-      }
-      const scale = Number(m.attrs['data-scale'] ?? '1');
-      const v = value * scale;
-      if (m.attrs['data-bound'] === 'below') {
-        if (!(v < Number(/[\d.]+/.exec(m.text)![0]))) wrong.push(`${m.key}: ${v} not below "${m.text}"`);
-        continue;
-      }
-      if (m.attrs['data-bound'] === 'above') {
-        if (!(v > Number(/[\d.]+/.exec(m.text)![0]))) wrong.push(`${m.key}: ${v} not above "${m.text}"`);
-        continue;
-      }
-      const decimals = Number(m.attrs['data-decimals']);
-      const shown = Number(m.text.replace('%', ''));
-      if (!(Math.abs(shown - v) <= 0.5 * 10 ** -decimals + 1e-12)) wrong.push(`${m.key}: shown ${m.text}, JSON ${v}`);
-    }
-    expect(wrong).toEqual([]);
+    expect(disagreements(marked, rerun)).toEqual([]);
   });
 });
 
@@ -120,6 +81,31 @@ describe('the demo report (PDF)', () => {
     expect(text).toContain(`Page 1 of ${pages}`);
     expect(text).toContain(`Page ${pages} of ${pages}`);
     expect(text).toContain('label limits');
+  });
+
+  it('numbers the contents with the page each section starts on (pdftotext page by page)', () => {
+    const page = (n: number) => spawnSync('pdftotext', ['-layout', '-f', String(n), '-l', String(n), pdf(), '-'], { encoding: 'utf8' }).stdout;
+    const lines = [...page(1).matchAll(/^\s*(\d+)\. (.+?)\s+(\d+)\s*$/gm)].map((m) => ({ heading: `${m[1]}. ${m[2].trim()}`, page: Number(m[3]) }));
+    expect(lines.map((l) => l.heading)).toContain('1. In short');
+    expect(lines.length).toBeGreaterThanOrEqual(10);
+    const squash = (s: string) => s.replace(/\s+/g, ' ').trim();
+    for (const l of lines) {
+      const text = page(l.page).split('\n').map(squash);
+      // On its page the heading stands alone on a line (the contents line has the number after it).
+      expect(text, `${l.heading} on page ${l.page}`).toContain(l.heading);
+    }
+    // Pages never go back: the sections print in order.
+    expect(lines.map((l) => l.page)).toEqual([...lines.map((l) => l.page)].sort((x, y) => x - y));
+  });
+
+  it('keeps each chart whole: its first text, last text and caption print on one page', () => {
+    const pages = spawnSync('pdftotext', ['-layout', pdf(), '-'], { encoding: 'utf8', maxBuffer: 64 << 20 }).stdout.split('\f');
+    const onOnePage = (parts: string[]) => pages.some((t) => parts.every((x) => t.includes(x)));
+    const contrasts = (rerun.twoStage as { pooled: { name: string }[] }).pooled.map((p) => p.name);
+    // forest plot: column header (top), pooled row and axis title (bottom), caption
+    for (const name of contrasts) expect(onOnePage(['Site and year', 'Pooled (mean effect)', 'solid line at 0, dotted at break-even', `Forest plot for ${name}:`]), name).toBe(true);
+    // rate chart: upper panel title, lower panel axis, caption
+    expect(onOnePage(['Yield gain over the control', 'Net return of the pooled curve', 'Top: yield gain over the control'])).toBe(true);
   });
 
   it('saves page images for a person to look at', () => {

@@ -75,6 +75,7 @@ export async function buildReport(req: ReportRequest, ctx?: CallContext, charts:
   if (specJson === undefined) throw new ManyfieldError('invalid-argument', 'a report needs a spec or a saved analysis');
   const spec = parseSpec(specJson);
   const analysis = (await runAnalysisFromSource({ workspace: req.workspace, data: req.data, spec, save: false, detail: 'summary' }, ctx)) as CompactAnalysisReport;
+  ctx?.onProgress?.({ stage: 'report-write', fraction: null });
   const specExclusions = (spec.exclude ?? []).map((e): ReportExclusion => ({ trial: String(e.trial), plot: 'plot' in e && e.plot !== undefined ? String(e.plot) : `row ${String((e as { row?: unknown }).row)}`, reason: e.reason, source: 'spec' }));
   const input: ReportInput = {
     analysis,

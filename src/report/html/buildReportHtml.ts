@@ -31,7 +31,8 @@ export function buildReportHtml(input: ReportInput, charts: ReportCharts): strin
     provenanceSection(input),
     appendixSection(a),
   ].filter((s): s is Section => s !== null);
-  const toc = `<nav class="toc" id="contents"><h2>Contents</h2><ol>${sections.map((s) => `<li><a href="#${esc(s.id)}">${esc(s.title)}</a></li>`).join('')}</ol></nav>`;
+  // The page slot stays empty on screen; the PDF printer fills it in (src/report/pdf/tocPages.ts).
+  const toc = `<nav class="toc" id="contents"><h2>Contents</h2><ol>${sections.map((s, i) => `<li><a href="#${esc(s.id)}"><span class="toc-title">${i + 1}. ${esc(s.title)}</span><span class="toc-page" data-section="${esc(s.id)}"></span></a></li>`).join('')}</ol></nav>`;
   const title = `Recommendation report: ${a.trait}${a.unit ? ` (${a.unit})` : ''}`;
   return `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:"><title>${esc(title)}</title><style>${REPORT_CSS}</style></head>

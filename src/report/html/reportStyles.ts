@@ -15,7 +15,7 @@ td code{word-break:break-all;overflow-wrap:anywhere}
 tr{break-inside:avoid}
 h2,h3,h4{break-after:avoid;page-break-after:avoid}
 .sentence,.summary p{break-inside:avoid}
-figure.chart{margin:10px 0;break-inside:avoid;page-break-inside:avoid}
+figure.chart{margin:10px 0;break-inside:avoid;page-break-inside:avoid}figure.chart svg{display:block}
 figure.chart svg{max-width:100%;height:auto}
 figcaption{font-size:9pt;color:#3a414b;margin-top:4px}
 .sentence{font-size:11pt}
@@ -24,7 +24,7 @@ figcaption{font-size:9pt;color:#3a414b;margin-top:4px}
 .note{font-size:9pt;color:#3a414b}
 .na{color:#7a828c;font-style:italic}
 pre.spec{font-size:8pt;background:#f7f6f2;border:1px solid #d8d5cc;padding:6px;white-space:pre-wrap;word-break:break-all}
-nav.toc ol{padding-left:20px}nav.toc a{color:#14181f;text-decoration:none}
+nav.toc ol{padding-left:0;list-style:none}nav.toc li{margin:2px 0}nav.toc a{color:#14181f;text-decoration:none;display:flex;align-items:baseline}nav.toc a::after{content:'';order:1;flex:1;border-bottom:1px dotted #9aa1ab;margin:0 6px}.toc-page{order:2;min-width:2em;text-align:right}
 .contrast{break-before:auto}
 ul.forms li{font-size:8.5pt}
 @media print{body{margin:0;max-width:none}section.new-page{break-before:page}a{color:inherit}}

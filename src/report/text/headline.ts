@@ -3,7 +3,7 @@
 // between trials, and whether the one-stage model says the same.
 import type { AnyAnalysisReport } from '../../api/analysis/report.js';
 import type { ContrastReport } from '../../engine/onestage/types.js';
-import { decimalsFromSe, effectCell, fixed, levelText, percent, pPhrase, rangeText, sig } from './numbers.js';
+import { decimalsFromSe, effectCell, fixed, levelText, percent, pPhrase, probabilityText, rangeText, sig } from './numbers.js';
 
 export function headlineLines(r: AnyAnalysisReport): string[] {
   const names = contrastNames(r);
@@ -32,8 +32,8 @@ function pooledSentences(p: PooledHeadline, unit: string | null, level: string, 
   const d = decimalsFromSe(p.se);
   const out = [`  Across ${p.k} trial${p.k === 1 ? '' : 's'}: ${effectCell(p.estimate, p.lower, p.upper, unit, p.se)} (${level} interval), ${pPhrase(p.p)}.`];
   if (p.predictionLower !== null && p.predictionUpper !== null) {
-    const chances = [`above 0: ${percent(p.probPositive)}`];
-    if (threshold !== 0) chances.push(`above ${sig(threshold)}${unit ? ` ${unit}` : ''}: ${percent(p.probAboveThreshold)}`);
+    const chances = [`above 0: ${probabilityText(p.probPositive)}`];
+    if (threshold !== 0) chances.push(`above ${sig(threshold)}${unit ? ` ${unit}` : ''}: ${probabilityText(p.probAboveThreshold)}`);
     out.push(`  At a new site: ${rangeText(p.predictionLower, p.predictionUpper, unit, d)} (${level} prediction interval); chance that the true effect there is ${chances.join(', ')}.`);
   }
   if (p.k > 1)

@@ -61,6 +61,17 @@ export function pText(p: Maybe): string {
   return p < 0.01 ? p.toFixed(4) : p.toFixed(3);
 }
 
+/**
+ * A probability in words, as the HTML report and the screens give it: whole percent, and
+ * "more than 99.5%" / "less than 0.5%" near the ends, never a rounded certainty.
+ */
+export function probabilityText(x: Maybe): string {
+  if (!finite(x)) return '-';
+  if (x > 0.995) return 'more than 99.5%';
+  if (x < 0.005 && x > 0) return 'less than 0.5%';
+  return percent(x);
+}
+
 /** A share 0..1 as a percentage. */
 export function percent(x: Maybe, decimals = 0): string {
   return finite(x) ? `${(100 * x).toFixed(decimals)}%` : '-';

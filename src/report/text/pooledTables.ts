@@ -1,7 +1,7 @@
 // The two-stage pooled results as two tables: the effect with its interval, SE, df and p;
 // then the spread between trials and what it means for a new site.
 import type { AnyAnalysisReport } from '../../api/analysis/report.js';
-import { decimalsFromSe, dfText, effectCell, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
+import { decimalsFromSe, dfText, effectCell, levelText, percent, probabilityText, pText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 
 export function pooledLines(r: AnyAnalysisReport): string[] {
@@ -24,8 +24,8 @@ export function pooledLines(r: AnyAnalysisReport): string[] {
       p.Qdf === null ? '-' : String(p.Qdf),
       pText(p.Qp),
       rangeText(p.predictionLower, p.predictionUpper, unit(p.name), decimalsFromSe(p.se)),
-      percent(p.probPositive, 1),
-      ...(threshold !== 0 ? [percent(p.probAboveThreshold, 1)] : []),
+      probabilityText(p.probPositive),
+      ...(threshold !== 0 ? [probabilityText(p.probAboveThreshold)] : []),
     ]),
   );
   const notes = [...pooled.map(newSiteMethodLine), ...pooled.flatMap((p) => p.notes.map((n) => `  ${p.name}: ${n}`))];

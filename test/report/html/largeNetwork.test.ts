@@ -1,12 +1,14 @@
 // A network of 4,000 trials stays readable: the forest plot draws the 45 trials of largest
 // weight (the appendix lists all), and the rate chart draws an even sample of at most 200 trial
 // curves while the pooled curve averages every trial (checked here against the mean computed
-// directly from the curves' formula).
+// directly from the curves' formula); one sentence describes every trial's estimate by order
+// statistics (each a trial's own value, checked against the sorted estimates).
 import { describe, expect, it } from 'vitest';
 import type { CompactAnalysisReport } from '../../../src/api/analysis/report.js';
 import type { RateResponseResult } from '../../../src/engine/rate/types.js';
 import { FOREST_MAX_ROWS, forestRows } from '../../../src/report/html/sections/resultsSection.js';
 import { rateChartData } from '../../../src/report/html/sections/rateSection.js';
+import { trialSpreadSentence } from '../../../src/report/html/sections/trialSpread.js';
 
 const K = 4000;
 const trials = Array.from({ length: K }, (_, i) => ({
@@ -18,7 +20,7 @@ const trials = Array.from({ length: K }, (_, i) => ({
 }));
 const share = trials.map((_, i) => (i + 1) / ((K * (K + 1)) / 2));
 // Only the fields these functions read.
-const analysis = { twoStage: { trials, pooled: [{ name: 'c', weights: { trial: trials.map((t) => t.trial), weight: share, share } }] } } as unknown as CompactAnalysisReport;
+const analysis = { settings: { threshold: 0.5 }, twoStage: { trials, pooled: [{ name: 'c', weights: { trial: trials.map((t) => t.trial), weight: share, share } }] } } as unknown as CompactAnalysisReport;
 
 describe('a 4,000-trial network', () => {
   it('draws the heaviest-weighted trials in the forest plot and counts them all', () => {
@@ -45,5 +47,17 @@ describe('a 4,000-trial network', () => {
     const last = d.pooled!.points.find((p) => p.rate === x)!;
     expect(last.value).toBeCloseTo(meanLinear * x - 0.00006 * x * x, 12);
     expect(d.netReturn.find((p) => p.rate === x)!.value).toBeCloseTo(last.value - 0.005 * x, 12);
+  });
+
+  it('describes every trial estimate in one sentence: extremes, quartiles, median, counts (order statistics, 1e-9)', () => {
+    const html = trialSpreadSentence(analysis, 0, 3);
+    const sorted = trials.map((t, i) => ({ v: t.contrasts[0].estimate, i })).sort((x, y) => x.v - y.v);
+    const keys = [...html.matchAll(/data-key="twoStage\.trials\.(\d+)\.contrasts\.0\.estimate"[^>]*>([^<]+)</g)].map((m) => ({ i: Number(m[1]), text: m[2] }));
+    const pick = (q: number) => sorted[Math.floor(q * (K - 1))];
+    expect(keys.map((k) => k.i)).toEqual([sorted[0].i, sorted[K - 1].i, pick(0.25).i, pick(0.75).i, pick(0.5).i]);
+    for (const k of keys) expect(Math.abs(Number(k.text) - Math.sin(k.i))).toBeLessThanOrEqual(0.0005 + 1e-9);
+    const positive = trials.filter((_, i) => Math.sin(i) > 0).length;
+    const above = trials.filter((_, i) => Math.sin(i) > 0.5).length;
+    expect(html).toContain(`positive in ${positive.toLocaleString('en-GB')} of 4,000 (${Math.round((100 * positive) / K)}%) trials and above the break-even 0.5 in ${above.toLocaleString('en-GB')} of 4,000 (${Math.round((100 * above) / K)}%).`);
   });
 });

@@ -73,7 +73,10 @@ describe('the text summary carries what a committee reads first (issue 18, findi
     for (const p of report.twoStage.pooled) {
       const unit = report.contrastUnits[p.name]!;
       expect(text).toContain(`Across ${p.k} trials: ${effectCell(p.estimate, p.lower, p.upper, unit, p.se)}`);
-      expect(text).toMatch(new RegExp(`above 0\\.3 ${unit.replace(/\//g, '\\/')}: ${Math.round(100 * p.probAboveThreshold!)}%`));
+      // near the ends the chance is bounded in words, never a rounded 100% or 0%
+      const q = p.probAboveThreshold!;
+      const chance = q > 0.995 ? 'more than 99\\.5%' : q < 0.005 && q > 0 ? 'less than 0\\.5%' : `${Math.round(100 * q)}%`;
+      expect(text).toMatch(new RegExp(`above 0\\.3 ${unit.replace(/\//g, '\\/')}: ${chance}`));
     }
     expect(report.contrastUnits.rate_linear).toBe('t/ha per kg/ha');
   });

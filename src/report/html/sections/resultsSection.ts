@@ -1,11 +1,13 @@
 // Results per contrast: the plain sentence, the numbers (pooled estimate and interval,
 // prediction interval, chances, tau², I², Q), the forest plot, moderators and sensitivity.
-// With many trials the forest plot shows the heaviest-weighted ones; the appendix has them all.
+// With many trials the forest plot shows the heaviest-weighted ones and a sentence describes the
+// spread of all of them; the appendix lists them all.
 import type { CompactAnalysisReport } from '../../../api/analysis/report.js';
 import type { ForestRow } from '../../charts/chartData.js';
 import { decimalsFromSe, esc, finite, num, sigDecimals, table, type Section } from '../markup.js';
 import { trialSummaries, type ReportCharts } from '../reportInput.js';
 import { contrastSentence } from './summarySentences.js';
+import { trialSpreadSentence } from './trialSpread.js';
 
 /** Trials drawn in a forest plot; beyond this the heaviest-weighted are drawn and the rest summarised. */
 export const FOREST_MAX_ROWS = 45;
@@ -76,7 +78,7 @@ export function contrastResults(a: CompactAnalysisReport, i: number, charts: Rep
   });
   const shown = fr.length < total ? ` Showing the ${fr.length} trials with the largest weight of ${total}; Appendix A lists every trial.` : '';
   const leftOut = p.leftOut.length ? `<p class="note">Left out of this pool: ${p.leftOut.map(esc).join('; ')}.</p>` : '';
-  return `<div class="contrast" id="contrast-${esc(p.name)}"><h3>${esc(p.name)}${unit ? ` (${esc(unit)})` : ''}</h3>${contrastSentence(a, i)}${table(['Quantity', 'Value'], rows, 'narrow keyvals')}<figure class="chart">${forest}<figcaption>Forest plot for ${esc(p.name)}: each trial's estimate with its ${Math.round(a.settings.confidence * 100)}% interval (square area proportional to its weight), the pooled mean (diamond) and the prediction for a new site (dashed bar).${shown}</figcaption></figure>${leftOut}${moderatorsHtml(a, i)}${sensitivityHtml(a, i, d)}</div>`;
+  return `<div class="contrast" id="contrast-${esc(p.name)}"><h3>${esc(p.name)}${unit ? ` (${esc(unit)})` : ''}</h3>${contrastSentence(a, i)}${table(['Quantity', 'Value'], rows, 'narrow keyvals')}<figure class="chart">${forest}<figcaption>Forest plot for ${esc(p.name)}: each trial's estimate with its ${Math.round(a.settings.confidence * 100)}% interval (square area proportional to its weight), the pooled mean (diamond) and the prediction for a new site (dashed bar).${shown}</figcaption></figure>${trialSpreadSentence(a, i, d)}${leftOut}${moderatorsHtml(a, i)}${sensitivityHtml(a, i, d)}</div>`;
 }
 
 export function resultsSection(a: CompactAnalysisReport, charts: ReportCharts): Section {
