@@ -2,7 +2,7 @@
 // between sites and trials within a site, a new site, and each known site's own estimate with
 // the caution that it rests on that site's past trials.
 import type { AnyAnalysisReport } from '../../api/analysis/report.js';
-import { decimalsFromSe, effectCell, fixed, levelText, percent, pText, rangeText, seText, sig } from './numbers.js';
+import { decimalsFromSe, effectCell, fixed, levelText, percent, probabilityText, pText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 
 /** Sites listed per contrast in the text (the JSON has them all). */
@@ -17,7 +17,7 @@ export function siteLevelLines(r: AnyAnalysisReport): string[] {
     ['contrast', `regional mean (${level} interval)`, 'SE', 'p', 'sites', 'trials', `new site (${level} prediction interval)`, 'P(effect > 0)'],
     pooled.map((p) => {
       const s = p.siteLevels!;
-      return [p.name, effectCell(s.estimate, s.lower, s.upper, unit(p.name), s.se), seText(s.se), pText(s.p), String(s.sites), String(s.trials), rangeText(s.newSiteLower, s.newSiteUpper, unit(p.name), decimalsFromSe(s.se)), percent(s.newSiteProbPositive, 1)];
+      return [p.name, effectCell(s.estimate, s.lower, s.upper, unit(p.name), s.se), seText(s.se), pText(s.p), String(s.sites), String(s.trials), rangeText(s.newSiteLower, s.newSiteUpper, unit(p.name), decimalsFromSe(s.se)), probabilityText(s.newSiteProbPositive)];
     }),
   );
   const methodOf = pooled.map((p) => p.siteLevels!.newSitePrediction).find((n) => n);
