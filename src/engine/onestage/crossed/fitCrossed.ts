@@ -24,10 +24,7 @@ export interface CrossedOptions {
   readonly profile?: boolean;
 }
 
-export type CrossedResult = Omit<OneStageResult, 'options'> & {
-  options: { random: CrossedTerm[]; yearAsFixed: boolean; residual: 'common'; df: CrossedOptions['df']; confidence: number; covariates: string[] };
-  siteYearView: SiteYearView;
-};
+export type CrossedResult = OneStageResult & { siteYearView: SiteYearView };
 
 /** Networks up to this many trials get profile intervals unless options.profile says otherwise. */
 const PROFILE_DEFAULT_MAX_TRIALS = 60;
