@@ -26,7 +26,15 @@ function contrastVariances(ev: CrossedEvaluation, sigma2: number, p: number, ls:
   });
 }
 
-export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, ls: readonly Float64Array[]): (number | null)[] {
+export interface SatterthwaiteResult {
+  readonly df: (number | null)[];
+  /** Standard error of each term's variance (delta method from A on the log scale); null at zero or when A fails. */
+  readonly varianceSe: (number | null)[];
+  readonly residualSe: number | null;
+}
+
+export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, ls: readonly Float64Array[]): SatterthwaiteResult {
+  const none: SatterthwaiteResult = { df: ls.map(() => null), varianceSe: L.terms.map(() => null), residualSe: null };
   const free = L.terms.map((_, k) => k).filter((k) => ev.theta[k] > AT_ZERO);
   const m = 1 + free.length;
   const psi0 = new Float64Array(m);
@@ -48,13 +56,13 @@ export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvalu
     return at(x);
   };
   const centre = at(psi0);
-  if (!centre) return ls.map(() => null);
+  if (!centre) return none;
   const H = new Float64Array(m * m);
   const grads = ls.map(() => new Float64Array(m));
   for (let i = 0; i < m; i++) {
     const fp = shifted(i, 1);
     const fm = shifted(i, -1);
-    if (!fp || !fm) return ls.map(() => null);
+    if (!fp || !fm) return none;
     H[i * m + i] = (fp.F - 2 * centre.F + fm.F) / (h * h);
     grads.forEach((g, c) => (g[i] = (fp.v[c] - fm.v[c]) / (2 * h)));
     for (let j = 0; j < i; j++) {
@@ -62,13 +70,13 @@ export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvalu
       const pm = shifted(i, 1, j, -1);
       const mp = shifted(i, -1, j, 1);
       const mm = shifted(i, -1, j, -1);
-      if (!pp || !pm || !mp || !mm) return ls.map(() => null);
+      if (!pp || !pm || !mp || !mm) return none;
       const v = (pp.F - pm.F - mp.F + mm.F) / (4 * h * h);
       H[i * m + j] = v;
       H[j * m + i] = v;
     }
   }
-  return grads.map((g, c) => {
+  const df = grads.map((g, c) => {
     const hg = solveSymmetric(H, g, m);
     if (!hg) return null;
     let gAg = 0;
@@ -76,6 +84,20 @@ export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvalu
     const v = centre.v[c];
     return gAg > 0 ? (2 * v * v) / gAg : null;
   });
+  // var(log v_i) = A_ii = 2 (H^-1)_ii, so se(v_i) = v_i sqrt(A_ii)
+  const logVarSe = (i: number): number | null => {
+    const e = new Float64Array(m);
+    e[i] = 1;
+    const x = solveSymmetric(H, e, m);
+    return x && x[i] > 0 ? Math.sqrt(2 * x[i]) : null;
+  };
+  const varianceSe = L.terms.map((_, k) => {
+    const i = free.indexOf(k);
+    const s = i < 0 ? null : logVarSe(1 + i);
+    return s === null ? null : s * ev.sigma2 * ev.theta[k] ** 2;
+  });
+  const r = logVarSe(0);
+  return { df, varianceSe, residualSe: r === null ? null : r * ev.sigma2 };
 }
 
 export interface TermTest {

@@ -61,7 +61,9 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const ls = contrasts.map(lVector);
   const unit = d.treatments.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
   const estimable = [...ls, ...unit].filter((l): l is Float64Array => l !== null);
-  const sdf = df === 'satterthwaite' ? satterthwaite(d, L, ev, estimable) : null;
+  // the Hessian behind the df also gives the variances' SEs: computed whatever the df method
+  const sat = satterthwaite(d, L, ev, estimable);
+  const sdf = df === 'satterthwaite' ? sat.df : null;
   const dfOf = (l: Float64Array): number => {
     if (df === 'residual') return d.nObservations - L.p;
     const i = estimable.indexOf(l);
@@ -97,14 +99,14 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     return {
       name,
       estimate: varianceOf(k),
-      se: null,
+      se: sat.varianceSe[k],
       atZero: ev.theta[k] <= AT_ZERO,
       lrt: test ? { statistic: test.statistic, p: test.p, reducedLogLik: test.reducedLogLik } : null,
       profileLower: prof ? prof.lower : null,
       profileUpper: prof ? prof.upper : null,
     };
   });
-  components.push({ name: 'residual', estimate: ev.sigma2, se: null, atZero: false, lrt: null, profileLower: null, profileUpper: null });
+  components.push({ name: 'residual', estimate: ev.sigma2, se: sat.residualSe, atZero: false, lrt: null, profileLower: null, profileUpper: null });
   const variance: VarianceSummary & Partial<Record<CrossedTerm, number>> = { residual: ev.sigma2 };
   L.terms.forEach((t, k) => (variance[t] = varianceOf(k)));
 
