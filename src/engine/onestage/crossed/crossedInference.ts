@@ -142,29 +142,29 @@ export function profileVariance(d: CrossedData, L: CrossedLayout, ev: CrossedEva
     warm = Float64Array.from(r.x);
     return r.value;
   };
-  if (!(vHat > 0)) return null;
-  // upper end: double until past the target, then bisect on the log scale
-  let lo = vHat;
-  let hi = vHat * 2;
+  // upper end: double from the estimate (or a small start at zero) until past the target, then
+  // bisect (on the log scale once the bracket is away from zero)
+  let lo = vHat > 0 ? vHat : 0;
+  let hi = vHat > 0 ? vHat * 2 : 1e-3 * ev.sigma2;
   let tries = 0;
   while (profileAt(hi) < target) {
     lo = hi;
     hi *= 2;
-    if (++tries > 30) return null;
+    if (++tries > 40) return null;
   }
-  for (let i = 0; i < 14; i++) {
-    const mid = Math.sqrt(lo * hi);
+  for (let i = 0; i < 12; i++) {
+    const mid = lo > 0 ? Math.sqrt(lo * hi) : hi / 2;
     if (profileAt(mid) < target) lo = mid;
     else hi = mid;
   }
-  const upper = Math.sqrt(lo * hi);
+  const upper = lo > 0 ? Math.sqrt(lo * hi) : hi / 2;
   warm = Float64Array.from([Math.log(ev.sigma2), ...others.map((j) => ev.theta[j])]);
   let lower = 0;
   const atZero = test ? test.reducedCriterion : profileAt(0);
-  if (atZero > target) {
+  if (vHat > 0 && atZero > target) {
     let a = 0;
     let b = vHat;
-    for (let i = 0; i < 16; i++) {
+    for (let i = 0; i < 12; i++) {
       const mid = (Math.sqrt(a) + Math.sqrt(b)) ** 2 / 4;
       if (profileAt(mid) < target) b = mid;
       else a = mid;

@@ -22,6 +22,8 @@ export interface CrossedOptions {
   readonly confidence: number;
   readonly lrt?: boolean;
   readonly profile?: boolean;
+  /** Terms given profile intervals when profiling is on (default: all). */
+  readonly profileTerms?: readonly CrossedTerm[];
 }
 
 export type CrossedResult = OneStageResult & { siteYearView: SiteYearView };
@@ -95,7 +97,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const components: VarianceComponentReport[] = L.terms.map((name, k) => {
     const test = lrtOn ? likelihoodRatio(d, L, ev, k, { signal: hooks.signal }) : null;
     if (test) tests.set(k, test);
-    const prof = profileOn ? profileVariance(d, L, ev, k, options.confidence, test, hooks.signal) : null;
+    const prof = profileOn && (options.profileTerms?.includes(name) ?? true) ? profileVariance(d, L, ev, k, options.confidence, test, hooks.signal) : null;
     return {
       name,
       estimate: varianceOf(k),
