@@ -21,7 +21,7 @@ export function siteYearLines(r: AnyAnalysisReport): string[] {
     v.split.map((s) => [
       PART_WORDS[s.part],
       s.variance === null ? 'not in the model' : sig(s.variance, 4),
-      s.intervalMethod === 'profile-likelihood' ? `${sig(s.lower)} to ${sig(s.upper)} (profile)` : '-',
+      s.intervalMethod === 'none' ? '-' : `${sig(s.lower)} to ${sig(s.upper)} (${s.intervalMethod === 'profile-likelihood' ? 'profile' : 'Wald, log scale'})`,
       percent(s.share),
     ]),
   );

@@ -5,6 +5,7 @@
 import type { NetworkInput } from '../../types.js';
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import { tInterval } from '../contrastInference.js';
+import { normalQuantile } from '../../stats/distributions.js';
 import type { ContrastReport, OneStageHooks, OneStageResult, VarianceComponentReport, VarianceSummary } from '../types.js';
 import { crossedData } from './crossedData.js';
 import { crossedLayout, type CrossedLayout } from './crossedLayout.js';
@@ -28,8 +29,10 @@ export interface CrossedOptions {
 
 export type CrossedResult = OneStageResult & { siteYearView: SiteYearView };
 
-/** Networks up to this many trials get profile intervals unless options.profile says otherwise. */
-const PROFILE_DEFAULT_MAX_TRIALS = 60;
+/**
+ * Profile intervals are asked for (options.profile: true): each needs a re-optimisation per
+ * point, slow with the derivative-free search. Otherwise the split shows log-scale Wald intervals.
+ */
 
 export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: CrossedOptions, hooks: OneStageHooks = {}): CrossedResult {
   const began = Date.now();
@@ -92,7 +95,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
 
   const varianceOf = (k: number) => ev.sigma2 * ev.theta[k] ** 2;
   const lrtOn = options.lrt ?? true;
-  const profileOn = options.profile ?? d.trials.length <= PROFILE_DEFAULT_MAX_TRIALS;
+  const profileOn = options.profile ?? false;
   const tests = new Map<number, TermTest>();
   const components: VarianceComponentReport[] = L.terms.map((name, k) => {
     const test = lrtOn ? likelihoodRatio(d, L, ev, k, { signal: hooks.signal }) : null;
@@ -118,7 +121,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     trial: tr.trial,
     contrasts: contrasts.map((c, ci) => ({ name: c.name, blup: blups[i][ci], raw: null, rawSe: null, rawDf: null })),
   }));
-  const siteYearView = committeeView(d.sites, d.trials, d.years, L, ev, sol, contrasts, ls, contrastReports, components, options.confidence, profileOn);
+  const siteYearView = committeeView(d.sites, d.trials, d.years, L, ev, sol, contrasts, ls, contrastReports, components, options.confidence);
   return {
     minusTwoLogLik: ev.criterion,
     logLik: -ev.criterion / 2,
@@ -163,7 +166,6 @@ function committeeView(
   reports: readonly ContrastReport[],
   components: readonly VarianceComponentReport[],
   confidence: number,
-  profiled: boolean,
 ): SiteYearView {
   const v = (term: CrossedTerm) => (L.at[term] >= 0 ? ev.sigma2 * ev.theta[L.at[term]] ** 2 : null);
   const parts: [SiteYearSplit['part'], SiteYearSplit['term']][] = [
@@ -174,16 +176,15 @@ function committeeView(
   const total = parts.reduce((s, [, t]) => s + (v(t) ?? 0), 0);
   const split = parts.map(([part, term]): SiteYearSplit => {
     const c = components.find((x) => x.name === term);
-    const hasInterval = profiled && c !== undefined && c.profileUpper !== null;
-    return {
-      part,
-      term,
-      variance: v(term),
-      share: v(term) === null || !(total > 0) ? null : v(term)! / total,
-      lower: hasInterval ? c!.profileLower : null,
-      upper: hasInterval ? c!.profileUpper : null,
-      intervalMethod: hasInterval ? 'profile-likelihood' : 'none',
-    };
+    const base = { part, term, variance: v(term), share: v(term) === null || !(total > 0) ? null : v(term)! / total };
+    if (c && c.profileUpper !== null) return { ...base, lower: c.profileLower, upper: c.profileUpper, intervalMethod: 'profile-likelihood' };
+    if (c && c.se !== null && c.estimate > 0) {
+      // Wald on the log variance: estimate x exp(± z se/estimate), never below zero
+      const z = normalQuantile(1 - (1 - confidence) / 2);
+      const spread = Math.exp((z * c.se) / c.estimate);
+      return { ...base, lower: c.estimate / spread, upper: c.estimate * spread, intervalMethod: 'wald-log' };
+    }
+    return { ...base, lower: null, upper: null, intervalMethod: 'none' };
   });
   const siteShare = v('treatment-by-site');
   const yearsAt = sites.map(() => new Set<number>());
@@ -221,7 +222,7 @@ function committeeView(
     years: years.length,
     contrasts: view,
     method:
-      'new site in a new year: estimate ± t(sites - 2) sqrt(se² + sum l² (treatment-by-site + treatment-by-year + treatment-by-trial variances)); next year at a known site: the site\'s BLUP ± t(years - 2) sqrt(its prediction-error variance + sum l² (treatment-by-year + treatment-by-trial variances)); intervals on the variances by profile likelihood when computed',
+      'new site in a new year: estimate ± t(sites - 2) sqrt(se² + sum l² (treatment-by-site + treatment-by-year + treatment-by-trial variances)); next year at a known site: the site\'s BLUP ± t(years - 2) sqrt(its prediction-error variance + sum l² (treatment-by-year + treatment-by-trial variances)); intervals on the variances by profile likelihood when asked for (oneStage.profile: true), otherwise Wald intervals on the log variance from the observed information',
     caution: KNOWN_SITE_CAUTION,
   };
 }

@@ -22,7 +22,8 @@ export interface SiteYearSplit {
   share: number | null;
   lower: number | null;
   upper: number | null;
-  intervalMethod: 'profile-likelihood' | 'none';
+  /** 'wald-log': estimate x exp(± z se/estimate), from the observed information. */
+  intervalMethod: 'profile-likelihood' | 'wald-log' | 'none';
 }
 
 export interface KnownSitePrediction {
