@@ -121,31 +121,38 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   const B = L.border;
   const bs = L.bs;
   const m = 1 + L.t;
-  const siteM = Array.from({ length: L.nSites }, () => new Float64Array(bs * bs));
-  const siteC = Array.from({ length: L.nSites }, () => new Float64Array(bs * B));
+  // one allocation for every site's block and coupling (views into it are kept in the factor)
+  const store = new Float64Array(L.nSites * (bs * bs + bs * B));
+  const siteM = Array.from({ length: L.nSites }, (_, s) => store.subarray(s * bs * bs, (s + 1) * bs * bs));
+  const cOffset = L.nSites * bs * bs;
+  const siteC = Array.from({ length: L.nSites }, (_, s) => store.subarray(cOffset + s * bs * B, cOffset + (s + 1) * bs * B));
   const border = new Float64Array(B * B);
-  const columnsByYear = new Map<number, LocalColumn[]>();
+  const columnsByYear: (PackedColumns | undefined)[] = new Array(L.nYears);
   let logDetH0 = 0;
   const y = B - 1;
   d.trials.forEach((tr, i) => {
     const { a, b, c, logDet } = tp[i];
     logDetH0 += logDet;
-    let cols = columnsByYear.get(tr.year);
-    if (!cols) columnsByYear.set(tr.year, (cols = localColumns(L, tr.year, theta)));
+    const cols = (columnsByYear[tr.year] ??= pack(localColumns(L, tr.year, theta)));
+    const { row, value, inSite, index, n } = cols;
     const sm = siteM[tr.site];
     const sc = siteC[tr.site];
-    for (const u of cols) {
-      const gu = u.value * b[u.row];
-      if (u.inSite) sc[u.index * B + y] += gu;
-      else {
-        border[u.index * B + y] += gu;
-        border[y * B + u.index] += gu;
-      }
-      for (const v of cols) {
-        const val = u.value * v.value * a[u.row * m + v.row];
-        if (u.inSite && v.inSite) sm[u.index * bs + v.index] += val;
-        else if (u.inSite) sc[u.index * B + v.index] += val;
-        else if (!v.inSite) border[u.index * B + v.index] += val;
+    for (let ui = 0; ui < n; ui++) {
+      const ur = row[ui] * m;
+      const uv = value[ui];
+      const ux = index[ui];
+      const gu = uv * b[row[ui]];
+      if (inSite[ui]) {
+        sc[ux * B + y] += gu;
+        for (let vi = 0; vi < n; vi++) {
+          const val = uv * value[vi] * a[ur + row[vi]];
+          if (inSite[vi]) sm[ux * bs + index[vi]] += val;
+          else sc[ux * B + index[vi]] += val;
+        }
+      } else {
+        border[ux * B + y] += gu;
+        border[y * B + ux] += gu;
+        for (let vi = 0; vi < n; vi++) if (!inSite[vi]) border[ux * B + index[vi]] += uv * value[vi] * a[ur + row[vi]];
       }
     }
     border[y * B + y] += c;
@@ -153,6 +160,7 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   for (let k = 0; k < L.q; k++) border[k * B + k] += 1;
   let logDetM = 0;
   const siteFactor: Float64Array[] = [];
+  const touched = new Int32Array(B);
   const siteW: Float64Array[] = [];
   for (let s = 0; s < L.nSites; s++) {
     const sm = siteM[s];
@@ -166,13 +174,21 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
     for (let k = 0; k < bs; k++) logDetM += 2 * Math.log(sm[k * bs + k]);
     const w = siteC[s];
     forwardSolveColumns(sm, bs, w, B);
-    // border -= W'W
-    for (let r = 0; r < bs; r++) {
-      const row = r * B;
-      for (let i = 0; i < B; i++) {
-        const wi = w[row + i];
-        if (wi === 0) continue;
-        for (let j = 0; j <= i; j++) border[i * B + j] -= wi * w[row + j];
+    // border -= W'W over the columns this site touches (its years, the fixed effects, the response)
+    let nz = 0;
+    for (let i = 0; i < B; i++) {
+      let any = false;
+      for (let r = 0; r < bs; r++) if (w[r * B + i] !== 0) any = true;
+      if (any) touched[nz++] = i;
+    }
+    for (let a = 0; a < nz; a++) {
+      const i = touched[a];
+      const rowI = i * B;
+      for (let b = 0; b <= a; b++) {
+        const j = touched[b];
+        let sum = 0;
+        for (let r = 0; r < bs; r++) sum += w[r * B + i] * w[r * B + j];
+        border[rowI + j] -= sum;
       }
     }
     siteFactor.push(sm);
@@ -211,6 +227,25 @@ function betaBlockInverse(f: Float64Array, B: number, q: number, p: number): Flo
     for (let i = 0; i < p; i++) inv[i * p + c] = e[i];
   }
   return inv;
+}
+
+/** A trial's local columns as parallel typed arrays, for the assembly's inner loop. */
+interface PackedColumns {
+  readonly n: number;
+  readonly row: Int32Array;
+  readonly value: Float64Array;
+  readonly inSite: Uint8Array;
+  readonly index: Int32Array;
+}
+
+function pack(cols: readonly LocalColumn[]): PackedColumns {
+  return {
+    n: cols.length,
+    row: Int32Array.from(cols, (c) => c.row),
+    value: Float64Array.from(cols, (c) => c.value),
+    inSite: Uint8Array.from(cols, (c) => (c.inSite ? 1 : 0)),
+    index: Int32Array.from(cols, (c) => c.index),
+  };
 }
 
 /** -2 REML log-likelihood at residual variance sigma2 (not profiled), from an evaluation's pieces. */
