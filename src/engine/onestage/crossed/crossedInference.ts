@@ -144,8 +144,9 @@ export function profileVariance(d: CrossedData, L: CrossedLayout, ev: CrossedEva
   };
   // upper end: double from the estimate (or a small start at zero) until past the target, then
   // bisect (on the log scale once the bracket is away from zero)
+  // (a variance estimated at or next to zero starts from a small share of the residual variance)
   let lo = vHat > 0 ? vHat : 0;
-  let hi = vHat > 0 ? vHat * 2 : 1e-3 * ev.sigma2;
+  let hi = Math.max(vHat * 2, 1e-3 * ev.sigma2);
   let tries = 0;
   while (profileAt(hi) < target) {
     lo = hi;
