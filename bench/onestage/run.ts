@@ -1,5 +1,5 @@
 // Bench for issue 4: one-stage REML at network scale against R in the same run.
-//   npx tsx bench/onestage/run.ts [--sizes 250,1000,4000] [--per-trial 200] [--per-trial-growth 1000,4000] [--repeats 2] [--skip-r]
+//   npx tsx bench/onestage/run.ts [--crossed-only] [--skip-crossed] [--crossed-sites 500] [--crossed-years 8] [--sizes 250,1000,4000] [--per-trial 200] [--per-trial-growth 1000,4000] [--repeats 2] [--skip-r]
 // 1. Common residual: networks of 250, 1,000 and 4,000 trials (7 treatments x 4 blocks, 28
 //    plots each) written as CSV; each is fitted by a fresh `node` process running
 //    bench/onestage/fitCsv.ts (read the CSV, fit, print the JSON result) and by Rscript
@@ -29,6 +29,7 @@ import { kenwardRogerWeights } from '../../src/engine/onestage/kenwardRogerWeigh
 import { fitOneStage } from '../../src/engine/onestage/fitOneStage.js';
 import { networkFromCsv } from './csvNetwork.js';
 import { readFileSync } from 'node:fs';
+import { runCrossedBench } from './crossed.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..', '..');
@@ -86,6 +87,12 @@ async function compiled(name: string): Promise<{ args: string[]; kind: string }>
   } catch {
     return { args: ['--import', 'tsx', join(here, name)], kind: `node --import tsx bench/onestage/${name}` };
   }
+}
+// 4. Sites and years crossed (bench/onestage/crossed.ts); `--crossed-only` runs just that case.
+const crossedSettings = { dir, root, cliChild: [join(here, 'cliChild.cjs')], sites: Number(arg('--crossed-sites') ?? 500), years: Number(arg('--crossed-years') ?? 8), skipR };
+if (args.includes('--crossed-only')) {
+  runCrossedBench(crossedSettings);
+  process.exit(0);
 }
 const child = await compiled('fitCsv.ts');
 const childArgs = child.args;
@@ -291,3 +298,5 @@ if (perTrialSize > 0) {
   console.log(`Kenward–Roger df for treated-vs-control at ${n} trials: ${r.df.toFixed(3)} (se ${Math.sqrt(r.variance).toPrecision(6)}) in ${fmt(ms)} after the fit (target < 2 s)`);
   void largest;
 }
+
+if (!args.includes('--skip-crossed')) runCrossedBench(crossedSettings);

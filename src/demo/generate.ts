@@ -4,7 +4,7 @@ import { createHash } from 'node:crypto';
 import { mulberry32, normalSampler } from '../engine/stats/random.js';
 import type { TrialDesign } from '../engine/types.js';
 import type { ParsedObservation, ParsedPlot, ParsedPlotTable, ParsedTrial } from '../intake/types.js';
-import { DEMO_MODEL as M, DEMO_PROTOCOL, DEMO_SEED, DEMO_SITES, DEMO_TREATMENTS, DEMO_YEARS, DEMO_NETWORK_NAME } from './scenario.js';
+import { DEMO_MODEL as M, DEMO_PROTOCOL, DEMO_SEED, DEMO_SITES, DEMO_TREATMENTS, DEMO_YEARS, DEMO_NETWORK_NAME, SITE_YEAR_STREAM } from './scenario.js';
 
 /** Which site-years get which layout and which real-world quirk. */
 const LAYOUT: Readonly<Record<string, TrialDesign>> = {
@@ -32,6 +32,7 @@ export interface DemoTrialTruth {
   readonly year: number;
   readonly design: TrialDesign;
   readonly siteEffect: number;
+  readonly yearEffect: number;
   readonly trialEffect: number;
   readonly gmax: number;
   readonly sigma: number;
@@ -48,6 +49,12 @@ export interface DemoTruth {
   readonly trials: readonly DemoTrialTruth[];
   /** Population-average yield gain over the control for each treatment (E over sites of gain). */
   readonly populationGain: Record<string, number>;
+  /** The drawn year effects and treatment-by-site / treatment-by-year effects (t/ha), by year / site and treatment. */
+  readonly siteYear: {
+    readonly yearEffects: Record<string, number>;
+    readonly treatmentBySite: Record<string, Record<string, number>>;
+    readonly treatmentByYear: Record<string, Record<string, number>>;
+  };
   readonly quirks: {
     readonly missingTreatment: typeof MISSING_TREATMENT;
     readonly outlier: typeof OUTLIER & { readonly shift: number };
@@ -71,6 +78,10 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
   const truths: DemoTrialTruth[] = [];
   const siteEffects = new Map(DEMO_SITES.map((s) => [s.code, M.siteSd * normal()]));
   const codes = DEMO_TREATMENTS.map((t) => t.code);
+  const siteYearNormal = normalSampler(mulberry32((seed ^ SITE_YEAR_STREAM) >>> 0));
+  const yearEffects = Object.fromEntries(DEMO_YEARS.map((y) => [String(y), M.yearSd * siteYearNormal()]));
+  const treatmentBySite = Object.fromEntries(DEMO_SITES.map((s) => [s.code, Object.fromEntries(codes.map((c) => [c, M.treatmentBySiteSd * siteYearNormal()]))]));
+  const treatmentByYear = Object.fromEntries(DEMO_YEARS.map((y) => [String(y), Object.fromEntries(codes.map((c) => [c, M.treatmentByYearSd * siteYearNormal()]))]));
 
   for (const year of DEMO_YEARS) {
     for (const site of DEMO_SITES) {
@@ -96,7 +107,8 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
         const x = t.rate * (t.timing ? M.efficiency[t.timing] : 1);
         const blockIndex = cell.replicate - 1;
         const expectedYield =
-          M.mu + siteEffects.get(site.code)! + trialEffect + blockEffects[blockIndex] + gmax * (1 - Math.exp(-M.curvature * x)) + interaction.get(t.code)! + trend * (cell.col - meanCol);
+          M.mu + siteEffects.get(site.code)! + yearEffects[String(year)] + trialEffect + blockEffects[blockIndex] + gmax * (1 - Math.exp(-M.curvature * x)) +
+          treatmentBySite[site.code][t.code] + treatmentByYear[String(year)][t.code] + interaction.get(t.code)! + trend * (cell.col - meanCol);
         const expectedProtein = M.proteinBase + M.proteinSlope * x + proteinTrial + proteinBlocks[blockIndex];
         const block = design === 'completely-randomised' ? null : String(cell.replicate);
         const isOutlier = key === OUTLIER.trial && t.code === OUTLIER.treatment && block === OUTLIER.block;
@@ -128,6 +140,7 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
         year,
         design,
         siteEffect: siteEffects.get(site.code)!,
+        yearEffect: yearEffects[String(year)],
         trialEffect,
         gmax,
         sigma,
@@ -178,6 +191,7 @@ export function generateDemoNetwork(seed = DEMO_SEED): DemoNetwork {
       model: M,
       trials: truths,
       populationGain,
+      siteYear: { yearEffects, treatmentBySite, treatmentByYear },
       quirks: {
         missingTreatment: MISSING_TREATMENT,
         outlier: { ...OUTLIER, shift: M.outlierShift },

@@ -5,6 +5,8 @@
 // and tests can check that analyses recover them.
 
 export const DEMO_SEED = 20261201;
+/** Mixed into the seed for the year, treatment-by-site and treatment-by-year draws. */
+export const SITE_YEAR_STREAM = 0x5a17e;
 export const DEMO_NETWORK_NAME = 'Orrin Valley Nitrogen Network (invented demo)';
 export const DEMO_PROTOCOL = 'ON-N rate x timing';
 export const DEMO_YEARS = [2023, 2024, 2025] as const;
@@ -51,8 +53,12 @@ export const DEMO_TREATMENTS = [
 /**
  * The stated model for grain yield (t/ha) of plot p of treatment j in block b of trial t
  * at site s:
- *   y = mu + site_s + trial_t + block_tb + gain_t(rate_j * efficiency(timing_j)) + tt_tj
- *       + columnTrend_t * (col - mean col) + e,   e ~ N(0, sigma_t^2)
+ *   y = mu + site_s + year_y + trial_t + block_tb + gain_t(rate_j * efficiency(timing_j))
+ *       + ts_sj + ty_yj + tt_tj + columnTrend_t * (col - mean col) + e,   e ~ N(0, sigma_t^2)
+ *   year_y ~ N(0, yearSd^2) per year; ts_sj ~ N(0, treatmentBySiteSd^2) per site and treatment
+ *   (the part of the response that repeats at a site); ty_yj ~ N(0, treatmentByYearSd^2) per
+ *   year and treatment (the part shared by all sites in a season). These three come from a
+ *   stream of their own (seed xor SITE_YEAR_STREAM), so the other draws stay as they were.
  *   gain_t(x) = Gmax_t * (1 - exp(-c * x)),
  *   Gmax_t = gmaxMean + gmaxRain * (rain_t - 450)/100 + gmaxOm * (OM_s - 2.5) + N(0, gmaxSd^2)
  * Protein (%): 10.4 + proteinSlope * rate * efficiency + N(0, 0.5^2) per trial + N(0, 0.12^2)
@@ -64,6 +70,9 @@ export const DEMO_MODEL = {
   trialSd: 0.5,
   blockSd: 0.18,
   treatmentByTrialSd: 0.12,
+  yearSd: 0.35,
+  treatmentBySiteSd: 0.3,
+  treatmentByYearSd: 0.1,
   gmaxMean: 1.9,
   gmaxRain: 0.35,
   gmaxOm: -0.25,

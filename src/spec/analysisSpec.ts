@@ -80,6 +80,8 @@ export const oneStageSchema = z
   .object({
     random: z.array(randomTermSchema).default(['trial', 'block', 'treatment-by-trial']),
     residual: looseEnum(['common', 'per-trial']).default('common'),
+    /** Years as fixed effects (few years) instead of, or without, a random "year" term. */
+    yearAsFixed: z.boolean().default(false),
     df: looseEnum(['satterthwaite', 'kenward-roger', 'residual']).default('satterthwaite'),
     /** Numeric trial covariates given a fixed slope (centred at their mean over the trials used). */
     covariates: z.array(z.string()).max(MAX_MODERATORS).default([]),

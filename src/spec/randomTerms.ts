@@ -2,7 +2,7 @@
 // language's interaction notation ("treatment:trial") is refused with the name to write instead.
 import { z } from './zod.js';
 
-export const RANDOM_TERM_NAMES = ['trial', 'block', 'treatment-by-trial'] as const;
+export const RANDOM_TERM_NAMES = ['trial', 'block', 'treatment-by-trial', 'site', 'year', 'treatment-by-site', 'treatment-by-year'] as const;
 export type RandomTermName = (typeof RANDOM_TERM_NAMES)[number];
 
 /** The word form of a colon form, when there is one: "treatment:trial" or "trial:treatment" -> "treatment-by-trial". */
@@ -11,6 +11,8 @@ export function wordFormOf(term: string): RandomTermName | null {
   if (parts.length !== 2) return null;
   const [a, b] = parts;
   if ((a === 'treatment' && b === 'trial') || (a === 'trial' && b === 'treatment')) return 'treatment-by-trial';
+  if ((a === 'treatment' && b === 'site') || (a === 'site' && b === 'treatment')) return 'treatment-by-site';
+  if ((a === 'treatment' && b === 'year') || (a === 'year' && b === 'treatment')) return 'treatment-by-year';
   // block within trial is what "block" already means
   if ((a === 'block' && b === 'trial') || (a === 'trial' && b === 'block')) return 'block';
   return null;

@@ -5,9 +5,8 @@ import { resolveContrast, type ResolvedContrast } from '../../engine/contrasts/r
 import type { NetworkInput, TreatmentInfo, TrialInput } from '../../engine/types.js';
 import { analyzeTrial } from '../../engine/trial/analyzeTrial.js';
 import { poolEstimates } from '../../engine/pooling/poolEstimates.js';
-import { fitOneStage } from '../../engine/onestage/fitOneStage.js';
 import { analyzeRateResponse } from '../../engine/rate/analyzeRateResponse.js';
-import { oneStageSchema, twoStageSchema, type AnalysisSpec } from '../../spec/analysisSpec.js';
+import { twoStageSchema, type AnalysisSpec } from '../../spec/analysisSpec.js';
 import { throwIfCancelled, type CallContext } from '../context.js';
 import { ManyfieldError } from '../result.js';
 import { compareStages } from './agreement.js';
@@ -28,6 +27,7 @@ import { siteAmountsWarning } from './siteAmounts.js';
 import { compactPooled } from '../../engine/pooling/compactPooled.js';
 import { addSiteLevels } from './sitePooling.js';
 import { TrialContrastCache } from './trialContrastCache.js';
+import { runOneStage } from './oneStageFit.js';
 
 /** What pooling reads from a trial entry, full or summarised. */
 type PoolableTrial = TrialStageEntry | TrialSummary;
@@ -74,12 +74,11 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
 
   const pooled = spec.twoStage === null ? [] : addSiteLevels(poolContrasts(trials, contrasts, network, spec, warnings, ctx), trials, network, spec, warnings, ctx);
 
-  let oneStage: ReturnType<typeof fitOneStage> | null = null;
+  let oneStage: ReturnType<typeof runOneStage> | null = null;
   if (spec.oneStage !== null) {
     throwIfCancelled(ctx);
-    const options = spec.oneStage ?? oneStageSchema.parse({});
     const modelled = transformNetwork(network, spec.transform, logOffset);
-    oneStage = fitOneStage(modelled, contrasts, { random: [...options.random], residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile, covariates: options.covariates, newSite: { method: options.prediction, threshold: spec.threshold, draws: options.predictionDraws, seed: options.predictionSeed } }, {
+    oneStage = runOneStage(modelled, contrasts, spec, {
       onProgress: (e) => ctx?.onProgress?.({ stage: 'one-stage', step: `iteration ${e.iteration}`, fraction: null }),
       signal: ctx?.signal,
     });

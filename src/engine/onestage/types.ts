@@ -1,5 +1,6 @@
 import type { PredictionMethod } from '../pooling/types.js';
 import type { OneStageNewSite } from './newSitePrediction.js';
+import type { SiteYearView } from './crossed/siteYearView.js';
 
 // Public shapes of the one-stage REML fit. Plain values only, so a result can be stored as JSON
 // and sent across a worker or IPC boundary unchanged.
@@ -35,6 +36,11 @@ export interface VarianceSummary {
   trial?: number;
   block?: number;
   'treatment-by-trial'?: number;
+  /** Terms of the model with sites and years (crossed/fitCrossed.ts). */
+  site?: number;
+  year?: number;
+  'treatment-by-site'?: number;
+  'treatment-by-year'?: number;
   residual?: number;
   residualByTrial?: Record<string, number>;
 }
@@ -124,7 +130,10 @@ export interface OneStageResult {
   nObservations: number;
   nTrials: number;
   droppedPlots: number;
-  options: { random: RandomTerm[]; residual: OneStageOptions['residual']; df: OneStageOptions['df']; confidence: number; covariates: string[] };
+  /** random: the term names fitted (RandomTerm, or with sites and years the CrossedTerm names); yearAsFixed only with sites and years. */
+  options: { random: string[]; yearAsFixed?: boolean; residual: OneStageOptions['residual']; df: OneStageOptions['df']; confidence: number; covariates: string[] };
+  /** With site or year terms: the treatment-by-environment split and the site-year predictions (crossed/siteYearView.ts). */
+  siteYearView?: SiteYearView;
   warnings: string[];
   run: RunRecord;
 }

@@ -11,6 +11,7 @@ import { oneStageLines } from './oneStageText.js';
 import { pairwiseLines } from './pairwiseSummary.js';
 import { pooledLines } from './pooledTables.js';
 import { siteLevelLines } from './siteLevelsText.js';
+import { siteYearLines } from './siteYearText.js';
 import { recommendationLines } from './rateRecommendationText.js';
 import { rateTrialLines } from './rateTrialsText.js';
 import { trialEffectsLines } from './trialEffectsTable.js';
@@ -27,6 +28,7 @@ export function formatAnalysisText(r: AnyAnalysisReport): string {
     ...pooledLines(r),
     ...siteLevelLines(r),
     ...oneStageLines(r),
+    ...siteYearLines(r),
     ...moderatorLines(r),
     ...trialEffectsLines(r),
     ...pairwiseLines(r),

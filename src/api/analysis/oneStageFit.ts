@@ -1,0 +1,30 @@
+// The one-stage model a spec asks for: the per-trial engine for trial, block and
+// treatment-by-trial terms; the crossed fitter when site or year terms (or fixed years) are named.
+import type { ResolvedContrast } from '../../engine/contrasts/resolve.js';
+import { fitOneStage, type OneStageHooks, type OneStageResult } from '../../engine/onestage/fitOneStage.js';
+import { fitCrossed } from '../../engine/onestage/crossed/fitCrossed.js';
+import { CrossedDataError } from '../../engine/onestage/crossed/crossedData.js';
+import { needsCrossedFit, type CrossedTerm } from '../../engine/onestage/crossed/terms.js';
+import { RANDOM_TERMS, type RandomTerm } from '../../engine/onestage/types.js';
+import type { NetworkInput } from '../../engine/types.js';
+import type { AnalysisSpec } from '../../spec/analysisSpec.js';
+import { oneStageSchema } from '../../spec/analysisSpec.js';
+import { ManyfieldError } from '../result.js';
+
+export function runOneStage(network: NetworkInput, contrasts: readonly ResolvedContrast[], spec: AnalysisSpec, hooks: OneStageHooks): OneStageResult {
+  const options = spec.oneStage ?? oneStageSchema.parse({});
+  if (!needsCrossedFit(options.random, options.yearAsFixed)) {
+    const random = options.random.filter((t): t is RandomTerm => (RANDOM_TERMS as readonly string[]).includes(t));
+    return fitOneStage(network, contrasts, { random, residual: options.residual, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile, covariates: options.covariates, newSite: { method: options.prediction, threshold: spec.threshold, draws: options.predictionDraws, seed: options.predictionSeed } }, hooks);
+  }
+  if (options.residual !== 'common')
+    throw new ManyfieldError('invalid-argument', 'oneStage: a residual per trial is not yet available with site or year terms; set oneStage.residual to "common"');
+  if (options.covariates.length > 0)
+    throw new ManyfieldError('invalid-argument', 'oneStage: trial covariates are not yet available with site or year terms; leave oneStage.covariates empty');
+  try {
+    return fitCrossed(network, contrasts, { random: options.random as CrossedTerm[], yearAsFixed: options.yearAsFixed, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile }, hooks);
+  } catch (e) {
+    if (e instanceof CrossedDataError) throw new ManyfieldError('invalid-argument', e.message);
+    throw e;
+  }
+}
