@@ -32,7 +32,15 @@ describe('one-stage model with sites and years, through runAnalysis', () => {
       expect(c.newSiteNewYear!.lower).toBeLessThan(r.lower!);
       expect(c.newSiteNewYear!.upper).toBeGreaterThan(r.upper!);
       expect(c.nextYearAtSite).toHaveLength(DEMO_SITES.length);
-      for (const s of c.nextYearAtSite) expect(s.pastYears).toEqual([...DEMO_YEARS]);
+      const newSiteHalf = (c.newSiteNewYear!.upper - c.newSiteNewYear!.lower) / 2;
+      for (const s of c.nextYearAtSite) {
+        expect(s.pastYears).toEqual([...DEMO_YEARS]);
+        // both intervals on t(sites - 2) (1e-12 relative): a known site's interval is narrower
+        // than a new site's here, as it carries no between-site variance
+        const half = (s.upper - s.lower) / 2;
+        expect(half / s.predictionSe).toBeCloseTo(newSiteHalf / c.newSiteNewYear!.sd, 12);
+        expect(half).toBeLessThan(newSiteHalf);
+      }
     }
     const text = formatAnalysisText({ ...report, provenance: { source: 'demo', dataFingerprint: '0'.repeat(64) } } as Parameters<typeof formatAnalysisText>[0]);
     expect(text).toMatch(/Is the response repeatable by site or seasonal\? \(one-stage, sites and years\)/);

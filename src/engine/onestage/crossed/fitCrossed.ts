@@ -198,10 +198,10 @@ function committeeView(
     const yearVariance = sumSq * (v('treatment-by-year') ?? 0);
     const siteYearVariance = sumSq * (v('treatment-by-trial') ?? 0);
     let newSiteNewYear: SiteYearContrast['newSiteNewYear'] = null;
+    const dfNew = Math.max(1, sites.length - 2);
+    const crit = tCritical(confidence, dfNew);
     if (l && r.estimate !== null && r.se !== null) {
       const sd = Math.sqrt(r.se ** 2 + siteVariance + yearVariance + siteYearVariance);
-      const dfNew = Math.max(1, sites.length - 2);
-      const crit = tCritical(confidence, dfNew);
       newSiteNewYear = { lower: r.estimate - crit * sd, upper: r.estimate + crit * sd, df: dfNew, sd };
     }
     const nextYearAtSite =
@@ -209,7 +209,8 @@ function committeeView(
         ? sites.map((site, s) => {
             const estimate = contrastAtSite(L, ev, sol, s, l);
             const predictionSe = Math.sqrt(contrastAtSiteErrorVariance(L, ev, s, l) + yearVariance + siteYearVariance);
-            const crit = tCritical(confidence, years.length - 2);
+            // the same t as the new site's: a known site's interval must not come out wider than a
+            // new site's only because years are fewer than sites (t(years - 2) did, with 3 years)
             return { site, pastYears: [...yearsAt[s]].sort((a, b) => a - b), estimate, predictionSe, lower: estimate - crit * predictionSe, upper: estimate + crit * predictionSe };
           })
         : [];
@@ -222,7 +223,7 @@ function committeeView(
     years: years.length,
     contrasts: view,
     method:
-      'new site in a new year: estimate ± t(sites - 2) sqrt(se² + sum l² (treatment-by-site + treatment-by-year + treatment-by-trial variances)); next year at a known site: the site\'s BLUP ± t(years - 2) sqrt(its prediction-error variance + sum l² (treatment-by-year + treatment-by-trial variances)); intervals on the variances by profile likelihood when asked for (oneStage.profile: true), otherwise Wald intervals on the log variance from the observed information',
+      'new site in a new year: estimate ± t(sites - 2) sqrt(se² + sum l² (treatment-by-site + treatment-by-year + treatment-by-trial variances)); next year at a known site: the site\'s BLUP ± t(sites - 2) sqrt(its prediction-error variance + sum l² (treatment-by-year + treatment-by-trial variances)); intervals on the variances by profile likelihood when asked for (oneStage.profile: true), otherwise Wald intervals on the log variance from the observed information',
     caution: KNOWN_SITE_CAUTION,
   };
 }

@@ -4,10 +4,11 @@
 // prediction for a new site in a new year; and for next year at each known site.
 //
 // New site, new year: estimate ± t(sites - 2) sqrt(se² + sum l² (s²_TxS + s²_TxY + s²_TxT)).
-// Next year at a known site: the site's BLUP of the contrast ± t(years - 2)
+// Next year at a known site: the site's BLUP of the contrast ± t(sites - 2)
 // sqrt(PEV + sum l² (s²_TxY + s²_TxT)), PEV the prediction-error variance of the BLUP. The
-// t degrees of freedom (sites - 2, years - 2, at least 1) are our construction after the
-// plug-in new-site interval of two-stage pooling, with the site and the year as the units.
+// t degrees of freedom (sites - 2, at least 1, for both) are our construction after the
+// plug-in new-site interval of two-stage pooling; t(years - 2) for the known site was tried and
+// gave, with three years, intervals wider than a new site's.
 import { tQuantile } from '../../stats/distributions.js';
 
 export type SplitPart = 'site' | 'year' | 'site-year';
