@@ -33,8 +33,9 @@ function analysesIn(ws: string): number {
 describe('Ctrl-C during a long analysis', () => {
   it('stops within a second, exits 130 and stores nothing', async () => {
     const spec = JSON.parse(readFileSync(DEMO_SPEC, 'utf8'));
-    // A bootstrap of 10,000 resamples over the trials: minutes of work that never yields.
-    const long = { ...spec, oneStage: null, twoStage: null, rateResponse: { ...spec.rateResponse, bootstrap: 10_000 } };
+    // The site-level pools with 100,000 bootstrap refits each: about 25 s of work on the demo
+    // (the rate bootstrap, by draw counts, no longer lasts long enough at its 10,000 bound).
+    const long = { ...spec, oneStage: null, rateResponse: null, twoStage: { ...spec.twoStage, levels: 'site-and-trial', siteLevelDraws: 100_000 } };
     const specFile = join(dir, 'long.json');
     writeFileSync(specFile, JSON.stringify(long));
     const before = analysesIn(demo);
