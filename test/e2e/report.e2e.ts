@@ -108,8 +108,11 @@ describe('the report from the saved analyses', () => {
     const summary = browser.page.getByTestId('pooled-summary');
     await summary.waitFor({ timeout: 60_000 });
     const text = await summary.innerText();
-    // treated_vs_control on the demo: the report's summary says "more than 99.5%" for both chances
-    expect(text).toMatch(/Chance of a positive response\s+more than 99\.5%/);
+    // the report's rule: whole percent, "more than 99.5%" / "less than 0.5%" near the ends, and the
+    // panel's figure and its sentence say the same
+    const chance = /Chance of a positive response\s+(more than 99\.5%|less than 0\.5%|\d{1,2}%)/.exec(text);
+    expect(chance).not.toBeNull();
+    expect(text).toContain(`The chance of a positive response at a new site is ${chance![1]}`);
     expect(text).not.toMatch(/100(\.0)?%/);
     await screenshot(browser.page, join(screensDir(), 'report-pooled-wording.png'));
   });
