@@ -1,8 +1,13 @@
-// The site-and-trial model as a bootstrap model for the pivot prediction: it simulates trial
-// estimates from its fitted variances (site, trial within site) and the trials' own sampling
-// variances, and refits them by Fisher scoring from the fitted values.
+// The multilevel models as bootstrap models for the pivot prediction: each simulates trial
+// estimates from its fitted variances (site, trial within site and, crossed, year) and the
+// trials' own sampling variances, and refits them from the fitted values (Fisher scoring for the
+// nested model, a finite-difference projected Newton for the crossed one), falling back to the
+// pool's own searches when a fast refit does not settle.
 import { refitSiteTrial } from './siteTrialScoring.js';
 import type { LikelihoodKind, SiteGroup } from './siteTrialLikelihood.js';
+import { crossedLogLik, type CrossedGroup } from './crossedYearLikelihood.js';
+import { fitCrossedYear } from './fitCrossedYear.js';
+import { projectedNewton } from './projectedNewton.js';
 import type { PivotModel } from './bootstrapPivotPrediction.js';
 
 /** Relative tolerance of each variance search in a refit: the pivot needs about four digits, not nine. */
@@ -12,21 +17,23 @@ export interface FittedVariances {
   mu: number;
   siteTau2: number;
   trialTau2: number;
+  /** Zero for the nested model. */
+  yearTau2?: number;
 }
 
-function simulateInto(groups: readonly SiteGroup[], fitted: FittedVariances, normal: () => number, y: Float64Array[]): void {
+function simulateInto(groups: readonly SiteGroup[], fitted: FittedVariances, normal: () => number, y: Float64Array[], yearEffect: (g: number, j: number) => number = () => 0): void {
   const sdSite = Math.sqrt(fitted.siteTau2);
   const sdTrial = Math.sqrt(fitted.trialTau2);
   for (let g = 0; g < groups.length; g++) {
     const site = sdSite * normal();
     const v = groups[g].v;
     const out = y[g];
-    for (let j = 0; j < v.length; j++) out[j] = fitted.mu + site + sdTrial * normal() + Math.sqrt(v[j]) * normal();
+    for (let j = 0; j < v.length; j++) out[j] = fitted.mu + site + yearEffect(g, j) + sdTrial * normal() + Math.sqrt(v[j]) * normal();
   }
 }
 
 function newSiteEffect(fitted: FittedVariances, normal: () => number): number {
-  return fitted.mu + Math.sqrt(fitted.siteTau2 + fitted.trialTau2) * normal();
+  return fitted.mu + Math.sqrt(fitted.siteTau2 + fitted.trialTau2 + (fitted.yearTau2 ?? 0)) * normal();
 }
 
 export function nestedPivotModel(groups: readonly SiteGroup[], fitted: FittedVariances, kind: LikelihoodKind): PivotModel {
@@ -39,6 +46,30 @@ export function nestedPivotModel(groups: readonly SiteGroup[], fitted: FittedVar
       // Fisher scoring from the generating values (the searches when it does not settle)
       const f = refitSiteTrial(groups.map((g, i) => ({ ...g, y: y[i] })), kind, fitted.siteTau2, fitted.trialTau2, REFIT_TOLERANCE);
       return f.converged ? { mu: f.mu, muVariance: f.muVariance, between: f.siteTau2 + f.trialTau2 } : null;
+    },
+  };
+}
+
+export function crossedPivotModel(groups: readonly CrossedGroup[], years: number, fitted: FittedVariances, kind: LikelihoodKind, scale: number): PivotModel {
+  const yearDraws = new Float64Array(years);
+  const start = [fitted.yearTau2 ?? 0, fitted.siteTau2, fitted.trialTau2];
+  return {
+    simulate(normal, y) {
+      const sdYear = Math.sqrt(fitted.yearTau2 ?? 0);
+      for (let i = 0; i < years; i++) yearDraws[i] = sdYear * normal();
+      simulateInto(groups, fitted, normal, y, (g, j) => yearDraws[groups[g].yearIndex[j]]);
+      return newSiteEffect(fitted, normal);
+    },
+    refit(y) {
+      const data = groups.map((g, i) => ({ ...g, y: y[i] }));
+      // order [year, site, trial], as fitCrossedYear searches them
+      const local = projectedNewton((x) => crossedLogLik(data, years, x[1], x[2], x[0], kind).logLik, start, scale);
+      if (local) {
+        const at = crossedLogLik(data, years, local.x[1], local.x[2], local.x[0], kind);
+        return { mu: at.mu, muVariance: at.muVariance, between: local.x[0] + local.x[1] + local.x[2] };
+      }
+      const f = fitCrossedYear(data, years, kind, 0, false);
+      return f.converged ? { mu: f.mu, muVariance: f.muVariance, between: f.siteTau2 + f.trialTau2 + f.yearTau2 } : null;
     },
   };
 }

@@ -8,10 +8,11 @@ import { fitCrossedYear } from './fitCrossedYear.js';
 import { SITE_LEVEL_CAUTION, typicalSamplingVariance } from './poolSiteLevels.js';
 import type { SiteGroup } from './siteTrialLikelihood.js';
 import { siteLevelPrediction } from './siteLevelPrediction.js';
+import { crossedPivotModel } from './pivotModels.js';
 import type { SiteLevelItem, SiteLevelOptions, SiteLevelPooling } from './types.js';
 
 export const CROSSED_DESCRIPTION =
-  'Sites crossed with years, trials nested in sites: each trial contrast = regional mean + site effect (site tau²) + year effect shared by all sites that year (year tau²) + trial-within-site effect (trial tau²) + sampling error (the trial SE², taken as known). Variances by REML or ML (nested one-dimensional searches), intervals for each tau² by profile likelihood, the mean by GLS with a Wald interval, the new-site-in-a-new-year interval with t on (sites - 2) df and the variances plugged in.';
+  'Sites crossed with years, trials nested in sites: each trial contrast = regional mean + site effect (site tau²) + year effect shared by all sites that year (year tau²) + trial-within-site effect (trial tau²) + sampling error (the trial SE², taken as known). Variances by REML or ML (nested one-dimensional searches), intervals for each tau² by profile likelihood, the mean by GLS with a Wald interval, the new-site-in-a-new-year interval and probabilities by parametric bootstrap of the studentised prediction error (plug-in t interval beside it).';
 
 export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: readonly SiteGroup[], method: string, options: SiteLevelOptions, notes: string[]): SiteLevelPooling {
   const yearOf = new Map(items.map((it) => [it.trial, it.year ?? null]));
@@ -35,10 +36,8 @@ export function poolCrossedWithYear(items: readonly SiteLevelItem[], groups: rea
   const between = siteTau2 + trialTau2 + yearTau2;
   const vTypical = typicalSamplingVariance(groups);
   const total = vTypical === null ? null : between + vTypical;
-  // The bootstrap needs a refit per draw, and the crossed model's nested searches take a second or
-  // more per fit: the plug-in interval until the crossed model has a fast refit (said in the notes).
-  if (options.prediction !== 'plug-in-t') notes.push('the new-site-in-a-new-year interval of this model is the plug-in t interval (variances taken as known): its bootstrap is not yet available, so it may be too narrow when there are few sites or years');
-  const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), null, options, notes);
+  const fitted = { mu, siteTau2, trialTau2, yearTau2 };
+  const prediction = siteLevelPrediction({ mu, muVariance: fit.muVariance, between }, groups.length, groups.map((g) => g.y.length), () => crossedPivotModel(crossed, years.length, fitted, options.method, vTypical ?? 1), options, notes);
   return {
     levels: 'site-year-and-trial',
     years: years.length,

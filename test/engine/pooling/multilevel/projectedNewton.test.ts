@@ -1,0 +1,52 @@
+// The crossed site-year model's fast refit (finite-difference projected Newton from a warm start,
+// used for the bootstrap new-site prediction) against the nested Brent searches of fitCrossedYear
+// (the reference, itself checked against a dense REML/ML likelihood in R, siteLevelsR.test.ts), on
+// 12 simulated networks, most with a variance on the zero boundary. Tolerances: log-likelihood not
+// below the searches' by more than 1e-8 relative; each tau² within 1e-5 (sampling variances
+// 0.04-0.64; the refit only needs a few digits).
+import { describe, expect, it } from 'vitest';
+import { crossedLogLik, type CrossedGroup } from '../../../../src/engine/pooling/multilevel/crossedYearLikelihood.js';
+import { fitCrossedYear } from '../../../../src/engine/pooling/multilevel/fitCrossedYear.js';
+import { projectedNewton } from '../../../../src/engine/pooling/multilevel/projectedNewton.js';
+import { mulberry32, normalSampler } from '../../../../src/engine/stats/random.js';
+
+const YEARS = 6;
+
+function network(seed: number): { groups: CrossedGroup[]; truth: [number, number, number] } {
+  const u = mulberry32(seed);
+  const z = normalSampler(u);
+  const site = [0, 0.05, 0.2][seed % 3];
+  const year = [0, 0.05, 0.2][Math.floor(seed / 3) % 3];
+  const trial = [0, 0.1][seed % 2];
+  const yearEffect = Array.from({ length: YEARS }, () => Math.sqrt(year) * z());
+  const groups: CrossedGroup[] = [];
+  for (let s = 0; s < 8 + (seed % 10); s++) {
+    const a = Math.sqrt(site) * z();
+    const n = 1 + Math.floor(u() * 4);
+    const first = Math.floor(u() * (YEARS - n + 1));
+    const yearIndex = Int32Array.from({ length: n }, (_, j) => first + j);
+    const v = Float64Array.from({ length: n }, () => (0.2 + 0.6 * u()) ** 2);
+    groups.push({ site: `s${s}`, trials: [...yearIndex].map(String), v, yearIndex, y: Float64Array.from(v, (vi, j) => 1 + a + yearEffect[yearIndex[j]] + Math.sqrt(trial) * z() + Math.sqrt(vi) * z()) });
+  }
+  return { groups, truth: [year, site, trial] };
+}
+
+describe('crossed site-year refit by projected Newton', () => {
+  it('reaches the nested searches’ optimum from the generating values (REML and ML, 12 networks)', () => {
+    let boundary = 0;
+    for (let seed = 1; seed <= 12; seed++) {
+      const kind = seed % 2 === 0 ? 'reml' : 'ml';
+      const { groups, truth } = network(seed);
+      const ref = fitCrossedYear(groups, YEARS, kind, 0, false);
+      const fast = projectedNewton((x) => crossedLogLik(groups, YEARS, x[1], x[2], x[0], kind).logLik, truth, 0.25);
+      expect(fast).not.toBeNull();
+      const [year, site, trial] = fast!.x;
+      expect(fast!.value).toBeGreaterThanOrEqual(ref.logLik - 1e-8 * Math.abs(ref.logLik));
+      expect(Math.abs(year - ref.yearTau2)).toBeLessThanOrEqual(1e-5);
+      expect(Math.abs(site - ref.siteTau2)).toBeLessThanOrEqual(1e-5);
+      expect(Math.abs(trial - ref.trialTau2)).toBeLessThanOrEqual(1e-5);
+      if (ref.yearTau2 === 0 || ref.siteTau2 === 0 || ref.trialTau2 === 0) boundary++;
+    }
+    expect(boundary).toBeGreaterThan(4);
+  }, 300_000);
+});
