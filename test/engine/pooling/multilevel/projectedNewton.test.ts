@@ -8,6 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { crossedLogLik, type CrossedGroup } from '../../../../src/engine/pooling/multilevel/crossedYearLikelihood.js';
 import { fitCrossedYear } from '../../../../src/engine/pooling/multilevel/fitCrossedYear.js';
 import { projectedNewton } from '../../../../src/engine/pooling/multilevel/projectedNewton.js';
+import { poolSiteLevels } from '../../../../src/engine/pooling/multilevel/poolSiteLevels.js';
 import { mulberry32, normalSampler } from '../../../../src/engine/stats/random.js';
 
 const YEARS = 6;
@@ -48,5 +49,19 @@ describe('crossed site-year refit by projected Newton', () => {
       if (ref.yearTau2 === 0 || ref.siteTau2 === 0 || ref.trialTau2 === 0) boundary++;
     }
     expect(boundary).toBeGreaterThan(4);
+  }, 300_000);
+
+  it('gives the crossed pool its bootstrap new-site-in-a-new-year interval, deterministic given the seed', () => {
+    const { groups } = network(8);
+    const items = groups.flatMap((g) => [...g.y].map((y, j) => ({ trial: `${g.site}-${g.yearIndex[j]}`, site: g.site, year: 2018 + g.yearIndex[j], estimate: y, se: Math.sqrt(g.v[j]) })));
+    const options = { method: 'reml' as const, confidence: 0.95, threshold: 1, crossedWithYear: true, crossedProfileLimit: 0, predictionDraws: 300, predictionSeed: 4 };
+    const a = poolSiteLevels(items, options);
+    const b = poolSiteLevels(items, options);
+    expect(a.levels).toBe('site-year-and-trial');
+    expect(a.newSitePrediction?.method).toBe('bootstrap-pivot');
+    expect(a.newSitePrediction?.draws).toBe(300);
+    expect(a.newSiteLower).toBe(b.newSiteLower);
+    expect(a.newSiteLower!).toBeLessThan(a.estimate!);
+    expect(a.newSiteUpper!).toBeGreaterThan(a.estimate!);
   }, 300_000);
 });
