@@ -10,12 +10,11 @@ export interface NestedMaximum {
   value: number;
 }
 
-/** relTol: each search's relative tolerance (looser for bootstrap refits, which need a few digits). */
-export function nestedMaximum(f: (x: readonly number[]) => number, dims: number, upper: number, fixed: readonly number[] = [], relTol = 1e-9): NestedMaximum {
+export function nestedMaximum(f: (x: readonly number[]) => number, dims: number, upper: number, fixed: readonly number[] = []): NestedMaximum {
   if (dims === 0) return { x: [...fixed], value: f(fixed) };
   let bestInner: NestedMaximum | null = null;
-  const outer = brentMaximum((x0) => nestedMaximum(f, dims - 1, upper, [...fixed, x0], relTol).value, 0, upper, relTol);
-  bestInner = nestedMaximum(f, dims - 1, upper, [...fixed, outer.x], relTol);
+  const outer = brentMaximum((x0) => nestedMaximum(f, dims - 1, upper, [...fixed, x0]).value, 0, upper);
+  bestInner = nestedMaximum(f, dims - 1, upper, [...fixed, outer.x]);
   return bestInner;
 }
 

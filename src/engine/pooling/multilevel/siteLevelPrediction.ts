@@ -8,8 +8,7 @@ import type { SiteLevelOptions, SiteLevelPrediction } from './types.js';
 export const PIVOT_TEXT =
   'new-site interval and probabilities by parametric bootstrap of the studentised prediction error (Lawless & Fredette 2005): data sets drawn from the fitted model, each refitted, so the interval carries the uncertainty in every tau² and in the mean';
 
-export function siteLevelPrediction(fitted: PivotFit, sites: number, sizes: readonly number[], model: (() => PivotModel) | null, options: SiteLevelOptions, notes: string[]): SiteLevelPrediction {
-  // model null: the model has no fast refit yet, so only the plug-in interval can be given
+export function siteLevelPrediction(fitted: PivotFit, sites: number, sizes: readonly number[], model: () => PivotModel, options: SiteLevelOptions, notes: string[]): SiteLevelPrediction {
   const tMult = sites >= 3 ? tQuantile(0.5 + options.confidence / 2, sites - 2) : null;
   const sd = Math.sqrt(fitted.muVariance + fitted.between);
   const plugIn = { lower: tMult === null ? null : fitted.mu - tMult * sd, upper: tMult === null ? null : fitted.mu + tMult * sd };
@@ -18,7 +17,7 @@ export function siteLevelPrediction(fitted: PivotFit, sites: number, sizes: read
     method: 'plug-in-t', lower: plugIn.lower, upper: plugIn.upper, probPositive: probAbove(0), probAboveThreshold: probAbove(options.threshold),
     plugInT: plugIn, draws: null, seed: null, description: `new-site interval mu ± t(sites - 2) sqrt(SE² + tau²) with the variances plugged in (plug-in-t); the probabilities from the normal with those variances`,
   };
-  if (options.prediction === 'plug-in-t' || model === null) return plugInResult;
+  if (options.prediction === 'plug-in-t') return plugInResult;
   if (sites < 3) {
     notes.push('the bootstrap new-site interval needs at least three sites: none is given');
     return { ...plugInResult, method: 'bootstrap-pivot', lower: null, upper: null };
