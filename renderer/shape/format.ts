@@ -23,6 +23,8 @@ export function formatProbability(v: number | null | undefined): string {
   if (v === null || v === undefined || !Number.isFinite(v)) return '–';
   if (v > 0.995) return 'more than 99.5%';
   if (v < 0.005 && v > 0) return 'less than 0.5%';
+  // The ends themselves: whole-percent rounding would print 99.5% as a certainty.
+  if (v === 0.995 || v === 0.005) return `${(v * 100).toFixed(1)}%`;
   const s = (v * 100).toFixed(0);
   return `${s === '-0' ? '0' : s}%`;
 }

@@ -35,7 +35,9 @@ export function num(key: string, value: Maybe, decimals: number, o: NumberOption
   if (o.percent && value > 0.995) return `<span class="n" data-key="${esc(key)}" data-bound="above" data-scale="100">more than 99.5%</span>`;
   if (o.percent && value < 0.005 && value > 0) return `<span class="n" data-key="${esc(key)}" data-bound="below" data-scale="100">less than 0.5%</span>`;
   const shown = o.percent ? value * 100 : value;
-  const d = o.p ? (value < 0.01 ? 4 : 3) : decimals;
+  // A probability at an end itself (99.5%, 0.5%) keeps its decimal: whole percent would read 100%.
+  const atEnd = o.percent && (value === 0.995 || value === 0.005);
+  const d = o.p ? (value < 0.01 ? 4 : 3) : atEnd ? 1 : decimals;
   return `<span class="n" data-key="${esc(key)}" data-decimals="${d}"${o.percent ? ' data-scale="100"' : ''}>${fixedText(shown, d)}${o.percent ? '%' : ''}</span>`;
 }
 

@@ -69,6 +69,8 @@ export function probabilityText(x: Maybe): string {
   if (!finite(x)) return '-';
   if (x > 0.995) return 'more than 99.5%';
   if (x < 0.005 && x > 0) return 'less than 0.5%';
+  // The ends themselves: whole-percent rounding would print 99.5% as a certainty.
+  if (x === 0.995 || x === 0.005) return percent(x, 1);
   return percent(x);
 }
 

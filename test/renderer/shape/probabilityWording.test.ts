@@ -22,6 +22,10 @@ describe('probability wording, screens, report and text summary', () => {
   it('never shows a rounded certainty', () => {
     expect(formatProbability(0.9996)).toBe('more than 99.5%');
     expect(formatProbability(0.0004)).toBe('less than 0.5%');
+    // 995 of 1,000 draws: the end itself, not a rounded 100%
+    expect(formatProbability(995 / 1000)).toBe('99.5%');
+    expect(probabilityText(995 / 1000)).toBe('99.5%');
+    expect(formatProbability(5 / 1000)).toBe('0.5%');
     expect(formatProbability(null)).toBe('–');
   });
 
