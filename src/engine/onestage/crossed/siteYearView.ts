@@ -10,6 +10,10 @@
 // plug-in new-site interval of two-stage pooling; t(years - 2) for the known site was tried and
 // gave, with three years, intervals wider than a new site's.
 import { tQuantile } from '../../stats/distributions.js';
+import type { NewSiteNewYearPrediction } from './newSiteNewYearBootstrap.js';
+
+/** What the new-site-in-a-new-year prediction adds to the plug-in interval of the fit. */
+export type NewSiteNewYearMethod = Pick<NewSiteNewYearPrediction, 'method' | 'probPositive' | 'probAboveThreshold' | 'plugInT' | 'trialsUsed' | 'sitesUsed' | 'draws' | 'seed' | 'note'>;
 
 export type SplitPart = 'site' | 'year' | 'site-year';
 
@@ -44,7 +48,11 @@ export interface SiteYearContrast {
   siteVariance: number;
   yearVariance: number;
   siteYearVariance: number;
-  newSiteNewYear: { lower: number; upper: number; df: number; sd: number } | null;
+  /**
+   * lower/upper by `method` (oneStage.prediction; siteYearNewSite.ts); df and sd are the plug-in
+   * interval's, whose ends are in plugInT.
+   */
+  newSiteNewYear: ({ lower: number; upper: number; df: number; sd: number } & Partial<NewSiteNewYearMethod>) | null;
   /** Next year at each known site; empty without a treatment-by-site term. */
   nextYearAtSite: KnownSitePrediction[];
 }
