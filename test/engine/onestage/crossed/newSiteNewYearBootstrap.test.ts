@@ -10,6 +10,7 @@
 //   SE, site, year and trial tau²) on the same own estimates: the interval and probabilities must
 //   be those of the two-stage pool's bootstrap-pivot (checked live against base R in
 //   test/engine/pooling/multilevel/) draw for draw, to 1e-12 relative;
+// - progress once the work has taken a second, and cancel through the signal;
 // - plug-in-t: its formula written out here (1e-12), and the fall-back to it, saying why.
 import { describe, expect, it } from 'vitest';
 import { newSiteNewYearPrediction, type OwnTrialEstimate } from '../../../../src/engine/onestage/crossed/newSiteNewYearBootstrap.js';
@@ -82,6 +83,27 @@ describe('new site in a new year (crossed one-stage)', () => {
     expect(r.probPositive).toBe(two.probPositive);
     expect(r.probAboveThreshold).toBe(two.probAboveThreshold);
   }, 120_000);
+
+  it('reports progress once past a second and stops when cancelled', () => {
+    const controller = new AbortController();
+    const seen: number[] = [];
+    const run = () =>
+      newSiteNewYearPrediction(1.1, 0.15, parts, 10, own, {
+        ...options,
+        draws: 100_000,
+        signal: controller.signal,
+        onProgress: (f) => {
+          seen.push(f);
+          controller.abort(new Error('cancelled by the test'));
+        },
+      });
+    const began = Date.now();
+    expect(run).toThrow(/cancelled by the test/);
+    expect(seen.length).toBe(1);
+    expect(seen[0]).toBeGreaterThan(0);
+    expect(seen[0]).toBeLessThan(1);
+    expect(Date.now() - began).toBeGreaterThanOrEqual(1000);
+  }, 60_000);
 
   it('plug-in-t: estimate ± t(sites - 2) sqrt(se² + the three parts), probabilities on the same t (1e-12)', () => {
     const r = newSiteNewYearPrediction(1.1, 0.15, parts, 10, own, { ...options, method: 'plug-in-t' });
