@@ -16,7 +16,7 @@ import { resolveContrast } from '../../src/engine/contrasts/resolve.js';
 import { mulberry32, normalSampler } from '../../src/engine/stats/random.js';
 import type { NetworkInput, PlotObservation, TrialInput } from '../../src/engine/types.js';
 
-const replicates = Number(process.argv[2] ?? 150);
+const replicates = Number(process.argv[2] ?? 100);
 const draws = Number(process.argv[3] ?? 300);
 const YEARS = 4;
 const BLOCKS = 3;
