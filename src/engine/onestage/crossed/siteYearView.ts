@@ -3,7 +3,9 @@
 // and a site-year part (neither); the share that belongs to the site; each contrast's
 // prediction for a new site in a new year; and for next year at each known site.
 //
-// New site, new year: estimate ± t(sites - 2) sqrt(se² + sum l² (s²_TxS + s²_TxY + s²_TxT)).
+// New site, new year: estimate ± t(sites - 2) sqrt(se² + sum l² (s²_TxS + s²_TxY + s²_TxT)) as the
+// fit gives it; by default siteYearNewSite.ts then replaces it with the bootstrap interval (the
+// plug-in kept in plugInT).
 // Next year at a known site: the site's BLUP of the contrast ± t(sites - 2)
 // sqrt(PEV + sum l² (s²_TxY + s²_TxT)), PEV the prediction-error variance of the BLUP. The
 // t degrees of freedom (sites - 2, at least 1, for both) are our construction after the
