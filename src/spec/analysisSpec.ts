@@ -93,6 +93,8 @@ export const oneStageSchema = z
     prediction: looseEnum(['bootstrap-tau2', 'plug-in-t']).default('bootstrap-tau2'),
     predictionDraws: z.number().int().min(1000).max(1_000_000).default(20000),
     predictionSeed: z.number().int().min(0).max(4294967295).default(20190601),
+    /** With site and year terms: refits of the new-site-in-a-new-year bootstrap (each a REML refit). */
+    siteLevelDraws: z.number().int().min(100).max(100_000).default(1000),
   })
   .strict();
 

@@ -3,7 +3,7 @@
 // repeatable at a site; a new site in a new year; and next year at each known site, with the
 // caution that it rests on that site's past years.
 import type { AnyAnalysisReport } from '../../api/analysis/report.js';
-import { decimalsFromSe, fixed, levelText, percent, rangeText, seText, sig } from './numbers.js';
+import { decimalsFromSe, fixed, levelText, percent, probabilityText, rangeText, seText, sig } from './numbers.js';
 import { section, textTable } from './table.js';
 
 /** Sites listed per contrast in the text (the JSON has them all). */
@@ -27,9 +27,22 @@ export function siteYearLines(r: AnyAnalysisReport): string[] {
   );
   const repeat = `  Repeatable at a site: ${v.siteRepeatability === null ? 'not estimated (no treatment × site term)' : percent(v.siteRepeatability)} of the variation in response belongs to the site (${v.sites} sites, ${v.years} years).`;
   const se = (name: string) => r.oneStage?.contrasts.find((c) => c.name === name)?.se ?? null;
+  const threshold = r.settings.threshold;
   const newSite = textTable(
-    ['contrast', 'estimate', `new site, new year (${level} prediction interval)`, 't df'],
-    v.contrasts.map((c) => [c.name, c.estimate === null ? 'not estimable' : fixed(c.estimate, decimalsFromSe(se(c.name)) + 1), c.newSiteNewYear ? rangeText(c.newSiteNewYear.lower, c.newSiteNewYear.upper, unit(c.name), decimalsFromSe(se(c.name))) : '-', c.newSiteNewYear ? String(c.newSiteNewYear.df) : '-']),
+    ['contrast', 'estimate', `new site, new year (${level} prediction interval)`, 'method', 'P(effect > 0)', ...(threshold !== 0 ? [`P(effect > ${sig(threshold)})`] : []), 'plug-in t interval (t df)'],
+    v.contrasts.map((c) => {
+      const n = c.newSiteNewYear;
+      const d = decimalsFromSe(se(c.name));
+      return [
+        c.name,
+        c.estimate === null ? 'not estimable' : fixed(c.estimate, d + 1),
+        n ? rangeText(n.lower, n.upper, unit(c.name), d) : '-',
+        n?.method ?? (n ? 'plug-in-t' : '-'),
+        probabilityText(n?.probPositive),
+        ...(threshold !== 0 ? [probabilityText(n?.probAboveThreshold)] : []),
+        n ? `${rangeText(n.plugInT?.lower ?? n.lower, n.plugInT?.upper ?? n.upper, null, d)} (${n.df})` : '-',
+      ];
+    }),
   );
   const bySite = v.contrasts.flatMap((c) => {
     if (c.nextYearAtSite.length === 0) return [];

@@ -11,6 +11,7 @@ import { generateDemoNetwork } from '../../../src/demo/generate.js';
 import { DEMO_SITES, DEMO_YEARS } from '../../../src/demo/scenario.js';
 import { formatAnalysisText } from '../../../src/report/text/formatAnalysisText.js';
 import { ManyfieldError } from '../../../src/api/result.js';
+import { tQuantile } from '../../../src/engine/stats/distributions.js';
 
 const demo = networkFromTable(generateDemoNetwork().table, 'yield');
 
@@ -32,7 +33,14 @@ describe('one-stage model with sites and years, through runAnalysis', () => {
       expect(c.newSiteNewYear!.lower).toBeLessThan(r.lower!);
       expect(c.newSiteNewYear!.upper).toBeGreaterThan(r.upper!);
       expect(c.nextYearAtSite).toHaveLength(DEMO_SITES.length);
-      const newSiteHalf = (c.newSiteNewYear!.upper - c.newSiteNewYear!.lower) / 2;
+      // by default the bootstrap (oneStage.prediction "bootstrap-tau2"), with the plug-in beside it
+      const n = c.newSiteNewYear!;
+      expect(n.method).toBe('bootstrap-pivot');
+      expect(n.draws).toBe(1000);
+      expect(n.seed).toBe(20190601);
+      expect(n.probPositive).toBeGreaterThanOrEqual(0);
+      expect(n.probAboveThreshold).toBeLessThanOrEqual(n.probPositive!);
+      const newSiteHalf = (n.plugInT!.upper - n.plugInT!.lower) / 2;
       for (const s of c.nextYearAtSite) {
         expect(s.pastYears).toEqual([...DEMO_YEARS]);
         // both intervals on t(sites - 2) (1e-12 relative): a known site's interval is narrower
@@ -46,6 +54,23 @@ describe('one-stage model with sites and years, through runAnalysis', () => {
     expect(text).toMatch(/Is the response repeatable by site or seasonal\? \(one-stage, sites and years\)/);
     expect(text).toMatch(/Next year at each known site \(one-stage\)/);
     expect(text).toMatch(/rests on that site's past years only/);
+    expect(text).toMatch(/treated_vs_control .* bootstrap-pivot /);
+    expect(text).toMatch(/new site in a new year: parametric bootstrap of the studentised prediction error/);
+  }, 600_000);
+
+  it('oneStage.prediction "plug-in-t" gives the plug-in new-site-new-year interval and says so', () => {
+    const example = analysisSpecSchema.parse(JSON.parse(readFileSync(new URL('../../../examples/sites-over-years-one-stage.json', import.meta.url), 'utf8')));
+    const report = runAnalysis(demo, { ...example, twoStage: null, oneStage: { ...example.oneStage!, lrt: false, prediction: 'plug-in-t' } });
+    for (const c of report.oneStage!.siteYearView!.contrasts) {
+      const n = c.newSiteNewYear!;
+      expect(n.method).toBe('plug-in-t');
+      expect(n.draws).toBeNull();
+      expect(n.lower).toBe(n.plugInT!.lower);
+      // the fit's own plug-in interval: estimate ± t(sites - 2) sd (1e-12)
+      expect(n.df).toBe(DEMO_SITES.length - 2);
+      expect(Math.abs(n.upper - (c.estimate! + tQuantile(0.975, n.df) * n.sd))).toBeLessThan(1e-12);
+    }
+    expect(report.oneStage!.siteYearView!.method).toMatch(/^new site in a new year: estimate ± t\(sites - 2\).*\(plug-in-t\)/);
   }, 600_000);
 
   it('refuses site with trial when every site has one trial, and a year term with one year', () => {

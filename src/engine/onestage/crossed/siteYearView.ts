@@ -3,13 +3,19 @@
 // and a site-year part (neither); the share that belongs to the site; each contrast's
 // prediction for a new site in a new year; and for next year at each known site.
 //
-// New site, new year: estimate ± t(sites - 2) sqrt(se² + sum l² (s²_TxS + s²_TxY + s²_TxT)).
+// New site, new year: estimate ± t(sites - 2) sqrt(se² + sum l² (s²_TxS + s²_TxY + s²_TxT)) as the
+// fit gives it; by default siteYearNewSite.ts then replaces it with the bootstrap interval (the
+// plug-in kept in plugInT).
 // Next year at a known site: the site's BLUP of the contrast ± t(sites - 2)
 // sqrt(PEV + sum l² (s²_TxY + s²_TxT)), PEV the prediction-error variance of the BLUP. The
 // t degrees of freedom (sites - 2, at least 1, for both) are our construction after the
 // plug-in new-site interval of two-stage pooling; t(years - 2) for the known site was tried and
 // gave, with three years, intervals wider than a new site's.
 import { tQuantile } from '../../stats/distributions.js';
+import type { NewSiteNewYearPrediction } from './newSiteNewYearBootstrap.js';
+
+/** What the new-site-in-a-new-year prediction adds to the plug-in interval of the fit. */
+export type NewSiteNewYearMethod = Pick<NewSiteNewYearPrediction, 'method' | 'probPositive' | 'probAboveThreshold' | 'plugInT' | 'trialsUsed' | 'sitesUsed' | 'draws' | 'seed' | 'note'>;
 
 export type SplitPart = 'site' | 'year' | 'site-year';
 
@@ -44,7 +50,11 @@ export interface SiteYearContrast {
   siteVariance: number;
   yearVariance: number;
   siteYearVariance: number;
-  newSiteNewYear: { lower: number; upper: number; df: number; sd: number } | null;
+  /**
+   * lower/upper by `method` (oneStage.prediction; siteYearNewSite.ts); df and sd are the plug-in
+   * interval's, whose ends are in plugInT.
+   */
+  newSiteNewYear: ({ lower: number; upper: number; df: number; sd: number } & Partial<NewSiteNewYearMethod>) | null;
   /** Next year at each known site; empty without a treatment-by-site term. */
   nextYearAtSite: KnownSitePrediction[];
 }
