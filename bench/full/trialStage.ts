@@ -39,5 +39,3 @@ if (check) {
     console.log(`wrote ${check}`);
   } else console.log(isDeepStrictEqual(plain, JSON.parse(readFileSync(check, 'utf8'))) ? 'summaries identical to the reference' : 'SUMMARIES DIFFER from the reference');
 }
-const T = (globalThis as { __T?: Record<string, number> }).__T;
-if (T) console.log(Object.entries(T).sort((a, b) => b[1] - a[1]).map(([k, v]) => `${k} ${v.toFixed(0)}`).join('\n'));
