@@ -1,5 +1,8 @@
 // bench:full — the whole analysis a user runs, at network scale, beside lme4 in the same run.
-//   npm run bench:full [-- --sizes 1000,4000] [--repeats 1] [--bootstrap 200] [--skip-r] [--saved-only]
+//   npm run bench:full [-- --sizes 1000,4000] [--repeats 1] [--bootstrap 200] [--skip-r] [--saved-only] [--baseline DIR]
+// --baseline DIR: also run the same commands with another build of the project (its
+// dist/cli/bundle.cjs, e.g. an earlier commit exported and built in DIR) and print its figures
+// beside these, so before and after are measured in the same minutes on the same machine.
 // On generated networks of the DESIGN §5 example (7 treatments x 4 blocks, sites over years,
 // the three contrasts), each through the installed command in a fresh process:
 //   1. the full spec: trial stage, two-stage REML + HKSJ with leave-one-out, influence and
@@ -34,6 +37,7 @@ const bootstrap = Number(arg('--bootstrap') ?? 200);
 const skipR = args.includes('--skip-r');
 /** Only the saved-analysis part, on the largest network. */
 const savedOnly = args.includes('--saved-only');
+const baseline = arg('--baseline');
 const dir = join(tmpdir(), 'manyfield-bench-full');
 mkdirSync(dir, { recursive: true });
 
@@ -55,10 +59,10 @@ function fastest<R extends Run>(f: () => R): R {
   return runs.reduce((a, b) => (b.wall < a.wall ? b : a));
 }
 
-/** The installed command in a fresh process. */
-function command(argv: string[]): Run {
+/** The installed command in a fresh process (with `bundle`, another build's command). */
+function command(argv: string[], bundle?: string): Run {
   const t0 = performance.now();
-  const r = spawnSync(process.execPath, [join(here, 'cliChild.cjs'), ...argv], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30 });
+  const r = spawnSync(process.execPath, [join(here, 'cliChild.cjs'), ...argv], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30, env: bundle ? { ...process.env, MANYFIELD_BENCH_BUNDLE: bundle } : process.env });
   const wall = performance.now() - t0;
   const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
   if (r.status !== 0 || !line) throw new Error(`manyfield ${argv.join(' ')} failed (${r.status}):\n${r.stderr}`);
@@ -121,6 +125,15 @@ for (const n of savedOnly ? [] : sizes) {
   console.log(`  full spec, --detail plots       command  ${fmt(plots.inner).padStart(8)} (cpu ${fmt(plots.cpu)}), peak ${plots.peakMb.toFixed(0)} MB, JSON ${mb(statSync(out).size)}`);
   const rate = fastest(() => command(['analyze', '--data', file, '--spec', specs.rate, '--json', '--out', out]));
   console.log(`  + rate response, ${bootstrap}-draw bootstrap command ${fmt(rate.inner).padStart(8)} (cpu ${fmt(rate.cpu)}), peak ${rate.peakMb.toFixed(0)} MB, JSON ${mb(statSync(out).size)}`);
+  if (baseline) {
+    const bundle = join(baseline, 'dist', 'cli', 'bundle.cjs');
+    const before = (spec: string) => {
+      const run = fastest(() => command(['analyze', '--data', file, '--spec', spec, '--json', '--out', out], bundle));
+      return `command ${fmt(run.inner)} (cpu ${fmt(run.cpu)}), peak ${run.peakMb.toFixed(0)} MB, JSON ${mb(statSync(out).size)}`;
+    };
+    console.log(`  baseline (${baseline}) full spec:      ${before(specs.full)}`);
+    console.log(`  baseline + rate response + bootstrap:  ${before(specs.rate)}`);
+  }
   const one = fastest(() => command(['analyze', '--data', file, '--spec', specs.one, '--json', '--out', out]));
   console.log(`  one-stage alone (no LRT)        command  ${fmt(one.inner).padStart(8)} (cpu ${fmt(one.cpu)}), whole process ${fmt(one.wall)}, peak ${one.peakMb.toFixed(0)} MB`);
   if (r) console.log(`    whole Rscript / whole process: ${(r.wall / one.wall).toFixed(1)}x; lme4 read+fit / command: ${(r.inner / one.inner).toFixed(1)}x`);

@@ -1,5 +1,6 @@
 // The `manyfield` command, built on the api handler map. Errors go to stderr with a
 // non-zero exit code; a failed command writes nothing.
+import { compactAnalysisJson } from './analysisJson.js';
 import { existsSync, readFileSync, renameSync, statSync, writeFileSync, rmSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { JsonShapeError, MAX_JSON_FILE_BYTES, parseBoundedJson } from '../intake/jsonInput.js';
@@ -145,7 +146,7 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       let text = '';
       let partial: string | null = null;
       const deliver = (d: unknown): void => {
-        text = o.flag('json') ? json(d) : formatReport(d as HandlerResults['analysis.run']);
+        text = o.flag('json') ? json(compactAnalysisJson(d)) : formatReport(d as HandlerResults['analysis.run']);
         if (target !== undefined) partial = writePartial(target, text);
       };
       // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.

@@ -6,6 +6,7 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { rowsFromColumns, type Columns } from '../../src/engine/pooling/compactPooled.js';
+import { expandAnalysisJson } from '../../src/cli/analysisJson.js';
 import { exampleNetworkCsv, exampleSpec } from '../../bench/full/exampleNetwork.js';
 import { manyfield, tempDir } from '../support/cli.js';
 
@@ -26,7 +27,8 @@ describe('analyze --json: summary by default, --detail plots in full', () => {
     writeFileSync(spec, JSON.stringify(exampleSpec({ twoStage: true, oneStage: false, lrt: false })));
     const a = manyfield(['analyze', '--data', data, '--spec', spec, '--json']);
     expect(a.stderr).toBe('');
-    summary = JSON.parse(a.stdout) as Json;
+    // The default document is written in columns (test/cli/analysisJson.test.ts); read back, it is the summary report.
+    summary = expandAnalysisJson(JSON.parse(a.stdout)) as Json;
     const b = manyfield(['analyze', '--data', data, '--spec', spec, '--json', '--detail', 'plots']);
     expect(b.stderr).toBe('');
     full = JSON.parse(b.stdout) as Json;

@@ -5,6 +5,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
 import { manyfield, type CliRun } from '../support/cli.js';
+import { expandAnalysisJson } from '../../src/cli/analysisJson.js';
 
 export interface Report {
   twoStage: {
@@ -29,7 +30,8 @@ export function writeJson(dir: string, name: string, value: unknown): string {
 export function analyzeJson(args: readonly string[]): { run: CliRun; report: Report } {
   const run = manyfield(['analyze', ...args, '--json']);
   if (run.status !== 0) throw new Error(`analyze failed (${run.status}): ${run.stderr}`);
-  return { run, report: JSON.parse(run.stdout) as Report };
+  // The default document is in columns (src/cli/analysisJson.ts): read back as the report.
+  return { run, report: expandAnalysisJson(JSON.parse(run.stdout)) as Report };
 }
 
 export function storedAnalyses(workspace: string): number {

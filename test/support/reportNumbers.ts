@@ -3,6 +3,8 @@
 // so that a shared template cannot hide a mistake. Tolerance: half a unit of the last decimal
 // shown (plus 1e-12); a bound ("more than 99.5%", "< 0.0001") must hold.
 
+import { expandAnalysisJson } from '../../src/cli/analysisJson.js';
+
 export function unescapeHtml(s: string): string {
   return s.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&amp;/g, '&');
 }
@@ -30,9 +32,11 @@ export function valueAt(doc: unknown, path: string): unknown {
 
 /** The marked numbers that do not agree with `doc`, each described (empty when all agree). */
 export function disagreements(marked: readonly MarkedNumber[], doc: unknown): string[] {
+  // The keys are paths in the report; the command's default document is in columns (README), read back first.
+  const report = expandAnalysisJson(doc);
   const wrong: string[] = [];
   for (const m of marked) {
-    const value = valueAt(doc, m.key);
+    const value = valueAt(report, m.key);
     if (typeof value !== 'number') {
       wrong.push(`${m.key}: not a number in the JSON (${String(value)})`);
       continue;

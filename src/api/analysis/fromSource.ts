@@ -49,8 +49,10 @@ export async function runAnalysisFromSource(source: AnalysisSource, ctx?: CallCo
       const trait = spec.trait;
       if (!trait) throw new ManyfieldError('invalid-argument', 'the spec must name a "trait" when analysing a workspace');
       const network = store.loadNetwork(ws, trait);
+      const running = runAnalysisCancellable(network, spec, ctx, detail);
+      // Hashed while the worker analyses: the network was handed to it as the call above began.
       const print = fingerprint(network);
-      const report = withProvenance(await runAnalysisCancellable(network, spec, ctx, detail), { source: path, fingerprint: print });
+      const report = withProvenance(await running, { source: path, fingerprint: print });
       // Stored last, after the caller has taken the result (written its output file): a failed
       // analysis — or one whose output could not be written — leaves no stored analysis behind.
       throwIfCancelled(ctx);

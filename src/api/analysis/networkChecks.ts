@@ -17,7 +17,12 @@ export interface NetworkCheck {
 export function checkNetwork(network: NetworkInput, tested: readonly (readonly TreatmentInfo[])[]): NetworkCheck {
   const names = network.trials.map((t) => t.trial);
   const trialsOf = new Map<string, string[]>();
-  tested.forEach((ts, i) => ts.forEach((t) => trialsOf.set(t.code, [...(trialsOf.get(t.code) ?? []), names[i]])));
+  // Appended in place: copying each list per trial was quadratic (a seventh of a second at 4,000 trials).
+  tested.forEach((ts, i) => ts.forEach((t) => {
+    const list = trialsOf.get(t.code);
+    if (list) list.push(names[i]);
+    else trialsOf.set(t.code, [names[i]]);
+  }));
   const singleTrialTreatments = [...trialsOf].filter(([, ts]) => ts.length === 1).map(([treatment, ts]) => ({ treatment, trial: ts[0] }));
   const connectedGroups = groups(names, tested);
   const ranges = network.factors
@@ -40,7 +45,12 @@ export function checkNetwork(network: NetworkInput, tested: readonly (readonly T
     const distinct = new Set(own.map((r) => `${r.lowest}-${r.highest}`));
     if (distinct.size > 1) {
       const byRange = new Map<string, string[]>();
-      for (const r of own) byRange.set(`${r.lowest} to ${r.highest}`, [...(byRange.get(`${r.lowest} to ${r.highest}`) ?? []), r.trial]);
+      for (const r of own) {
+        const key = `${r.lowest} to ${r.highest}`;
+        const list = byRange.get(key);
+        if (list) list.push(r.trial);
+        else byRange.set(key, [r.trial]);
+      }
       warnings.push(`trials tested different ${f.name} ranges${f.unit ? ` (${f.unit})` : ''}: ${[...byRange].map(([range, ts]) => `${range} in ${ts.length} trial${ts.length > 1 ? 's' : ''} (${ts.length > 6 ? `${ts.slice(0, 6).join(', ')} ...` : ts.join(', ')})`).join('; ')}`);
     }
   }
@@ -63,7 +73,9 @@ function groups(names: readonly string[], tested: readonly (readonly TreatmentIn
   names.forEach((n, i) => {
     if (tested[i].length === 0) return;
     const r = find(i);
-    out.set(r, [...(out.get(r) ?? []), n]);
+    const group = out.get(r);
+    if (group) group.push(n);
+    else out.set(r, [n]);
   });
   return [...out.values()];
 }

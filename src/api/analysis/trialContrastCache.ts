@@ -9,7 +9,9 @@ export class TrialContrastCache {
   private readonly byTested = new Map<string, readonly ResolvedContrast[]>();
 
   resolve(tested: readonly TreatmentInfo[], compute: () => readonly ResolvedContrast[]): readonly ResolvedContrast[] {
-    const key = JSON.stringify(tested.map((t) => [t.code, t.levels]));
+    // The key is JSON.stringify(tested.map((t) => [t.code, t.levels])), written from each
+    // treatment's own part, kept per treatment object: a network's treatments are written once.
+    const key = `[${tested.map(part).join(',')}]`;
     let hit = this.byTested.get(key);
     if (hit === undefined) {
       hit = compute();
@@ -17,4 +19,15 @@ export class TrialContrastCache {
     }
     return hit;
   }
+}
+
+const parts = new WeakMap<TreatmentInfo, string>();
+
+function part(t: TreatmentInfo): string {
+  let p = parts.get(t);
+  if (p === undefined) {
+    p = JSON.stringify([t.code, t.levels]);
+    parts.set(t, p);
+  }
+  return p;
 }

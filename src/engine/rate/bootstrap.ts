@@ -33,6 +33,9 @@ export function bootstrapOptimum(
   const optima: number[] = [];
   const every = Math.max(1, Math.floor(replicates / 100));
   const counts = new Float64Array(k);
+  // The ranges' ends in flat arrays: the draw loop runs k times per replicate.
+  const lows = Float64Array.from(ranges, (r) => r[0]);
+  const highs = Float64Array.from(ranges, (r) => r[1]);
   for (let rep = 0; rep < replicates; rep++) {
     signal?.throwIfAborted();
     counts.fill(0);
@@ -41,8 +44,8 @@ export function bootstrapOptimum(
     for (let i = 0; i < k; i++) {
       const j = Math.min(k - 1, Math.floor(u() * k));
       counts[j] += 1;
-      lo = Math.max(lo, ranges[j][0]);
-      hi = Math.min(hi, ranges[j][1]);
+      lo = Math.max(lo, lows[j]);
+      hi = Math.min(hi, highs[j]);
     }
     optima.push(optimumOfMean(summedMeanCurve(curves, counts), r, lo, hi, 0).optimum);
     if (onProgress && ((rep + 1) % every === 0 || rep + 1 === replicates)) onProgress((rep + 1) / replicates);

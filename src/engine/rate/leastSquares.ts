@@ -3,6 +3,9 @@
 import { zeros, type Matrix } from '../linalg/matrix.js';
 import { qrFactor, qrCoefficients } from '../linalg/qr.js';
 import type { TrialRateData } from './rateData.js';
+import { SameMatrixMemo } from './sameMatrixMemo.js';
+
+const factors = new SameMatrixMemo<ReturnType<typeof qrFactor>>();
 
 export interface LinearFit {
   /** Offsets first (intercept, block columns), then the curve columns; aliased = NaN. */
@@ -23,7 +26,7 @@ export function fitWithOffsets(d: TrialRateData, curveCols: readonly Float64Arra
     for (let j = 0; j < q; j++) x.data[i * p + j] = d.offsets[i * q + j];
     for (let j = 0; j < curveCols.length; j++) x.data[i * p + q + j] = curveCols[j][i];
   }
-  const f = qrFactor(x);
+  const f = factors.get(x, qrFactor);
   const coef = qrCoefficients(f, d.y);
   const residuals = new Float64Array(n);
   let rss = 0;

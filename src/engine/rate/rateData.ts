@@ -118,6 +118,10 @@ export function trialRateData(trial: TrialInput, rates: Map<string, number>): Tr
   return { trial: trial.trial, rate, y, offsets, offsetCols: q, distinctRates, hasZeroRate: distinctRates.length > 0 && distinctRates[0] === 0 };
 }
 
+// One collator for every comparison: localeCompare with options builds a new one per call,
+// which at 4,000 trials cost a third of a second; the order is the same.
+const natural = new Intl.Collator('en', { numeric: true });
+
 function naturalCompare(a: string, b: string): number {
-  return a.localeCompare(b, 'en', { numeric: true });
+  return natural.compare(a, b);
 }

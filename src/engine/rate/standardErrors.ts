@@ -4,17 +4,27 @@
 // quadratic-plateau) by the delta method.
 import { crossprod, type Matrix } from '../linalg/matrix.js';
 import { cholesky, cholInverse, NotPositiveDefiniteError } from '../linalg/cholesky.js';
+import { SameMatrixMemo } from './sameMatrixMemo.js';
+
+/** (J'J)^-1 of the Jacobian before (null: singular); trials laid out alike share it. */
+const unscaledInverses = new SameMatrixMemo<Matrix | null>();
 
 /** Covariance of all Jacobian columns, or null when J'J is singular or no df remain. */
 export function jacobianCovariance(jacobian: Matrix, rss: number): Matrix | null {
   const n = jacobian.rows;
   const p = jacobian.cols;
   if (n <= p) return null;
+  const unscaled = unscaledInverses.get(jacobian, unscaledInverse);
+  if (unscaled === null) return null;
+  const inv = { ...unscaled, data: unscaled.data.slice() };
+  const s2 = rss / (n - p);
+  for (let i = 0; i < inv.data.length; i++) inv.data[i] *= s2;
+  return inv;
+}
+
+function unscaledInverse(j: Matrix): Matrix | null {
   try {
-    const inv = cholInverse(cholesky(crossprod(jacobian)));
-    const s2 = rss / (n - p);
-    for (let i = 0; i < inv.data.length; i++) inv.data[i] *= s2;
-    return inv;
+    return cholInverse(cholesky(crossprod(j)));
   } catch (e) {
     if (e instanceof NotPositiveDefiniteError) return null;
     throw e;

@@ -37,18 +37,23 @@ export function tQuantile(p: number, df: number): number {
   if (!Number.isFinite(df)) return normalQuantileStd(p, 0, 1);
   // Thousands of trials ask for the same few quantiles (one confidence level, a handful of df);
   // each costs an incomplete-beta inversion, so the values already found are kept.
-  const key = `${p}|${df}`;
-  let q = quantileMemo.get(key);
+  // Keyed by the numbers themselves (no key string to build on every call).
+  let byDf = quantileMemo.get(p);
+  if (byDf === undefined) {
+    if (quantileMemo.size >= MEMO_LIMIT) quantileMemo.clear();
+    quantileMemo.set(p, (byDf = new Map()));
+  }
+  let q = byDf.get(df);
   if (q === undefined) {
     q = tQuantileStd(p, df);
-    if (quantileMemo.size >= MEMO_LIMIT) quantileMemo.clear();
-    quantileMemo.set(key, q);
+    if (byDf.size >= MEMO_LIMIT) byDf.clear();
+    byDf.set(df, q);
   }
   return q;
 }
 
 const MEMO_LIMIT = 4096;
-const quantileMemo = new Map<string, number>();
+const quantileMemo = new Map<number, Map<number, number>>();
 
 /** Upper-tail probability P(F > f) for the F distribution. */
 export function fUpper(f: number, df1: number, df2: number): number {

@@ -58,14 +58,37 @@ export function rawMeans(mv: MeanVectors, fit: LinearFit, confidence: number): R
 /** sigma² L (X'X)^- L' over the estimable means; NaN where either mean is not estimable. */
 export function meansCovariance(mv: MeanVectors, fit: LinearFit): number[][] {
   const k = mv.codes.length;
+  const cross = unscaledMeansCross(mv, fit);
   const out = Array.from({ length: k }, () => new Array<number>(k).fill(NaN));
   for (let i = 0; i < k; i++)
     for (let j = i; j < k; j++) {
-      const a = mv.vectors[i];
-      const b = mv.vectors[j];
-      if (!a || !b || !mv.estimable[i] || !mv.estimable[j]) continue;
+      const c = cross[i * k + j];
+      if (Number.isNaN(c)) continue;
       // Computed once per pair so the matrix is exactly symmetric.
-      out[i][j] = out[j][i] = fit.sigma2 * unscaledCrossKept(fit, a, b);
+      out[i][j] = out[j][i] = fit.sigma2 * c;
     }
   return out;
+}
+
+// L (X'X)^- L' depends on the layout alone (the mean vectors and the factor are shared by trials
+// laid out alike): kept per pair of them, NaN where a mean is not estimable.
+const crossMemo = new WeakMap<MeanVectors, WeakMap<object, Float64Array>>();
+
+function unscaledMeansCross(mv: MeanVectors, fit: LinearFit): Float64Array {
+  let byFactor = crossMemo.get(mv);
+  if (!byFactor) crossMemo.set(mv, (byFactor = new WeakMap()));
+  let cross = byFactor.get(fit.unscaled);
+  if (!cross) {
+    const k = mv.codes.length;
+    cross = new Float64Array(k * k).fill(NaN);
+    for (let i = 0; i < k; i++)
+      for (let j = i; j < k; j++) {
+        const a = mv.vectors[i];
+        const b = mv.vectors[j];
+        if (!a || !b || !mv.estimable[i] || !mv.estimable[j]) continue;
+        cross[i * k + j] = unscaledCrossKept(fit, a, b);
+      }
+    byFactor.set(fit.unscaled, cross);
+  }
+  return cross;
 }

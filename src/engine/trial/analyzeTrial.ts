@@ -40,7 +40,24 @@ function transformSuitability(options: TrialAnalysisOptions): TrialFlag[] {
 const layouts = new Map<string, { model: DesignModel; factor: DesignFactor }>();
 const LAYOUT_LIMIT = 256;
 
+/** The layout used last, with what it was looked up by: consecutive trials are mostly laid out alike. */
+let last: { design: TrialDesign; codes: readonly string[]; plots: readonly (readonly unknown[])[]; layout: { model: DesignModel; factor: DesignFactor } } | null = null;
+
+const sameValues = (a: readonly unknown[], b: readonly unknown[]): boolean => a.length === b.length && a.every((x, i) => x === b[i]);
+
 function designFor(design: TrialDesign, plots: readonly UsedPlot[], codes: readonly string[]): { model: DesignModel; factor: DesignFactor } {
+  // Equal values give an equal key below, so a match here is the layout the key would find.
+  if (last && last.design === design && last.plots.length === plots.length && sameValues(last.codes, codes) && plots.every((p, i) => {
+    const q = last!.plots[i];
+    return q[0] === p.treatment && q[1] === p.block && q[2] === p.row && q[3] === p.col;
+  }))
+    return last.layout;
+  const layout = layoutByKey(design, plots, codes);
+  last = { design, codes, plots: plots.map((p) => [p.treatment, p.block, p.row, p.col]), layout };
+  return layout;
+}
+
+function layoutByKey(design: TrialDesign, plots: readonly UsedPlot[], codes: readonly string[]): { model: DesignModel; factor: DesignFactor } {
   let key = `${design}\u0002${codes.join('\u0001')}`;
   for (const p of plots) key += `\u0002${p.treatment}\u0001${p.block}\u0001${p.row}\u0001${p.col}`;
   let layout = layouts.get(key);
@@ -67,7 +84,8 @@ export function analyzeTrial(
   const plots = split.used;
   if (plots.length === 0) throw new TrialInputError(trial.trial, 'no plot has a value to analyse');
   const transform = makeTransform(options.transform, plots.map((p) => p.value), trial.trial, options.logOffset);
-  const y = Float64Array.from(plots, (p) => transform.forward(p.value));
+  const y = new Float64Array(plots.length);
+  for (let i = 0; i < plots.length; i++) y[i] = transform.forward(plots[i].value);
   const codes = treatments.map((t) => t.code);
 
   const { model, factor } = designFor(trial.design, plots, codes);

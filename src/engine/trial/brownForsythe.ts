@@ -7,34 +7,53 @@ import type { FTestRecord } from './types.js';
 import { num } from '../jsonSafe.js';
 
 export function brownForsythe(values: ArrayLike<number>, groups: readonly string[]): FTestRecord {
-  const byGroup = new Map<string, number[]>();
+  // Groups in order of first appearance, each group's values in plot order, laid end to end in
+  // one buffer: the sums below run in the same order as over per-group lists (same numbers).
+  const index = new Map<string, number>();
+  const groupOf = new Int32Array(groups.length);
+  const sizes: number[] = [];
   for (let i = 0; i < groups.length; i++) {
-    const g = byGroup.get(groups[i]) ?? [];
-    g.push(values[i]);
-    byGroup.set(groups[i], g);
+    let gi = index.get(groups[i]);
+    if (gi === undefined) {
+      gi = sizes.length;
+      index.set(groups[i], gi);
+      sizes.push(0);
+    }
+    groupOf[i] = gi;
+    sizes[gi]++;
   }
-  const g = byGroup.size;
+  const g = sizes.length;
   const n = groups.length;
   if (g < 2 || n - g < 1) return { available: false, reason: 'needs at least two treatments and more plots than treatments', df1: g - 1, df2: n - g, f: null, p: null };
-  const deviations = [...byGroup.values()].map((v) => {
-    const med = median(v);
-    return v.map((x) => Math.abs(x - med));
-  });
-  const all = deviations.flat();
-  const grand = all.reduce((s, v) => s + v, 0) / n;
+  const starts = new Int32Array(g + 1);
+  for (let k = 0; k < g; k++) starts[k + 1] = starts[k] + sizes[k];
+  const deviations = new Float64Array(n);
+  const fill = starts.slice(0, g);
+  for (let i = 0; i < n; i++) deviations[fill[groupOf[i]]++] = values[i];
+  for (let k = 0; k < g; k++) {
+    const group = deviations.subarray(starts[k], starts[k + 1]);
+    const med = median(group);
+    for (let j = 0; j < group.length; j++) group[j] = Math.abs(group[j] - med);
+  }
+  let total = 0;
+  for (let i = 0; i < n; i++) total += deviations[i];
+  const grand = total / n;
   let between = 0;
   let within = 0;
-  for (const d of deviations) {
-    const m = d.reduce((s, v) => s + v, 0) / d.length;
+  for (let k = 0; k < g; k++) {
+    const d = deviations.subarray(starts[k], starts[k + 1]);
+    let sum = 0;
+    for (let j = 0; j < d.length; j++) sum += d[j];
+    const m = sum / d.length;
     between += d.length * (m - grand) ** 2;
-    for (const v of d) within += (v - m) ** 2;
+    for (let j = 0; j < d.length; j++) within += (d[j] - m) ** 2;
   }
   const f = between / (g - 1) / (within / (n - g));
   return { available: true, df1: g - 1, df2: n - g, f: num(f), p: num(fUpper(f, g - 1, n - g)) };
 }
 
-function median(v: readonly number[]): number {
-  const s = [...v].sort((a, b) => a - b);
+function median(v: Float64Array): number {
+  const s = v.slice().sort();
   const m = s.length >> 1;
   return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }

@@ -44,9 +44,22 @@ export function normalScores(x: ArrayLike<number>): Float64Array {
   const idx: number[] = [];
   for (let i = 0; i < x.length; i++) if (!Number.isNaN(x[i])) idx.push(i);
   idx.sort((a, b) => x[a] - x[b] || a - b);
-  const m = idx.length;
-  const a = m <= 10 ? 3 / 8 : 0.5;
+  const scores = scoresFor(idx.length);
   const out = new Float64Array(x.length).fill(NaN);
-  idx.forEach((i, rank) => (out[i] = normalQuantile((rank + 1 - a) / (m + 1 - 2 * a))));
+  idx.forEach((i, rank) => (out[i] = scores[rank]));
   return out;
+}
+
+/** The m normal scores depend on m alone: thousands of trials of one size share one set. */
+const scoresBySize = new Map<number, Float64Array>();
+
+function scoresFor(m: number): Float64Array {
+  let scores = scoresBySize.get(m);
+  if (!scores) {
+    const a = m <= 10 ? 3 / 8 : 0.5;
+    scores = Float64Array.from({ length: m }, (_, rank) => normalQuantile((rank + 1 - a) / (m + 1 - 2 * a)));
+    if (scoresBySize.size >= 256) scoresBySize.clear();
+    scoresBySize.set(m, scores);
+  }
+  return scores;
 }
