@@ -34,17 +34,21 @@ export interface CrossedEvaluation {
   /** (X'H^-1 X)^-1, p x p: the fixed effects' covariance divided by sigma². */
   readonly xhxInverse: Float64Array;
   readonly factor: CrossedFactor;
+  /** The per-trial pieces the evaluation was assembled from (the derivatives reuse them). */
+  readonly pieces: readonly TrialPieces[];
 }
 
-/** Per-trial pieces: K'H0^-1 K (m x m), K'H0^-1 y, y'H0^-1 y and log|H0|. */
-interface TrialPieces {
+/** Per-trial pieces: K'H0^-1 K (m x m), K'H0^-1 y, y'H0^-1 y and log|H0|, and the trial's layout factor. */
+export interface TrialPieces {
   readonly a: Float64Array;
   readonly b: Float64Array;
   readonly c: number;
   readonly logDet: number;
+  readonly layout: LayoutFactor;
 }
 
-interface LayoutFactor {
+/** H0 = L L' of one layout of plots (n x n lower factor), L^-1 K (n x m), K'H0^-1 K, log|H0|. */
+export interface LayoutFactor {
   readonly l: Float64Array;
   readonly lk: Float64Array;
   readonly a: Float64Array;
@@ -108,13 +112,13 @@ export function trialPieces(d: CrossedData, L: CrossedLayout, theta: ArrayLike<n
       c += v * v;
       for (let r = 0; r < m; r++) b[r] += f.lk[i * m + r] * v;
     }
-    out.push({ a: f.a, b, c, logDet: f.logDet });
+    out.push({ a: f.a, b, c, logDet: f.logDet, layout: f });
   }
   return out;
 }
 
 /** Assemble and factor the arrowhead; null when a block is not positive definite (fixed effects not estimable). */
-export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: ArrayLike<number>, pieces?: TrialPieces[] | null): CrossedEvaluation | null {
+export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: ArrayLike<number>, pieces?: readonly TrialPieces[] | null): CrossedEvaluation | null {
   const theta = Float64Array.from(thetaIn, Math.abs);
   const tp = pieces ?? trialPieces(d, L, theta);
   if (!tp) return null;
@@ -211,7 +215,7 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   backSolveTranspose(border, B, B - 1, x);
   const beta = x.slice(L.q, L.q + L.p);
   const xhxInverse = betaBlockInverse(border, B, L.q, L.p);
-  return { theta, criterion, sigma2, logDetH, logDetXHX, rHr, beta, xhxInverse, factor: { siteFactor, siteW, borderFactor: border } };
+  return { theta, criterion, sigma2, logDetH, logDetXHX, rHr, beta, xhxInverse, factor: { siteFactor, siteW, borderFactor: border }, pieces: tp };
 }
 
 /** (X'H^-1X)^-1 = (R R')^-1 with R the fixed effects' diagonal block of the border factor. */
@@ -230,7 +234,7 @@ function betaBlockInverse(f: Float64Array, B: number, q: number, p: number): Flo
 }
 
 /** A trial's local columns as parallel typed arrays, for the assembly's inner loop. */
-interface PackedColumns {
+export interface PackedColumns {
   readonly n: number;
   readonly row: Int32Array;
   readonly value: Float64Array;
@@ -238,7 +242,7 @@ interface PackedColumns {
   readonly index: Int32Array;
 }
 
-function pack(cols: readonly LocalColumn[]): PackedColumns {
+export function pack(cols: readonly LocalColumn[]): PackedColumns {
   return {
     n: cols.length,
     row: Int32Array.from(cols, (c) => c.row),
