@@ -2,7 +2,8 @@
 // variance as a function of the variance parameters, its gradient g and the parameters'
 // asymptotic covariance A = 2 H^-1 (H the Hessian of -2 REML log-likelihood), df = 2 v² / g'Ag;
 // here on log variances (the df do not depend on the parameterisation at an interior optimum),
-// by central differences. Likelihood-ratio test of each term by a refit without it; profile
+// H by central differences of the analytic gradient, the contrast variances' gradient by central
+// differences. Likelihood-ratio test of each term by a refit without it; profile
 // intervals for a variance by a bracketed search of the profiled criterion.
 import { chisqQuantile, chisqUpper } from '../../stats/distributions.js';
 import { nelderMead } from '../../rate/mixed/nelderMead.js';
@@ -10,6 +11,7 @@ import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, unprofiledCriterion, type CrossedEvaluation } from './crossedLikelihood.js';
 import { optimiseCrossed, solveSymmetric, type OptimiseHooks } from './optimiseCrossed.js';
+import { crossedDerivatives } from './crossedDerivatives.js';
 
 /** Terms whose relative sd is this small count as at zero (left out of the df calculation). */
 export const AT_ZERO = 1e-5;
@@ -40,48 +42,56 @@ export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvalu
   const psi0 = new Float64Array(m);
   psi0[0] = Math.log(ev.sigma2);
   free.forEach((k, i) => (psi0[1 + i] = Math.log(ev.sigma2 * ev.theta[k] ** 2)));
-  const at = (psi: Float64Array): { F: number; v: number[] } | null => {
+  // the gradient of the unprofiled criterion F(log sigma², log sigma_k²) from the analytic
+  // derivatives (crossedDerivatives.ts); its central differences give the Hessian
+  const N = d.nObservations;
+  const at = (psi: Float64Array): { g: Float64Array; v: number[] } | null => {
     const s2 = Math.exp(psi[0]);
     const th = new Float64Array(L.terms.length);
     free.forEach((k, i) => (th[k] = Math.sqrt(Math.exp(psi[1 + i]) / s2)));
     const e = evaluateCrossed(d, L, th);
     if (!e) return null;
-    return { F: unprofiledCriterion(e, s2, d.nObservations, L.p), v: contrastVariances(e, s2, L.p, ls) };
+    const der = crossedDerivatives(d, L, e, false);
+    const g = new Float64Array(m);
+    // dF/dlog sigma_k² = gamma_k dF/dgamma_k; dF/dlog sigma² = (N - p) - r'H^-1r / sigma² - sum_k gamma_k dF/dgamma_k
+    g[0] = N - L.p - e.rHr / s2;
+    free.forEach((k, i) => {
+      const v = th[k] ** 2 * (der.trace[k] - der.quadratic[k] / s2);
+      g[1 + i] = v;
+      g[0] -= v;
+    });
+    return { g, v: contrastVariances(e, s2, L.p, ls) };
   };
-  const h = 1e-3;
-  const shifted = (i: number, si: number, j = -1, sj = 0) => {
+  const h = 1e-4;
+  const shifted = (i: number, si: number) => {
     const x = Float64Array.from(psi0);
     x[i] += si * h;
-    if (j >= 0) x[j] += sj * h;
     return at(x);
   };
-  const centre = at(psi0);
+  const centre = evaluateCrossed(d, L, Float64Array.from(L.terms, (_, k) => (free.includes(k) ? ev.theta[k] : 0)));
   if (!centre) return none;
+  const centreV = contrastVariances(centre, ev.sigma2, L.p, ls);
   const H = new Float64Array(m * m);
   const grads = ls.map(() => new Float64Array(m));
   for (let i = 0; i < m; i++) {
     const fp = shifted(i, 1);
     const fm = shifted(i, -1);
     if (!fp || !fm) return none;
-    H[i * m + i] = (fp.F - 2 * centre.F + fm.F) / (h * h);
+    for (let j = 0; j < m; j++) H[i * m + j] = (fp.g[j] - fm.g[j]) / (2 * h);
     grads.forEach((g, c) => (g[i] = (fp.v[c] - fm.v[c]) / (2 * h)));
+  }
+  for (let i = 0; i < m; i++)
     for (let j = 0; j < i; j++) {
-      const pp = shifted(i, 1, j, 1);
-      const pm = shifted(i, 1, j, -1);
-      const mp = shifted(i, -1, j, 1);
-      const mm = shifted(i, -1, j, -1);
-      if (!pp || !pm || !mp || !mm) return none;
-      const v = (pp.F - pm.F - mp.F + mm.F) / (4 * h * h);
+      const v = (H[i * m + j] + H[j * m + i]) / 2;
       H[i * m + j] = v;
       H[j * m + i] = v;
     }
-  }
   const df = grads.map((g, c) => {
     const hg = solveSymmetric(H, g, m);
     if (!hg) return null;
     let gAg = 0;
     for (let i = 0; i < m; i++) gAg += 2 * g[i] * hg[i];
-    const v = centre.v[c];
+    const v = centreV[c];
     return gAg > 0 ? (2 * v * v) / gAg : null;
   });
   // var(log v_i) = A_ii = 2 (H^-1)_ii, so se(v_i) = v_i sqrt(A_ii)
