@@ -48,8 +48,9 @@ export function runCrossedBench(s: CrossedBenchSettings): void {
     return;
   }
   const inner = JSON.parse(line.slice(6)).totalMs as number;
-  const report = JSON.parse(r.stdout) as { oneStage: { logLik: number; iterations: number } };
-  console.log(`  manyfield analyze --data F --spec S --json: ${fmt(inner)} in the command, ${fmt(wall)} process wall; REML logLik ${report.oneStage.logLik.toFixed(6)} (${report.oneStage.iterations} criterion evaluations)`);
+  const report = JSON.parse(r.stdout) as { oneStage: { logLik: number; iterations: number; run?: { method?: string } } };
+  const evaluations = /(\d+) criterion evaluations/.exec(report.oneStage.run?.method ?? '')?.[0];
+  console.log(`  manyfield analyze --data F --spec S --json: ${fmt(inner)} in the command, ${fmt(wall)} process wall; REML logLik ${report.oneStage.logLik.toFixed(6)} (${report.oneStage.iterations} AI-REML iterations${evaluations ? `, ${evaluations}` : ''})`);
   if (s.skipR) return;
   const script = `
 suppressMessages(library(lme4))

@@ -24,7 +24,7 @@ export interface AiSearchResult {
 
 export interface AiSearchOptions {
   readonly maxIterations?: number;
-  /** Stop when the Newton decrement g'AI^-1 g falls below this. */
+  /** Stop when the Newton decrement g'AI^-1 g falls below this (default 1e-11, or 1e-14 of the criterion when larger). */
   readonly tolerance?: number;
   readonly signal?: AbortSignal;
   readonly onIteration?: (iteration: number, criterion: number) => void;
@@ -33,7 +33,7 @@ export interface AiSearchOptions {
 export function averageInformationSearch(d: CrossedData, L: CrossedLayout, startTheta: ArrayLike<number>, fixedZero: readonly number[], o: AiSearchOptions = {}): AiSearchResult | null {
   const nT = L.terms.length;
   const maxIterations = o.maxIterations ?? 60;
-  const tolerance = o.tolerance ?? 1e-11;
+  let tolerance = o.tolerance ?? 1e-11;
   let gamma = Float64Array.from({ length: nT }, (_, k) => (fixedZero.includes(k) ? 0 : startTheta[k] ** 2));
   let evaluations = 0;
   const evaluate = (g: Float64Array): CrossedEvaluation | null => {
@@ -43,6 +43,8 @@ export function averageInformationSearch(d: CrossedData, L: CrossedLayout, start
   };
   let ev = evaluate(gamma);
   if (!ev) return null;
+  // below about 1e-14 of the criterion a decrease is rounding: ask no more than that
+  if (o.tolerance === undefined) tolerance = Math.max(tolerance, 1e-14 * Math.abs(ev.criterion));
   const path = [ev.criterion];
   let halvings = 0;
   let decrement = Infinity;
@@ -61,7 +63,10 @@ export function averageInformationSearch(d: CrossedData, L: CrossedLayout, start
     let t = 1;
     let accepted: CrossedEvaluation | null = null;
     let next = gamma;
-    while (t > 1e-10) {
+    // near the optimum (decrement below 1e-6) a step that does not lower the criterion after a
+    // few halvings is at rounding level: stop there rather than halve on
+    const minT = decrement < 1e-6 ? 1 / 16 : 1e-10;
+    while (t >= minT) {
       next = Float64Array.from(gamma);
       free.forEach((k, i) => (next[k] = Math.max(0, gamma[k] + t * step[i])));
       const trial = evaluate(next);
