@@ -2,8 +2,9 @@
 // average-information matrix in place of the Hessian (Gilmour, Thompson & Cullis 1995), the
 // residual variance profiled out. Bounds: a ratio at zero whose gradient points below zero is
 // held there (a projected Newton step, Bertsekas 1982), the others are moved and projected
-// back onto gamma >= 0; each step is halved until the criterion falls. Returns null when it
-// cannot make progress (the caller then falls back to the derivative-free search).
+// back onto gamma >= 0 (ratios well away from zero move on the log scale); each step is halved
+// until the criterion falls. Returns null when it cannot make progress (the caller then falls
+// back to the derivative-free search).
 import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, type CrossedEvaluation } from './crossedLikelihood.js';
@@ -68,7 +69,7 @@ export function averageInformationSearch(d: CrossedData, L: CrossedLayout, start
     const minT = decrement < 1e-6 ? 1 / 16 : 1e-10;
     while (t >= minT) {
       next = Float64Array.from(gamma);
-      free.forEach((k, i) => (next[k] = Math.max(0, gamma[k] + t * step[i])));
+      free.forEach((k, i) => (next[k] = moved(gamma[k], t * step[i])));
       const trial = evaluate(next);
       if (trial && trial.criterion < ev.criterion) {
         accepted = trial;
@@ -114,4 +115,14 @@ function newtonStep(ai: Float64Array, g: Float64Array, free: readonly number[], 
     if (s) return s;
   }
   return null;
+}
+
+/**
+ * A ratio moved by the Newton step s: multiplicatively, gamma exp(s / gamma), for a ratio well
+ * away from zero (the same first-order step, taken on the log scale, which suits variance ratios
+ * far from their optimum better); additively and projected onto zero for a ratio near zero.
+ */
+function moved(gamma: number, s: number): number {
+  if (gamma < 1e-3) return Math.max(0, gamma + s);
+  return gamma * Math.exp(Math.max(-3, Math.min(3, s / gamma)));
 }
