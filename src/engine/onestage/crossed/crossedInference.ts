@@ -2,8 +2,8 @@
 // variance as a function of the variance parameters, its gradient g and the parameters'
 // asymptotic covariance A = 2 H^-1 (H the Hessian of -2 REML log-likelihood), df = 2 v² / g'Ag;
 // here on log variances (the df do not depend on the parameterisation at an interior optimum),
-// H by central differences of the analytic gradient, the contrast variances' gradient by central
-// differences. Likelihood-ratio test of each term by a refit without it; profile
+// H by forward differences of the analytic gradient, the contrast variances' gradient by forward
+// differences at the same points. Likelihood-ratio test of each term by a refit without it; profile
 // intervals for a variance by a bracketed search of the profiled criterion.
 import { chisqQuantile, chisqUpper } from '../../stats/distributions.js';
 import { nelderMead } from '../../rate/mixed/nelderMead.js';
@@ -62,23 +62,20 @@ export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvalu
     });
     return { g, v: contrastVariances(e, s2, L.p, ls) };
   };
-  const h = 1e-4;
-  const shifted = (i: number, si: number) => {
-    const x = Float64Array.from(psi0);
-    x[i] += si * h;
-    return at(x);
-  };
-  const centre = evaluateCrossed(d, L, Float64Array.from(L.terms, (_, k) => (free.includes(k) ? ev.theta[k] : 0)));
+  // forward differences from the optimum (step 1e-5 on the log scale: truncation near 1e-5
+  // relative, rounding of the analytic gradient far below), one derivative pass per parameter
+  const h = 1e-5;
+  const centre = at(psi0);
   if (!centre) return none;
-  const centreV = contrastVariances(centre, ev.sigma2, L.p, ls);
   const H = new Float64Array(m * m);
   const grads = ls.map(() => new Float64Array(m));
   for (let i = 0; i < m; i++) {
-    const fp = shifted(i, 1);
-    const fm = shifted(i, -1);
-    if (!fp || !fm) return none;
-    for (let j = 0; j < m; j++) H[i * m + j] = (fp.g[j] - fm.g[j]) / (2 * h);
-    grads.forEach((g, c) => (g[i] = (fp.v[c] - fm.v[c]) / (2 * h)));
+    const x = Float64Array.from(psi0);
+    x[i] += h;
+    const fp = at(x);
+    if (!fp) return none;
+    for (let j = 0; j < m; j++) H[i * m + j] = (fp.g[j] - centre.g[j]) / h;
+    grads.forEach((g, c) => (g[i] = (fp.v[c] - centre.v[c]) / h));
   }
   for (let i = 0; i < m; i++)
     for (let j = 0; j < i; j++) {
@@ -91,7 +88,7 @@ export function satterthwaite(d: CrossedData, L: CrossedLayout, ev: CrossedEvalu
     if (!hg) return null;
     let gAg = 0;
     for (let i = 0; i < m; i++) gAg += 2 * g[i] * hg[i];
-    const v = centreV[c];
+    const v = centre.v[c];
     return gAg > 0 ? (2 * v * v) / gAg : null;
   });
   // var(log v_i) = A_ii = 2 (H^-1)_ii, so se(v_i) = v_i sqrt(A_ii)
