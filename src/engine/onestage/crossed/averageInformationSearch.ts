@@ -8,7 +8,7 @@
 import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, type CrossedEvaluation } from './crossedLikelihood.js';
-import { crossedDerivatives } from './crossedDerivatives.js';
+import { crossedDerivatives, type CrossedDerivatives } from './crossedDerivatives.js';
 import { solveSymmetric } from './denseSmall.js';
 
 export interface AiSearchResult {
@@ -21,6 +21,8 @@ export interface AiSearchResult {
   /** g'AI^-1 g over the free ratios at the end: twice the predicted remaining decrease. */
   readonly finalDecrement: number;
   readonly criterionPath: number[];
+  /** The derivatives at the returned evaluation, when the last pass was there (Satterthwaite reuses them). */
+  readonly derivatives: CrossedDerivatives | null;
 }
 
 export interface AiSearchOptions {
@@ -49,8 +51,10 @@ export function averageInformationSearch(d: CrossedData, L: CrossedLayout, start
   const path = [ev.criterion];
   let halvings = 0;
   let decrement = Infinity;
+  let last: { der: CrossedDerivatives; at: CrossedEvaluation } | null = null;
   for (let iter = 1; iter <= maxIterations; iter++) {
     const der = crossedDerivatives(d, L, ev);
+    last = { der, at: ev };
     const g = der.gradient;
     const free: number[] = [];
     for (let k = 0; k < nT; k++) if (!fixedZero.includes(k) && (gamma[k] > 0 || g[k] < 0)) free.push(k);
@@ -92,7 +96,7 @@ export function averageInformationSearch(d: CrossedData, L: CrossedLayout, start
   return null;
 
   function done(iterations: number, finalDecrement: number): AiSearchResult {
-    return { evaluation: ev!, iterations, evaluations, stepHalvings: halvings, finalDecrement, criterionPath: path };
+    return { evaluation: ev!, iterations, evaluations, stepHalvings: halvings, finalDecrement, criterionPath: path, derivatives: last && last.at === ev ? last.der : null };
   }
 }
 

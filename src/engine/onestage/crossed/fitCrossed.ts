@@ -67,7 +67,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const unit = d.treatments.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
   const estimable = [...ls, ...unit].filter((l): l is Float64Array => l !== null);
   // the Hessian behind the df also gives the variances' SEs: computed whatever the df method
-  const sat = satterthwaite(d, L, ev, estimable);
+  const sat = satterthwaite(d, L, ev, estimable, fit.derivatives);
   const sdf = df === 'satterthwaite' ? sat.df : null;
   const dfOf = (l: Float64Array): number => {
     if (df === 'residual') return d.nObservations - L.p;

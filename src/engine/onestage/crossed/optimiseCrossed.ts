@@ -10,6 +10,7 @@ import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, type CrossedEvaluation } from './crossedLikelihood.js';
 import { averageInformationSearch } from './averageInformationSearch.js';
 import { solveSymmetric } from './denseSmall.js';
+import type { CrossedDerivatives } from './crossedDerivatives.js';
 
 export { solveSymmetric };
 
@@ -25,6 +26,8 @@ export interface CrossedOptimum {
   readonly finalDecrement: number;
   readonly converged: boolean;
   readonly criterionPath: number[];
+  /** Derivatives at the optimum when the AI-REML search left them there. */
+  readonly derivatives: CrossedDerivatives | null;
 }
 
 export interface OptimiseHooks {
@@ -35,7 +38,7 @@ export interface OptimiseHooks {
 /** Minimise the profiled criterion over theta, the terms in `fixedZero` held at zero. */
 export function optimiseCrossed(d: CrossedData, L: CrossedLayout, start: ArrayLike<number>, fixedZero: readonly number[] = [], hooks: OptimiseHooks = {}): CrossedOptimum {
   const ai = averageInformationSearch(d, L, start, fixedZero, { signal: hooks.signal, onIteration: hooks.onEvaluation });
-  if (ai) return { evaluation: ai.evaluation, search: 'average-information', iterations: ai.iterations, evaluations: ai.evaluations, stepHalvings: ai.stepHalvings, finalDecrement: ai.finalDecrement, converged: true, criterionPath: ai.criterionPath };
+  if (ai) return { evaluation: ai.evaluation, search: 'average-information', iterations: ai.iterations, evaluations: ai.evaluations, stepHalvings: ai.stepHalvings, finalDecrement: ai.finalDecrement, converged: true, criterionPath: ai.criterionPath, derivatives: ai.derivatives };
   return simplexSearch(d, L, start, fixedZero, hooks);
 }
 
@@ -64,7 +67,7 @@ export function simplexSearch(d: CrossedData, L: CrossedLayout, start: ArrayLike
   if (free.length === 0) {
     const ev = evaluateCrossed(d, L, full([]));
     if (!ev) throw new Error('the fixed effects are not estimable from these trials');
-    return { evaluation: ev, search: 'simplex', iterations: 0, evaluations: 1, stepHalvings: 0, finalDecrement: 0, converged: true, criterionPath: [ev.criterion] };
+    return { evaluation: ev, search: 'simplex', iterations: 0, evaluations: 1, stepHalvings: 0, finalDecrement: 0, converged: true, criterionPath: [ev.criterion], derivatives: null };
   }
   const x0 = free.map((k) => start[k]);
   // the simplex brings theta near the optimum; Newton steps finish it (quadratic convergence),
@@ -79,7 +82,7 @@ export function simplexSearch(d: CrossedData, L: CrossedLayout, start: ArrayLike
   }
   const ev = evaluateCrossed(d, L, full(polished));
   if (!ev) throw new Error('the fixed effects are not estimable from these trials');
-  return { evaluation: ev, search: 'simplex', iterations: 0, evaluations: count, stepHalvings: 0, finalDecrement: 0, converged: settled, criterionPath: path };
+  return { evaluation: ev, search: 'simplex', iterations: 0, evaluations: count, stepHalvings: 0, finalDecrement: 0, converged: settled, criterionPath: path, derivatives: null };
 }
 
 /**
