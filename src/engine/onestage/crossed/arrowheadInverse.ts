@@ -13,7 +13,7 @@ export interface SelectedInverse {
   readonly border: Float64Array;
   /** Per site bs x bs. */
   readonly site: readonly Float64Array[];
-  /** Per site bs x nb. */
+  /** Per site bs x nb, filled on the border columns the site's trials touch. */
   readonly coupling: readonly Float64Array[];
 }
 
@@ -68,9 +68,10 @@ export function selectedInverse(L: CrossedLayout, f: CrossedFactor): SelectedInv
         z[r * bs + c] = v;
         z[c * bs + r] = v;
       }
-    // coupling = -L_s^-T Y, column by column
+    // coupling = -L_s^-T Y, column by column (zero off J, where nothing reads it)
     const cp = new Float64Array(bs * nb);
-    for (let j = 0; j < nb; j++) {
+    for (let a = 0; a < nJ; a++) {
+      const j = touched[a];
       for (let r = 0; r < bs; r++) col[r] = -y[r * nb + j];
       backSolveTranspose(ls, bs, bs, col);
       for (let r = 0; r < bs; r++) cp[r * nb + j] = col[r];

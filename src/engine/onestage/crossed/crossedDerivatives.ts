@@ -68,7 +68,7 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
     const mu = new Float64Array(m);
     for (let c = 0; c < cols.n; c++) mu[cols.row[c]] += cols.value[c] * (cols.inSite[c] ? sol.site[tr.site][cols.index[c]] : sol.border[cols.index[c]]);
     // L^-1 (y - K mu): its products with L^-1 K and L^-1 B are K'Py and B'Py for this trial
-    const e = Float64Array.from(tr.y);
+    const e = tr.y.slice();
     forwardSolve(lf.l, n, n, e);
     for (let p = 0; p < n; p++) {
       let s = 0;
@@ -92,16 +92,19 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
     R.fill(0);
     const cs = inv.site[tr.site];
     const cc = inv.coupling[tr.site];
-    for (let a = 0; a < cols.n; a++) {
+    // the first bs local columns are the site's own effects (localColumns puts them first)
+    const nc = cols.n;
+    for (let a = 0; a < nc; a++) {
       const ia = cols.index[a];
       const va = cols.value[a];
       const ra = cols.row[a] * m;
-      for (let b = 0; b < cols.n; b++) {
-        const ib = cols.index[b];
-        let cv: number;
-        if (cols.inSite[a]) cv = cols.inSite[b] ? cs[ia * bs + ib] : cc[ia * nb + ib];
-        else cv = cols.inSite[b] ? cc[ib * nb + ia] : inv.border[ia * nb + ib];
-        R[ra + cols.row[b]] += va * cols.value[b] * cv;
+      if (a < bs) {
+        for (let b = 0; b < bs; b++) R[ra + cols.row[b]] += va * cols.value[b] * cs[ia * bs + cols.index[b]];
+        for (let b = bs; b < nc; b++) R[ra + cols.row[b]] += va * cols.value[b] * cc[ia * nb + cols.index[b]];
+      } else {
+        for (let b = 0; b < bs; b++) R[ra + cols.row[b]] += va * cols.value[b] * cc[cols.index[b] * nb + ia];
+        const rowA = ia * nb;
+        for (let b = bs; b < nc; b++) R[ra + cols.row[b]] += va * cols.value[b] * inv.border[rowA + cols.index[b]];
       }
     }
     const trRS = (s: Float64Array) => {

@@ -103,7 +103,8 @@ export function trialPieces(d: CrossedData, L: CrossedLayout, theta: ArrayLike<n
       cache.set(tr.layoutKey, f);
     }
     const n = tr.y.length;
-    const ly = Float64Array.from(tr.y);
+    // a copy by slice: Float64Array.from goes through the iterator, slow in this inner loop
+    const ly = tr.y.slice();
     forwardSolve(f.l, n, n, ly);
     const b = new Float64Array(m);
     let c = 0;
@@ -165,6 +166,7 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   let logDetM = 0;
   const siteFactor: Float64Array[] = [];
   const touched = new Int32Array(B);
+  let wt = new Float64Array(B * bs);
   const siteW: Float64Array[] = [];
   for (let s = 0; s < L.nSites; s++) {
     const sm = siteM[s];
@@ -185,14 +187,17 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
       for (let r = 0; r < bs; r++) if (w[r * B + i] !== 0) any = true;
       if (any) touched[nz++] = i;
     }
+    // W's touched columns gathered contiguously (column a at wt[a * bs]) for the inner sum
+    if (wt.length < nz * bs) wt = new Float64Array(B * bs);
+    for (let a = 0; a < nz; a++) for (let r = 0; r < bs; r++) wt[a * bs + r] = w[r * B + touched[a]];
     for (let a = 0; a < nz; a++) {
-      const i = touched[a];
-      const rowI = i * B;
+      const rowI = touched[a] * B;
+      const ca = a * bs;
       for (let b = 0; b <= a; b++) {
-        const j = touched[b];
+        const cb = b * bs;
         let sum = 0;
-        for (let r = 0; r < bs; r++) sum += w[r * B + i] * w[r * B + j];
-        border[rowI + j] -= sum;
+        for (let r = 0; r < bs; r++) sum += wt[ca + r] * wt[cb + r];
+        border[rowI + touched[b]] -= sum;
       }
     }
     siteFactor.push(sm);
