@@ -11,7 +11,6 @@ import { crossedData } from './crossedData.js';
 import { crossedLayout, type CrossedLayout } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
-import { SUBSAMPLE_SITES, subsampleStart } from './subsampleStart.js';
 import { AT_ZERO, likelihoodRatio, profileVariance, satterthwaite, type TermTest } from './crossedInference.js';
 import { contrastAtSite, contrastAtSiteErrorVariance, solveShared, trialBlups } from './crossedPredictions.js';
 import { KNOWN_SITE_CAUTION, tCritical, type SiteYearContrast, type SiteYearSplit, type SiteYearView } from './siteYearView.js';
@@ -50,10 +49,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     df = 'satterthwaite';
   }
   const onEvaluation = (count: number, criterion: number) => hooks.onProgress?.({ stage: 'one-stage (sites and years)', iteration: count, criterion });
-  // large networks start from a fit to a subsample of sites (subsampleStart.ts), others from 1
-  const subStart = subsampleStart(d, L, [], hooks.signal);
-  const start = subStart ?? Float64Array.from(L.terms, () => 1);
-  const fit = optimiseCrossed(d, L, start, [], { signal: hooks.signal, onEvaluation });
+  const fit = optimiseCrossed(d, L, L.terms.map(() => 1), [], { signal: hooks.signal, onEvaluation });
   const ev = fit.evaluation;
   if (!fit.converged) warnings.push('one-stage REML (sites and years) did not meet its convergence criterion within its evaluation budget');
 
@@ -145,9 +141,9 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     run: {
       method:
         fit.search === 'average-information'
-          ? `REML, residual variance profiled; AI-REML (Newton steps on the variance ratios with the average-information matrix, analytic gradient, ratios at zero held by projection)${subStart ? `, started from the same model fitted to every ${Math.floor(L.nSites / SUBSAMPLE_SITES)}th site` : ''}: ${fit.iterations} iterations, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`
+          ? `REML, residual variance profiled; AI-REML (Newton steps on the variance ratios with the average-information matrix, analytic gradient, ratios at zero held by projection): ${fit.iterations} iterations, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`
           : `REML, residual variance profiled; restarted Nelder–Mead simplex on the relative standard deviations, Newton polish on central differences (the AI-REML search made no progress): ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`,
-      start: Object.fromEntries(L.terms.map((t, k) => [t, start[k]])),
+      start: Object.fromEntries(L.terms.map((t) => [t, 1])),
       iterations: fit.iterations,
       emIterations: 0,
       criterionPath: fit.criterionPath,
