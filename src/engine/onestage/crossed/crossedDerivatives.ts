@@ -53,7 +53,14 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
   const R = new Float64Array(m * m);
   const trialsOfSite: number[][] = Array.from({ length: L.nSites }, () => []);
 
-  d.trials.forEach((tr, i) => {
+  // scratch for one trial (sized for the largest)
+  let maxN = 0;
+  for (const tr of d.trials) maxN = Math.max(maxN, tr.y.length);
+  const mu = new Float64Array(m);
+  const e = new Float64Array(maxN);
+  const border = inv.border;
+  for (let i = 0; i < d.trials.length; i++) {
+    const tr = d.trials[i];
     trialsOfSite[tr.site].push(i);
     const piece = ev.pieces[i];
     const lf = piece.layout;
@@ -64,23 +71,29 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
     }
     const n = tr.y.length;
     const cols = columns[tr.year];
-    // mu = M_i x-hat, the fitted shared and fixed effects in the trial's basis K
-    const mu = new Float64Array(m);
-    for (let c = 0; c < cols.n; c++) mu[cols.row[c]] += cols.value[c] * (cols.inSite[c] ? sol.site[tr.site][cols.index[c]] : sol.border[cols.index[c]]);
+    const { row, value, index } = cols;
+    const nc = cols.n;
+    const lk = lf.lk;
+    // mu = M_i x-hat, the fitted shared and fixed effects in the trial's basis K (site columns first)
+    mu.fill(0);
+    const us = sol.site[tr.site];
+    for (let c = 0; c < nc; c++) mu[row[c]] += value[c] * (c < bs ? us[index[c]] : sol.border[index[c]]);
     // L^-1 (y - K mu): its products with L^-1 K and L^-1 B are K'Py and B'Py for this trial
-    const e = tr.y.slice();
+    e.set(tr.y);
     forwardSolve(lf.l, n, n, e);
     for (let p = 0; p < n; p++) {
       let s = 0;
-      for (let r = 0; r < m; r++) s += lf.lk[p * m + r] * mu[r];
+      for (let r = 0; r < m; r++) s += lk[p * m + r] * mu[r];
       e[p] -= s;
     }
     const k = new Float64Array(m);
-    const z = new Float64Array(mo.nBlocks);
+    const nB = mo.nBlocks;
+    const z = new Float64Array(nB);
+    const lb = mo.lb;
     for (let p = 0; p < n; p++) {
       const v = e[p];
-      for (let r = 0; r < m; r++) k[r] += lf.lk[p * m + r] * v;
-      for (let b = 0; b < mo.nBlocks; b++) z[b] += mo.lb[p * mo.nBlocks + b] * v;
+      for (let r = 0; r < m; r++) k[r] += lk[p * m + r] * v;
+      for (let b = 0; b < nB; b++) z[b] += lb[p * nB + b] * v;
     }
     kappa.push(k);
     zeta.push(z);
@@ -93,18 +106,19 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
     const cs = inv.site[tr.site];
     const cc = inv.coupling[tr.site];
     // the first bs local columns are the site's own effects (localColumns puts them first)
-    const nc = cols.n;
     for (let a = 0; a < nc; a++) {
-      const ia = cols.index[a];
-      const va = cols.value[a];
-      const ra = cols.row[a] * m;
+      const ia = index[a];
+      const va = value[a];
+      const ra = row[a] * m;
       if (a < bs) {
-        for (let b = 0; b < bs; b++) R[ra + cols.row[b]] += va * cols.value[b] * cs[ia * bs + cols.index[b]];
-        for (let b = bs; b < nc; b++) R[ra + cols.row[b]] += va * cols.value[b] * cc[ia * nb + cols.index[b]];
+        const rs = ia * bs;
+        const rc = ia * nb;
+        for (let b = 0; b < bs; b++) R[ra + row[b]] += va * value[b] * cs[rs + index[b]];
+        for (let b = bs; b < nc; b++) R[ra + row[b]] += va * value[b] * cc[rc + index[b]];
       } else {
-        for (let b = 0; b < bs; b++) R[ra + cols.row[b]] += va * cols.value[b] * cc[cols.index[b] * nb + ia];
+        for (let b = 0; b < bs; b++) R[ra + row[b]] += va * value[b] * cc[index[b] * nb + ia];
         const rowA = ia * nb;
-        for (let b = bs; b < nc; b++) R[ra + cols.row[b]] += va * cols.value[b] * inv.border[rowA + cols.index[b]];
+        for (let b = bs; b < nc; b++) R[ra + row[b]] += va * value[b] * border[rowA + index[b]];
       }
     }
     const trRS = (s: Float64Array) => {
@@ -122,9 +136,9 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
     }
     if (at.block >= 0) {
       trace[at.block] += mo.trace.block - trRS(mo.s.block);
-      for (let b = 0; b < mo.nBlocks; b++) quadratic[at.block] += z[b] * z[b];
+      for (let b = 0; b < nB; b++) quadratic[at.block] += z[b] * z[b];
     }
-  });
+  }
 
   // rows of K that a shared term's levels stand on: the intercept (site, year) or each treatment
   const rowsOf = (term: 'site' | 'treatment-by-site' | 'year' | 'treatment-by-year'): number[] =>
