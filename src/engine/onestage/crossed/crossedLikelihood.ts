@@ -94,6 +94,9 @@ export function trialPieces(d: CrossedData, L: CrossedLayout, theta: ArrayLike<n
   const m = 1 + L.t;
   const cache = new Map<string, LayoutFactor>();
   const out: TrialPieces[] = [];
+  let maxN = 0;
+  for (const tr of d.trials) maxN = Math.max(maxN, tr.y.length);
+  const ly = new Float64Array(maxN);
   for (const tr of d.trials) {
     let f = cache.get(tr.layoutKey);
     if (!f) {
@@ -103,15 +106,15 @@ export function trialPieces(d: CrossedData, L: CrossedLayout, theta: ArrayLike<n
       cache.set(tr.layoutKey, f);
     }
     const n = tr.y.length;
-    // a copy by slice: Float64Array.from goes through the iterator, slow in this inner loop
-    const ly = tr.y.slice();
+    ly.set(tr.y);
     forwardSolve(f.l, n, n, ly);
     const b = new Float64Array(m);
+    const lk = f.lk;
     let c = 0;
     for (let i = 0; i < n; i++) {
       const v = ly[i];
       c += v * v;
-      for (let r = 0; r < m; r++) b[r] += f.lk[i * m + r] * v;
+      for (let r = 0; r < m; r++) b[r] += lk[i * m + r] * v;
     }
     out.push({ a: f.a, b, c, logDet: f.logDet, layout: f });
   }
@@ -135,33 +138,35 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   const columnsByYear: (PackedColumns | undefined)[] = new Array(L.nYears);
   let logDetH0 = 0;
   const y = B - 1;
-  d.trials.forEach((tr, i) => {
+  for (let i = 0; i < d.trials.length; i++) {
+    const tr = d.trials[i];
     const { a, b, c, logDet } = tp[i];
     logDetH0 += logDet;
     const cols = (columnsByYear[tr.year] ??= pack(localColumns(L, tr.year, theta)));
-    const { row, value, inSite, index, n } = cols;
+    const { row, value, index, n } = cols;
     const sm = siteM[tr.site];
     const sc = siteC[tr.site];
+    // the first bs local columns are the site's own effects (localColumns puts them first)
     for (let ui = 0; ui < n; ui++) {
       const ur = row[ui] * m;
       const uv = value[ui];
       const ux = index[ui];
       const gu = uv * b[row[ui]];
-      if (inSite[ui]) {
-        sc[ux * B + y] += gu;
-        for (let vi = 0; vi < n; vi++) {
-          const val = uv * value[vi] * a[ur + row[vi]];
-          if (inSite[vi]) sm[ux * bs + index[vi]] += val;
-          else sc[ux * B + index[vi]] += val;
-        }
+      if (ui < bs) {
+        const rowC = ux * B;
+        const rowM = ux * bs;
+        sc[rowC + y] += gu;
+        for (let vi = 0; vi < bs; vi++) sm[rowM + index[vi]] += uv * value[vi] * a[ur + row[vi]];
+        for (let vi = bs; vi < n; vi++) sc[rowC + index[vi]] += uv * value[vi] * a[ur + row[vi]];
       } else {
-        border[ux * B + y] += gu;
+        const rowB = ux * B;
+        border[rowB + y] += gu;
         border[y * B + ux] += gu;
-        for (let vi = 0; vi < n; vi++) if (!inSite[vi]) border[ux * B + index[vi]] += uv * value[vi] * a[ur + row[vi]];
+        for (let vi = bs; vi < n; vi++) border[rowB + index[vi]] += uv * value[vi] * a[ur + row[vi]];
       }
     }
     border[y * B + y] += c;
-  });
+  }
   for (let k = 0; k < L.q; k++) border[k * B + k] += 1;
   let logDetM = 0;
   const siteFactor: Float64Array[] = [];
