@@ -9,15 +9,19 @@
 // C the coefficient matrix the arrowhead factors. Everything is gathered trial by trial:
 // - within-trial terms: tr(P_ii Z Z') = tr(H0^-1 Z Z') - tr(R_i S), R_i the trial's block of
 //   M_i C^-1 M_i' (its site's block and the border of the selected inverse);
-// - site and year terms: z'Pz per level = z'H0^-1 z - |L^-1 A'H0^-1 z|² by a forward solve
-//   through the arrowhead (a year's level runs through every site of that year);
-// - AI: the working variates Z_k Z_k' P y are, within a trial, J c for J = [K | B], so their
-//   products through P need J'H0^-1 J per layout and one forward solve per term.
+// - site and year terms: (q_k - tr C^kk) / gamma_k from the diagonal of the selected inverse, or,
+//   for a ratio near zero, level by level (directTraces.ts);
+// - AI (averageInformation.ts): the working variates Z_k Z_k' P y are, within a trial, J c for
+//   J = [K | B], so their products through P need J'H0^-1 J per layout and one forward solve per term.
 import type { CrossedData } from './crossedData.js';
 import { localColumns, type CrossedLayout } from './crossedLayout.js';
 import { pack, type CrossedEvaluation, type LayoutFactor, type PackedColumns } from './crossedLikelihood.js';
 import { layoutMoments, type LayoutMoments } from './layoutMoments.js';
-import { selectedInverse, siteForward } from './arrowheadInverse.js';
+import { selectedInverse } from './arrowheadInverse.js';
+import { DIRECT_BELOW, directTraces } from './directTraces.js';
+import { averageInformation } from './averageInformation.js';
+
+export { DIRECT_BELOW };
 import { solveShared } from './crossedPredictions.js';
 import { forwardSolve } from './denseSmall.js';
 
@@ -177,173 +181,4 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
   for (let k = 0; k < nT; k++) gradient[k] = trace[k] - quadratic[k] / ev.sigma2;
   const information = withInformation ? averageInformation(d, L, ev, columns, moments, kappa, zeta, siteScore, yearScore, quadratic) : new Float64Array(nT * nT);
   return { gradient, information, trace, quadratic };
-}
-
-/** Variance ratios below this take the direct route to their trace (no cancellation). */
-export const DIRECT_BELOW = 1e-2;
-
-/**
- * Traces of shared terms level by level: z'H0^-1 z - |L^-1 g|², g = A'H0^-1 z = the sum over the
- * level's trials of M_i' a_i[:, r] (a year's level runs through every site of that year).
- */
-function directTraces(
-  d: CrossedData,
-  L: CrossedLayout,
-  ev: CrossedEvaluation,
-  columns: readonly PackedColumns[],
-  trialsOfSite: readonly number[][],
-  siteLevels: readonly number[][],
-  yearLevels: readonly number[][],
-  trace: Float64Array,
-): void {
-  if (siteLevels.length === 0 && yearLevels.length === 0) return;
-  const m = 1 + L.t;
-  const B = L.border;
-  const nb = B - 1;
-  const bs = L.bs;
-  const f = ev.factor;
-  const nY = yearLevels.length;
-  const yearBorder = Array.from({ length: L.nYears * nY }, () => new Float64Array(nb));
-  const yearSq = new Float64Array(L.nYears * nY);
-  const yearZhz = new Float64Array(L.nYears * nY);
-  const gs = new Float64Array(bs);
-  const gb = new Float64Array(nb);
-  for (let s = 0; s < L.nSites; s++) {
-    const mine = trialsOfSite[s];
-    for (const [term, r] of siteLevels) {
-      gs.fill(0);
-      gb.fill(0);
-      let zhz = 0;
-      for (const i of mine) {
-        const a = ev.pieces[i].a;
-        const cols = columns[d.trials[i].year];
-        zhz += a[r * m + r];
-        for (let c = 0; c < cols.n; c++) {
-          const v = cols.value[c] * a[cols.row[c] * m + r];
-          if (cols.inSite[c]) gs[cols.index[c]] += v;
-          else gb[cols.index[c]] += v;
-        }
-      }
-      let sq = bs > 0 ? siteForward(L, f, s, gs, gb) : 0;
-      forwardSolve(f.borderFactor, B, nb, gb);
-      for (let x = 0; x < nb; x++) sq += gb[x] * gb[x];
-      trace[term] += zhz - sq;
-    }
-    for (let yl = 0; yl < nY; yl++) {
-      const r = yearLevels[yl][1];
-      // trials of this site grouped by year: one site part per (year, level)
-      const byYear = new Map<number, Float64Array>();
-      for (const i of mine) {
-        const tr = d.trials[i];
-        const a = ev.pieces[i].a;
-        const cols = columns[tr.year];
-        const slot = tr.year * nY + yl;
-        yearZhz[slot] += a[r * m + r];
-        let g = byYear.get(tr.year);
-        if (!g) byYear.set(tr.year, (g = new Float64Array(bs)));
-        const border = yearBorder[slot];
-        for (let c = 0; c < cols.n; c++) {
-          const v = cols.value[c] * a[cols.row[c] * m + r];
-          if (cols.inSite[c]) g[cols.index[c]] += v;
-          else border[cols.index[c]] += v;
-        }
-      }
-      if (bs > 0) for (const [y, g] of byYear) yearSq[y * nY + yl] += siteForward(L, f, s, g, yearBorder[y * nY + yl]);
-    }
-  }
-  for (let y = 0; y < L.nYears; y++)
-    for (let yl = 0; yl < nY; yl++) {
-      const slot = y * nY + yl;
-      const border = yearBorder[slot];
-      forwardSolve(f.borderFactor, B, nb, border);
-      let sq = yearSq[slot];
-      for (let x = 0; x < nb; x++) sq += border[x] * border[x];
-      trace[yearLevels[yl][0]] += yearZhz[slot] - sq;
-    }
-}
-
-/** AI_kl from the working variates w_k = Z_k Z_k' P y, each J c_k within a trial. */
-function averageInformation(
-  d: CrossedData,
-  L: CrossedLayout,
-  ev: CrossedEvaluation,
-  columns: readonly PackedColumns[],
-  moments: Map<LayoutFactor, LayoutMoments>,
-  kappa: readonly Float64Array[],
-  zeta: readonly Float64Array[],
-  siteScore: Float64Array,
-  yearScore: Float64Array,
-  quadratic: Float64Array,
-): Float64Array {
-  const nT = L.terms.length;
-  const m = 1 + L.t;
-  const B = L.border;
-  const nb = B - 1;
-  const bs = L.bs;
-  const { at } = L;
-  const nSiteRows = L.nSites * bs;
-  // A'H0^-1 w_k for each term, sites' parts then the border
-  const rhs = Array.from({ length: nT }, () => new Float64Array(nSiteRows + nb));
-  const gram = new Float64Array(nT * nT);
-  const c = Array.from({ length: nT }, () => new Float64Array(m + 8));
-  const gc = Array.from({ length: nT }, () => new Float64Array(m + 8));
-  d.trials.forEach((tr, i) => {
-    const mo = moments.get(ev.pieces[i].layout)!;
-    const j = mo.j;
-    for (let k = 0; k < nT; k++) {
-      if (c[k].length < j) {
-        c[k] = new Float64Array(j);
-        gc[k] = new Float64Array(j);
-      }
-      c[k].fill(0);
-    }
-    if (at.site >= 0) c[at.site][0] = siteScore[tr.site * m];
-    if (at.year >= 0) c[at.year][0] = yearScore[tr.year * m];
-    if (at.trial >= 0) c[at.trial][0] = kappa[i][0];
-    for (let r = 1; r < m; r++) {
-      if (at['treatment-by-site'] >= 0) c[at['treatment-by-site']][r] = siteScore[tr.site * m + r];
-      if (at['treatment-by-year'] >= 0) c[at['treatment-by-year']][r] = yearScore[tr.year * m + r];
-      if (at['treatment-by-trial'] >= 0) c[at['treatment-by-trial']][r] = kappa[i][r];
-    }
-    if (at.block >= 0) for (let b = 0; b < mo.nBlocks; b++) c[at.block][m + b] = zeta[i][b];
-    const cols = columns[tr.year];
-    for (let k = 0; k < nT; k++) {
-      const ck = c[k];
-      const g = gc[k];
-      for (let r = 0; r < j; r++) {
-        let v = 0;
-        for (let q = 0; q < j; q++) v += mo.gram[r * j + q] * ck[q];
-        g[r] = v;
-      }
-      for (let l = 0; l <= k; l++) {
-        let v = 0;
-        for (let r = 0; r < j; r++) v += c[l][r] * g[r];
-        gram[k * nT + l] += v;
-      }
-      const out = rhs[k];
-      for (let x = 0; x < cols.n; x++) {
-        const v = cols.value[x] * g[cols.row[x]];
-        if (cols.inSite[x]) out[tr.site * bs + cols.index[x]] += v;
-        else out[nSiteRows + cols.index[x]] += v;
-      }
-    }
-  });
-  // x_k = L^-1 rhs_k through the arrowhead, in place
-  for (const v of rhs) {
-    const border = v.subarray(nSiteRows);
-    if (bs > 0) for (let s = 0; s < L.nSites; s++) siteForward(L, ev.factor, s, v.subarray(s * bs, (s + 1) * bs), border);
-    forwardSolve(ev.factor.borderFactor, B, nb, border);
-  }
-  const info = new Float64Array(nT * nT);
-  for (let k = 0; k < nT; k++)
-    for (let l = 0; l <= k; l++) {
-      let xx = 0;
-      const a = rhs[k];
-      const b = rhs[l];
-      for (let x = 0; x < a.length; x++) xx += a[x] * b[x];
-      const v = (gram[k * nT + l] - xx) / ev.sigma2 - (quadratic[k] * quadratic[l]) / (ev.sigma2 * ev.rHr);
-      info[k * nT + l] = v;
-      info[l * nT + k] = v;
-    }
-  return info;
 }
