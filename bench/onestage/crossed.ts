@@ -4,6 +4,7 @@
 // is fitted by the installed command (`manyfield analyze --data F --spec S --json`, one-stage
 // only, Satterthwaite df, no LRT refits or profiles) and by lme4's lmer with the same terms
 // (read.csv + lmer, timed inside R), in the same run; times, ratio and logLik agreement printed.
+// Each side is timed `repeats` times and its fastest run kept (the machine is shared).
 import { spawnSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -16,6 +17,7 @@ export interface CrossedBenchSettings {
   readonly sites: number;
   readonly years: number;
   readonly skipR: boolean;
+  readonly repeats: number;
 }
 
 const fmt = (ms: number) => (ms >= 1000 ? `${(ms / 1000).toFixed(2)} s` : `${ms.toFixed(0)} ms`);
@@ -39,17 +41,27 @@ export function runCrossedBench(s: CrossedBenchSettings): void {
   );
   const plots = sim.csv.split('\n').length - 2;
   console.log(`Crossed sites x years: ${s.sites} sites over ${s.years} years with gaps, ${sim.network.trials.length} trials, ${plots} plots; random terms ${terms.join(', ')}`);
-  const t0 = performance.now();
-  const r = spawnSync(process.execPath, [...s.cliChild, file, spec], { cwd: s.root, encoding: 'utf8', maxBuffer: 1 << 30 });
-  const wall = performance.now() - t0;
-  const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
-  if (r.status !== 0 || !line) {
-    console.log(`  manyfield analyze failed (${r.status}): ${r.stderr.split('\n').slice(0, 3).join(' ')}`);
-    return;
+  let inner = Infinity;
+  let wall = Infinity;
+  let stdout = '';
+  for (let rep = 0; rep < Math.max(1, s.repeats); rep++) {
+    const t0 = performance.now();
+    const r = spawnSync(process.execPath, [...s.cliChild, file, spec], { cwd: s.root, encoding: 'utf8', maxBuffer: 1 << 30 });
+    const line = r.stderr.split('\n').find((l) => l.startsWith('BENCH '));
+    if (r.status !== 0 || !line) {
+      console.log(`  manyfield analyze failed (${r.status}): ${r.stderr.split('\n').slice(0, 3).join(' ')}`);
+      return;
+    }
+    const ms = JSON.parse(line.slice(6)).totalMs as number;
+    if (ms < inner) {
+      inner = ms;
+      stdout = r.stdout;
+    }
+    wall = Math.min(wall, performance.now() - t0);
   }
-  const inner = JSON.parse(line.slice(6)).totalMs as number;
-  const report = JSON.parse(r.stdout) as { oneStage: { logLik: number; iterations: number } };
-  console.log(`  manyfield analyze --data F --spec S --json: ${fmt(inner)} in the command, ${fmt(wall)} process wall; REML logLik ${report.oneStage.logLik.toFixed(6)} (${report.oneStage.iterations} criterion evaluations)`);
+  const report = JSON.parse(stdout) as { oneStage: { logLik: number; iterations: number; run?: { method?: string } } };
+  const evaluations = /(\d+) criterion evaluations/.exec(report.oneStage.run?.method ?? '')?.[0];
+  console.log(`  manyfield analyze --data F --spec S --json (fastest of ${Math.max(1, s.repeats)}): ${fmt(inner)} in the command, ${fmt(wall)} process wall; REML logLik ${report.oneStage.logLik.toFixed(6)} (${report.oneStage.iterations} AI-REML iterations${evaluations ? `, ${evaluations}` : ''})`);
   if (s.skipR) return;
   const script = `
 suppressMessages(library(lme4))
@@ -60,18 +72,23 @@ cat(sprintf('secs=%.6f\\nloglik=%.10f\\n', as.numeric(difftime(Sys.time(), t0, u
 `;
   const scriptFile = join(s.dir, 'crossed.R');
   writeFileSync(scriptFile, script);
-  const rt0 = performance.now();
-  const rr = spawnSync('Rscript', ['--vanilla', scriptFile], { encoding: 'utf8', maxBuffer: 1 << 30 });
-  const rWall = performance.now() - rt0;
-  const secs = /secs=(.*)/.exec(rr.stdout);
-  const ll = /loglik=(.*)/.exec(rr.stdout);
-  if (rr.status !== 0 || !secs || !ll) {
-    console.log(`  lme4 lmer failed (${rr.status}): ${rr.stderr.split('\n').slice(-3).join(' ')}`);
-    return;
+  let rMs = Infinity;
+  let rWall = Infinity;
+  let rLl = NaN;
+  for (let rep = 0; rep < Math.max(1, s.repeats); rep++) {
+    const rt0 = performance.now();
+    const rr = spawnSync('Rscript', ['--vanilla', scriptFile], { encoding: 'utf8', maxBuffer: 1 << 30 });
+    rWall = Math.min(rWall, performance.now() - rt0);
+    const secs = /secs=(.*)/.exec(rr.stdout);
+    const ll = /loglik=(.*)/.exec(rr.stdout);
+    if (rr.status !== 0 || !secs || !ll) {
+      console.log(`  lme4 lmer failed (${rr.status}): ${rr.stderr.split('\n').slice(-3).join(' ')}`);
+      return;
+    }
+    rMs = Math.min(rMs, Number(secs[1]) * 1000);
+    rLl = Number(ll[1]);
   }
-  const rMs = Number(secs[1]) * 1000;
-  const rLl = Number(ll[1]);
   const rel = Math.abs(report.oneStage.logLik - rLl) / Math.abs(rLl);
-  console.log(`  lme4 lmer (default settings), read.csv + fit timed in R: ${fmt(rMs)}, Rscript wall ${fmt(rWall)}; REML logLik ${rLl.toFixed(6)}`);
+  console.log(`  lme4 lmer (default settings), read.csv + fit timed in R (fastest of ${Math.max(1, s.repeats)}): ${fmt(rMs)}, Rscript wall ${fmt(rWall)}; REML logLik ${rLl.toFixed(6)}`);
   console.log(`  ratio lme4/manyfield: ${(rMs / inner).toFixed(2)}x in-process, ${(rWall / wall).toFixed(2)}x wall (target >= 20x); logLik difference ${(report.oneStage.logLik - rLl).toExponential(3)} (relative ${rel.toExponential(2)}; positive = ours higher)`);
 }

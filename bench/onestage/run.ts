@@ -89,7 +89,7 @@ async function compiled(name: string): Promise<{ args: string[]; kind: string }>
   }
 }
 // 4. Sites and years crossed (bench/onestage/crossed.ts); `--crossed-only` runs just that case.
-const crossedSettings = { dir, root, cliChild: [join(here, 'cliChild.cjs')], sites: Number(arg('--crossed-sites') ?? 500), years: Number(arg('--crossed-years') ?? 8), skipR };
+const crossedSettings = { dir, root, cliChild: [join(here, 'cliChild.cjs')], sites: Number(arg('--crossed-sites') ?? 500), years: Number(arg('--crossed-years') ?? 8), skipR, repeats };
 if (args.includes('--crossed-only')) {
   runCrossedBench(crossedSettings);
   process.exit(0);

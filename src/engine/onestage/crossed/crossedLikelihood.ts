@@ -34,17 +34,21 @@ export interface CrossedEvaluation {
   /** (X'H^-1 X)^-1, p x p: the fixed effects' covariance divided by sigma². */
   readonly xhxInverse: Float64Array;
   readonly factor: CrossedFactor;
+  /** The per-trial pieces the evaluation was assembled from (the derivatives reuse them). */
+  readonly pieces: readonly TrialPieces[];
 }
 
-/** Per-trial pieces: K'H0^-1 K (m x m), K'H0^-1 y, y'H0^-1 y and log|H0|. */
-interface TrialPieces {
+/** Per-trial pieces: K'H0^-1 K (m x m), K'H0^-1 y, y'H0^-1 y and log|H0|, and the trial's layout factor. */
+export interface TrialPieces {
   readonly a: Float64Array;
   readonly b: Float64Array;
   readonly c: number;
   readonly logDet: number;
+  readonly layout: LayoutFactor;
 }
 
-interface LayoutFactor {
+/** H0 = L L' of one layout of plots (n x n lower factor), L^-1 K (n x m), K'H0^-1 K, log|H0|. */
+export interface LayoutFactor {
   readonly l: Float64Array;
   readonly lk: Float64Array;
   readonly a: Float64Array;
@@ -90,6 +94,9 @@ export function trialPieces(d: CrossedData, L: CrossedLayout, theta: ArrayLike<n
   const m = 1 + L.t;
   const cache = new Map<string, LayoutFactor>();
   const out: TrialPieces[] = [];
+  let maxN = 0;
+  for (const tr of d.trials) maxN = Math.max(maxN, tr.y.length);
+  const ly = new Float64Array(maxN);
   for (const tr of d.trials) {
     let f = cache.get(tr.layoutKey);
     if (!f) {
@@ -99,22 +106,23 @@ export function trialPieces(d: CrossedData, L: CrossedLayout, theta: ArrayLike<n
       cache.set(tr.layoutKey, f);
     }
     const n = tr.y.length;
-    const ly = Float64Array.from(tr.y);
+    ly.set(tr.y);
     forwardSolve(f.l, n, n, ly);
     const b = new Float64Array(m);
+    const lk = f.lk;
     let c = 0;
     for (let i = 0; i < n; i++) {
       const v = ly[i];
       c += v * v;
-      for (let r = 0; r < m; r++) b[r] += f.lk[i * m + r] * v;
+      for (let r = 0; r < m; r++) b[r] += lk[i * m + r] * v;
     }
-    out.push({ a: f.a, b, c, logDet: f.logDet });
+    out.push({ a: f.a, b, c, logDet: f.logDet, layout: f });
   }
   return out;
 }
 
 /** Assemble and factor the arrowhead; null when a block is not positive definite (fixed effects not estimable). */
-export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: ArrayLike<number>, pieces?: TrialPieces[] | null): CrossedEvaluation | null {
+export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: ArrayLike<number>, pieces?: readonly TrialPieces[] | null): CrossedEvaluation | null {
   const theta = Float64Array.from(thetaIn, Math.abs);
   const tp = pieces ?? trialPieces(d, L, theta);
   if (!tp) return null;
@@ -130,37 +138,40 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   const columnsByYear: (PackedColumns | undefined)[] = new Array(L.nYears);
   let logDetH0 = 0;
   const y = B - 1;
-  d.trials.forEach((tr, i) => {
+  for (let i = 0; i < d.trials.length; i++) {
+    const tr = d.trials[i];
     const { a, b, c, logDet } = tp[i];
     logDetH0 += logDet;
     const cols = (columnsByYear[tr.year] ??= pack(localColumns(L, tr.year, theta)));
-    const { row, value, inSite, index, n } = cols;
+    const { row, value, index, n } = cols;
     const sm = siteM[tr.site];
     const sc = siteC[tr.site];
+    // the first bs local columns are the site's own effects (localColumns puts them first)
     for (let ui = 0; ui < n; ui++) {
       const ur = row[ui] * m;
       const uv = value[ui];
       const ux = index[ui];
       const gu = uv * b[row[ui]];
-      if (inSite[ui]) {
-        sc[ux * B + y] += gu;
-        for (let vi = 0; vi < n; vi++) {
-          const val = uv * value[vi] * a[ur + row[vi]];
-          if (inSite[vi]) sm[ux * bs + index[vi]] += val;
-          else sc[ux * B + index[vi]] += val;
-        }
+      if (ui < bs) {
+        const rowC = ux * B;
+        const rowM = ux * bs;
+        sc[rowC + y] += gu;
+        for (let vi = 0; vi < bs; vi++) sm[rowM + index[vi]] += uv * value[vi] * a[ur + row[vi]];
+        for (let vi = bs; vi < n; vi++) sc[rowC + index[vi]] += uv * value[vi] * a[ur + row[vi]];
       } else {
-        border[ux * B + y] += gu;
+        const rowB = ux * B;
+        border[rowB + y] += gu;
         border[y * B + ux] += gu;
-        for (let vi = 0; vi < n; vi++) if (!inSite[vi]) border[ux * B + index[vi]] += uv * value[vi] * a[ur + row[vi]];
+        for (let vi = bs; vi < n; vi++) border[rowB + index[vi]] += uv * value[vi] * a[ur + row[vi]];
       }
     }
     border[y * B + y] += c;
-  });
+  }
   for (let k = 0; k < L.q; k++) border[k * B + k] += 1;
   let logDetM = 0;
   const siteFactor: Float64Array[] = [];
   const touched = new Int32Array(B);
+  let wt = new Float64Array(B * bs);
   const siteW: Float64Array[] = [];
   for (let s = 0; s < L.nSites; s++) {
     const sm = siteM[s];
@@ -181,14 +192,17 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
       for (let r = 0; r < bs; r++) if (w[r * B + i] !== 0) any = true;
       if (any) touched[nz++] = i;
     }
+    // W's touched columns gathered contiguously (column a at wt[a * bs]) for the inner sum
+    if (wt.length < nz * bs) wt = new Float64Array(B * bs);
+    for (let a = 0; a < nz; a++) for (let r = 0; r < bs; r++) wt[a * bs + r] = w[r * B + touched[a]];
     for (let a = 0; a < nz; a++) {
-      const i = touched[a];
-      const rowI = i * B;
+      const rowI = touched[a] * B;
+      const ca = a * bs;
       for (let b = 0; b <= a; b++) {
-        const j = touched[b];
+        const cb = b * bs;
         let sum = 0;
-        for (let r = 0; r < bs; r++) sum += w[r * B + i] * w[r * B + j];
-        border[rowI + j] -= sum;
+        for (let r = 0; r < bs; r++) sum += wt[ca + r] * wt[cb + r];
+        border[rowI + touched[b]] -= sum;
       }
     }
     siteFactor.push(sm);
@@ -211,7 +225,7 @@ export function evaluateCrossed(d: CrossedData, L: CrossedLayout, thetaIn: Array
   backSolveTranspose(border, B, B - 1, x);
   const beta = x.slice(L.q, L.q + L.p);
   const xhxInverse = betaBlockInverse(border, B, L.q, L.p);
-  return { theta, criterion, sigma2, logDetH, logDetXHX, rHr, beta, xhxInverse, factor: { siteFactor, siteW, borderFactor: border } };
+  return { theta, criterion, sigma2, logDetH, logDetXHX, rHr, beta, xhxInverse, factor: { siteFactor, siteW, borderFactor: border }, pieces: tp };
 }
 
 /** (X'H^-1X)^-1 = (R R')^-1 with R the fixed effects' diagonal block of the border factor. */
@@ -230,7 +244,7 @@ function betaBlockInverse(f: Float64Array, B: number, q: number, p: number): Flo
 }
 
 /** A trial's local columns as parallel typed arrays, for the assembly's inner loop. */
-interface PackedColumns {
+export interface PackedColumns {
   readonly n: number;
   readonly row: Int32Array;
   readonly value: Float64Array;
@@ -238,7 +252,7 @@ interface PackedColumns {
   readonly index: Int32Array;
 }
 
-function pack(cols: readonly LocalColumn[]): PackedColumns {
+export function pack(cols: readonly LocalColumn[]): PackedColumns {
   return {
     n: cols.length,
     row: Int32Array.from(cols, (c) => c.row),

@@ -48,3 +48,29 @@ export function backSolveTranspose(l: Float64Array, N: number, n: number, b: Flo
     b[i] = s / l[i * N + i];
   }
 }
+
+/** Solve H s = g by Cholesky; null when H is not positive definite. */
+export function solveSymmetric(H: Float64Array, g: Float64Array, n: number): Float64Array | null {
+  const l = Float64Array.from(H);
+  for (let j = 0; j < n; j++) {
+    let d = l[j * n + j];
+    for (let k = 0; k < j; k++) d -= l[j * n + k] ** 2;
+    if (!(d > 0)) return null;
+    l[j * n + j] = Math.sqrt(d);
+    for (let i = j + 1; i < n; i++) {
+      let s = l[i * n + j];
+      for (let k = 0; k < j; k++) s -= l[i * n + k] * l[j * n + k];
+      l[i * n + j] = s / l[j * n + j];
+    }
+  }
+  const s = Float64Array.from(g);
+  for (let i = 0; i < n; i++) {
+    for (let k = 0; k < i; k++) s[i] -= l[i * n + k] * s[k];
+    s[i] /= l[i * n + i];
+  }
+  for (let i = n - 1; i >= 0; i--) {
+    for (let k = i + 1; k < n; k++) s[i] -= l[k * n + i] * s[k];
+    s[i] /= l[i * n + i];
+  }
+  return s;
+}

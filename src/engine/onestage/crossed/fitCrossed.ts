@@ -67,7 +67,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const unit = d.treatments.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
   const estimable = [...ls, ...unit].filter((l): l is Float64Array => l !== null);
   // the Hessian behind the df also gives the variances' SEs: computed whatever the df method
-  const sat = satterthwaite(d, L, ev, estimable);
+  const sat = satterthwaite(d, L, ev, estimable, fit.derivatives);
   const sdf = df === 'satterthwaite' ? sat.df : null;
   const dfOf = (l: Float64Array): number => {
     if (df === 'residual') return d.nObservations - L.p;
@@ -126,7 +126,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     minusTwoLogLik: ev.criterion,
     logLik: -ev.criterion / 2,
     converged: fit.converged,
-    iterations: fit.evaluations,
+    iterations: fit.iterations,
     variance,
     means,
     contrasts: contrastReports,
@@ -139,15 +139,18 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     options: { random: [...L.terms], yearAsFixed: options.yearAsFixed, residual: 'common', df, confidence: options.confidence, covariates: [] },
     warnings,
     run: {
-      method: 'REML, residual variance profiled; restarted Nelder–Mead simplex on the relative standard deviations, Newton polish on central differences; sites as blocks of an arrowhead factor, years and fixed effects in its border',
+      method:
+        fit.search === 'average-information'
+          ? `REML, residual variance profiled; AI-REML (Newton steps on the variance ratios with the average-information matrix, analytic gradient, ratios at zero held by projection): ${fit.iterations} iterations, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`
+          : `REML, residual variance profiled; restarted Nelder–Mead simplex on the relative standard deviations, Newton polish on central differences (the AI-REML search made no progress): ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`,
       start: Object.fromEntries(L.terms.map((t) => [t, 1])),
-      iterations: fit.evaluations,
+      iterations: fit.iterations,
       emIterations: 0,
       criterionPath: fit.criterionPath,
-      stepHalvings: 0,
-      convergence: 'simplex spread below 1e-13 relative and restarts gaining less than 1e-10',
+      stepHalvings: fit.stepHalvings,
+      convergence: fit.search === 'average-information' ? 'Newton decrement g\'AI^-1 g below 1e-11 or 1e-14 of the criterion, whichever is larger (or no further decrease within four halvings once it is below 1e-6)' : 'simplex spread below 1e-13 relative and restarts gaining less than 1e-10',
       outcome: fit.converged ? 'converged' : 'max-iterations',
-      finalDecrement: 0,
+      finalDecrement: fit.finalDecrement,
       elapsedMs: Date.now() - began,
     },
     siteYearView,

@@ -1,16 +1,33 @@
-// REML for the crossed model: the residual variance is profiled out and the relative standard
-// deviations are found by a restarted Nelder–Mead simplex (derivative-free, dependable in the
-// few dimensions here), then polished by Newton steps on numerical derivatives.
+// REML for the crossed model: the residual variance is profiled out and the variance ratios
+// are found by AI-REML (Newton steps with the average-information matrix from the analytic
+// derivatives, averageInformationSearch.ts). When that search cannot make progress, the
+// relative standard deviations are found instead by a restarted Nelder–Mead simplex
+// (derivative-free, dependable in the few dimensions here), polished by Newton steps on
+// numerical derivatives.
 import { nelderMeadRestarted } from '../../rate/mixed/nelderMead.js';
 import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, type CrossedEvaluation } from './crossedLikelihood.js';
+import { averageInformationSearch } from './averageInformationSearch.js';
+import { solveSymmetric } from './denseSmall.js';
+import type { CrossedDerivatives } from './crossedDerivatives.js';
+
+export { solveSymmetric };
 
 export interface CrossedOptimum {
   readonly evaluation: CrossedEvaluation;
+  /** Which search found the optimum. */
+  readonly search: 'average-information' | 'simplex';
+  /** AI-REML Newton steps (0 for the simplex). */
+  readonly iterations: number;
+  /** Criterion evaluations of the search that found the optimum. */
   readonly evaluations: number;
+  readonly stepHalvings: number;
+  readonly finalDecrement: number;
   readonly converged: boolean;
   readonly criterionPath: number[];
+  /** Derivatives at the optimum when the AI-REML search left them there. */
+  readonly derivatives: CrossedDerivatives | null;
 }
 
 export interface OptimiseHooks {
@@ -20,6 +37,13 @@ export interface OptimiseHooks {
 
 /** Minimise the profiled criterion over theta, the terms in `fixedZero` held at zero. */
 export function optimiseCrossed(d: CrossedData, L: CrossedLayout, start: ArrayLike<number>, fixedZero: readonly number[] = [], hooks: OptimiseHooks = {}): CrossedOptimum {
+  const ai = averageInformationSearch(d, L, start, fixedZero, { signal: hooks.signal, onIteration: hooks.onEvaluation });
+  if (ai) return { evaluation: ai.evaluation, search: 'average-information', iterations: ai.iterations, evaluations: ai.evaluations, stepHalvings: ai.stepHalvings, finalDecrement: ai.finalDecrement, converged: true, criterionPath: ai.criterionPath, derivatives: ai.derivatives };
+  return simplexSearch(d, L, start, fixedZero, hooks);
+}
+
+/** The derivative-free search: restarted simplex on theta, Newton polish on central differences. */
+export function simplexSearch(d: CrossedData, L: CrossedLayout, start: ArrayLike<number>, fixedZero: readonly number[], hooks: OptimiseHooks): CrossedOptimum {
   const nT = L.terms.length;
   const free = Array.from({ length: nT }, (_, k) => k).filter((k) => !fixedZero.includes(k));
   const full = (x: ArrayLike<number>): Float64Array => {
@@ -43,7 +67,7 @@ export function optimiseCrossed(d: CrossedData, L: CrossedLayout, start: ArrayLi
   if (free.length === 0) {
     const ev = evaluateCrossed(d, L, full([]));
     if (!ev) throw new Error('the fixed effects are not estimable from these trials');
-    return { evaluation: ev, evaluations: 1, converged: true, criterionPath: [ev.criterion] };
+    return { evaluation: ev, search: 'simplex', iterations: 0, evaluations: 1, stepHalvings: 0, finalDecrement: 0, converged: true, criterionPath: [ev.criterion], derivatives: null };
   }
   const x0 = free.map((k) => start[k]);
   // the simplex brings theta near the optimum; Newton steps finish it (quadratic convergence),
@@ -58,7 +82,7 @@ export function optimiseCrossed(d: CrossedData, L: CrossedLayout, start: ArrayLi
   }
   const ev = evaluateCrossed(d, L, full(polished));
   if (!ev) throw new Error('the fixed effects are not estimable from these trials');
-  return { evaluation: ev, evaluations: count, converged: settled, criterionPath: path };
+  return { evaluation: ev, search: 'simplex', iterations: 0, evaluations: count, stepHalvings: 0, finalDecrement: 0, converged: settled, criterionPath: path, derivatives: null };
 }
 
 /**
@@ -112,30 +136,4 @@ function newtonPolish(f: (x: Float64Array) => number, x0: Float64Array): Float64
     if (!moved) break;
   }
   return x;
-}
-
-/** Solve H s = g by Cholesky; null when H is not positive definite. */
-export function solveSymmetric(H: Float64Array, g: Float64Array, n: number): Float64Array | null {
-  const l = Float64Array.from(H);
-  for (let j = 0; j < n; j++) {
-    let d = l[j * n + j];
-    for (let k = 0; k < j; k++) d -= l[j * n + k] ** 2;
-    if (!(d > 0)) return null;
-    l[j * n + j] = Math.sqrt(d);
-    for (let i = j + 1; i < n; i++) {
-      let s = l[i * n + j];
-      for (let k = 0; k < j; k++) s -= l[i * n + k] * l[j * n + k];
-      l[i * n + j] = s / l[j * n + j];
-    }
-  }
-  const s = Float64Array.from(g);
-  for (let i = 0; i < n; i++) {
-    for (let k = 0; k < i; k++) s[i] -= l[i * n + k] * s[k];
-    s[i] /= l[i * n + i];
-  }
-  for (let i = n - 1; i >= 0; i--) {
-    for (let k = i + 1; k < n; k++) s[i] -= l[k * n + i] * s[k];
-    s[i] /= l[i * n + i];
-  }
-  return s;
 }
