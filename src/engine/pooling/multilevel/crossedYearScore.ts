@@ -32,10 +32,10 @@ export interface CrossedScore {
  * Inner products under A⁻¹ of r per-trial columns U (trial-major, trials x r) with each other
  * (R, r x r), with the year indicators (Z, r x years) and of the year indicators (Gzz).
  */
-function gramUnderA(groups: readonly CrossedGroup[], years: number, w: Float64Array, k: Float64Array, U: Float64Array, r: number, R: Float64Array, Z: Float64Array, Gzz: Float64Array, sp: Float64Array, sigma: Float64Array): void {
+function gramUnderA(groups: readonly CrossedGroup[], years: number, w: Float64Array, k: Float64Array, U: Float64Array, r: number, R: Float64Array, Z: Float64Array, Gzz: Float64Array | null, sp: Float64Array, sigma: Float64Array): void {
   R.fill(0, 0, r * r);
   Z.fill(0, 0, r * years);
-  Gzz.fill(0, 0, years * years);
+  Gzz?.fill(0, 0, years * years);
   let t = 0;
   for (let g = 0; g < groups.length; g++) {
     const grp = groups[g];
@@ -45,7 +45,6 @@ function gramUnderA(groups: readonly CrossedGroup[], years: number, w: Float64Ar
       const wj = w[t];
       const a = grp.yearIndex[j];
       sigma[a] += wj;
-      Gzz[a * years + a] += wj;
       for (let p = 0; p < r; p++) {
         const wu = wj * U[t * r + p];
         sp[p] += wu;
@@ -53,13 +52,14 @@ function gramUnderA(groups: readonly CrossedGroup[], years: number, w: Float64Ar
         for (let q = p; q < r; q++) R[p * r + q] += wu * U[t * r + q];
       }
     }
+    if (Gzz) for (let a = 0; a < years; a++) Gzz[a * years + a] += sigma[a];
     const kg = k[g];
     if (kg === 0) continue;
     for (let p = 0; p < r; p++) {
       for (let q = p; q < r; q++) R[p * r + q] -= kg * sp[p] * sp[q];
       for (let a = 0; a < years; a++) if (sigma[a] !== 0) Z[p * years + a] -= kg * sp[p] * sigma[a];
     }
-    for (let a = 0; a < years; a++) if (sigma[a] !== 0) for (let b = 0; b < years; b++) if (sigma[b] !== 0) Gzz[a * years + b] -= kg * sigma[a] * sigma[b];
+    if (Gzz) for (let a = 0; a < years; a++) if (sigma[a] !== 0) for (let b = 0; b < years; b++) if (sigma[b] !== 0) Gzz[a * years + b] -= kg * sigma[a] * sigma[b];
   }
   for (let p = 0; p < r; p++) for (let q = 0; q < p; q++) R[p * r + q] = R[q * r + p];
 }
@@ -186,7 +186,7 @@ export function crossedScore(groups: readonly CrossedGroup[], years: number, sit
     let sy = 0;
     for (let a = 0; a < n; a++) {
       let s = 0;
-      for (let b = 0; b < n; b++) s += Binv[a * n + b] * sigma[b];
+      for (let b = 0; b < n; b++) if (sigma[b] !== 0) s += Binv[a * n + b] * sigma[b];
       beta[a] = s;
       sb += sigma[a] * s;
       s1 += sigma[a] * ZB[a];
@@ -222,7 +222,7 @@ export function crossedScore(groups: readonly CrossedGroup[], years: number, sit
       const a = grp.yearIndex[j];
       U[t * 4 + 1] = ZB[n + a] - mu * ZB[a];
     }
-  gramUnderA(groups, years, w, k, U, 4, R, Z, Gzz, sp, sigma);
+  gramUnderA(groups, years, w, k, U, 4, R, Z, null, sp, sigma);
   const M = (p: number, q: number) => vForm(4, p, q);
   const m0 = [M(1, 0), M(2, 0), M(3, 0)];
   const information = new Array<number>(9);

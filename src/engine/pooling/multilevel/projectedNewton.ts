@@ -75,7 +75,7 @@ export function projectedNewton(f: (x: readonly number[]) => number, start: read
 }
 
 /** Solve (-H) d = g by Cholesky when -H is positive definite; null otherwise (the caller steps along the gradient). */
-function newtonStep(H: number[][], g: number[]): number[] | null {
+export function newtonStep(H: number[][], g: number[]): number[] | null {
   const n = g.length;
   const L: number[][] = Array.from({ length: n }, () => new Array<number>(n).fill(0));
   for (let j = 0; j < n; j++) {
