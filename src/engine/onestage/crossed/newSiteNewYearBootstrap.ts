@@ -22,7 +22,7 @@ import { crossedLogLik, type CrossedGroup } from '../../pooling/multilevel/cross
 import { nestedMaximum } from '../../pooling/multilevel/nestedMaximum.js';
 import { searchUpper } from '../../pooling/multilevel/fitSiteTrial.js';
 import { typicalSamplingVariance } from '../../pooling/multilevel/poolSiteLevels.js';
-import { projectedNewton } from '../../pooling/multilevel/projectedNewton.js';
+import { crossedLocalRefit } from '../../pooling/multilevel/crossedLocalRefit.js';
 import type { PredictionMethod } from '../../pooling/types.js';
 
 /** The contrast's variance parts (sum l² times each term's variance); null where the term is not in the model. */
@@ -161,6 +161,8 @@ export function oneStagePivotModel(groups: readonly CrossedGroup[], years: numbe
   const sd = value.map(Math.sqrt);
   // summed site, site-year, year: the two-stage pool's order (same bits)
   const total = value[1] + value[2] + value[0];
+  // the groups once, their estimates re-pointed at each refit's arrays
+  const data = groups.map((g) => ({ ...g }));
   const expand = (x: readonly number[]) => {
     const full = [0, 0, 0];
     active.forEach((k, i) => (full[k] = x[i]));
@@ -178,15 +180,15 @@ export function oneStagePivotModel(groups: readonly CrossedGroup[], years: numbe
       return mu + Math.sqrt(total) * normal();
     },
     refit(y) {
-      const data = groups.map((g, i) => ({ ...g, y: y[i] }));
+      data.forEach((g, i) => (g.y = y[i]));
       const at = (full: readonly number[]) => crossedLogLik(data, years, full[1], full[2], full[0], 'reml');
       const f = (x: readonly number[]) => at(expand(x)).logLik;
       if (active.length === 0) {
         const fit = at([0, 0, 0]);
         return { mu: fit.mu, muVariance: fit.muVariance, between: 0 };
       }
-      const local = projectedNewton(f, active.map((k) => value[k]), scale);
-      let x = local?.x ?? null;
+      const local = crossedLocalRefit(data, years, 'reml', active, active.map((k) => value[k]), scale);
+      let x = local ? active.map((k) => local[k]) : null;
       if (!x) {
         // the global nested searches, as the two-stage crossed fit does when the local one fails
         const upper = searchUpper(data);

@@ -3,9 +3,11 @@
 // yearTau2 Zy Zy' with A the nested (block-diagonal by site) part; years are few, so the year
 // columns form a small dense border handled by the Woodbury identity and the determinant lemma:
 // the inner products of [1, y, Zy] under A⁻¹ are accumulated site by site (Sherman–Morrison), and
-// only a (years x years) matrix is factorised. O(trials x years²) per evaluation.
-import { cholesky, cholLogDet, cholSolve } from '../../linalg/cholesky.js';
-import { zeros, type Matrix } from '../../linalg/matrix.js';
+// only a (years x years) matrix is factorised. O(trials x years²) per evaluation, and no
+// allocation but the result: bootstrap refits call it about a hundred times each, so the working
+// arrays are kept between calls (the Cholesky steps are written out in the library's order, so
+// the numbers are the same bits as with cholesky/cholSolve).
+import { NotPositiveDefiniteError } from '../../linalg/cholesky.js';
 import type { LikelihoodKind, SiteGroup, SiteTrialFit } from './siteTrialLikelihood.js';
 
 export interface CrossedGroup extends SiteGroup {
@@ -13,10 +15,33 @@ export interface CrossedGroup extends SiteGroup {
   readonly yearIndex: Int32Array;
 }
 
+/** Working arrays reused between evaluations (one thread; grown when more years come). */
+let work = scratchFor(0);
+
+function scratchFor(years: number) {
+  const m = years + 2;
+  return { years, G: new Float64Array(m * m), sums: new Float64Array(m), B: new Float64Array(years * years), L: new Float64Array(years * years), s1: new Float64Array(years), sy: new Float64Array(years) };
+}
+
+/** Solve (L L') x = x in place, L lower triangular n x n (cholSolve's order of operations). */
+function solveInPlace(L: Float64Array, n: number, x: Float64Array): void {
+  for (let i = 0; i < n; i++) {
+    let s = x[i];
+    for (let k = 0; k < i; k++) s -= L[i * n + k] * x[k];
+    x[i] = s / L[i * n + i];
+  }
+  for (let i = n - 1; i >= 0; i--) {
+    let s = x[i];
+    for (let k = i + 1; k < n; k++) s -= L[k * n + i] * x[k];
+    x[i] = s / L[i * n + i];
+  }
+}
+
 export function crossedLogLik(groups: readonly CrossedGroup[], years: number, siteTau2: number, trialTau2: number, yearTau2: number, kind: LikelihoodKind): SiteTrialFit {
   const m = years + 2; // columns: 0 = ones, 1 = y, 2.. = year indicators
-  const G = new Float64Array(m * m);
-  const sums = new Float64Array(m);
+  if (work.years !== years) work = scratchFor(years);
+  const { G, sums, B, L, s1, sy } = work;
+  G.fill(0);
   let n = 0;
   let logDetA = 0;
   for (const g of groups) {
@@ -53,21 +78,39 @@ export function crossedLogLik(groups: readonly CrossedGroup[], years: number, si
   let logDet = logDetA;
   if (yearTau2 > 0 && years > 0) {
     // V⁻¹ inner products: G_ab - yearTau2 G_az (I + yearTau2 G_zz)⁻¹ G_zb
-    const B: Matrix = zeros(years, years);
-    for (let a = 0; a < years; a++) for (let b = 0; b < years; b++) B.data[a * years + b] = (a === b ? 1 : 0) + yearTau2 * at(2 + a, 2 + b);
-    const L = cholesky(B);
-    logDet += cholLogDet(L);
-    const z1 = Float64Array.from({ length: years }, (_, a) => at(0, 2 + a));
-    const zy = Float64Array.from({ length: years }, (_, a) => at(1, 2 + a));
-    const s1 = cholSolve(L, z1);
-    const sy = cholSolve(L, zy);
+    const n = years;
+    for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) B[a * n + b] = (a === b ? 1 : 0) + yearTau2 * at(2 + a, 2 + b);
+    // Cholesky B = L L' (cholesky()'s loop)
+    for (let j = 0; j < n; j++) {
+      let d = B[j * n + j];
+      for (let k = 0; k < j; k++) d -= L[j * n + k] * L[j * n + k];
+      if (!(d > 0)) throw new NotPositiveDefiniteError(j, d);
+      const ljj = Math.sqrt(d);
+      L[j * n + j] = ljj;
+      for (let i = j + 1; i < n; i++) {
+        let s = B[i * n + j];
+        for (let k = 0; k < j; k++) s -= L[i * n + k] * L[j * n + k];
+        L[i * n + j] = s / ljj;
+      }
+    }
+    let halfLogDet = 0;
+    for (let i = 0; i < n; i++) halfLogDet += Math.log(L[i * n + i]);
+    logDet += 2 * halfLogDet;
+    for (let a = 0; a < n; a++) {
+      s1[a] = at(0, 2 + a);
+      sy[a] = at(1, 2 + a);
+    }
+    solveInPlace(L, n, s1);
+    solveInPlace(L, n, sy);
     let d11 = 0;
     let d1y = 0;
     let dyy = 0;
-    for (let a = 0; a < years; a++) {
-      d11 += z1[a] * s1[a];
-      d1y += z1[a] * sy[a];
-      dyy += zy[a] * sy[a];
+    for (let a = 0; a < n; a++) {
+      const z1 = at(0, 2 + a);
+      const zy = at(1, 2 + a);
+      d11 += z1 * s1[a];
+      d1y += z1 * sy[a];
+      dyy += zy * sy[a];
     }
     c -= yearTau2 * d11;
     t -= yearTau2 * d1y;

@@ -1,13 +1,13 @@
 // The multilevel models as bootstrap models for the pivot prediction: each simulates trial
 // estimates from its fitted variances (site, trial within site and, crossed, year) and the
 // trials' own sampling variances, and refits them from the fitted values (Fisher scoring for the
-// nested model, a finite-difference projected Newton for the crossed one), falling back to the
-// pool's own searches when a fast refit does not settle.
+// nested model, projected scoring on the analytic gradient and average information for the
+// crossed one), falling back to the pool's own searches when a fast refit does not settle.
 import { refitSiteTrial } from './siteTrialScoring.js';
 import type { LikelihoodKind, SiteGroup } from './siteTrialLikelihood.js';
 import { crossedLogLik, type CrossedGroup } from './crossedYearLikelihood.js';
 import { fitCrossedYear } from './fitCrossedYear.js';
-import { projectedNewton } from './projectedNewton.js';
+import { crossedLocalRefit } from './crossedLocalRefit.js';
 import type { PivotModel } from './bootstrapPivotPrediction.js';
 
 /** Relative tolerance of each variance search in a refit: the pivot needs about four digits, not nine. */
@@ -53,6 +53,8 @@ export function nestedPivotModel(groups: readonly SiteGroup[], fitted: FittedVar
 export function crossedPivotModel(groups: readonly CrossedGroup[], years: number, fitted: FittedVariances, kind: LikelihoodKind, scale: number): PivotModel {
   const yearDraws = new Float64Array(years);
   const start = [fitted.yearTau2 ?? 0, fitted.siteTau2, fitted.trialTau2];
+  // the groups once, their estimates re-pointed at each refit's arrays
+  const data = groups.map((g) => ({ ...g }));
   return {
     simulate(normal, y) {
       const sdYear = Math.sqrt(fitted.yearTau2 ?? 0);
@@ -61,12 +63,12 @@ export function crossedPivotModel(groups: readonly CrossedGroup[], years: number
       return newSiteEffect(fitted, normal);
     },
     refit(y) {
-      const data = groups.map((g, i) => ({ ...g, y: y[i] }));
+      data.forEach((g, i) => (g.y = y[i]));
       // order [year, site, trial], as fitCrossedYear searches them
-      const local = projectedNewton((x) => crossedLogLik(data, years, x[1], x[2], x[0], kind).logLik, start, scale);
+      const local = crossedLocalRefit(data, years, kind, [0, 1, 2], start, scale);
       if (local) {
-        const at = crossedLogLik(data, years, local.x[1], local.x[2], local.x[0], kind);
-        return { mu: at.mu, muVariance: at.muVariance, between: local.x[0] + local.x[1] + local.x[2] };
+        const at = crossedLogLik(data, years, local[1], local[2], local[0], kind);
+        return { mu: at.mu, muVariance: at.muVariance, between: local[0] + local[1] + local[2] };
       }
       const f = fitCrossedYear(data, years, kind, 0, false);
       return f.converged ? { mu: f.mu, muVariance: f.muVariance, between: f.siteTau2 + f.trialTau2 + f.yearTau2 } : null;

@@ -24,15 +24,17 @@ export function projectedNewton(f: (x: readonly number[]) => number, start: read
     // forward differences where a central one would step below zero
     const central = x.map((v, k) => v >= h[k]);
     const g = new Array<number>(dims);
+    // f one step up each axis, reused by the cross differences below
+    const up1 = new Array<number>(dims);
     const H: number[][] = Array.from({ length: dims }, () => new Array<number>(dims).fill(0));
     for (let k = 0; k < dims; k++) {
       if (central[k]) {
-        const up = shifted([[k, h[k]]]);
+        const up = (up1[k] = shifted([[k, h[k]]]));
         const down = shifted([[k, -h[k]]]);
         g[k] = (up - down) / (2 * h[k]);
         H[k][k] = (up - 2 * value + down) / (h[k] * h[k]);
       } else {
-        const one = shifted([[k, h[k]]]);
+        const one = (up1[k] = shifted([[k, h[k]]]));
         const two = shifted([[k, 2 * h[k]]]);
         g[k] = (-3 * value + 4 * one - two) / (2 * h[k]);
         H[k][k] = (value - 2 * one + two) / (h[k] * h[k]);
@@ -44,9 +46,7 @@ export function projectedNewton(f: (x: readonly number[]) => number, start: read
         const hb = h[b];
         // forward in both: valid at the boundary too
         const fab = shifted([[a, ha], [b, hb]]);
-        const fa = shifted([[a, ha]]);
-        const fb = shifted([[b, hb]]);
-        H[a][b] = H[b][a] = (fab - fa - fb + value) / (ha * hb);
+        H[a][b] = H[b][a] = (fab - up1[a] - up1[b] + value) / (ha * hb);
       }
     const free = x.map((v, k) => !(v === 0 && g[k] <= 0));
     const idx = free.flatMap((on, k) => (on ? [k] : []));
@@ -75,7 +75,7 @@ export function projectedNewton(f: (x: readonly number[]) => number, start: read
 }
 
 /** Solve (-H) d = g by Cholesky when -H is positive definite; null otherwise (the caller steps along the gradient). */
-function newtonStep(H: number[][], g: number[]): number[] | null {
+export function newtonStep(H: number[][], g: number[]): number[] | null {
   const n = g.length;
   const L: number[][] = Array.from({ length: n }, () => new Array<number>(n).fill(0));
   for (let j = 0; j < n; j++) {

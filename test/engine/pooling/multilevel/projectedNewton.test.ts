@@ -1,4 +1,4 @@
-// The crossed site-year model's fast refit (finite-difference projected Newton from a warm start,
+// The crossed site-year model's fast refits (finite-difference projected Newton, and projected scoring on the analytic gradient, from a warm start,
 // used for the bootstrap new-site prediction) against the nested Brent searches of fitCrossedYear
 // (the reference, itself checked against a dense REML/ML likelihood in R, siteLevelsR.test.ts), on
 // 12 simulated networks, most with a variance on the zero boundary. Tolerances: log-likelihood not
@@ -8,6 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { crossedLogLik, type CrossedGroup } from '../../../../src/engine/pooling/multilevel/crossedYearLikelihood.js';
 import { fitCrossedYear } from '../../../../src/engine/pooling/multilevel/fitCrossedYear.js';
 import { projectedNewton } from '../../../../src/engine/pooling/multilevel/projectedNewton.js';
+import { crossedLocalRefit } from '../../../../src/engine/pooling/multilevel/crossedLocalRefit.js';
 import { poolSiteLevels } from '../../../../src/engine/pooling/multilevel/poolSiteLevels.js';
 import { mulberry32, normalSampler } from '../../../../src/engine/stats/random.js';
 
@@ -49,6 +50,24 @@ describe('crossed site-year refit by projected Newton', () => {
       if (ref.yearTau2 === 0 || ref.siteTau2 === 0 || ref.trialTau2 === 0) boundary++;
     }
     expect(boundary).toBeGreaterThan(4);
+  }, 300_000);
+
+  it('by projected scoring (analytic gradient and average information) reaches the same optimum (REML and ML, 12 networks; same tolerances)', () => {
+    for (let seed = 1; seed <= 12; seed++) {
+      const kind = seed % 2 === 0 ? 'reml' : 'ml';
+      const { groups, truth } = network(seed);
+      const ref = fitCrossedYear(groups, YEARS, kind, 0, false);
+      const fast = crossedLocalRefit(groups, YEARS, kind, [0, 1, 2], truth, 0.25);
+      expect(fast).not.toBeNull();
+      const [year, site, trial] = fast!;
+      expect(crossedLogLik(groups, YEARS, site, trial, year, kind).logLik).toBeGreaterThanOrEqual(ref.logLik - 1e-8 * Math.abs(ref.logLik));
+      expect(Math.abs(year - ref.yearTau2)).toBeLessThanOrEqual(1e-5);
+      expect(Math.abs(site - ref.siteTau2)).toBeLessThanOrEqual(1e-5);
+      expect(Math.abs(trial - ref.trialTau2)).toBeLessThanOrEqual(1e-5);
+      // a variance held at zero is searched no further
+      const held = crossedLocalRefit(groups, YEARS, kind, [1, 2], [truth[1], truth[2]], 0.25);
+      expect(held![0]).toBe(0);
+    }
   }, 300_000);
 
   it('gives the crossed pool its bootstrap new-site-in-a-new-year interval, deterministic given the seed', () => {
