@@ -7,7 +7,7 @@
 // allocation but the result: bootstrap refits call it about a hundred times each, so the working
 // arrays are kept between calls (the Cholesky steps are written out in the library's order, so
 // the numbers are the same bits as with cholesky/cholSolve).
-import { NotPositiveDefiniteError } from '../../linalg/cholesky.js';
+import { choleskyInPlace } from '../../linalg/inPlace.js';
 import type { LikelihoodKind, SiteGroup, SiteTrialFit } from './siteTrialLikelihood.js';
 
 export interface CrossedGroup extends SiteGroup {
@@ -20,7 +20,7 @@ let work = scratchFor(0);
 
 function scratchFor(years: number) {
   const m = years + 2;
-  return { years, G: new Float64Array(m * m), sums: new Float64Array(m), B: new Float64Array(years * years), L: new Float64Array(years * years), s1: new Float64Array(years), sy: new Float64Array(years) };
+  return { years, G: new Float64Array(m * m), sums: new Float64Array(m), L: new Float64Array(years * years), s1: new Float64Array(years), sy: new Float64Array(years) };
 }
 
 /** Solve (L L') x = x in place, L lower triangular n x n (cholSolve's order of operations). */
@@ -40,7 +40,7 @@ function solveInPlace(L: Float64Array, n: number, x: Float64Array): void {
 export function crossedLogLik(groups: readonly CrossedGroup[], years: number, siteTau2: number, trialTau2: number, yearTau2: number, kind: LikelihoodKind): SiteTrialFit {
   const m = years + 2; // columns: 0 = ones, 1 = y, 2.. = year indicators
   if (work.years !== years) work = scratchFor(years);
-  const { G, sums, B, L, s1, sy } = work;
+  const { G, sums, L, s1, sy } = work;
   G.fill(0);
   let n = 0;
   let logDetA = 0;
@@ -79,23 +79,9 @@ export function crossedLogLik(groups: readonly CrossedGroup[], years: number, si
   if (yearTau2 > 0 && years > 0) {
     // V⁻¹ inner products: G_ab - yearTau2 G_az (I + yearTau2 G_zz)⁻¹ G_zb
     const n = years;
-    for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) B[a * n + b] = (a === b ? 1 : 0) + yearTau2 * at(2 + a, 2 + b);
-    // Cholesky B = L L' (cholesky()'s loop)
-    for (let j = 0; j < n; j++) {
-      let d = B[j * n + j];
-      for (let k = 0; k < j; k++) d -= L[j * n + k] * L[j * n + k];
-      if (!(d > 0)) throw new NotPositiveDefiniteError(j, d);
-      const ljj = Math.sqrt(d);
-      L[j * n + j] = ljj;
-      for (let i = j + 1; i < n; i++) {
-        let s = B[i * n + j];
-        for (let k = 0; k < j; k++) s -= L[i * n + k] * L[j * n + k];
-        L[i * n + j] = s / ljj;
-      }
-    }
-    let halfLogDet = 0;
-    for (let i = 0; i < n; i++) halfLogDet += Math.log(L[i * n + i]);
-    logDet += 2 * halfLogDet;
+    for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) L[a * n + b] = (a === b ? 1 : 0) + yearTau2 * at(2 + a, 2 + b);
+    // B = L L' in place (cholesky()'s loop and log-determinant, the same bits)
+    logDet += choleskyInPlace(L, n);
     for (let a = 0; a < n; a++) {
       s1[a] = at(0, 2 + a);
       sy[a] = at(1, 2 + a);

@@ -14,7 +14,7 @@
 // information of Gilmour, Thompson & Cullis 1995). Every z'V⁻¹u needed is a site-by-site sum:
 // for a site indicator z_s'A⁻¹u = sum w u / f, for a trial e_j'A⁻¹u = w_j u_j - k w_j sum w u,
 // and Zy'A⁻¹ e_j = w_j (e_year(j) - k sigma_s) with sigma_s the site's w-sums by year.
-import { NotPositiveDefiniteError } from '../../linalg/cholesky.js';
+import { choleskyInPlace } from '../../linalg/inPlace.js';
 import type { LikelihoodKind } from './siteTrialLikelihood.js';
 import type { CrossedGroup } from './crossedYearLikelihood.js';
 
@@ -115,19 +115,8 @@ export function crossedScore(groups: readonly CrossedGroup[], years: number, sit
   gramUnderA(groups, years, w, k, U, 2, R, Z, Gzz, sp, sigma);
   // B = I + yearTau2 Gzz, its Cholesky factor and inverse
   const n = years;
-  for (let j = 0; j < n; j++) {
-    let d = 1 + yearTau2 * Gzz[j * n + j];
-    for (let q = 0; q < j; q++) d -= L[j * n + q] * L[j * n + q];
-    if (!(d > 0)) throw new NotPositiveDefiniteError(j, d);
-    const ljj = Math.sqrt(d);
-    L[j * n + j] = ljj;
-    logDet += 2 * Math.log(ljj);
-    for (let i = j + 1; i < n; i++) {
-      let s = yearTau2 * Gzz[i * n + j];
-      for (let q = 0; q < j; q++) s -= L[i * n + q] * L[j * n + q];
-      L[i * n + j] = s / ljj;
-    }
-  }
+  for (let a = 0; a < n; a++) for (let b = 0; b <= a; b++) L[a * n + b] = (a === b ? 1 : 0) + yearTau2 * Gzz[a * n + b];
+  logDet += choleskyInPlace(L, n);
   for (let col = 0; col < n; col++) {
     const x = beta;
     for (let i = 0; i < n; i++) x[i] = i === col ? 1 : 0;
