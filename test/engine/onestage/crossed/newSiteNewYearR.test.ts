@@ -24,7 +24,7 @@ import { withSiteYearNewSite } from '../../../../src/engine/onestage/crossed/sit
 import { CROSSED_TERMS } from '../../../../src/engine/onestage/crossed/terms.js';
 import { trialOwnContrasts } from '../../../../src/engine/onestage/crossed/trialOwnContrasts.js';
 import { typicalSamplingVariance } from '../../../../src/engine/pooling/multilevel/poolSiteLevels.js';
-import { mulberry32, normalSampler } from '../../../../src/engine/stats/random.js';
+import { sharedPivotDraws } from '../../pooling/multilevel/support/sharedPivots.js';
 import { runR, type RRun } from '../../../support/rscript.js';
 import { simulateCrossed } from './support/simulateCrossed.js';
 
@@ -106,20 +106,11 @@ beforeAll(() => {
   const groups = crossedGroups(ownOurs.filter((x): x is OwnTrialEstimate => x !== null));
   const parts = { site: c.siteVariance, year: c.yearVariance, siteYear: c.siteYearVariance };
   const model = oneStagePivotModel(groups.list, groups.years, est, parts, typicalSamplingVariance(groups.list) ?? 1);
-  const normal = normalSampler(mulberry32(3));
-  const y = groups.list.map((g) => new Float64Array(g.y.length));
-  const rows: string[] = [];
-  sharedPivots = [];
-  for (let b = 0; b < SHARED; b++) {
-    const newEffect = model.simulate(normal, y);
-    const f = model.refit(y);
-    if (!f) throw new Error('refit failed');
-    sharedPivots.push((newEffect - f.mu) / Math.sqrt(f.muVariance + f.between));
-    rows.push([newEffect, ...y.flatMap((a) => [...a])].map((x) => x.toPrecision(17)).join(','));
-  }
+  const shared = sharedPivotDraws(model, groups.list.map((g) => g.y.length), SHARED);
+  sharedPivots = shared.pivots;
   const flat = groups.list.flatMap((g, s) => Array.from(g.v, (v, k) => `${s},${g.yearIndex[k]},${v.toPrecision(17)}`));
   const fitted = [est, se, parts.site, parts.year, parts.siteYear, threshold].map((x) => x.toPrecision(17)).join('\n');
-  r = runR(R_SCRIPT, { 'plots.csv': sim.csv, 'ours.csv': ['site,year,v', ...flat].join('\n'), 'shared.csv': rows.join('\n'), 'fitted.txt': fitted, 'draws.txt': String(DRAWS) });
+  r = runR(R_SCRIPT, { 'plots.csv': sim.csv, 'ours.csv': ['site,year,v', ...flat].join('\n'), 'shared.csv': shared.rows.join('\n'), 'fitted.txt': fitted, 'draws.txt': String(DRAWS) });
 }, 600_000);
 
 describe('new site in a new year (crossed one-stage) against base R', () => {

@@ -15,6 +15,7 @@ import { nestedPivotModel } from '../../../../src/engine/pooling/multilevel/pivo
 import { groupBySite, poolSiteLevels } from '../../../../src/engine/pooling/multilevel/poolSiteLevels.js';
 import type { SiteLevelItem, SiteLevelPooling } from '../../../../src/engine/pooling/multilevel/types.js';
 import { mulberry32, normalSampler } from '../../../../src/engine/stats/random.js';
+import { sharedPivotDraws } from './support/sharedPivots.js';
 import { runR, type RRun } from '../../../support/rscript.js';
 
 const DRAWS = 1000;
@@ -93,22 +94,13 @@ beforeAll(() => {
   const fitted = { mu: ours.estimate as number, siteTau2: ours.siteTau2 as number, trialTau2: ours.trialTau2 as number };
   // the same-draws part: record what our simulation draws and what our refits make of it
   const model = nestedPivotModel(groups, fitted, 'reml');
-  const normal = normalSampler(mulberry32(3));
-  const y = groups.map((g) => new Float64Array(g.y.length));
-  const rows: string[] = [];
-  sharedPivots = [];
-  for (let b = 0; b < SHARED; b++) {
-    const newEffect = model.simulate(normal, y);
-    const f = model.refit(y);
-    if (!f) throw new Error('refit failed');
-    sharedPivots.push((newEffect - f.mu) / Math.sqrt(f.muVariance + f.between));
-    rows.push([newEffect, ...y.flatMap((a) => [...a])].map((x) => x.toPrecision(17)).join(','));
-  }
+  const shared = sharedPivotDraws(model, groups.map((g) => g.y.length), SHARED);
+  sharedPivots = shared.pivots;
   // groupBySite keeps the order of first appearance, as the CSV rows do
   const flat = groups.flatMap((g) => g.trials.map((t, j) => ({ site: g.site, trial: t, y: g.y[j], v: g.v[j] })));
   const csv = ['site,trial,y,v', ...flat.map((t) => `${t.site},${t.trial},${t.y.toPrecision(17)},${t.v.toPrecision(17)}`)].join('\n');
   const fittedTxt = [fitted.mu, fitted.siteTau2, fitted.trialTau2, (ours.se as number) ** 2, threshold].map((x) => x.toPrecision(17)).join('\n');
-  r = runR(R_SCRIPT, { 'net.csv': csv, 'shared.csv': rows.join('\n'), 'fitted.txt': fittedTxt, 'draws.txt': String(DRAWS) });
+  r = runR(R_SCRIPT, { 'net.csv': csv, 'shared.csv': shared.rows.join('\n'), 'fitted.txt': fittedTxt, 'draws.txt': String(DRAWS) });
 }, 600_000);
 
 describe('bootstrap new-site prediction (site-and-trial) against base R', () => {
