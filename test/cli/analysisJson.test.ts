@@ -12,7 +12,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { runAnalysisFromSource } from '../../src/api/analysis/fromSource.js';
 import { analysisSpecSchema } from '../../src/spec/analysisSpec.js';
 import { COLUMNS_LAYOUT, compactAnalysisJson, expandAnalysisJson } from '../../src/cli/analysisJson.js';
-import { protocolChangeCsv } from '../support/protocolChangeNetwork.js';
+import { protocolChangeCsv, PROTOCOL_CONTRASTS as C, PROTOCOL_SPEC_BASE } from '../support/protocolChangeNetwork.js';
 import { exampleNetworkCsv, exampleSpec } from '../../bench/full/exampleNetwork.js';
 import { manyfield } from '../support/cli.js';
 
@@ -20,14 +20,8 @@ const dir = mkdtempSync(join(tmpdir(), 'manyfield-json-columns-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const protocolSpec = analysisSpecSchema.parse({
-  trait: 'y',
-  columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
-  control: 'CTL',
-  contrasts: [
-    { name: 'rate_quadratic', trend: 'rate', degree: 2 },
-    { name: 'treated_vs_control', kind: 'treated-vs-control' },
-    { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-  ],
+  ...PROTOCOL_SPEC_BASE,
+  contrasts: [C.rateQuadratic, C.treatedVsControl, C.earlyVsLate],
   oneStage: null,
   twoStage: { tau2: 'reml', interval: 'hksj' },
 });

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { manyfield, tempDir } from '../support/cli.js';
-import { protocolChangeCsv, DROPPED, PROTOCOLS } from '../support/protocolChangeNetwork.js';
+import { protocolChangeCsv, DROPPED, PROTOCOLS, PROTOCOL_CONTRASTS as C, PROTOCOL_SPEC_BASE } from '../support/protocolChangeNetwork.js';
 
 describe('analyze --data on a network whose protocol changed', () => {
   it('pools a rate trend, treated against control and early against late over the trials that carry each', () => {
@@ -16,14 +16,8 @@ describe('analyze --data on a network whose protocol changed', () => {
     writeFileSync(
       join(dir, 'spec.json'),
       JSON.stringify({
-        trait: 'y',
-        columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
-        control: 'CTL',
-        contrasts: [
-          { name: 'rate_linear', trend: 'rate', degree: 1 },
-          { name: 'treated_vs_control', kind: 'treated-vs-control' },
-          { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-        ],
+        ...PROTOCOL_SPEC_BASE,
+        contrasts: [C.rateLinear, C.treatedVsControl, C.earlyVsLate],
         oneStage: null,
       }),
     );

@@ -48,3 +48,19 @@ export function protocolChangeCsv(seed: number): string {
   }
   return `${lines.join('\n')}\n`;
 }
+
+/** How an analysis spec reads this file: its columns, trait and control. */
+export const PROTOCOL_SPEC_BASE = {
+  trait: 'y',
+  columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
+  control: 'CTL',
+} as const;
+
+/** The contrasts the tests on this file ask for, by name. */
+export const PROTOCOL_CONTRASTS = {
+  rateLinear: { name: 'rate_linear', trend: 'rate', degree: 1 },
+  rateQuadratic: { name: 'rate_quadratic', trend: 'rate', degree: 2 },
+  treatedVsControl: { name: 'treated_vs_control', kind: 'treated-vs-control' },
+  earlyVsLate: { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
+  e60VsControl: { name: 'e60_vs_control', coefficients: { E60: 1, CTL: -1 }, divisor: 1 },
+} as const;

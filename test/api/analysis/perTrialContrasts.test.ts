@@ -14,7 +14,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runAnalysisFromSource } from '../../../src/api/analysis/fromSource.js';
 import { analysisSpecSchema } from '../../../src/spec/analysisSpec.js';
 import { runR, type RRun } from '../../support/rscript.js';
-import { protocolChangeCsv, DROPPED } from '../../support/protocolChangeNetwork.js';
+import { protocolChangeCsv, DROPPED, PROTOCOL_CONTRASTS as C, PROTOCOL_SPEC_BASE } from '../../support/protocolChangeNetwork.js';
 import { contrastCsv, runLme4 } from '../../engine/onestage/support/lme4Reference.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'manyfield-pertrial-'));
@@ -22,15 +22,13 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const NAMES = ['rate_linear', 'rate_quadratic', 'treated_vs_control', 'early_vs_late', 'e60_vs_control'] as const;
 const spec = analysisSpecSchema.parse({
-  trait: 'y',
-  columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
-  control: 'CTL',
+  ...PROTOCOL_SPEC_BASE,
   contrasts: [
-    { name: 'rate_linear', trend: 'rate', degree: 1 },
-    { name: 'rate_quadratic', trend: 'rate', degree: 2 },
-    { name: 'treated_vs_control', kind: 'treated-vs-control' },
-    { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-    { name: 'e60_vs_control', coefficients: { E60: 1, CTL: -1 }, divisor: 1 },
+    C.rateLinear,
+    C.rateQuadratic,
+    C.treatedVsControl,
+    C.earlyVsLate,
+    C.e60VsControl,
     // No trial tested both: nothing to pool, said in words.
     { name: 'e50_vs_e60', coefficients: { E50: 1, E60: -1 }, divisor: 1 },
   ],

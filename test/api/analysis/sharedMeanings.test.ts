@@ -10,21 +10,15 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { runAnalysisFromSource } from '../../../src/api/analysis/fromSource.js';
 import { analysisSpecSchema } from '../../../src/spec/analysisSpec.js';
-import { protocolChangeCsv } from '../../support/protocolChangeNetwork.js';
+import { protocolChangeCsv, PROTOCOL_CONTRASTS as C, PROTOCOL_SPEC_BASE } from '../../support/protocolChangeNetwork.js';
 import { exampleNetworkCsv } from '../../../bench/full/exampleNetwork.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'manyfield-meanings-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const spec = analysisSpecSchema.parse({
-  trait: 'y',
-  columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
-  control: 'CTL',
-  contrasts: [
-    { name: 'rate_linear', trend: 'rate', degree: 1 },
-    { name: 'treated_vs_control', kind: 'treated-vs-control' },
-    { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-  ],
+  ...PROTOCOL_SPEC_BASE,
+  contrasts: [C.rateLinear, C.treatedVsControl, C.earlyVsLate],
   oneStage: null,
   twoStage: { tau2: 'reml', interval: 'hksj' },
 });

@@ -12,22 +12,14 @@ import { TrialContrastCache } from '../../../src/api/analysis/trialContrastCache
 import { testedTreatments } from '../../../src/api/analysis/testedTreatments.js';
 import { readNetworkForAnalysis } from '../../../src/intake/index.js';
 import { analysisSpecSchema } from '../../../src/spec/analysisSpec.js';
-import { protocolChangeCsv } from '../../support/protocolChangeNetwork.js';
+import { protocolChangeCsv, PROTOCOL_CONTRASTS as C, PROTOCOL_SPEC_BASE } from '../../support/protocolChangeNetwork.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'manyfield-contrast-cache-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const spec = analysisSpecSchema.parse({
-  trait: 'y',
-  columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
-  control: 'CTL',
-  contrasts: [
-    { name: 'rate_linear', trend: 'rate', degree: 1 },
-    { name: 'rate_quadratic', trend: 'rate', degree: 2 },
-    { name: 'treated_vs_control', kind: 'treated-vs-control' },
-    { name: 'early_vs_late', factor: 'timing', levels: ['early', 'late'] },
-    { name: 'e60_vs_control', coefficients: { E60: 1, CTL: -1 }, divisor: 1 },
-  ],
+  ...PROTOCOL_SPEC_BASE,
+  contrasts: [C.rateLinear, C.rateQuadratic, C.treatedVsControl, C.earlyVsLate, C.e60VsControl],
 });
 
 describe('contrasts resolved once per set of tested treatments', () => {

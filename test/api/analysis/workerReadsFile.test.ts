@@ -8,19 +8,14 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { runFileAnalysisCancellable } from '../../../src/api/analysis/cancellable.js';
 import { analysisSpecSchema } from '../../../src/spec/analysisSpec.js';
-import { protocolChangeCsv } from '../../support/protocolChangeNetwork.js';
+import { protocolChangeCsv, PROTOCOL_CONTRASTS as C, PROTOCOL_SPEC_BASE } from '../../support/protocolChangeNetwork.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'manyfield-worker-read-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const spec = analysisSpecSchema.parse({
-  trait: 'y',
-  columns: { trial: 'env', block: 'block', treatment: 'trt', response: 'y', factors: { rate: 'rate', timing: 'timing' } },
-  control: 'CTL',
-  contrasts: [
-    { name: 'rate_linear', trend: 'rate', degree: 1 },
-    { name: 'treated_vs_control', kind: 'treated-vs-control' },
-  ],
+  ...PROTOCOL_SPEC_BASE,
+  contrasts: [C.rateLinear, C.treatedVsControl],
   oneStage: { random: ['trial', 'block', 'treatment-by-trial'], residual: 'common', df: 'satterthwaite', lrt: false, profile: false },
 });
 
