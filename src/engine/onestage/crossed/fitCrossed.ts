@@ -7,7 +7,7 @@ import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import { tInterval } from '../contrastInference.js';
 import { normalQuantile } from '../../stats/distributions.js';
 import type { ContrastReport, OneStageHooks, OneStageResult, VarianceComponentReport, VarianceSummary } from '../types.js';
-import { crossedData } from './crossedData.js';
+import { contrastVector, crossedData } from './crossedData.js';
 import { crossedLayout, type CrossedLayout } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
@@ -53,17 +53,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const ev = fit.evaluation;
   if (!fit.converged) warnings.push('one-stage REML (sites and years) did not meet its convergence criterion within its evaluation budget');
 
-  const lVector = (c: ResolvedContrast): Float64Array | null => {
-    const l = new Float64Array(L.p);
-    for (const [code, v] of Object.entries(c.coefficients)) {
-      if (v === 0) continue;
-      const j = d.treatments.indexOf(code);
-      if (j < 0) return null;
-      l[j] = v / c.divisor;
-    }
-    return l;
-  };
-  const ls = contrasts.map(lVector);
+  const ls = contrasts.map((c) => contrastVector(d.treatments, c, L.p));
   const unit = d.treatments.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
   const estimable = [...ls, ...unit].filter((l): l is Float64Array => l !== null);
   // the Hessian behind the df also gives the variances' SEs: computed whatever the df method

@@ -6,7 +6,7 @@
 import type { NetworkInput } from '../../types.js';
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import type { PredictionMethod } from '../../pooling/types.js';
-import { crossedData } from './crossedData.js';
+import { contrastVector, crossedData } from './crossedData.js';
 import type { CrossedResult } from './fitCrossed.js';
 import { newSiteNewYearPrediction, type OwnTrialEstimate } from './newSiteNewYearBootstrap.js';
 import type { SiteYearContrast } from './siteYearView.js';
@@ -34,16 +34,7 @@ export function withSiteYearNewSite(result: CrossedResult, network: NetworkInput
   const view = result.siteYearView;
   const bootstrap = options.method !== 'plug-in-t';
   const d = crossedData(network, options.random, options.yearAsFixed);
-  const ls = contrasts.map((c) => {
-    const l = new Float64Array(d.treatments.length);
-    for (const [code, v] of Object.entries(c.coefficients)) {
-      if (v === 0) continue;
-      const j = d.treatments.indexOf(code);
-      if (j < 0) return null;
-      l[j] = v / c.divisor;
-    }
-    return l;
-  });
+  const ls = contrasts.map((c) => contrastVector(d.treatments, c));
   const own = bootstrap ? trialOwnContrasts(d, ls) : [];
   const has = (t: CrossedTerm) => options.random.includes(t);
   const viewContrasts = view.contrasts.map((c, i): SiteYearContrast => {
