@@ -17,7 +17,7 @@ import type { CrossedData } from './crossedData.js';
 import { localColumns, type CrossedLayout } from './crossedLayout.js';
 import { pack, type CrossedEvaluation, type LayoutFactor, type PackedColumns } from './crossedLikelihood.js';
 import { layoutMoments, type LayoutMoments } from './layoutMoments.js';
-import { selectedInverse } from './arrowheadInverse.js';
+import { selectedInverse, type SelectedInverse } from './arrowheadInverse.js';
 import { DIRECT_BELOW, directTraces } from './directTraces.js';
 import { averageInformation } from './averageInformation.js';
 
@@ -33,6 +33,8 @@ export interface CrossedDerivatives {
   /** tr(P Z_k Z_k') and |Z_k' P y|², residual units. */
   readonly trace: Float64Array;
   readonly quadratic: Float64Array;
+  /** The selected inverse of the coefficient matrix at this evaluation (the observed information reuses it). */
+  readonly inverse: SelectedInverse;
 }
 
 export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, withInformation = true): CrossedDerivatives {
@@ -180,5 +182,5 @@ export function crossedDerivatives(d: CrossedData, L: CrossedLayout, ev: Crossed
   const gradient = new Float64Array(nT);
   for (let k = 0; k < nT; k++) gradient[k] = trace[k] - quadratic[k] / ev.sigma2;
   const information = withInformation ? averageInformation(d, L, ev, columns, moments, kappa, zeta, siteScore, yearScore, quadratic) : new Float64Array(nT * nT);
-  return { gradient, information, trace, quadratic };
+  return { gradient, information, trace, quadratic, inverse: inv };
 }

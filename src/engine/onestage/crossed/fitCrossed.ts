@@ -11,7 +11,8 @@ import { contrastVector, crossedData } from './crossedData.js';
 import { crossedLayout, type CrossedLayout } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
-import { AT_ZERO, likelihoodRatio, profileVariance, satterthwaite, type TermTest } from './crossedInference.js';
+import { AT_ZERO, likelihoodRatio, profileVariance, type TermTest } from './crossedInference.js';
+import { satterthwaiteObserved } from './satterthwaiteObserved.js';
 import { contrastAtSite, contrastAtSiteErrorVariance, solveShared, trialBlups } from './crossedPredictions.js';
 import { KNOWN_SITE_CAUTION, tCritical, type SiteYearContrast, type SiteYearSplit, type SiteYearView } from './siteYearView.js';
 import type { CrossedTerm } from './terms.js';
@@ -56,8 +57,9 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const ls = contrasts.map((c) => contrastVector(d.treatments, c, L.p));
   const unit = d.treatments.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
   const estimable = [...ls, ...unit].filter((l): l is Float64Array => l !== null);
-  // the Hessian behind the df also gives the variances' SEs: computed whatever the df method
-  const sat = satterthwaite(d, L, ev, estimable, fit.derivatives);
+  // the Hessian behind the df (the analytic observed information) also gives the variances' SEs:
+  // computed whatever the df method
+  const sat = satterthwaiteObserved(d, L, ev, estimable, fit.derivatives);
   const sdf = df === 'satterthwaite' ? sat.df : null;
   const dfOf = (l: Float64Array): number => {
     if (df === 'residual') return d.nObservations - L.p;
