@@ -27,6 +27,7 @@ import { pack, type CrossedEvaluation, type LayoutFactor, type PackedColumns } f
 import { layoutMoments, type LayoutMoments } from './layoutMoments.js';
 import type { CrossedDerivatives } from './crossedDerivatives.js';
 import { backSolveTranspose, forwardSolveColumns } from './denseSmall.js';
+import type { CrossedTerm } from './terms.js';
 
 export interface ObservedInformation {
   /** d²F/dphi_k dphi_l over all terms (terms x terms, row-major), sigma² held fixed. */
@@ -42,50 +43,84 @@ const momentKey = { trial: 'trial', block: 'block', 'treatment-by-trial': 'treat
 /** Per layout: the moments, and for within-term pairs |G_ab|² and G_Kb G_ba G_aK (G = J'H0^-1 J). */
 interface LayoutPairs {
   readonly mo: LayoutMoments;
+  /** S of each within-trial term, in the order of `within`. */
+  readonly s: Float64Array[];
   readonly local: Float64Array;
   readonly n: Float64Array[];
+}
+
+/** Everything one pass over the sites reads and accumulates (built once; the loops are small functions V8 optimises). */
+interface Pass {
+  readonly d: CrossedData;
+  readonly L: CrossedLayout;
+  readonly ev: CrossedEvaluation;
+  readonly inv: CrossedDerivatives['inverse'];
+  readonly m: number;
+  readonly nb: number;
+  readonly bs: number;
+  readonly nT: number;
+  readonly gamma: Float64Array;
+  readonly within: readonly Within[];
+  readonly wIndex: readonly number[];
+  /** Shared site terms: index and offsets in a site's block; then all terms with a site part. */
+  readonly siteShared: readonly { readonly k: number; readonly offs: readonly number[] }[];
+  readonly siteTerms: readonly number[];
+  readonly columns: readonly PackedColumns[];
+  readonly trialsOfSite: readonly number[][];
+  readonly layouts: Map<LayoutFactor, LayoutPairs>;
+  readonly xBorder: readonly Float64Array[];
+  readonly contrastGradient: Float64Array[];
+  readonly quad: Float64Array;
+  readonly local: Float64Array;
+  readonly mixed: Float64Array;
+  readonly omega: Float64Array[];
+  // per-site scratch
+  readonly phiSS: Float64Array[];
+  readonly phiSB: Float64Array[];
+  readonly psi: Float64Array[];
+  readonly rr: Float64Array[];
+  readonly tt: Float64Array[];
+  readonly xs: Float64Array[];
+  readonly R: Float64Array;
+  readonly mu: Float64Array;
+  readonly mark: Uint8Array;
+  readonly J: Int32Array;
+  readonly sJ: Float64Array;
+  readonly wJ: Float64Array;
+  readonly xSB: Float64Array;
+  readonly pw: Float64Array;
+  readonly vv: Float64Array;
+  readonly tmp: Float64Array;
+  readonly ws: Float64Array;
+  readonly xs2: Float64Array;
+  readonly acc: Float64Array;
 }
 
 export function observedInformation(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, der: CrossedDerivatives, ls: readonly Float64Array[]): ObservedInformation {
   const nT = L.terms.length;
   const m = 1 + L.t;
-  const B = L.border;
-  const nb = B - 1;
+  const nb = L.border - 1;
   const bs = L.bs;
   const { at } = L;
   const inv = der.inverse;
   const Sinv = inv.border;
   const gamma = Float64Array.from(ev.theta, (t) => t * t);
   const within = WITHIN.filter((w) => at[w] >= 0);
-  const nW = within.length;
   const wIndex = within.map((w) => at[w]);
   // shared terms: their offsets in a site's block or in a year's part of the border
-  const siteOffsets = new Map<number, number[]>();
-  if (at.site >= 0) siteOffsets.set(at.site, [0]);
-  if (at['treatment-by-site'] >= 0) siteOffsets.set(at['treatment-by-site'], Array.from({ length: L.t }, (_, j) => (at.site >= 0 ? 1 : 0) + j));
-  const yearOffsets = new Map<number, number[]>();
-  if (at.year >= 0) yearOffsets.set(at.year, [0]);
-  if (at['treatment-by-year'] >= 0) yearOffsets.set(at['treatment-by-year'], Array.from({ length: L.t }, (_, j) => (at.year >= 0 ? 1 : 0) + j));
-  // terms with a part in the site blocks, in a fixed order: shared site terms, then within-trial terms
-  const siteTerms = [...siteOffsets.keys(), ...wIndex];
-  const nS = siteTerms.length;
-
+  const offsetsOf = (own: CrossedTerm, byTreatment: CrossedTerm) => {
+    const out: { k: number; offs: number[] }[] = [];
+    if (at[own] >= 0) out.push({ k: at[own], offs: [0] });
+    if (at[byTreatment] >= 0) out.push({ k: at[byTreatment], offs: Array.from({ length: L.t }, (_, j) => (at[own] >= 0 ? 1 : 0) + j) });
+    return out;
+  };
+  const siteShared = offsetsOf('site', 'treatment-by-site');
+  const yearShared = offsetsOf('year', 'treatment-by-year');
   const columns: PackedColumns[] = [];
   for (let y = 0; y < L.nYears; y++) columns.push(pack(localColumns(L, y, ev.theta)));
   const trialsOfSite: number[][] = Array.from({ length: L.nSites }, () => []);
   d.trials.forEach((tr, i) => trialsOfSite[tr.site].push(i));
-  const layouts = new Map<LayoutFactor, LayoutPairs>();
-  const pairsOf = (i: number): LayoutPairs => {
-    const lf = ev.pieces[i].layout;
-    let lp = layouts.get(lf);
-    if (!lp) {
-      lp = layoutPairs(layoutMoments(d.trials[i], lf, m), m, within);
-      layouts.set(lf, lp);
-    }
-    return lp;
-  };
-
-  // contrast directions x = C^-1 [0; l]: border part S^-1 e, site parts -L_s^-T W_s x_B
+  // contrast directions x = C^-1 [0; l]: border part S^-1 e (site parts per site below)
   const xBorder = ls.map((l) => {
     const x = new Float64Array(nb);
     for (let i = 0; i < nb; i++) {
@@ -97,177 +132,29 @@ export function observedInformation(d: CrossedData, L: CrossedLayout, ev: Crosse
   });
   const contrastGradient = ls.map(() => new Float64Array(nT));
   xBorder.forEach((x, c) => {
-    for (const [k, offs] of yearOffsets) for (let y = 0; y < L.nYears; y++) for (const o of offs) contrastGradient[c][k] += x[y * L.by + o] ** 2;
+    for (const { k, offs } of yearShared) for (let y = 0; y < L.nYears; y++) for (const o of offs) contrastGradient[c][k] += x[y * L.by + o] ** 2;
   });
-
-  const quad = new Float64Array(nT * nT);
-  const local = new Float64Array(nT * nT);
-  const mixed = new Float64Array(nT * nT);
-  const omega = Array.from({ length: nT }, () => new Float64Array(nb * nb));
-  // per-site scratch
-  const phiSS = Array.from({ length: nW }, () => new Float64Array(bs * bs));
-  const phiSB = Array.from({ length: nW }, () => new Float64Array(bs * nb));
-  const psi = Array.from({ length: nS }, () => new Float64Array(bs * bs));
-  const rr = Array.from({ length: nS }, () => new Float64Array(bs * nb));
-  const tt = Array.from({ length: nS }, () => new Float64Array(bs * nb));
-  const xs = ls.map(() => new Float64Array(bs));
-  const R = new Float64Array(m * m);
-  const mu = new Float64Array(m);
-  const mark = new Uint8Array(nb);
-  const J = new Int32Array(nb);
-  const sJ = new Float64Array(nb * nb);
-  const wJ = new Float64Array(bs * nb);
-  const xSB = new Float64Array(bs * nb);
-  const pw = new Float64Array(bs * nb);
-  const vv = new Float64Array(bs * nb);
-  const tmp = new Float64Array(bs * bs);
-
-  for (let s = 0; s < L.nSites; s++) {
-    const trials = trialsOfSite[s];
-    const w = ev.factor.siteW[s];
-    const lsF = ev.factor.siteFactor[s];
-    // the border columns this site's trials touch (W_s and every Phi_sB vanish elsewhere)
-    mark.fill(0);
-    for (const i of trials) {
-      const cols = columns[d.trials[i].year];
-      for (let c = bs; c < cols.n; c++) mark[cols.index[c]] = 1;
-    }
-    let nJ = 0;
-    for (let k = 0; k < nb; k++) if (mark[k]) J[nJ++] = k;
-    for (let a = 0; a < nW; a++) {
-      phiSS[a].fill(0);
-      phiSB[a].fill(0);
-    }
-    // this site's contrast directions
-    ls.forEach((_, c) => {
-      const v = xs[c];
-      const xb = xBorder[c];
-      for (let r = 0; r < bs; r++) {
-        let t = 0;
-        for (let a = 0; a < nJ; a++) t -= w[r * B + J[a]] * xb[J[a]];
-        v[r] = t;
-      }
-      backSolveTranspose(lsF, bs, bs, v);
-      for (const [k, offs] of siteOffsets) for (const o of offs) contrastGradient[c][k] += v[o] ** 2;
-    });
-    for (const i of trials) {
-      const tr = d.trials[i];
-      const lp = pairsOf(i);
-      const cols = columns[tr.year];
-      trialInverse(L, inv, tr.site, cols, R);
-      for (let a = 0; a < nW; a++)
-        for (let b = 0; b <= a; b++) {
-          const nab = lp.n[a * nW + b];
-          let v = 0;
-          for (let x = 0; x < m * m; x++) v += R[x] * nab[x];
-          mixed[wIndex[a] * nT + wIndex[b]] += v;
-          local[wIndex[a] * nT + wIndex[b]] += lp.local[a * nW + b];
-        }
-      // Phi of the within-trial terms, scattered through the trial's columns
-      const { row, value, index, n: nc } = cols;
-      for (let a = 0; a < nW; a++) {
-        const S = lp.mo.s[momentKey[within[a]]];
-        const g = gamma[wIndex[a]];
-        const ss = phiSS[a];
-        const sb = phiSB[a];
-        const bb = omega[wIndex[a]];
-        for (let u = 0; u < nc; u++) {
-          const ru = row[u] * m;
-          const gu = g * value[u];
-          for (let v = 0; v < nc; v++) {
-            const val = gu * value[v] * S[ru + row[v]];
-            if (u < bs) {
-              if (v < bs) ss[index[u] * bs + index[v]] += val;
-              else sb[index[u] * nb + index[v]] += val;
-            } else if (v >= bs) bb[index[u] * nb + index[v]] += val;
-          }
-        }
-      }
-      // contrast gradients of the within-trial terms: (M_i x)' S (M_i x)
-      ls.forEach((_, c) => {
-        mu.fill(0);
-        const xb = xBorder[c];
-        const xv = xs[c];
-        for (let u = 0; u < nc; u++) mu[row[u]] += value[u] * (u < bs ? xv[index[u]] : xb[index[u]]);
-        for (let a = 0; a < nW; a++) {
-          const S = lp.mo.s[momentKey[within[a]]];
-          let v = 0;
-          for (let r = 0; r < m; r++) for (let q = 0; q < m; q++) v += mu[r] * S[r * m + q] * mu[q];
-          contrastGradient[c][wIndex[a]] += gamma[wIndex[a]] * v;
-        }
-      });
-    }
-    if (bs === 0) continue;
-    for (let a = 0; a < nJ; a++) for (let b = 0; b < nJ; b++) sJ[a * nJ + b] = Sinv[J[a] * nb + J[b]];
-    for (let r = 0; r < bs; r++) for (let a = 0; a < nJ; a++) wJ[r * nJ + a] = w[r * B + J[a]];
-    siteTerms.forEach((k, a) => {
-      const p = psi[a];
-      const offs = siteOffsets.get(k);
-      // Psi_ss = L_s^-1 Phi_ss L_s^-T
-      tmp.fill(0);
-      if (offs) for (const o of offs) tmp[o * bs + o] = 1;
-      else tmp.set(phiSS[a - siteOffsets.size]);
-      forwardSolveColumns(lsF, bs, tmp, bs);
-      for (let r = 0; r < bs; r++) for (let c = 0; c < bs; c++) p[c * bs + r] = tmp[r * bs + c];
-      forwardSolveColumns(lsF, bs, p, bs);
-      // X_sB = L_s^-1 Phi_sB on the touched columns
-      xSB.fill(0, 0, bs * nJ);
-      if (!offs) {
-        const sb = phiSB[a - siteOffsets.size];
-        for (let r = 0; r < bs; r++) for (let c = 0; c < nJ; c++) xSB[r * nJ + c] = sb[r * nb + J[c]];
-        forwardSolveColumns(lsF, bs, xSB, nJ);
-      }
-      // R = X_sB - Psi W, V = X_sB - Psi W / 2 (so W'R + R'W + W'Psi W = W'V + V'W), T = R S^-1
-      const rk = rr[a];
-      for (let r = 0; r < bs; r++)
-        for (let c = 0; c < nJ; c++) {
-          let v = 0;
-          for (let q = 0; q < bs; q++) v += p[r * bs + q] * wJ[q * nJ + c];
-          pw[r * nJ + c] = v;
-          rk[r * nJ + c] = xSB[r * nJ + c] - v;
-          vv[r * nJ + c] = xSB[r * nJ + c] - v / 2;
-        }
-      const om = omega[k];
-      for (let x = 0; x < nJ; x++)
-        for (let y = 0; y < nJ; y++) {
-          let v = 0;
-          for (let r = 0; r < bs; r++) v += wJ[r * nJ + x] * vv[r * nJ + y] + vv[r * nJ + x] * wJ[r * nJ + y];
-          om[J[x] * nb + J[y]] -= v;
-        }
-      const tk = tt[a];
-      for (let r = 0; r < bs; r++)
-        for (let c = 0; c < nJ; c++) {
-          let v = 0;
-          for (let q = 0; q < nJ; q++) v += rk[r * nJ + q] * sJ[q * nJ + c];
-          tk[r * nJ + c] = v;
-        }
-    });
-    for (let a = 0; a < nS; a++)
-      for (let b = 0; b <= a; b++) {
-        let v = 0;
-        const pa = psi[a];
-        const pb = psi[b];
-        for (let x = 0; x < bs * bs; x++) v += pa[x] * pb[x];
-        const ta = tt[a];
-        const rb = rr[b];
-        for (let x = 0; x < bs * nJ; x++) v += 2 * ta[x] * rb[x];
-        const ka = siteTerms[a];
-        const kb = siteTerms[b];
-        quad[Math.max(ka, kb) * nT + Math.min(ka, kb)] += v;
-      }
-  }
+  const nS = siteShared.length + within.length;
+  const blocks = (count: number, size: number) => Array.from({ length: count }, () => new Float64Array(size));
+  const pass: Pass = {
+    d, L, ev, inv, m, nb, bs, nT, gamma, within, wIndex, siteShared,
+    siteTerms: [...siteShared.map((x) => x.k), ...wIndex],
+    columns, trialsOfSite, layouts: new Map(), xBorder, contrastGradient,
+    quad: new Float64Array(nT * nT), local: new Float64Array(nT * nT), mixed: new Float64Array(nT * nT), omega: blocks(nT, nb * nb),
+    phiSS: blocks(within.length, bs * bs), phiSB: blocks(within.length, bs * nb),
+    psi: blocks(nS, bs * bs), rr: blocks(nS, bs * nb), tt: blocks(nS, bs * nb), xs: blocks(ls.length, bs),
+    R: new Float64Array(m * m), mu: new Float64Array(m), mark: new Uint8Array(nb), J: new Int32Array(nb),
+    sJ: new Float64Array(nb * nb), wJ: new Float64Array(bs * nb), xSB: new Float64Array(bs * nb), pw: new Float64Array(bs * nb),
+    vv: new Float64Array(bs * nb), tmp: new Float64Array(bs * bs), ws: new Float64Array(bs * nb), xs2: new Float64Array(bs * nb), acc: new Float64Array(nb * nb),
+  };
+  for (let s = 0; s < L.nSites; s++) sitePass(pass, s);
+  const { quad, local, mixed, omega } = pass;
 
   // the border: Omega_a += Phi_BB (selectors for the year terms), Y_a = S^-1 Omega_a
-  for (const [k, offs] of yearOffsets) for (let y = 0; y < L.nYears; y++) for (const o of offs) omega[k][(y * L.by + o) * nb + y * L.by + o] += 1;
+  for (const { k, offs } of yearShared) for (let y = 0; y < L.nYears; y++) for (const o of offs) omega[k][(y * L.by + o) * nb + y * L.by + o] += 1;
   const Y = omega.map((om) => {
     const out = new Float64Array(nb * nb);
-    for (let i = 0; i < nb; i++)
-      for (let k = 0; k < nb; k++) {
-        const s = Sinv[i * nb + k];
-        if (s === 0) continue;
-        const rowK = k * nb;
-        for (let j = 0; j < nb; j++) out[i * nb + j] += s * om[rowK + j];
-      }
+    multiply(Sinv, nb, nb, om, nb, out);
     return out;
   });
   for (let a = 0; a < nT; a++)
@@ -281,11 +168,11 @@ export function observedInformation(d: CrossedData, L: CrossedLayout, ev: Crosse
 
   // shared terms' own diagonal: n_k - 2 tr C^kk
   const extra = new Float64Array(nT);
-  for (const [k, offs] of siteOffsets) {
+  for (const { k, offs } of siteShared) {
     extra[k] = L.nSites * offs.length;
     for (let s = 0; s < L.nSites; s++) for (const o of offs) extra[k] -= 2 * inv.site[s][o * bs + o];
   }
-  for (const [k, offs] of yearOffsets) {
+  for (const { k, offs } of yearShared) {
     extra[k] = L.nYears * offs.length;
     for (let y = 0; y < L.nYears; y++) for (const o of offs) extra[k] -= 2 * Sinv[(y * L.by + o) * nb + y * L.by + o];
   }
@@ -305,6 +192,196 @@ export function observedInformation(d: CrossedData, L: CrossedLayout, ev: Crosse
       hessian[l * nT + k] = h;
     }
   return { hessian, contrastGradient };
+}
+
+/** One site: its trials' pieces, then each site-part term's Psi_ss, R_s, T_s and Omega update. */
+function sitePass(c: Pass, s: number): void {
+  const { d, bs, nb, columns, mark, J, L } = c;
+  const trials = c.trialsOfSite[s];
+  const w = c.ev.factor.siteW[s];
+  const lsF = c.ev.factor.siteFactor[s];
+  const B = L.border;
+  // the border columns this site's trials touch (W_s and every Phi_sB vanish elsewhere)
+  mark.fill(0);
+  for (const i of trials) {
+    const cols = columns[d.trials[i].year];
+    for (let x = bs; x < cols.n; x++) mark[cols.index[x]] = 1;
+  }
+  let nJ = 0;
+  for (let k = 0; k < nb; k++) if (mark[k]) J[nJ++] = k;
+  for (const x of c.phiSS) x.fill(0);
+  for (const x of c.phiSB) x.fill(0);
+  // this site's part of the contrast directions, -L_s^-T W_s x_B
+  for (let ci = 0; ci < c.xs.length; ci++) {
+    const v = c.xs[ci];
+    const xb = c.xBorder[ci];
+    for (let r = 0; r < bs; r++) {
+      let t = 0;
+      for (let a = 0; a < nJ; a++) t -= w[r * B + J[a]] * xb[J[a]];
+      v[r] = t;
+    }
+    backSolveTranspose(lsF, bs, bs, v);
+    for (const { k, offs } of c.siteShared) for (const o of offs) c.contrastGradient[ci][k] += v[o] ** 2;
+  }
+  for (const i of trials) trialPass(c, i);
+  if (bs === 0) return;
+  const { sJ, wJ, ws } = c;
+  const Sinv = c.inv.border;
+  for (let a = 0; a < nJ; a++) for (let b = 0; b < nJ; b++) sJ[a * nJ + b] = Sinv[J[a] * nb + J[b]];
+  for (let r = 0; r < bs; r++) for (let a = 0; a < nJ; a++) wJ[r * nJ + a] = w[r * B + J[a]];
+  // W S^-1 once per site: T = R S^-1 = X S^-1 - Psi (W S^-1)
+  multiply(wJ, bs, nJ, sJ, nJ, ws);
+  const nShared = c.siteShared.length;
+  for (let a = 0; a < c.siteTerms.length; a++) siteTerm(c, s, a, a < nShared ? c.siteShared[a].offs : null, nJ);
+  const nS = c.siteTerms.length;
+  for (let a = 0; a < nS; a++)
+    for (let b = 0; b <= a; b++) {
+      let v = 0;
+      const pa = c.psi[a];
+      const pb = c.psi[b];
+      for (let x = 0; x < bs * bs; x++) v += pa[x] * pb[x];
+      const ta = c.tt[a];
+      const rb = c.rr[b];
+      for (let x = 0; x < bs * nJ; x++) v += 2 * ta[x] * rb[x];
+      const ka = c.siteTerms[a];
+      const kb = c.siteTerms[b];
+      c.quad[Math.max(ka, kb) * c.nT + Math.min(ka, kb)] += v;
+    }
+}
+
+/** One trial: the within-term pair traces, Phi of the within terms, their contrast gradients. */
+function trialPass(c: Pass, i: number): void {
+  const { d, m, bs, nb, nT, within, wIndex, R, mu } = c;
+  const nW = within.length;
+  const tr = d.trials[i];
+  const lf = c.ev.pieces[i].layout;
+  let lp = c.layouts.get(lf);
+  if (!lp) {
+    lp = layoutPairs(layoutMoments(tr, lf, m), m, within);
+    c.layouts.set(lf, lp);
+  }
+  const cols = c.columns[tr.year];
+  trialInverse(c.L, c.inv, tr.site, cols, R);
+  for (let a = 0; a < nW; a++)
+    for (let b = 0; b <= a; b++) {
+      const nab = lp.n[a * nW + b];
+      let v = 0;
+      for (let x = 0; x < m * m; x++) v += R[x] * nab[x];
+      c.mixed[wIndex[a] * nT + wIndex[b]] += v;
+      c.local[wIndex[a] * nT + wIndex[b]] += lp.local[a * nW + b];
+    }
+  for (let a = 0; a < nW; a++) scatterWithin(lp.s[a], c.gamma[wIndex[a]], cols, m, bs, nb, c.phiSS[a], c.phiSB[a], c.omega[wIndex[a]]);
+  // contrast gradients of the within-trial terms: (M_i x)' S (M_i x)
+  const { row, value, index, n: nc } = cols;
+  for (let ci = 0; ci < c.xs.length; ci++) {
+    mu.fill(0);
+    const xb = c.xBorder[ci];
+    const xv = c.xs[ci];
+    for (let u = 0; u < nc; u++) mu[row[u]] += value[u] * (u < bs ? xv[index[u]] : xb[index[u]]);
+    for (let a = 0; a < nW; a++) {
+      const S = lp.s[a];
+      let v = 0;
+      for (let r = 0; r < m; r++) {
+        let t = 0;
+        for (let q = 0; q < m; q++) t += S[r * m + q] * mu[q];
+        v += mu[r] * t;
+      }
+      c.contrastGradient[ci][wIndex[a]] += c.gamma[wIndex[a]] * v;
+    }
+  }
+}
+
+/** Term a of the site-part terms at site s (offs: its selector when shared, null when within-trial). */
+function siteTerm(c: Pass, s: number, a: number, offs: readonly number[] | null, nJ: number): void {
+  const { bs, nb, J, wJ, ws, tmp, pw, vv, xSB, xs2, acc } = c;
+  const lsF = c.ev.factor.siteFactor[s];
+  const p = c.psi[a];
+  const rk = c.rr[a];
+  const tk = c.tt[a];
+  const wa = a - c.siteShared.length;
+  // Psi_ss = L_s^-1 Phi_ss L_s^-T
+  tmp.fill(0);
+  if (offs) for (const o of offs) tmp[o * bs + o] = 1;
+  else tmp.set(c.phiSS[wa]);
+  forwardSolveColumns(lsF, bs, tmp, bs);
+  for (let r = 0; r < bs; r++) for (let q = 0; q < bs; q++) p[q * bs + r] = tmp[r * bs + q];
+  forwardSolveColumns(lsF, bs, p, bs);
+  // R = X_sB - Psi W, V = X_sB - Psi W / 2 (so W'R + R'W + W'Psi W = W'V + V'W), T = R S^-1
+  multiply(p, bs, bs, wJ, nJ, pw);
+  multiply(p, bs, bs, ws, nJ, tk);
+  const size = bs * nJ;
+  if (offs) {
+    for (let x = 0; x < size; x++) {
+      rk[x] = -pw[x];
+      vv[x] = -pw[x] / 2;
+      tk[x] = -tk[x];
+    }
+  } else {
+    // X_sB = L_s^-1 Phi_sB on the touched columns
+    const sb = c.phiSB[wa];
+    for (let r = 0; r < bs; r++) for (let q = 0; q < nJ; q++) xSB[r * nJ + q] = sb[r * nb + J[q]];
+    forwardSolveColumns(lsF, bs, xSB, nJ);
+    multiply(xSB, bs, nJ, c.sJ, nJ, xs2);
+    for (let x = 0; x < size; x++) {
+      rk[x] = xSB[x] - pw[x];
+      vv[x] = xSB[x] - pw[x] / 2;
+      tk[x] = xs2[x] - tk[x];
+    }
+  }
+  // Omega -= W'V + V'W: upper triangle gathered, then scattered to both halves
+  symmetricProduct(wJ, vv, bs, nJ, acc);
+  const om = c.omega[c.siteTerms[a]];
+  for (let x = 0; x < nJ; x++) {
+    const ox = J[x] * nb;
+    for (let y = x; y < nJ; y++) {
+      const v = acc[x * nJ + y];
+      om[ox + J[y]] -= v;
+      if (y !== x) om[J[y] * nb + J[x]] -= v;
+    }
+  }
+}
+
+/** Upper triangle of W'V + V'W (W, V: rows x n) into acc (n x n). */
+function symmetricProduct(w: Float64Array, v: Float64Array, rows: number, n: number, acc: Float64Array): void {
+  acc.fill(0, 0, n * n);
+  for (let r = 0; r < rows; r++) {
+    const ro = r * n;
+    for (let x = 0; x < n; x++) {
+      const wx = w[ro + x];
+      const vx = v[ro + x];
+      const ao = x * n;
+      for (let y = x; y < n; y++) acc[ao + y] += wx * v[ro + y] + vx * w[ro + y];
+    }
+  }
+}
+
+/** Add gamma Q_i' S Q_i of one trial to a term's Phi: site block, coupling and border. */
+function scatterWithin(S: Float64Array, g: number, cols: PackedColumns, m: number, bs: number, nb: number, ss: Float64Array, sb: Float64Array, bb: Float64Array): void {
+  const { row, value, index, n: nc } = cols;
+  for (let u = 0; u < nc; u++) {
+    const ru = row[u] * m;
+    const gu = g * value[u];
+    if (gu === 0) continue;
+    const iu = index[u];
+    if (u < bs) {
+      for (let v = 0; v < bs; v++) ss[iu * bs + index[v]] += gu * value[v] * S[ru + row[v]];
+      for (let v = bs; v < nc; v++) sb[iu * nb + index[v]] += gu * value[v] * S[ru + row[v]];
+    } else for (let v = bs; v < nc; v++) bb[iu * nb + index[v]] += gu * value[v] * S[ru + row[v]];
+  }
+}
+
+/** out = a b for a (rows x inner) and b (inner x cols), row-major. */
+function multiply(a: Float64Array, rows: number, inner: number, b: Float64Array, cols: number, out: Float64Array): void {
+  out.fill(0, 0, rows * cols);
+  for (let r = 0; r < rows; r++) {
+    const o = r * cols;
+    for (let q = 0; q < inner; q++) {
+      const x = a[r * inner + q];
+      if (x === 0) continue;
+      const bo = q * cols;
+      for (let c = 0; c < cols; c++) out[o + c] += x * b[bo + c];
+    }
+  }
 }
 
 /** R = M_i C^-1 M_i' (m x m) for a trial of site `site` with columns `cols`, from the selected inverse. */
@@ -364,5 +441,5 @@ function layoutPairs(mo: LayoutMoments, m: number, within: readonly Within[]): L
       });
       n[a * nW + b] = out;
     }
-  return { mo, local, n };
+  return { mo, s: within.map((w) => mo.s[momentKey[w]]), local, n };
 }
