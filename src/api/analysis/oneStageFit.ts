@@ -3,7 +3,7 @@
 import type { ResolvedContrast } from '../../engine/contrasts/resolve.js';
 import { fitOneStage, type OneStageHooks, type OneStageResult } from '../../engine/onestage/fitOneStage.js';
 import { fitCrossed } from '../../engine/onestage/crossed/fitCrossed.js';
-import { CrossedDataError } from '../../engine/onestage/crossed/crossedData.js';
+import { CrossedDataError, crossedData } from '../../engine/onestage/crossed/crossedData.js';
 import { withSiteYearNewSite } from '../../engine/onestage/crossed/siteYearNewSite.js';
 import { needsCrossedFit, type CrossedTerm } from '../../engine/onestage/crossed/terms.js';
 import { RANDOM_TERMS, type RandomTerm } from '../../engine/onestage/types.js';
@@ -23,8 +23,10 @@ export function runOneStage(network: NetworkInput, contrasts: readonly ResolvedC
   if (options.covariates.length > 0)
     throw new ManyfieldError('invalid-argument', 'oneStage: trial covariates are not yet available with site or year terms; leave oneStage.covariates empty');
   try {
-    const fit = fitCrossed(network, contrasts, { random: options.random as CrossedTerm[], yearAsFixed: options.yearAsFixed, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile }, hooks);
-    return withSiteYearNewSite(fit, network, contrasts, { random: options.random as CrossedTerm[], yearAsFixed: options.yearAsFixed, method: options.prediction, confidence: spec.confidence, threshold: spec.threshold, draws: options.siteLevelDraws, seed: options.predictionSeed, signal: hooks.signal, onProgress: (_c, f) => hooks.onProgress?.({ stage: 'new-site-in-a-new-year bootstrap', iteration: Math.round(f * options.siteLevelDraws), criterion: f }) });
+    // the plots as the crossed model reads them, built once for the fit and the new-site prediction
+    const data = crossedData(network, options.random as CrossedTerm[], options.yearAsFixed);
+    const fit = fitCrossed(network, contrasts, { random: options.random as CrossedTerm[], yearAsFixed: options.yearAsFixed, df: options.df, confidence: spec.confidence, lrt: options.lrt, profile: options.profile }, hooks, data);
+    return withSiteYearNewSite(fit, network, contrasts, { data, random: options.random as CrossedTerm[], yearAsFixed: options.yearAsFixed, method: options.prediction, confidence: spec.confidence, threshold: spec.threshold, draws: options.siteLevelDraws, seed: options.predictionSeed, signal: hooks.signal, onProgress: (_c, f) => hooks.onProgress?.({ stage: 'new-site-in-a-new-year bootstrap', iteration: Math.round(f * options.siteLevelDraws), criterion: f }) });
   } catch (e) {
     if (e instanceof CrossedDataError) throw new ManyfieldError('invalid-argument', e.message);
     throw e;

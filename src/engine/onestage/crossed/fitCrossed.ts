@@ -7,7 +7,7 @@ import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import { tInterval } from '../contrastInference.js';
 import { normalQuantile } from '../../stats/distributions.js';
 import type { ContrastReport, OneStageHooks, OneStageResult, VarianceComponentReport, VarianceSummary } from '../types.js';
-import { contrastVector, crossedData } from './crossedData.js';
+import { contrastVector, crossedData, type CrossedData } from './crossedData.js';
 import { crossedLayout, type CrossedLayout } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
@@ -35,9 +35,10 @@ export type CrossedResult = OneStageResult & { siteYearView: SiteYearView };
  * point, slow with the derivative-free search. Otherwise the split shows log-scale Wald intervals.
  */
 
-export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: CrossedOptions, hooks: OneStageHooks = {}): CrossedResult {
+/** `prepared`: the network's crossedData for these terms when the caller has already built it. */
+export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: CrossedOptions, hooks: OneStageHooks = {}, prepared?: CrossedData): CrossedResult {
   const began = Date.now();
-  const d = crossedData(network, options.random, options.yearAsFixed);
+  const d = prepared ?? crossedData(network, options.random, options.yearAsFixed);
   const L = crossedLayout(d, options.random, options.yearAsFixed);
   const warnings: string[] = [];
   const unobserved = network.treatments.map((t) => t.code).filter((c) => !d.treatments.includes(c));

@@ -6,7 +6,7 @@
 import type { NetworkInput } from '../../types.js';
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import type { PredictionMethod } from '../../pooling/types.js';
-import { contrastVector, crossedData } from './crossedData.js';
+import { contrastVector, crossedData, type CrossedData } from './crossedData.js';
 import type { CrossedResult } from './fitCrossed.js';
 import { newSiteNewYearPrediction, type OwnTrialEstimate } from './newSiteNewYearBootstrap.js';
 import type { SiteYearContrast } from './siteYearView.js';
@@ -14,6 +14,8 @@ import type { CrossedTerm } from './terms.js';
 import { trialOwnContrasts } from './trialOwnContrasts.js';
 
 export interface SiteYearNewSiteOptions {
+  /** The network's crossedData for these terms, when already built (the fit's). */
+  readonly data?: CrossedData;
   readonly random: readonly CrossedTerm[];
   readonly yearAsFixed: boolean;
   readonly method: PredictionMethod;
@@ -33,7 +35,7 @@ export const PLUG_IN_WORDS = 'new site in a new year: estimate ± t(sites - 2) s
 export function withSiteYearNewSite(result: CrossedResult, network: NetworkInput, contrasts: readonly ResolvedContrast[], options: SiteYearNewSiteOptions): CrossedResult {
   const view = result.siteYearView;
   const bootstrap = options.method !== 'plug-in-t';
-  const d = crossedData(network, options.random, options.yearAsFixed);
+  const d = options.data ?? crossedData(network, options.random, options.yearAsFixed);
   const ls = contrasts.map((c) => contrastVector(d.treatments, c));
   const own = bootstrap ? trialOwnContrasts(d, ls) : [];
   const has = (t: CrossedTerm) => options.random.includes(t);
