@@ -12,6 +12,7 @@ import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, unprofiledCriterion, type CrossedEvaluation } from './crossedLikelihood.js';
 import { optimiseCrossed, solveSymmetric, type OptimiseHooks } from './optimiseCrossed.js';
 import { crossedDerivatives, type CrossedDerivatives } from './crossedDerivatives.js';
+import { profileNewton } from './profileNewton.js';
 
 /** Terms whose relative sd is this small count as at zero (left out of the df calculation). */
 export const AT_ZERO = 1e-5;
@@ -162,6 +163,11 @@ export function profileVariance(d: CrossedData, L: CrossedLayout, ev: CrossedEva
   const vHat = ev.sigma2 * ev.theta[k] ** 2;
   const others = L.terms.map((_, j) => j).filter((j) => j !== k);
   let warm = Float64Array.from([Math.log(ev.sigma2), ...others.map((j) => ev.theta[j])]);
+  const thetaOf = (x: Float64Array): Float64Array => {
+    const th = new Float64Array(L.terms.length);
+    others.forEach((j, i) => (th[j] = Math.abs(x[1 + i])));
+    return th;
+  };
   const profileAt = (v: number): number => {
     if (signal?.aborted) throw new Error('one-stage fit cancelled');
     const f = (x: Float64Array): number => {
@@ -172,6 +178,12 @@ export function profileVariance(d: CrossedData, L: CrossedLayout, ev: CrossedEva
       const e = evaluateCrossed(d, L, th);
       return e ? unprofiledCriterion(e, s2, d.nObservations, L.p) : Infinity;
     };
+    // Newton steps on the analytic derivatives first (profileNewton.ts); the simplex when they fail
+    const nt = profileNewton(d, L, k, v, Math.exp(warm[0]), thetaOf(warm), AT_ZERO, signal);
+    if (nt) {
+      warm = Float64Array.from([Math.log(nt.sigma2), ...others.map((j) => nt.theta[j])]);
+      return nt.value;
+    }
     const r = nelderMead(f, warm, { step: 0.05, fTolerance: 1e-10, xTolerance: 1e-6, maxEvaluations: 3000 });
     warm = Float64Array.from(r.x);
     return r.value;

@@ -96,7 +96,8 @@ interface Pass {
   readonly acc: Float64Array;
 }
 
-export function observedInformation(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, der: CrossedDerivatives, ls: readonly Float64Array[]): ObservedInformation {
+/** `sigma2`: the residual variance held fixed (default the profiled one at ev; the profile intervals hold another). */
+export function observedInformation(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, der: CrossedDerivatives, ls: readonly Float64Array[], sigma2 = ev.sigma2): ObservedInformation {
   const nT = L.terms.length;
   const m = 1 + L.t;
   const nb = L.border - 1;
@@ -185,9 +186,10 @@ export function observedInformation(d: CrossedData, L: CrossedLayout, ev: Crosse
       let e = quad[k * nT + l];
       if (k === l) e += extra[k];
       if (isWithin(k) && isWithin(l)) e += gamma[k] * gamma[l] * (local[k * nT + l] - 2 * mixed[k * nT + l]);
+      // Q from the AI matrix (which divides by the profiled sigma²); the gradient at the fixed sigma²
       const q = ev.sigma2 * der.information[k * nT + l] + (der.quadratic[k] * der.quadratic[l]) / ev.rHr;
-      let h = gamma[k] * gamma[l] * ((2 * q) / ev.sigma2) - e;
-      if (k === l) h += gamma[k] * der.gradient[k];
+      let h = gamma[k] * gamma[l] * ((2 * q) / sigma2) - e;
+      if (k === l) h += gamma[k] * (der.trace[k] - der.quadratic[k] / sigma2);
       hessian[k * nT + l] = h;
       hessian[l * nT + k] = h;
     }
