@@ -5,7 +5,8 @@
 // (crossedDerivatives.ts, observedInformation.ts: in phi = (log sigma², log gamma_j) and mapped by
 // phi_j = psi_j - psi_0), each step halved until the criterion falls. Returns null — and the caller
 // takes its derivative-free search instead — when the Hessian is not positive definite, a step
-// cannot lower the criterion, or a term held at zero would rather leave it.
+// cannot lower the criterion, or a term held at zero would rather leave it. Far from the point
+// the Hessian may be indefinite: a ridge is then added until it is not (a damped Newton step).
 import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
 import { evaluateCrossed, unprofiledCriterion, type CrossedEvaluation } from './crossedLikelihood.js';
@@ -86,12 +87,13 @@ export function profileNewton(d: CrossedData, L: CrossedLayout, k: number, v: nu
         H[a * n + b] = s;
       }
     }
-    const step = solveSymmetric(H, g, n);
+    const step = dampedSolve(H, g, n);
     if (!step) return null;
     let decrement = 0;
     for (let a = 0; a < n; a++) decrement += g[a] * step[a];
     if (!(decrement >= 0)) return null;
-    if (decrement < 1e-10) return { value: cur.value, sigma2: s2, theta: cur.th };
+    // a minimum only where the Hessian itself is positive definite
+    if (decrement < 1e-10 && undamped(H, n)) return { value: cur.value, sigma2: s2, theta: cur.th };
     let t = 1;
     let next: Point | null = null;
     let moved = psi;
@@ -104,9 +106,27 @@ export function profileNewton(d: CrossedData, L: CrossedLayout, k: number, v: nu
       }
       t /= 2;
     }
-    if (!next) return decrement < 1e-6 ? { value: cur.value, sigma2: s2, theta: cur.th } : null;
+    if (!next) return decrement < 1e-6 && undamped(H, n) ? { value: cur.value, sigma2: s2, theta: cur.th } : null;
     psi = moved;
     cur = next;
+  }
+  return null;
+}
+
+function undamped(H: Float64Array, n: number): boolean {
+  return solveSymmetric(H, new Float64Array(n), n) !== null;
+}
+
+/** Solve H s = g; while H is not positive definite, with a growing ridge on its diagonal. */
+function dampedSolve(H: Float64Array, g: Float64Array, n: number): Float64Array | null {
+  let scale = 0;
+  for (let i = 0; i < n; i++) scale = Math.max(scale, Math.abs(H[i * n + i]));
+  if (!(scale > 0)) return null;
+  for (let ridge = 0; ridge <= 1e4; ridge = ridge === 0 ? 1e-8 : ridge * 10) {
+    const m = Float64Array.from(H);
+    for (let i = 0; i < n; i++) m[i * n + i] += ridge * scale;
+    const s = solveSymmetric(m, g, n);
+    if (s) return s;
   }
   return null;
 }
