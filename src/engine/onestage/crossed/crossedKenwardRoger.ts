@@ -16,7 +16,7 @@ import type { CrossedLayout } from './crossedLayout.js';
 import { localColumns } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
 import type { CrossedTerm } from './terms.js';
-import { applyE, applyHInverse, inverseParts, largestBlock, MAX_BLOCK_PLOTS, uTranspose, type InverseParts } from './crossedInverseParts.js';
+import { applyHInverse, inverseParts, largestBlock, MAX_BLOCK_PLOTS, type InverseParts } from './crossedInverseParts.js';
 import { solveSymmetric } from './denseSmall.js';
 import { kenwardRogerDf } from '../contrastInference.js';
 
@@ -109,10 +109,15 @@ function traceProduct(a: Float64Array, b: Float64Array, p: number): number {
   return s;
 }
 
-/** |Z_i'E Z_j|²_F for every pair (nPar x nPar), block by block. */
-function blockTraces(parts: InverseParts, levels: readonly Levels[]): Float64Array {
+/**
+ * Block by block, for every pair (nPar x nPar): |Z_i'E Z_j|²_F, and <G_i U, E G_j U> from the level
+ * sums zu_i = Z_i'U (levels x q): E_g G_j U = (Z_j'E_g)' zu_j on the block's plots.
+ */
+function blockTraces(parts: InverseParts, levels: readonly Levels[], zu: readonly Float64Array[]): { frobenius: Float64Array; cross: Float64Array } {
   const nPar = levels.length;
+  const q = parts.q;
   const out = new Float64Array(nPar * nPar);
+  const cross = new Float64Array(nPar * nPar);
   // pairs with a level spanning sites: Z_i'E Z_j gathered over the sites first (one side is small)
   const gathered = new Map<number, Float64Array>();
   for (let i = 0; i < nPar; i++)
@@ -137,6 +142,7 @@ function blockTraces(parts: InverseParts, levels: readonly Levels[]): Float64Arr
       }
       return { at, global: [...index.keys()] };
     });
+    const rows: Float64Array[] = new Array(nPar);
     for (let i = 0; i < nPar; i++) {
       const li = local[i];
       const ni = li.global.length;
@@ -149,6 +155,7 @@ function blockTraces(parts: InverseParts, levels: readonly Levels[]): Float64Arr
         const src = a * ng;
         for (let b = 0; b < ng; b++) r[row + b] += blk[src + b];
       }
+      rows[i] = r;
       for (let j = i; j < nPar; j++) {
         const lj = local[j];
         const nj = lj.global.length;
@@ -169,14 +176,49 @@ function blockTraces(parts: InverseParts, levels: readonly Levels[]): Float64Arr
         }
       }
     }
+    if (q === 0) continue;
+    const y = new Float64Array(ng * q);
+    for (let j = 0; j < nPar; j++) {
+      // Y = E_g Z_j zu_j = R_j' zu_j (ng x q)
+      y.fill(0);
+      const r = rows[j];
+      const gj = local[j].global;
+      const zj = zu[j];
+      for (let lb = 0; lb < gj.length; lb++) {
+        const z = gj[lb] * q;
+        for (let a = 0; a < ng; a++) {
+          const v = r[lb * ng + a];
+          if (v === 0) continue;
+          const ya = a * q;
+          for (let k = 0; k < q; k++) y[ya + k] += v * zj[z + k];
+        }
+      }
+      for (let i = 0; i <= j; i++) {
+        const at = levels[i].of;
+        const zi = zu[i];
+        let sum = 0;
+        for (let a = 0; a < ng; a++) {
+          const level = at[s0 + a];
+          if (level < 0) continue;
+          const z = level * q;
+          const ya = a * q;
+          for (let k = 0; k < q; k++) sum += zi[z + k] * y[ya + k];
+        }
+        cross[i * nPar + j] += sum;
+      }
+    }
   }
   for (const [key, acc] of gathered) {
     let sq = 0;
     for (let x = 0; x < acc.length; x++) sq += acc[x] * acc[x];
     out[key] += sq;
   }
-  for (let i = 0; i < nPar; i++) for (let j = 0; j < i; j++) out[i * nPar + j] = out[j * nPar + i];
-  return out;
+  for (let i = 0; i < nPar; i++)
+    for (let j = 0; j < i; j++) {
+      out[i * nPar + j] = out[j * nPar + i];
+      cross[j * nPar + i] = cross[i * nPar + j] = cross[i * nPar + j] + cross[j * nPar + i];
+    }
+  return { frobenius: out, cross };
 }
 
 /** The fixed effects' design X (n x p) in group order, as the border's fixed columns read it. */
@@ -217,19 +259,12 @@ export function crossedKenwardRoger(d: CrossedData, L: CrossedLayout, ev: Crosse
   const Q = (i: number, j: number) => crossProduct(OO[i], p, VOO[j], p, n);
 
   // tr(V^-1 G_i V^-1 G_j) = tr(H^-1 G_i H^-1 G_j) / sigma⁴ through E and U
-  const ktrace = blockTraces(parts, levels);
+  const zu = levels.map((lv) => (q > 0 ? sumByLevel(lv, parts.u, q) : new Float64Array(0))); // Z_i'U
+  const { frobenius: ktrace, cross } = blockTraces(parts, levels, zu);
   if (q > 0) {
-    const gu = levels.map((lv) => spread(lv, sumByLevel(lv, parts.u, q), q)); // G_i U
-    const egu = gu.map((x) => applyE(parts, x, q));
-    const ugu = gu.map((x) => uTranspose(parts, x, q));
+    const ugu = zu.map((z, i) => crossProduct(z, q, z, q, levels[i].count)); // U'G_i U
     for (let i = 0; i < nPar; i++)
-      for (let j = i; j < nPar; j++) {
-        let cross = 0;
-        for (let x = 0; x < n * q; x++) cross += gu[i][x] * egu[j][x];
-        const v = -2 * cross + traceProduct(ugu[i], ugu[j], q);
-        ktrace[i * nPar + j] += v;
-        if (j !== i) ktrace[j * nPar + i] += v;
-      }
+      for (let j = 0; j < nPar; j++) ktrace[i * nPar + j] += -2 * cross[i * nPar + j] + traceProduct(ugu[i], ugu[j], q);
   }
   const ie2 = new Float64Array(nPar * nPar);
   const qs = new Map<number, Float64Array>();
