@@ -335,15 +335,15 @@ export function crossedKenwardRoger(d: CrossedData, L: CrossedLayout, ev: Crosse
  * Satterthwaite df instead): a residual per trial is not covered, nor a site (or, without site
  * terms, a trial) with more plots than MAX_BLOCK_PLOTS, whose block of E would be held dense.
  */
-export function kenwardRogerOrWarn(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, residualPerTrial: boolean, warnings: string[]): CrossedKenwardRoger | null {
+export function kenwardRogerOrWarn(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, residualPerTrial: boolean, warnings: string[], limit = MAX_BLOCK_PLOTS): CrossedKenwardRoger | null {
   const instead = 'Satterthwaite df are given instead';
   if (residualPerTrial) {
     warnings.push(`Kenward–Roger df are not available for the model with site or year terms and a residual per trial: ${instead}`);
     return null;
   }
   const largest = largestBlock(d, L);
-  if (largest > MAX_BLOCK_PLOTS) {
-    warnings.push(`Kenward–Roger df need a dense block of ${largest} x ${largest} for the largest ${L.bs > 0 ? 'site' : 'trial'} (limit ${MAX_BLOCK_PLOTS} plots): ${instead}`);
+  if (largest > limit) {
+    warnings.push(`Kenward–Roger df need a dense block of ${largest} x ${largest} for the largest ${L.bs > 0 ? 'site' : 'trial'} (limit ${limit} plots): ${instead}`);
     return null;
   }
   try {
