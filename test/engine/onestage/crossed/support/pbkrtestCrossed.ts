@@ -8,19 +8,22 @@ import { R_TERM } from './lmerCrossed.js';
 
 /**
  * `rows`: contrasts over the treatments in `treatments` order (the means are added by R as unit
- * rows after them). `theta`: relative sds by lme4 group name (R_GROUP), our estimates.
+ * rows after them). `theta`: relative sds by lme4 group name (R_GROUP), our estimates. Fixed years
+ * (yearAsFixed) in sum-to-zero coding, as the fitter codes them.
  * Emits, for row i: kdf{i}, kse{i} at lmer's optimum and tdf{i}, tse{i} at theta.
  */
-export function runPbkrtestCrossed(csv: string, treatments: readonly string[], rows: readonly number[][], terms: readonly string[], theta: Record<string, number>): RRun {
-  const formula = `y ~ 0 + trt + ${terms.map((t) => R_TERM[t]).join(' + ')}`;
+export function runPbkrtestCrossed(csv: string, treatments: readonly string[], rows: readonly number[][], terms: readonly string[], theta: Record<string, number>, yearAsFixed = false): RRun {
+  const formula = `y ~ 0 + trt${yearAsFixed ? ' + year' : ''} + ${terms.map((t) => R_TERM[t]).join(' + ')}`;
   const script = `
 suppressMessages({ library(lme4); library(pbkrtest) })
 d <- read.csv('data.csv', stringsAsFactors = TRUE)
 d$year <- factor(d$year)
+contrasts(d$year) <- contr.sum(nlevels(d$year))
 d$trt <- factor(d$trt, levels = c(${treatments.map((t) => `'${t}'`).join(',')}))
 f <- lmer(${formula}, data = d, REML = TRUE, control = lmerControl(optimizer = 'bobyqa', optCtrl = list(rhoend = 1e-12, maxfun = 1e5)))
 nt <- nlevels(d$trt)
 L <- rbind(${[...rows.map((r) => `c(${r.join(',')})`), 'diag(nt)'].join(', ')})
+L <- cbind(L, matrix(0, nrow(L), length(fixef(f)) - nt))
 kr <- function(fit, tag) {
   adj <- vcovAdj(fit)
   va <- as.matrix(adj)
