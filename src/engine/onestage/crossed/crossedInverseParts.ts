@@ -21,6 +21,10 @@ export interface InverseParts {
   readonly start: Int32Array;
   /** Per group its block of E, n_g x n_g row-major. */
   readonly e: readonly Float64Array[];
+  /** The same block as D - F F': per trial of the group H0_i^-1 (n_i x n_i, at plot `offset` of the group), and F (n_g x bs). */
+  readonly h0: readonly { readonly offset: number; readonly size: number; readonly inverse: Float64Array }[][];
+  readonly f: readonly Float64Array[];
+  readonly bs: number;
   /** n x q row-major. */
   readonly u: Float64Array;
   /** Per plot (in group order): trial index, plot index within the trial. */
@@ -60,6 +64,8 @@ export function inverseParts(d: CrossedData, L: CrossedLayout, ev: CrossedEvalua
   const columns: PackedColumns[] = [];
   for (let y = 0; y < L.nYears; y++) columns.push(pack(localColumns(L, y, ev.theta)));
   const e: Float64Array[] = [];
+  const h0: { offset: number; size: number; inverse: Float64Array }[][] = [];
+  const fs: Float64Array[] = [];
   const gs = new Float64Array(bs);
   const gb = new Float64Array(nb);
   for (let g = 0; g < nGroups; g++) {
@@ -67,6 +73,7 @@ export function inverseParts(d: CrossedData, L: CrossedLayout, ev: CrossedEvalua
     const block = new Float64Array(ng * ng);
     const ts = new Float64Array(ng * bs); // site parts of T, one row per plot
     let offset = 0;
+    const h0g: { offset: number; size: number; inverse: Float64Array }[] = [];
     for (const i of trialsOf[g]) {
       const tr = d.trials[i];
       const lf = ev.pieces[i].layout;
@@ -80,6 +87,9 @@ export function inverseParts(d: CrossedData, L: CrossedLayout, ev: CrossedEvalua
         backSolveTranspose(lf.l, ni, ni, col);
         for (let r = 0; r < ni; r++) block[(offset + r) * ng + offset + c] = col[r];
       }
+      const inverse = new Float64Array(ni * ni);
+      for (let r = 0; r < ni; r++) for (let c = 0; c < ni; c++) inverse[r * ni + c] = block[(offset + r) * ng + offset + c];
+      h0g.push({ offset, size: ni, inverse });
       const hk = new Float64Array(ni * m);
       for (let r = 0; r < m; r++) {
         for (let p = 0; p < ni; p++) col[p] = lf.lk[p * m + r];
@@ -117,28 +127,55 @@ export function inverseParts(d: CrossedData, L: CrossedLayout, ev: CrossedEvalua
           if (b !== a) block[b * ng + a] -= s;
         }
     e.push(block);
+    h0.push(h0g);
+    fs.push(ts);
   }
-  return { n, q, start, e, u, trialOf, plotInTrial };
+  return { n, q, start, e, h0, f: fs, bs, u, trialOf, plotInTrial };
 }
 
 /** E x for x n x c row-major (block by block). */
 export function applyE(parts: InverseParts, x: Float64Array, c: number): Float64Array {
   const out = new Float64Array(parts.n * c);
-  const { start, e } = parts;
-  for (let g = 0; g < e.length; g++) {
-    const s0 = start[g];
-    const ng = start[g + 1] - s0;
-    const blk = e[g];
-    for (let a = 0; a < ng; a++) {
-      const row = (s0 + a) * c;
-      for (let b = 0; b < ng; b++) {
-        const v = blk[a * ng + b];
-        const xr = (s0 + b) * c;
-        for (let k = 0; k < c; k++) out[row + k] += v * x[xr + k];
+  for (let g = 0; g < parts.e.length; g++) applyEBlock(parts, g, x, out, c);
+  return out;
+}
+
+/**
+ * Rows of block g of E x into out (both n x c; the block's rows only), as D x - F (F'x): the
+ * trials' H0^-1 and the rank-bs site part, cheaper than the dense block.
+ */
+export function applyEBlock(parts: InverseParts, g: number, x: Float64Array, out: Float64Array, c: number): void {
+  const s0 = parts.start[g];
+  const ng = parts.start[g + 1] - s0;
+  for (const t of parts.h0[g]) {
+    const k = t.size;
+    for (let a = 0; a < k; a++) {
+      const row = (s0 + t.offset + a) * c;
+      for (let b = 0; b < k; b++) {
+        const v = t.inverse[a * k + b];
+        const xr = (s0 + t.offset + b) * c;
+        for (let j = 0; j < c; j++) out[row + j] += v * x[xr + j];
       }
     }
   }
-  return out;
+  const bs = parts.bs;
+  if (bs === 0) return;
+  const f = parts.f[g];
+  const ftx = new Float64Array(bs * c);
+  for (let a = 0; a < ng; a++) {
+    const xr = (s0 + a) * c;
+    for (let r = 0; r < bs; r++) {
+      const v = f[a * bs + r];
+      for (let j = 0; j < c; j++) ftx[r * c + j] += v * x[xr + j];
+    }
+  }
+  for (let a = 0; a < ng; a++) {
+    const row = (s0 + a) * c;
+    for (let r = 0; r < bs; r++) {
+      const v = f[a * bs + r];
+      for (let j = 0; j < c; j++) out[row + j] -= v * ftx[r * c + j];
+    }
+  }
 }
 
 /** U'x (q x c) for x n x c. */

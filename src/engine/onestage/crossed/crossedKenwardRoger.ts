@@ -16,7 +16,7 @@ import type { CrossedLayout } from './crossedLayout.js';
 import { localColumns } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
 import type { CrossedTerm } from './terms.js';
-import { applyHInverse, inverseParts, largestBlock, MAX_BLOCK_PLOTS, type InverseParts } from './crossedInverseParts.js';
+import { applyEBlock, applyHInverse, inverseParts, largestBlock, MAX_BLOCK_PLOTS, type InverseParts } from './crossedInverseParts.js';
 import { solveSymmetric } from './denseSmall.js';
 import { kenwardRogerDf } from '../contrastInference.js';
 
@@ -118,6 +118,8 @@ function blockTraces(parts: InverseParts, levels: readonly Levels[], zu: readonl
   const q = parts.q;
   const out = new Float64Array(nPar * nPar);
   const cross = new Float64Array(nPar * nPar);
+  const residual = nPar - 1; // the residual is the last parameter
+  const yFull = new Float64Array(q > 0 ? parts.n * q : 0);
   // pairs with a level spanning sites: Z_i'E Z_j gathered over the sites first (one side is small)
   const gathered = new Map<number, Float64Array>();
   for (let i = 0; i < nPar; i++)
@@ -179,18 +181,23 @@ function blockTraces(parts: InverseParts, levels: readonly Levels[], zu: readonl
     if (q === 0) continue;
     const y = new Float64Array(ng * q);
     for (let j = 0; j < nPar; j++) {
-      // Y = E_g Z_j zu_j = R_j' zu_j (ng x q)
+      // Y = E_g Z_j zu_j = R_j' zu_j (ng x q); for the residual (Z = I) E_g U_g through D - F F'
       y.fill(0);
       const r = rows[j];
       const gj = local[j].global;
       const zj = zu[j];
-      for (let lb = 0; lb < gj.length; lb++) {
-        const z = gj[lb] * q;
-        for (let a = 0; a < ng; a++) {
-          const v = r[lb * ng + a];
-          if (v === 0) continue;
-          const ya = a * q;
-          for (let k = 0; k < q; k++) y[ya + k] += v * zj[z + k];
+      if (j === residual) {
+        applyEBlock(parts, g, parts.u, yFull, q);
+        y.set(yFull.subarray(s0 * q, (s0 + ng) * q));
+      } else {
+        for (let lb = 0; lb < gj.length; lb++) {
+          const z = gj[lb] * q;
+          for (let a = 0; a < ng; a++) {
+            const v = r[lb * ng + a];
+            if (v === 0) continue;
+            const ya = a * q;
+            for (let k = 0; k < q; k++) y[ya + k] += v * zj[z + k];
+          }
         }
       }
       for (let i = 0; i <= j; i++) {
