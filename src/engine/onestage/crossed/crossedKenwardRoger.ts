@@ -92,6 +92,22 @@ function crossProduct(a: Float64Array, ca: number, b: Float64Array, cb: number, 
   return out;
 }
 
+/** a'a for a (rows x c), lower triangle accumulated then mirrored. */
+function gram(a: Float64Array, c: number, rows: number): Float64Array {
+  const out = new Float64Array(c * c);
+  for (let r = 0; r < rows; r++) {
+    const base = r * c;
+    for (let i = 0; i < c; i++) {
+      const v = a[base + i];
+      if (v === 0) continue;
+      const row = i * c;
+      for (let j = 0; j <= i; j++) out[row + j] += v * a[base + j];
+    }
+  }
+  for (let i = 0; i < c; i++) for (let j = 0; j < i; j++) out[j * c + i] = out[i * c + j];
+  return out;
+}
+
 function multiply(a: Float64Array, b: Float64Array, p: number): Float64Array {
   const out = new Float64Array(p * p);
   for (let i = 0; i < p; i++)
@@ -269,7 +285,7 @@ export function crossedKenwardRoger(d: CrossedData, L: CrossedLayout, ev: Crosse
   const zu = levels.map((lv) => (q > 0 ? sumByLevel(lv, parts.u, q) : new Float64Array(0))); // Z_i'U
   const { frobenius: ktrace, cross } = blockTraces(parts, levels, zu);
   if (q > 0) {
-    const ugu = zu.map((z, i) => crossProduct(z, q, z, q, levels[i].count)); // U'G_i U
+    const ugu = zu.map((z, i) => gram(z, q, levels[i].count)); // U'G_i U
     for (let i = 0; i < nPar; i++)
       for (let j = 0; j < nPar; j++) ktrace[i * nPar + j] += -2 * cross[i * nPar + j] + traceProduct(ugu[i], ugu[j], q);
   }
