@@ -33,7 +33,7 @@ export interface InverseParts {
 }
 
 /** The largest block of E the dense route takes (its square is held per block). */
-export const MAX_BLOCK_PLOTS = 4000;
+export const MAX_BLOCK_PLOTS = 3000;
 
 export function largestBlock(d: CrossedData, L: CrossedLayout): number {
   const sizes = new Map<number, number>();
