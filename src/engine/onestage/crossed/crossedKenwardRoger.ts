@@ -4,7 +4,7 @@
 // indicators of term i's levels); with V^-1 X = TT and Phi the fixed effects' covariance,
 //   P_i = -X'V^-1 G_i V^-1 X,  Q_ij = X'V^-1 G_i V^-1 G_j V^-1 X,
 //   IE2_ij = tr(V^-1 G_i V^-1 G_j) - 2 tr(Phi Q_ij) + tr(Phi P_i Phi P_j)  (= tr(P G_i P G_j)),
-//   W = 2 IE2^-1,  U = sum_ij W_ij (Q_ij - P_i Phi P_j),  Phi_A = Phi + 2 Phi U Phi,
+//   W = 2 IE2^-1,  UU = sum_ij W_ij (Q_ij - P_i Phi P_j),  Phi_A = Phi + 2 Phi UU Phi,
 // and per contrast l the df of Kenward & Roger (1997) for one row (contrastInference.ts).
 // V^-1 is read as (E - U U') / sigma² (crossedInverseParts.ts): E block-diagonal by site, U the
 // year part (n x q). Then Z_i'V^-1 X, G_i V^-1 X and V^-1 applied to them are block products, and
@@ -303,7 +303,9 @@ export function crossedKenwardRoger(d: CrossedData, L: CrossedLayout, ev: Crosse
       ie2[j * nPar + i] = v;
     }
   }
-  // W = 2 IE2^-1 (pbkrtest takes a generalised inverse when IE2 is near singular: refused here)
+  // W = 2 IE2^-1. pbkrtest takes MASS::ginv instead when IE2's smallest |eigenvalue| is below 1e-10
+  // (an absolute bound, so it depends on the units); the two differ only when IE2 is also
+  // ill-conditioned beyond 1/sqrt(machine epsilon). A singular IE2 is refused here.
   const W = new Float64Array(nPar * nPar);
   for (let c = 0; c < nPar; c++) {
     const e = new Float64Array(nPar);
@@ -312,7 +314,8 @@ export function crossedKenwardRoger(d: CrossedData, L: CrossedLayout, ev: Crosse
     if (!x) throw new Error('the expected information of the variance parameters is singular (a variance at or near zero)');
     for (let r = 0; r < nPar; r++) W[r * nPar + c] = 2 * x[r];
   }
-  const U = new Float64Array(p * p);
+  // pbkrtest's UU (named apart from U, the year part of H^-1)
+  const adjustment = new Float64Array(p * p);
   const addTerm = (i: number, j: number, sym: boolean) => {
     const qij = qs.get(i * nPar + j)!;
     const ppp = multiply(multiply(P[i], phi, p), P[j], p);
@@ -320,14 +323,14 @@ export function crossedKenwardRoger(d: CrossedData, L: CrossedLayout, ev: Crosse
     for (let a = 0; a < p; a++)
       for (let b = 0; b < p; b++) {
         const v = w * (qij[a * p + b] - ppp[a * p + b]);
-        U[a * p + b] += v;
-        if (sym) U[b * p + a] += v;
+        adjustment[a * p + b] += v;
+        if (sym) adjustment[b * p + a] += v;
       }
   };
   for (let i = 0; i < nPar; i++) for (let j = i + 1; j < nPar; j++) addTerm(i, j, true);
   for (let i = 0; i < nPar; i++) addTerm(i, i, false);
   const phiA = Float64Array.from(phi);
-  const ga = multiply(multiply(phi, U, p), phi, p);
+  const ga = multiply(multiply(phi, adjustment, p), phi, p);
   for (let x = 0; x < p * p; x++) phiA[x] += 2 * ga[x];
 
   return {
