@@ -60,8 +60,11 @@ export function kenwardRogerContrast(ev: Evaluation, so: SecondOrder, kr: Kenwar
   let a1 = 0;
   for (let k = 0; k < nP; k++) a1 += a[k] * wa[k];
   // For one contrast (q = 1) Theta is rank one, so pbkrtest's A1 and A2 coincide.
-  const a2 = a1;
-  const q = 1;
+  return { df: kenwardRogerDf(a1, a1, 1), variance };
+}
+
+/** Kenward & Roger's (1997) denominator df from A1, A2 for q rows, as pbkrtest's Lb_ddf. */
+export function kenwardRogerDf(a1: number, a2: number, q: number): number {
   const B = (1 / (2 * q)) * (a1 + 6 * a2);
   const g = ((q + 1) * a1 - (q + 4) * a2) / ((q + 2) * a2);
   const c1 = g / (3 * q + 2 * (1 - g));
@@ -73,8 +76,7 @@ export function kenwardRogerContrast(ev: Evaluation, so: SecondOrder, kr: Kenwar
   if (Math.abs(V0) < 1e-10) V0 = 0;
   const ratio = Math.abs(V1) < 1e-14 ? 0 : (1 - a2 / q) / V1;
   const rho = (1 / q) * ratio * ratio * (V0 / V2);
-  const df = 4 + (q + 2) / (q * rho - 1);
-  return { df, variance };
+  return 4 + (q + 2) / (q * rho - 1);
 }
 
 export function tInterval(estimate: number, se: number, df: number, confidence: number): { lower: number; upper: number; p: number } {

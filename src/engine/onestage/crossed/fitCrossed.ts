@@ -16,6 +16,7 @@ import { satterthwaiteObserved } from './satterthwaiteObserved.js';
 import { contrastAtSite, contrastAtSiteErrorVariance, solveShared, trialBlups } from './crossedPredictions.js';
 import { KNOWN_SITE_CAUTION, tCritical, type SiteYearContrast, type SiteYearSplit, type SiteYearView } from './siteYearView.js';
 import type { CrossedTerm } from './terms.js';
+import { kenwardRogerOrWarn } from './crossedKenwardRoger.js';
 
 export interface CrossedOptions {
   readonly random: readonly CrossedTerm[];
@@ -46,14 +47,14 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   if (d.trialsWithoutSite.length > 0 && (L.at.site >= 0 || L.at['treatment-by-site'] >= 0))
     warnings.push(`${d.trialsWithoutSite.length} trial(s) have no site and count as a site of their own: ${d.trialsWithoutSite.slice(0, 20).join(', ')}`);
   let df = options.df;
-  if (df === 'kenward-roger') {
-    warnings.push('Kenward–Roger df are not yet available for the model with site or year terms: Satterthwaite df are given instead');
-    df = 'satterthwaite';
-  }
   const onEvaluation = (count: number, criterion: number) => hooks.onProgress?.({ stage: 'one-stage (sites and years)', iteration: count, criterion });
   const fit = optimiseCrossed(d, L, L.terms.map(() => 1), [], { signal: hooks.signal, onEvaluation });
   const ev = fit.evaluation;
   if (!fit.converged) warnings.push('one-stage REML (sites and years) did not meet its convergence criterion within its evaluation budget');
+  // a residual per trial (when the options carry one) is not covered by crossedKenwardRoger
+  const perTrial = 'residual' in options && options.residual === 'per-trial';
+  const kr = df === 'kenward-roger' ? kenwardRogerOrWarn(d, L, ev, perTrial, warnings) : null;
+  if (df === 'kenward-roger' && !kr) df = 'satterthwaite';
 
   const ls = contrasts.map((c) => contrastVector(d.treatments, c, L.p));
   const unit = d.treatments.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
@@ -75,10 +76,12 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
       estimate += l[i] * ev.beta[i];
       for (let j = 0; j < L.p; j++) q += l[i] * ev.xhxInverse[i * L.p + j] * l[j];
     }
-    const se = Math.sqrt(ev.sigma2 * q);
-    const dfl = dfOf(l);
+    const seUnadjusted = Math.sqrt(ev.sigma2 * q);
+    const adjusted = kr?.contrast(l);
+    const se = adjusted ? Math.sqrt(adjusted.variance) : seUnadjusted;
+    const dfl = adjusted ? adjusted.df : dfOf(l);
     const ci = tInterval(estimate, se, dfl, options.confidence);
-    return { name, estimate, se, df: Number.isFinite(dfl) ? dfl : null, lower: ci.lower, upper: ci.upper, p: ci.p, dfMethod: df, seUnadjusted: se };
+    return { name, estimate, se, df: Number.isFinite(dfl) ? dfl : null, lower: ci.lower, upper: ci.upper, p: ci.p, dfMethod: df, seUnadjusted };
   };
   const contrastReports = contrasts.map((c, i) => report(c.name, ls[i]));
   const means = d.treatments.map((treatment, j) => {

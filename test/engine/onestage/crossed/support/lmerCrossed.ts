@@ -3,7 +3,7 @@
 // built from our term names; years are a factor (fixed, sum-to-zero, when yearAsFixed).
 import { runR, type RRun } from '../../../../support/rscript.js';
 
-const R_TERM: Record<string, string> = {
+export const R_TERM: Record<string, string> = {
   site: '(1|site)',
   year: '(1|year)',
   trial: '(1|env)',
