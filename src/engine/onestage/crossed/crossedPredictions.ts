@@ -5,7 +5,7 @@
 // a forward solve through that site's block and the border only.
 import type { CrossedData } from './crossedData.js';
 import { localColumns, type CrossedLayout } from './crossedLayout.js';
-import { trialPieces, type CrossedEvaluation } from './crossedLikelihood.js';
+import { trialPieces, type CrossedEvaluation, type TrialPieces } from './crossedLikelihood.js';
 import { backSolveTranspose, forwardSolve } from './denseSmall.js';
 
 export interface SharedSolution {
@@ -70,8 +70,7 @@ export function contrastAtSiteErrorVariance(L: CrossedLayout, ev: CrossedEvaluat
  * Each trial's BLUP of each contrast: l'(beta + its site's, its year's and its own
  * treatment-by effects); the trial's own part from gamma_TxT T'H0^-1 (y - X beta - Z b).
  */
-export function trialBlups(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, sol: SharedSolution, ls: readonly (Float64Array | null)[]): (number | null)[][] {
-  const pieces = trialPieces(d, L, ev.theta);
+export function trialBlups(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, sol: SharedSolution, ls: readonly (Float64Array | null)[], pieces: readonly TrialPieces[] | null = trialPieces(d, L, ev.theta)): (number | null)[][] {
   const m = 1 + L.t;
   const gTT = L.at['treatment-by-trial'] >= 0 ? ev.theta[L.at['treatment-by-trial']] ** 2 : 0;
   return d.trials.map((tr, i) => {
