@@ -1,0 +1,14 @@
+import { simulateCrossed } from './test/engine/onestage/crossed/support/simulateCrossed.js';
+import { fitCrossedPerTrialResidual } from './src/engine/onestage/crossed/perTrialResidualFit.js';
+import { fitCrossed } from './src/engine/onestage/crossed/fitCrossed.js';
+import { resolveContrast } from './src/engine/contrasts/resolve.js';
+import { CROSSED_TERMS } from './src/engine/onestage/crossed/terms.js';
+const sim = simulateCrossed({ seed: 500, sites: 500, years: 8, runProbability: 0.75, missing: 0.05, residualSpread: 0.3 });
+const c = [resolveContrast({ name: 'T1 vs CTL', coefficients: { T1: 1, CTL: -1 }, divisor: 1 }, sim.network.treatments)];
+const o = { random: [...CROSSED_TERMS], yearAsFixed: false, df: 'satterthwaite' as const, confidence: 0.95, lrt: false };
+let t0 = Date.now();
+const com = fitCrossed(sim.network, c, o);
+console.log('trials', sim.network.trials.length, 'common', Date.now() - t0, 'ms', com.logLik);
+t0 = Date.now();
+const f = fitCrossedPerTrialResidual(sim.network, c, o, { onProgress: (e) => console.log(e.iteration, e.criterion, Date.now() - t0) });
+console.log('per-trial', Date.now() - t0, 'ms', f.logLik, f.converged, f.iterations, f.run.method.slice(0, 300), f.contrasts[0], f.variance['treatment-by-trial']);
