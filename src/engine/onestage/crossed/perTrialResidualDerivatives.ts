@@ -267,3 +267,8 @@ export function solveCoefficients(L: CrossedLayout, ev: CrossedEvaluation, g: Fl
       backSolveTranspose(f.siteFactor[s], bs, bs, xs);
     }
 }
+
+/** The gradient alone (the Hessian's difference products need nothing else). */
+export function perTrialGradient(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation): Float64Array {
+  return perTrialDerivatives(d, L, ev).gradient;
+}

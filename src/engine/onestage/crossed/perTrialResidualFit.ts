@@ -19,7 +19,7 @@ import { committeeView, type CrossedOptions, type CrossedResult } from './fitCro
 import { evaluatePerTrial } from './perTrialResidualModel.js';
 import { perTrialSearch } from './perTrialResidualSearch.js';
 import { perTrialDerivatives } from './perTrialResidualDerivatives.js';
-import { EXACT_RESIDUAL_SE_MAX_TRIALS, perTrialInference, perTrialLikelihoodRatio } from './perTrialResidualInference.js';
+import { EXACT_HESSIAN_MAX_TRIALS, EXACT_RESIDUAL_SE_MAX_TRIALS, perTrialInference, perTrialLikelihoodRatio } from './perTrialResidualInference.js';
 
 /** Trials with fewer residual df of their own than this are flagged (as by the per-trial engine). */
 const THIN_RESIDUAL_DF = 3;
@@ -30,7 +30,7 @@ function ownResidualDf(tr: CrossedData['trials'][number]): number {
   return tr.y.length - (Math.max(tr.nBlocks, 1) + treatments - 1);
 }
 
-export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: CrossedOptions, hooks: OneStageHooks = {}): CrossedResult {
+export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: readonly ResolvedContrast[], options: CrossedOptions & { readonly exactHessianMaxTrials?: number }, hooks: OneStageHooks = {}): CrossedResult {
   const began = Date.now();
   const d = crossedData(network, options.random, options.yearAsFixed);
   const L = crossedLayout(d, options.random, options.yearAsFixed);
@@ -73,7 +73,9 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
   const estimable = [...ls, ...unit].filter((l): l is Float64Array => l !== null);
   const der = fit.derivatives ?? perTrialDerivatives(ds, L, fit.evaluation);
   const freeTerm = L.terms.map((_, k) => fit.v[k] > 1e-10);
-  const inf = perTrialInference(ds, L, fit.evaluation, der, freeTerm, estimable);
+  const exactHessian = options.exactHessianMaxTrials === undefined ? d.trials.length <= EXACT_HESSIAN_MAX_TRIALS : d.trials.length <= options.exactHessianMaxTrials;
+  const inf = perTrialInference(ds, L, fit.evaluation, der, freeTerm, estimable, fit.v, fit.r, exactHessian && df === 'satterthwaite');
+  if (inf.hessianFallbacks > 0) warnings.push(`the observed Hessian was not positive definite along the Satterthwaite solve for ${inf.hessianFallbacks} contrast(s) or mean(s): their df use the average-information matrix instead`);
   const report = (name: string, l: Float64Array | null): ContrastReport => {
     if (!l) return { name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: df, seUnadjusted: null, note: 'not estimable: a treatment in the contrast has no usable plot' };
     let estimate = 0;
@@ -141,7 +143,7 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
     options: { random: [...L.terms], yearAsFixed: options.yearAsFixed, residual: 'per-trial', df, confidence: options.confidence, covariates: [] },
     warnings,
     run: {
-      method: `REML with one residual variance per trial (not profiled); start from the common-residual fit, data scaled by its residual sd; AI-REML on all variances at once (Newton steps with the average-information matrix, analytic gradient, terms at zero held by projection, the system solved by conjugate gradients preconditioned with the terms' block, their coupling to each residual and the residuals' diagonal): ${fit.iterations} iterations, ${fit.cgIterations} conjugate-gradient steps, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border. Satterthwaite df and the variances' SEs from the average-information matrix in place of the Hessian${d.trials.length > EXACT_RESIDUAL_SE_MAX_TRIALS ? "; the residuals' SEs from the preconditioner's approximate inverse" : ''}`,
+      method: `REML with one residual variance per trial (not profiled); start from the common-residual fit, data scaled by its residual sd; AI-REML on all variances at once (Newton steps with the average-information matrix, analytic gradient, terms at zero held by projection, the system solved by conjugate gradients preconditioned with the terms' block, their coupling to each residual and the residuals' diagonal): ${fit.iterations} iterations, ${fit.cgIterations} conjugate-gradient steps, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border. ${inf.hessian ? 'Satterthwaite df from the observed Hessian (products by central differences of the analytic gradient, solved by conjugate gradients preconditioned with the average information)' : 'Satterthwaite df from the average-information matrix in place of the Hessian'}; the variances' SEs from the inverse average information${d.trials.length > EXACT_RESIDUAL_SE_MAX_TRIALS ? "; the residuals' SEs from the preconditioner's approximate inverse" : ''}`,
       start: Object.fromEntries([...L.terms.map((t, k) => [t, common.sigma2 * common.theta[k] ** 2] as const), ['residual', common.sigma2] as const]),
       iterations: fit.iterations,
       emIterations: 0,
