@@ -50,7 +50,10 @@ export function perTrialSearch(d: CrossedData, L: CrossedLayout, v0: ArrayLike<n
   const path = [ev.criterion];
   let der: PerTrialDerivatives | null = null;
   let freeTerm: boolean[] = [];
-  const tolerance = Math.max(1e-10, 1e-14 * Math.abs(ev.criterion));
+  // the predicted remaining decrease of the criterion, g'AI^-1 g / 2: below 1e-8 the log-likelihood is
+  // settled far inside any reference's tolerance; the AI steps converge only linearly here (AI is
+  // far from the Hessian in the residuals of trials with few plots), so a tighter stop costs steps
+  const tolerance = Math.max(1e-8, 1e-14 * Math.abs(ev.criterion));
   const maxIterations = o.maxIterations ?? 60;
   const result = (iterations: number, converged: boolean, atLast: boolean): PerTrialOptimum => ({
     evaluation: ev!,

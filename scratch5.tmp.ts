@@ -1,0 +1,15 @@
+import { simulateCrossed } from './test/engine/onestage/crossed/support/simulateCrossed.js';
+import { crossedData } from './src/engine/onestage/crossed/crossedData.js';
+import { crossedLayout } from './src/engine/onestage/crossed/crossedLayout.js';
+import { CROSSED_TERMS } from './src/engine/onestage/crossed/terms.js';
+import { optimiseCrossed } from './src/engine/onestage/crossed/optimiseCrossed.js';
+import { perTrialSearch } from './src/engine/onestage/crossed/perTrialResidualSearch.js';
+const sim = simulateCrossed({ seed: 4242, sites: 8, years: 4, treatments: 4, blocks: 3, missing: 0.05, residualSpread: 0.5 });
+const random = [...CROSSED_TERMS];
+const d = crossedData(sim.network, random, false);
+const L = crossedLayout(d, random, false);
+const c = optimiseCrossed(d, L, L.terms.map(() => 1)).evaluation;
+const s0 = Math.sqrt(c.sigma2);
+const ds = { ...d, trials: d.trials.map((t) => ({ ...t, y: t.y.map((x) => x / s0) })) };
+const f = perTrialSearch(ds, L, Float64Array.from(c.theta, (t) => t * t), new Float64Array(d.trials.length).fill(1), []);
+console.log(f.iterations, f.stepHalvings, f.cgIterations, f.criterionPath.map((x) => x - f.evaluation.criterion));
