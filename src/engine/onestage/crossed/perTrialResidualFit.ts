@@ -125,7 +125,9 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
     trial: tr.trial,
     contrasts: contrasts.map((c, ci) => ({ name: c.name, blup: blups[i][ci], raw: null, rawSe: null, rawDf: null })),
   }));
-  const siteYearView = committeeView(d.sites, d.trials, d.years, L, ev, sol, contrasts, ls, contrastReports, components, options.confidence);
+  const view = committeeView(d.sites, d.trials, d.years, L, ev, sol, contrasts, ls, contrastReports, components, options.confidence);
+  // the variances' SEs here come from the average information, not the observed information
+  const siteYearView = { ...view, method: view.method.replace('from the observed information', 'from the average-information matrix') };
   return {
     minusTwoLogLik: ev.criterion,
     logLik: -ev.criterion / 2,
