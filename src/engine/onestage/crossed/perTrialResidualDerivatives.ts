@@ -36,7 +36,7 @@ export interface PerTrialDerivatives {
   readonly apply: (x: Float64Array) => Float64Array;
 }
 
-export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation): PerTrialDerivatives {
+export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation, withInformation = true): PerTrialDerivatives {
   const nT = L.terms.length;
   const nTr = d.trials.length;
   const m = 1 + L.t;
@@ -64,13 +64,16 @@ export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: Crosse
     const j = m + nB;
     const l = lf.l;
     const lk = lf.lk;
-    const lj = new Float64Array(n * j);
-    for (let p = 0; p < n; p++) {
-      lj[p * j] = 1;
-      lj[p * j + 1 + tr.treatment[p]] = 1;
-      if (tr.block[p] >= 0) lj[p * j + m + tr.block[p]] = 1;
+    // L^-1 J (the information's applications need its block columns too; the gradient only L^-1 K)
+    const lj = withInformation ? new Float64Array(n * j) : lk;
+    if (withInformation) {
+      for (let p = 0; p < n; p++) {
+        lj[p * j] = 1;
+        lj[p * j + 1 + tr.treatment[p]] = 1;
+        if (tr.block[p] >= 0) lj[p * j + m + tr.block[p]] = 1;
+      }
+      forwardSolveColumns(l, n, lj, j);
     }
-    forwardSolveColumns(l, n, lj, j);
     const cols = columns[tr.year];
     mu.fill(0);
     const us = sol.site[tr.site];
@@ -85,14 +88,13 @@ export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: Crosse
     }
     const py = Float64Array.from(e);
     backSolveTranspose(l, n, n, py);
-    const jpy = new Float64Array(j);
-    for (let p = 0; p < n; p++) for (let c = 0; c < j; c++) jpy[c] += lj[p * j + c] * e[p];
+    const jw = withInformation ? j : m;
+    const jpy = new Float64Array(jw);
+    for (let p = 0; p < n; p++) for (let c = 0; c < jw; c++) jpy[c] += lj[p * jw + c] * e[p];
     for (let r = 0; r < m; r++) {
       siteScore[tr.site * m + r] += jpy[r];
       yearScore[tr.year * m + r] += jpy[r];
     }
-    const fpy = Float64Array.from(py);
-    forwardSolve(l, n, n, fpy);
     // R = M_i C^-1 M_i' from the selected inverse
     R.fill(0);
     const { row, value, index } = cols;
@@ -134,6 +136,9 @@ export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: Crosse
     let pySq = 0;
     for (const x of py) pySq += x * x;
     gradient[nT + i] = trV0 - trRG - pySq;
+    if (!withInformation) continue;
+    const fpy = Float64Array.from(py);
+    forwardSolve(l, n, n, fpy);
     // AI_ii = py'P_ii py = |L^-1 py|² - (K'V0^-1 py)' R (K'V0^-1 py)
     let fSq = 0;
     for (const x of fpy) fSq += x * x;
@@ -147,25 +152,29 @@ export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: Crosse
 
   const { at } = L;
   const nSiteRows = L.nSites * bs;
+  const plotOffset = new Int32Array(nTr + 1);
+  let maxJ = m;
+  for (let i = 0; i < states.length; i++) maxJ = Math.max(maxJ, states[i].j);
+  for (let i = 0; i < nTr; i++) plotOffset[i + 1] = plotOffset[i] + d.trials[i].y.length;
+  const coefficientScratch = new Float64Array(maxJ);
   const apply = (x: Float64Array): Float64Array => {
+    if (!withInformation) throw new Error('perTrialDerivatives: the information was not prepared (withInformation = false)');
     const rhs = new Float64Array(nSiteRows + nb);
-    const fs: Float64Array[] = [];
-    const cs: Float64Array[] = [];
+    const f = new Float64Array(plotOffset[nTr]);
+    const g = new Float64Array(m);
     // u_i = J c_i + x_ri (Py)_i; f_i = L^-1 u_i; rhs = A'V0^-1 u = sum_i M_i' (L^-1 K)' f_i
     for (let i = 0; i < nTr; i++) {
       const tr = d.trials[i];
       const st = states[i];
-      const c = workingCoefficients(i, (k) => x[k]);
-      cs.push(c);
-      const fi = new Float64Array(st.n);
+      const c = workingCoefficients(i, x);
+      const fi = f.subarray(plotOffset[i], plotOffset[i + 1]);
       const xr = x[nT + i];
       for (let p = 0; p < st.n; p++) {
         let s = xr * st.fpy[p];
         for (let q = 0; q < st.j; q++) s += st.lj[p * st.j + q] * c[q];
         fi[p] = s;
       }
-      fs.push(fi);
-      const g = new Float64Array(m);
+      g.fill(0);
       for (let p = 0; p < st.n; p++) for (let r = 0; r < m; r++) g[r] += st.lj[p * st.j + r] * fi[p];
       const cols = columns[tr.year];
       for (let a = 0; a < cols.n; a++) {
@@ -184,7 +193,7 @@ export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: Crosse
       mu.fill(0);
       for (let a = 0; a < cols.n; a++) mu[cols.row[a]] += cols.value[a] * (cols.inSite[a] ? rhs[tr.site * bs + cols.index[a]] : rhs[nSiteRows + cols.index[a]]);
       // e' = f - L^-1 K mu = L^-1 (u - A z): P u = L^-T e'
-      const fi = fs[i];
+      const fi = f.subarray(plotOffset[i], plotOffset[i + 1]);
       const tt = t.length >= st.j ? t : new Float64Array(st.j);
       tt.fill(0, 0, st.j);
       let dot = 0;
@@ -202,10 +211,12 @@ export function perTrialDerivatives(d: CrossedData, L: CrossedLayout, ev: Crosse
   };
 
   /** sum_k x_k c_k,i: the trial's part of sum_k x_k Z_k Z_k' P y in its basis J. */
-  function workingCoefficients(i: number, x: (k: number) => number): Float64Array {
+  function workingCoefficients(i: number, xs: Float64Array): Float64Array {
     const tr = d.trials[i];
     const st = states[i];
-    const c = new Float64Array(st.j);
+    const x = (k: number) => xs[k];
+    const c = coefficientScratch;
+    c.fill(0, 0, st.j);
     const sRow = tr.site * m;
     const yRow = tr.year * m;
     if (at.site >= 0) c[0] += x(at.site) * siteScore[sRow];
@@ -270,5 +281,5 @@ export function solveCoefficients(L: CrossedLayout, ev: CrossedEvaluation, g: Fl
 
 /** The gradient alone (the Hessian's difference products need nothing else). */
 export function perTrialGradient(d: CrossedData, L: CrossedLayout, ev: CrossedEvaluation): Float64Array {
-  return perTrialDerivatives(d, L, ev).gradient;
+  return perTrialDerivatives(d, L, ev, false).gradient;
 }

@@ -1,7 +1,8 @@
 // Inference from the per-trial-residual crossed fit. Satterthwaite df as in lmerTest,
 // df = 2 (l'Phi l)² / g'Ag with g the gradient of l'Phi l (Phi = (X'V^-1X)^-1) in the variances and
 // A = 2 H^-1 their asymptotic covariance, H the observed Hessian of -2 REML log-likelihood — on
-// networks up to EXACT_HESSIAN_MAX_TRIALS trials, through Hessian products (perTrialResidualHessian.ts).
+// networks up to EXACT_HESSIAN_MAX_TRIALS trials, through Hessian products (perTrialResidualHessian.ts;
+// one gradient pass each, a few per contrast).
 // Above that, with one residual per trial the Hessian (one row per trial) is too costly, and the
 // average information stands in for it (A = 2 AI^-1; on the 22-trial check network the df came
 // out 16.09 against the Hessian's 14.92). The variances' SEs are from AI^-1 in both cases, as in
@@ -19,7 +20,7 @@ import { hessianProduct, hessianSolve } from './perTrialResidualHessian.js';
 import { backSolveTranspose } from './denseSmall.js';
 
 /** Networks up to this many trials get Satterthwaite df from the observed Hessian; larger ones from the average information. */
-export const EXACT_HESSIAN_MAX_TRIALS = 400;
+export const EXACT_HESSIAN_MAX_TRIALS = 200;
 
 /** Networks up to this many trials get the residuals' SEs from exact solves; larger ones from the preconditioner. */
 export const EXACT_RESIDUAL_SE_MAX_TRIALS = 150;
