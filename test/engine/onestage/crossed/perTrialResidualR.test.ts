@@ -7,6 +7,8 @@
 //   its SEs are not compared, as with REML = TRUE its sdreport adds the variance parameters'
 //   uncertainty to the fixed effects' — the conventional SEs are checked by GLS below); one
 //   term's likelihood-ratio statistic against a glmmTMB refit without the term, 2e-3 absolute;
+//   and three subsets of the terms (year, block, treatment-by-year; site alone; trial with the
+//   treatment-by-site and treatment-by-trial terms), log-likelihood within 1e-4 absolute;
 // - GLS written out densely in base R at our variances: the REML criterion (1e-9 relative), the
 //   treatment means, contrast estimates and their SEs (1e-6 relative), and the Satterthwaite df
 //   over all variances (terms and every trial's residual) with the observed Hessian
@@ -120,6 +122,14 @@ describe('crossed model, residual variance per trial, against glmmTMB and base-R
     expect(Math.abs(lrt.statistic - ref)).toBeLessThan(2e-3);
     expect(Math.abs(lrt.reducedLogLik - tmbReduced.values.loglik)).toBeLessThan(1e-3);
   });
+  it('subsets of the terms: REML log-likelihood within 1e-4 of glmmTMB', () => {
+    for (const random of [['year', 'block', 'treatment-by-year'], ['site'], ['trial', 'treatment-by-site', 'treatment-by-trial']] as const) {
+      const fit = fitCrossedPerTrialResidual(sim.network, contrasts, { ...options, random: [...random], lrt: false });
+      const ref = runTmbCrossed(sim.csv, CODES, ROWS, random, fit.trials.map((t) => t.trial));
+      console.log(`${random.join(', ')}: ours ${fit.logLik} glmmTMB ${ref.values.loglik}`);
+      expect(Math.abs(fit.logLik - ref.values.loglik), random.join(', ')).toBeLessThan(1e-4);
+    }
+  }, 300_000);
   it('GLS at our variances: criterion, means, contrasts, SEs and Satterthwaite df (observed Hessian; AI)', () => {
     expect(relDiff(ours.minusTwoLogLik, gls.values.criterion)).toBeLessThan(1e-9);
     const mean = rVector(gls, 'mean');
