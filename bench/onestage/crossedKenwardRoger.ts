@@ -6,7 +6,7 @@ import { simulateCrossed } from '../../test/engine/onestage/crossed/support/simu
 import { crossedData, contrastVector } from '../../src/engine/onestage/crossed/crossedData.js';
 import { crossedLayout } from '../../src/engine/onestage/crossed/crossedLayout.js';
 import { optimiseCrossed } from '../../src/engine/onestage/crossed/optimiseCrossed.js';
-import { satterthwaite } from '../../src/engine/onestage/crossed/crossedInference.js';
+import { satterthwaiteObserved } from '../../src/engine/onestage/crossed/satterthwaiteObserved.js';
 import { crossedKenwardRoger } from '../../src/engine/onestage/crossed/crossedKenwardRoger.js';
 import { largestBlock } from '../../src/engine/onestage/crossed/crossedInverseParts.js';
 import type { CrossedTerm } from '../../src/engine/onestage/crossed/terms.js';
@@ -29,7 +29,7 @@ const codes = d.treatments;
 const l = contrastVector(codes, { name: 'T1-CTL', kind: 'coefficients', coefficients: { T1: 1, CTL: -1 }, divisor: 1, meaning: '' }, L.p)!;
 const unit = codes.map((_, j) => Float64Array.from({ length: L.p }, (_, i) => (i === j ? 1 : 0)));
 t0 = performance.now();
-const sat = satterthwaite(d, L, fit.evaluation, [l, ...unit], fit.derivatives);
+const sat = satterthwaiteObserved(d, L, fit.evaluation, [l, ...unit], fit.derivatives);
 const satMs = performance.now() - t0;
 t0 = performance.now();
 const kr = crossedKenwardRoger(d, L, fit.evaluation);

@@ -153,7 +153,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   };
 }
 
-function committeeView(
+export function committeeView(
   sites: readonly string[],
   trials: readonly { site: number; year: number }[],
   years: readonly number[],

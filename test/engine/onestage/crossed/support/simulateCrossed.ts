@@ -13,6 +13,8 @@ export interface CrossedSettings {
   readonly blocks?: number;
   readonly missing?: number;
   readonly sd?: Partial<Record<'site' | 'year' | 'trial' | 'block' | 'treatment-by-site' | 'treatment-by-year' | 'treatment-by-trial' | 'residual', number>>;
+  /** Each trial's residual sd is the residual sd times exp(spread x a standard normal) (default 0: one residual sd). */
+  readonly residualSpread?: number;
 }
 
 export interface CrossedNetwork {
@@ -48,10 +50,11 @@ export function simulateCrossed(s: CrossedSettings): CrossedNetwork {
       const uTrial = sd.trial * normal();
       const uBlock = Array.from({ length: nB }, () => sd.block * normal());
       const uInt = codes.map(() => sd['treatment-by-trial'] * normal());
+      const residualSd = s.residualSpread ? sd.residual * Math.exp(s.residualSpread * normal()) : sd.residual;
       const plots: PlotObservation[] = [];
       for (let b = 0; b < nB; b++)
         for (let j = 0; j < nT; j++) {
-          const y = effects[j] + siteEffect + yearEffect[yi] + txSite[j] + txYear[yi][j] + uTrial + uBlock[b] + uInt[j] + sd.residual * normal();
+          const y = effects[j] + siteEffect + yearEffect[yi] + txSite[j] + txYear[yi][j] + uTrial + uBlock[b] + uInt[j] + residualSd * normal();
           const value = uniform() < (s.missing ?? 0.05) ? null : Math.round(y * 1e6) / 1e6;
           plots.push({ treatment: codes[j], block: `B${b + 1}`, row: null, col: null, value });
           if (value !== null) lines.push(`${site},${year},${env},B${b + 1},${codes[j]},${value}`);
