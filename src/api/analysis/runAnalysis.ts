@@ -68,7 +68,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
-    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset, resolved, tested[i]);
+    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset, resolved, tested[i], detail === 'plots');
     trials.push(detail === 'plots' ? entry : summariseTrial(entry, sharedMeanings));
   });
 
@@ -133,6 +133,7 @@ export function analyseOneTrial(
   logOffset: number | undefined,
   cache?: TrialContrastCache,
   present: readonly TreatmentInfo[] = testedTreatments(trial, network.treatments),
+  listPlots = true,
 ): TrialStageEntry {
   const control = spec.control ?? network.control;
   const resolve = () => contrasts.map((c, i) => resolveForTrial(spec.contrasts[i], c, present, control, network.factors));
@@ -143,6 +144,7 @@ export function analyseOneTrial(
     confidence: spec.confidence,
     pairwise: spec.pairwise,
     traitKind: network.traitKind,
+    listPlots,
   });
   return { ...result, trial: trial.trial, site: trial.site ?? null, year: trial.year ?? null, design: trial.design };
 }
