@@ -146,7 +146,9 @@ export function analyseOneTrial(
     traitKind: network.traitKind,
     listPlots,
   });
-  return { ...result, trial: trial.trial, site: trial.site ?? null, year: trial.year ?? null, design: trial.design };
+  // The result is this call's own object (result.trial is trial.trial already): the trial's
+  // identity is added to it rather than copying every field into a new object per trial.
+  return Object.assign(result, { site: trial.site ?? null, year: trial.year ?? null, design: trial.design });
 }
 
 function poolContrasts(trials: readonly PoolableTrial[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry[] {
