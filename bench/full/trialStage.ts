@@ -1,5 +1,5 @@
 // The trial stage alone on the 4,000-trial example network (as bench:full writes it), timed
-// in-process: every trial analysed and summarised as the default report does, three passes
+// in-process: every trial analysed and summarised as the default report does (no per-plot list), three passes
 // (the first warms the compiler). `--check FILE`: writes the summaries to FILE the first time and
 // afterwards compares every field with it (a change that moves a number shows here).
 //   npx tsx bench/full/trialStage.ts [--trials 4000] [--check FILE]
@@ -29,7 +29,7 @@ let out: unknown[] = [];
 for (let pass = 0; pass < 3; pass++) {
   const cache = new TrialContrastCache();
   const t0 = performance.now();
-  out = network.trials.map((t) => summariseTrial(analyseOneTrial(t, network, contrasts, spec, undefined, cache), shared));
+  out = network.trials.map((t) => summariseTrial(analyseOneTrial(t, network, contrasts, spec, undefined, cache, undefined, false), shared));
   console.log(`pass ${pass + 1}: ${network.trials.length} trials in ${(performance.now() - t0).toFixed(0)} ms`);
 }
 if (check) {

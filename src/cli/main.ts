@@ -15,6 +15,7 @@ import { formatNetworkChecks } from './formatNetworkChecks.js';
 import { commandHelp, USAGE } from './help.js';
 import { formatExclusions, formatSites } from './formatSites.js';
 import { terminalProgress } from './progressBar.js';
+import { analyseInThisThread } from './analysisThread.js';
 
 interface Output {
   readonly stdout: string[];
@@ -140,7 +141,8 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
       const progress = terminalProgress();
       const controller = new AbortController();
       const onSigint = () => controller.abort();
-      process.once('SIGINT', onSigint);
+      const inThisThread = analyseInThisThread(data);
+      if (!inThisThread) process.once('SIGINT', onSigint);
       // The output is rendered and written (to a temporary file beside the target) before the
       // workspace stores the analysis: if that fails, the handler fails and stores nothing.
       let text = '';
@@ -150,7 +152,7 @@ async function runCommand(command: string, parsed: ReturnType<typeof parseArgs>,
         if (target !== undefined) partial = writePartial(target, text);
       };
       // The handler validates the spec with zod at the boundary; here it is still unchecked JSON.
-      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save'), detail }, { onProgress: progress.onProgress, signal: controller.signal, deliver });
+      const r = await api['analysis.run']({ spec: spec as HandlerArgs<'analysis.run'>['spec'], data, workspace, save: !o.flag('no-save'), detail }, { onProgress: progress.onProgress, signal: inThisThread ? undefined : controller.signal, deliver });
       process.off('SIGINT', onSigint);
       progress.done();
       if (!r.ok) {

@@ -17,14 +17,23 @@ export function jsonSafe<T>(value: T): T {
   return clean(value) as T;
 }
 
+// A pool's result holds thousands of small rows (leave-one-out, influence, cumulative): the copy
+// walks keys and elements with plain loops, without the [key, value] pair Object.entries would
+// allocate per field.
 function clean(value: unknown): unknown {
   if (typeof value === 'number') return Number.isFinite(value) ? value : null;
-  if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return Array.from(value as unknown as ArrayLike<number>, (x) => clean(x));
-  if (Array.isArray(value)) return value.map(clean);
-  if (value !== null && typeof value === 'object') {
-    const out: Record<string, unknown> = {};
-    for (const [key, v] of Object.entries(value)) if (v !== undefined) out[key] = clean(v);
+  if (value === null || typeof value !== 'object') return value;
+  if (Array.isArray(value)) {
+    const out = new Array<unknown>(value.length);
+    for (let i = 0; i < value.length; i++) out[i] = clean(value[i]);
     return out;
   }
-  return value;
+  if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return Array.from(value as unknown as ArrayLike<number>, (x) => clean(x));
+  const record = value as Record<string, unknown>;
+  const out: Record<string, unknown> = {};
+  for (const key of Object.keys(record)) {
+    const v = record[key];
+    if (v !== undefined) out[key] = clean(v);
+  }
+  return out;
 }

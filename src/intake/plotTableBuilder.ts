@@ -500,10 +500,11 @@ export class PlotTableBuilder {
   /** Within one trial a treatment has one applied level: the first row of the trial sets it. */
   private checkApplied(r: RowCells, rowNo: number, trial: TrialState, t: TreatmentState, differs: boolean): void {
     const factors = this.cols.factors;
-    const cells = factors.map((fc) => r.text(fc.index));
     const own = trial.applied?.get(t.code);
-    const seenHere = (t.id < DENSE_TREATMENTS ? trial.plotsPerTreatment[t.id] : trial.morePlotsPerTreatment?.get(t.id)) ?? 0;
+    // Most rows repeat their treatment's levels: no cell text is made for them.
     if (own === undefined && !differs) return;
+    const cells = factors.map((fc) => r.text(fc.index));
+    const seenHere = (t.id < DENSE_TREATMENTS ? trial.plotsPerTreatment[t.id] : trial.morePlotsPerTreatment?.get(t.id)) ?? 0;
     if (own === undefined) {
       if (seenHere > 0) {
         this.problems.add(rowNo, factors[0]?.column ?? null, cells.join(' '), 'treatment-levels-disagree', `treatment "${t.code}" has other levels (${t.raw.join(' ')}) earlier in trial "${trial.key}": within a trial a treatment has one level`);

@@ -68,7 +68,7 @@ export function runAnalysis(input: NetworkInput, spec: AnalysisSpec, ctx?: CallC
   if (spec.twoStage !== null) network.trials.forEach((trial, i) => {
     throwIfCancelled(ctx);
     ctx?.onProgress?.({ stage: 'trial-stage', step: trial.trial, fraction: i / network.trials.length });
-    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset, resolved, tested[i]);
+    const entry = analyseOneTrial(trial, network, contrasts, spec, logOffset, resolved, tested[i], detail === 'plots');
     trials.push(detail === 'plots' ? entry : summariseTrial(entry, sharedMeanings));
   });
 
@@ -133,6 +133,7 @@ export function analyseOneTrial(
   logOffset: number | undefined,
   cache?: TrialContrastCache,
   present: readonly TreatmentInfo[] = testedTreatments(trial, network.treatments),
+  listPlots = true,
 ): TrialStageEntry {
   const control = spec.control ?? network.control;
   const resolve = () => contrasts.map((c, i) => resolveForTrial(spec.contrasts[i], c, present, control, network.factors));
@@ -143,8 +144,11 @@ export function analyseOneTrial(
     confidence: spec.confidence,
     pairwise: spec.pairwise,
     traitKind: network.traitKind,
+    listPlots,
   });
-  return { ...result, trial: trial.trial, site: trial.site ?? null, year: trial.year ?? null, design: trial.design };
+  // The result is this call's own object (result.trial is trial.trial already): the trial's
+  // identity is added to it rather than copying every field into a new object per trial.
+  return Object.assign(result, { site: trial.site ?? null, year: trial.year ?? null, design: trial.design });
 }
 
 function poolContrasts(trials: readonly PoolableTrial[], contrasts: readonly ResolvedContrast[], network: NetworkInput, spec: AnalysisSpec, warnings: string[], ctx?: CallContext): PooledEntry[] {

@@ -92,13 +92,14 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
     }
     return t;
   };
-  const drawAt = (z: number, from: number): Tau2Draw => {
-    if (z <= z0) return zeroDraw;
-    const c = critical(z);
+  /** The draw whose critical value of Q is c (z above z0). */
+  const drawFor = (c: number, from: number): Tau2Draw => {
     if (!(atZero.Q > c)) return zeroDraw;
     const t = rootAbove(c, from);
     return toDraw(weightedMoments(y, v, t), t, df);
   };
+  const drawAt = (z: number, from: number): Tau2Draw => (z <= z0 ? zeroDraw : drawFor(critical(z), from));
+  const nodeCritical = criticalAtNodes(df, critical);
 
   // Nodes: z0 (if inside the range) and the regular grid above it.
   const zs: number[] = [];
@@ -112,7 +113,7 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
     const z = Z_MIN + i / NODES_PER_UNIT;
     if (z <= z0) continue;
     hooks.signal?.throwIfAborted();
-    const d = drawAt(z, previous);
+    const d = drawFor(nodeCritical(i, z), previous);
     previous = d.tau2;
     zs.push(z);
     draws.push(d);
@@ -143,6 +144,29 @@ export function tau2ConfidenceDistribution(y: ArrayLike<number>, v: ArrayLike<nu
   };
 
   return { k, massAtZero, at, exact: (z) => drawAt(z, 0) };
+}
+
+/**
+ * The critical values of Q at the grid's nodes depend on df alone: pools of the same number of
+ * trials (the contrasts of one network) share them. Kept per df, each value computed on first use.
+ */
+const nodeCriticalByDf = new Map<number, Float64Array>();
+const NODE_COUNT = (Z_MAX - Z_MIN) * NODES_PER_UNIT + 1;
+const DF_LIMIT = 64;
+
+function criticalAtNodes(df: number, critical: (z: number) => number): (i: number, z: number) => number {
+  let values = nodeCriticalByDf.get(df);
+  if (values === undefined) {
+    if (nodeCriticalByDf.size >= DF_LIMIT) nodeCriticalByDf.clear();
+    values = new Float64Array(NODE_COUNT).fill(NaN);
+    nodeCriticalByDf.set(df, values);
+  }
+  const known = values;
+  return (i, z) => {
+    let c = known[i];
+    if (Number.isNaN(c)) known[i] = c = critical(z);
+    return c;
+  };
 }
 
 interface Moments {

@@ -21,6 +21,7 @@ import { spatialCheck } from './spatialCheck.js';
 import { buildFlags } from './flags.js';
 import { TrialInputError } from './errors.js';
 import { num } from '../jsonSafe.js';
+import { summarisePlotColumns } from './plotSummary.js';
 
 export { TrialInputError } from './errors.js';
 export type * from './types.js';
@@ -119,7 +120,7 @@ export function analyzeTrial(
   const pairwise = options.pairwise === 'none' ? null : pairwiseComparisons(options.pairwise, pairs, estimableCount, fit.residualDf, options.confidence, options.transform === 'log');
 
   const rd = residualDiagnostics(fit);
-  const plotDiagnostics: PlotDiagnostic[] = plots.map((p, i) => ({
+  const plotDiagnostic = (p: UsedPlot, i: number): PlotDiagnostic => ({
     plotId: p.plotId ?? null,
     label: p.label ?? null,
     sourceRow: p.sourceRow ?? null,
@@ -135,7 +136,9 @@ export function analyzeTrial(
     leverage: rd.leverage[i],
     cooksDistance: num(rd.cooks[i]),
     normalScore: num(rd.normalScores[i]),
-  }));
+  });
+  const listPlots = options.listPlots !== false;
+  const plotDiagnostics: PlotDiagnostic[] = listPlots ? plots.map(plotDiagnostic) : [];
   const bf = brownForsythe(fit.residuals, plots.map((p) => p.treatment));
   const spatial = spatialCheck(trial.design, plots, model.x, y, fit);
   const cooksThreshold = 4 / plots.length;
@@ -145,9 +148,11 @@ export function analyzeTrial(
     ...transform.flags,
     ...transformSuitability(options),
     ...buildFlags({
-      plots: plotDiagnostics,
+      // Summarised only: the outlying plots alone are made (their flags are kept), and no
+      // influential-plot flag (the summary counts them, plotSummary.ts).
+      plots: listPlots ? plotDiagnostics : outlyingPlots(rd.studentized).map((i) => plotDiagnostic(plots[i], i)),
       outlierThreshold: OUTLIER_THRESHOLD,
-      cooksThreshold,
+      cooksThreshold: listPlots ? cooksThreshold : Infinity,
       brownForsythe: bf,
       spatial,
       aliased,
@@ -184,5 +189,16 @@ export function analyzeTrial(
     excluded: split.excluded,
     missing: split.missing,
     aliased,
+    ...(listPlots ? {} : { plotSummary: summarisePlotColumns(rd.studentized, rd.cooks, cooksThreshold) }),
   };
+}
+
+/** Plots whose studentised residual buildFlags reports as an outlier. */
+function outlyingPlots(studentized: Float64Array): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < studentized.length; i++) {
+    const s = num(studentized[i]);
+    if (s !== null && Math.abs(s) > OUTLIER_THRESHOLD) out.push(i);
+  }
+  return out;
 }

@@ -91,6 +91,8 @@ export function summariseTrial(t: Identified, sharedMeanings?: ReadonlyMap<strin
     if (p.studentized !== null && (maxStudentized === null || Math.abs(p.studentized) > maxStudentized)) maxStudentized = Math.abs(p.studentized);
     if (p.cooksDistance !== null && (maxCooks === null || p.cooksDistance > maxCooks)) maxCooks = p.cooksDistance;
   }
+  // A trial analysed to be summarised carries these from its diagnostic columns (plotSummary.ts).
+  if (t.plotSummary) ({ maxAbsStudentized: maxStudentized, maxCooksDistance: maxCooks } = t.plotSummary);
   return {
     trial: t.trial,
     site: t.site,
@@ -118,7 +120,7 @@ export function summariseTrial(t: Identified, sharedMeanings?: ReadonlyMap<strin
       maxCooksDistance: maxCooks,
       outlierThreshold: t.diagnostics.outlierThreshold,
       cooksThreshold: t.diagnostics.cooksThreshold,
-      influentialPlots: t.flags.filter((f) => f.code === 'influential-plot').length,
+      influentialPlots: t.plotSummary ? t.plotSummary.influentialPlots : t.flags.filter((f) => f.code === 'influential-plot').length,
       unequalVariancesP: t.diagnostics.brownForsythe.available ? t.diagnostics.brownForsythe.p : null,
       spatialTrendP: t.diagnostics.spatial.available ? (t.diagnostics.spatial.joint?.p ?? null) : null,
     },

@@ -1,6 +1,7 @@
 // Options and result shapes of the per-trial analysis. The result is plain JSON: numbers,
 // strings, booleans, arrays, objects and null (a number that is not finite becomes null).
 import type { TrialDesign } from '../types.js';
+import type { PlotSummary } from './plotSummary.js';
 import type { ContrastKind } from '../contrasts/resolve.js';
 
 export type TransformKind = 'none' | 'log' | 'logit' | 'arcsine-sqrt' | 'sqrt';
@@ -13,6 +14,12 @@ export interface TrialAnalysisOptions {
   readonly confidence: number;
   readonly pairwise: 'none' | 'tukey' | 'holm';
   readonly traitKind?: 'continuous' | 'percent' | 'count';
+  /**
+   * false: the trial is only summarised (detail 'summary'): no per-plot diagnostics are listed
+   * (diagnostics.plots is empty), no influential-plot flags are written, and plotSummary carries
+   * what the summary reads of them. Default true: the full analysis.
+   */
+  readonly listPlots?: boolean;
 }
 
 /** A number that may be undefined in this trial (JSON has no NaN). */
@@ -261,4 +268,6 @@ export interface TrialAnalysis {
   /** Plots whose value is missing (null). */
   readonly missing: readonly { readonly plotId: string | number | null; readonly label: string | null; readonly treatment: string }[];
   readonly aliased: readonly AliasedColumn[];
+  /** Only when analysed with listPlots: false (plotSummary.ts). */
+  readonly plotSummary?: PlotSummary;
 }

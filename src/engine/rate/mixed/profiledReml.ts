@@ -13,6 +13,7 @@ import type { Matrix } from '../../linalg/matrix.js';
 import type { MixedNetworkData, MixedTrialData } from './mixedData.js';
 import { choleskyInPlace } from '../../linalg/inPlace.js';
 import { layoutResponseSums, type LayoutResponseSums } from './layoutSums.js';
+import { groupLayouts } from './layoutKey.js';
 
 export const FIXED = 3;
 
@@ -128,19 +129,7 @@ const layoutCache = new WeakMap<MixedNetworkData, LayoutGroups>();
 function layoutGroups(d: MixedNetworkData): LayoutGroups {
   let g = layoutCache.get(d);
   if (g) return g;
-  const index = new Map<string, number>();
-  const representatives: MixedTrialData[] = [];
-  const layoutOf = new Int32Array(d.trials.length);
-  d.trials.forEach((t, i) => {
-    const key = `${t.q}|${t.indicatorFactor.join(',')}|${t.ztz.join(',')}|${t.ztx.join(',')}|${t.xtx.join(',')}`;
-    let j = index.get(key);
-    if (j === undefined) {
-      j = representatives.length;
-      index.set(key, j);
-      representatives.push(t);
-    }
-    layoutOf[i] = j;
-  });
+  const { layoutOf, representatives } = groupLayouts(d.trials);
   const members: number[][] = representatives.map(() => []);
   layoutOf.forEach((j, i) => members[j].push(i));
   g = { layoutOf, representatives, responses: layoutResponseSums(d, layoutOf, representatives.length), members };
