@@ -147,7 +147,7 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
       emIterations: 0,
       criterionPath: fit.criterionPath,
       stepHalvings: fit.stepHalvings,
-      convergence: fit.search === 'average-information' ? 'Newton decrement g\'AI^-1 g below 1e-11 or 1e-12 of the criterion, whichever is larger (or no further decrease within four halvings once it is below 1e-6)' : 'simplex spread below 1e-13 relative and restarts gaining less than 1e-10',
+      convergence: fit.search === 'average-information' ? 'Newton decrement g\'AI^-1 g below 1e-11 or 1e-13 of the criterion, whichever is larger (or no further decrease within four halvings once it is below 1e-6)' : 'simplex spread below 1e-13 relative and restarts gaining less than 1e-10',
       outcome: fit.converged ? 'converged' : 'max-iterations',
       finalDecrement: fit.finalDecrement,
       elapsedMs: Date.now() - began,
