@@ -17,6 +17,7 @@ import { contrastAtSite, contrastAtSiteErrorVariance, solveShared, trialBlups } 
 import { KNOWN_SITE_CAUTION, tCritical, type SiteYearContrast, type SiteYearSplit, type SiteYearView } from './siteYearView.js';
 import type { CrossedTerm } from './terms.js';
 import { kenwardRogerOrWarn } from './crossedKenwardRoger.js';
+import { momentStart } from './momentStart.js';
 
 export interface CrossedOptions {
   readonly random: readonly CrossedTerm[];
@@ -48,7 +49,9 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
     warnings.push(`${d.trialsWithoutSite.length} trial(s) have no site and count as a site of their own: ${d.trialsWithoutSite.slice(0, 20).join(', ')}`);
   let df = options.df;
   const onEvaluation = (count: number, criterion: number) => hooks.onProgress?.({ stage: 'one-stage (sites and years)', iteration: count, criterion });
-  const fit = optimiseCrossed(d, L, L.terms.map(() => 1), [], { signal: hooks.signal, onEvaluation });
+  // moment estimates as the start: about half the AI-REML passes of starting every ratio at 1
+  const start = momentStart(d, L);
+  const fit = optimiseCrossed(d, L, start, [], { signal: hooks.signal, onEvaluation });
   const ev = fit.evaluation;
   if (!fit.converged) warnings.push('one-stage REML (sites and years) did not meet its convergence criterion within its evaluation budget');
   // a residual per trial (when the options carry one) is not covered by crossedKenwardRoger
@@ -139,12 +142,12 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
         fit.search === 'average-information'
           ? `REML, residual variance profiled; AI-REML (Newton steps on the variance ratios with the average-information matrix, analytic gradient, ratios at zero held by projection): ${fit.iterations} iterations, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`
           : `REML, residual variance profiled; restarted Nelder–Mead simplex on the relative standard deviations, Newton polish on central differences (the AI-REML search made no progress): ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border`,
-      start: Object.fromEntries(L.terms.map((t) => [t, 1])),
+      start: Object.fromEntries(L.terms.map((t, k) => [t, start[k]])),
       iterations: fit.iterations,
       emIterations: 0,
       criterionPath: fit.criterionPath,
       stepHalvings: fit.stepHalvings,
-      convergence: fit.search === 'average-information' ? 'Newton decrement g\'AI^-1 g below 1e-11 or 1e-14 of the criterion, whichever is larger (or no further decrease within four halvings once it is below 1e-6)' : 'simplex spread below 1e-13 relative and restarts gaining less than 1e-10',
+      convergence: fit.search === 'average-information' ? 'Newton decrement g\'AI^-1 g below 1e-11 or 1e-13 of the criterion, whichever is larger (or no further decrease within four halvings once it is below 1e-6)' : 'simplex spread below 1e-13 relative and restarts gaining less than 1e-10',
       outcome: fit.converged ? 'converged' : 'max-iterations',
       finalDecrement: fit.finalDecrement,
       elapsedMs: Date.now() - began,

@@ -14,6 +14,7 @@ import type { ContrastReport, OneStageHooks, VarianceComponentReport, VarianceSu
 import { contrastVector, crossedData, CrossedDataError, type CrossedData } from './crossedData.js';
 import { crossedLayout } from './crossedLayout.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
+import { momentStart } from './momentStart.js';
 import { solveShared, trialBlups } from './crossedPredictions.js';
 import { committeeView, type CrossedOptions, type CrossedResult } from './fitCrossed.js';
 import { evaluatePerTrial } from './perTrialResidualModel.js';
@@ -57,7 +58,7 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
   if (options.profile) warnings.push('profile-likelihood intervals are not yet available with a residual per trial: the variance split shows Wald intervals on the log variance');
 
   const onEvaluation = (count: number, criterion: number) => hooks.onProgress?.({ stage: 'one-stage (sites and years, residual per trial)', iteration: count, criterion });
-  const common = optimiseCrossed(d, L, L.terms.map(() => 1), [], { signal: hooks.signal, onEvaluation }).evaluation;
+  const common = optimiseCrossed(d, L, momentStart(d, L), [], { signal: hooks.signal, onEvaluation }).evaluation;
   const s0 = Math.sqrt(common.sigma2);
   const ds: CrossedData = { ...d, trials: d.trials.map((t) => ({ ...t, y: t.y.map((x) => x / s0) })) };
   const fit = perTrialSearch(ds, L, Float64Array.from(common.theta, (t) => t * t), new Float64Array(d.trials.length).fill(1), [], { signal: hooks.signal, onIteration: onEvaluation });
