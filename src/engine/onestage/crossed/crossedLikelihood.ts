@@ -55,13 +55,17 @@ export interface LayoutFactor {
   readonly logDet: number;
 }
 
-function layoutFactor(tr: CrossedTrial, m: number, gTrial: number, gBlock: number, gTT: number): LayoutFactor | null {
+/**
+ * The factor of one trial's plots: gTrial 11' + gBlock BB' + gTT TT' + diagonal I (diagonal 1 in
+ * the common-residual model's ratios; the trial's own residual variance when each trial has one).
+ */
+export function layoutFactor(tr: CrossedTrial, m: number, gTrial: number, gBlock: number, gTT: number, diagonal = 1): LayoutFactor | null {
   const n = tr.y.length;
   const h = new Float64Array(n * n);
   for (let i = 0; i < n; i++)
     for (let j = 0; j <= i; j++) {
       let v = gTrial;
-      if (i === j) v += 1;
+      if (i === j) v += diagonal;
       if (tr.block[i] >= 0 && tr.block[i] === tr.block[j]) v += gBlock;
       if (tr.treatment[i] === tr.treatment[j]) v += gTT;
       h[i * n + j] = v;

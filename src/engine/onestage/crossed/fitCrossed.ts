@@ -5,16 +5,13 @@
 import type { NetworkInput } from '../../types.js';
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import { tInterval } from '../contrastInference.js';
-import { normalQuantile } from '../../stats/distributions.js';
-import type { ContrastReport, OneStageHooks, OneStageResult, VarianceComponentReport, VarianceSummary } from '../types.js';
+import type { ContrastReport, OneStageHooks, VarianceComponentReport, VarianceSummary } from '../types.js';
 import { contrastVector, crossedData, type CrossedData } from './crossedData.js';
-import { crossedLayout, type CrossedLayout } from './crossedLayout.js';
-import type { CrossedEvaluation } from './crossedLikelihood.js';
+import { crossedLayout } from './crossedLayout.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
 import { AT_ZERO, likelihoodRatio, profileVariance, type TermTest } from './crossedInference.js';
 import { satterthwaiteObserved } from './satterthwaiteObserved.js';
-import { contrastAtSite, contrastAtSiteErrorVariance, solveShared, trialBlups } from './crossedPredictions.js';
-import { KNOWN_SITE_CAUTION, tCritical, type SiteYearContrast, type SiteYearSplit, type SiteYearView } from './siteYearView.js';
+import { crossedResult, type CrossedResult } from './crossedResult.js';
 import type { CrossedTerm } from './terms.js';
 import { kenwardRogerOrWarn } from './crossedKenwardRoger.js';
 import { momentStart } from './momentStart.js';
@@ -30,7 +27,7 @@ export interface CrossedOptions {
   readonly profileTerms?: readonly CrossedTerm[];
 }
 
-export type CrossedResult = OneStageResult & { siteYearView: SiteYearView };
+export type { CrossedResult } from './crossedResult.js';
 
 /**
  * Profile intervals are asked for (options.profile: true): each needs a re-optimisation per
@@ -114,28 +111,12 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const variance: VarianceSummary & Partial<Record<CrossedTerm, number>> = { residual: ev.sigma2 };
   L.terms.forEach((t, k) => (variance[t] = varianceOf(k)));
 
-  const sol = solveShared(L, ev);
-  const blups = trialBlups(d, L, ev, sol, ls);
-  const trials = d.trials.map((tr, i) => ({
-    trial: tr.trial,
-    contrasts: contrasts.map((c, ci) => ({ name: c.name, blup: blups[i][ci], raw: null, rawSe: null, rawDf: null })),
-  }));
-  const siteYearView = committeeView(d.sites, d.trials, d.years, L, ev, sol, contrasts, ls, contrastReports, components, options.confidence);
-  return {
-    minusTwoLogLik: ev.criterion,
-    logLik: -ev.criterion / 2,
+  return crossedResult({
+    d, L, ev, contrasts, ls, contrastReports, means, components, variance,
     converged: fit.converged,
     iterations: fit.iterations,
-    variance,
-    means,
-    contrasts: contrastReports,
-    covariates: [],
-    varianceComponents: components,
-    trials,
-    nObservations: d.nObservations,
-    nTrials: d.trials.length,
-    droppedPlots: d.droppedPlots,
     options: { random: [...L.terms], yearAsFixed: options.yearAsFixed, residual: 'common', df, confidence: options.confidence, covariates: [] },
+    varianceSeFrom: 'the observed information',
     warnings,
     run: {
       method:
@@ -152,80 +133,5 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
       finalDecrement: fit.finalDecrement,
       elapsedMs: Date.now() - began,
     },
-    siteYearView,
-  };
-}
-
-export function committeeView(
-  sites: readonly string[],
-  trials: readonly { site: number; year: number }[],
-  years: readonly number[],
-  L: CrossedLayout,
-  ev: CrossedEvaluation,
-  sol: ReturnType<typeof solveShared>,
-  contrasts: readonly ResolvedContrast[],
-  ls: readonly (Float64Array | null)[],
-  reports: readonly ContrastReport[],
-  components: readonly VarianceComponentReport[],
-  confidence: number,
-): SiteYearView {
-  const v = (term: CrossedTerm) => (L.at[term] >= 0 ? ev.sigma2 * ev.theta[L.at[term]] ** 2 : null);
-  const parts: [SiteYearSplit['part'], SiteYearSplit['term']][] = [
-    ['site', 'treatment-by-site'],
-    ['year', 'treatment-by-year'],
-    ['site-year', 'treatment-by-trial'],
-  ];
-  const total = parts.reduce((s, [, t]) => s + (v(t) ?? 0), 0);
-  const split = parts.map(([part, term]): SiteYearSplit => {
-    const c = components.find((x) => x.name === term);
-    const base = { part, term, variance: v(term), share: v(term) === null || !(total > 0) ? null : v(term)! / total };
-    if (c && c.profileUpper !== null) return { ...base, lower: c.profileLower, upper: c.profileUpper, intervalMethod: 'profile-likelihood' };
-    if (c && c.se !== null && c.estimate > 0) {
-      // Wald on the log variance: estimate x exp(± z se/estimate), never below zero
-      const z = normalQuantile(1 - (1 - confidence) / 2);
-      const spread = Math.exp((z * c.se) / c.estimate);
-      return { ...base, lower: c.estimate / spread, upper: c.estimate * spread, intervalMethod: 'wald-log' };
-    }
-    return { ...base, lower: null, upper: null, intervalMethod: 'none' };
   });
-  const siteShare = v('treatment-by-site');
-  const yearsAt = sites.map(() => new Set<number>());
-  for (const t of trials) yearsAt[t.site].add(years[t.year]);
-  const view: SiteYearContrast[] = contrasts.map((c, i) => {
-    const l = ls[i];
-    const r = reports[i];
-    let sumSq = 0;
-    if (l) for (const x of l) sumSq += x * x;
-    const siteVariance = sumSq * (v('treatment-by-site') ?? 0);
-    const yearVariance = sumSq * (v('treatment-by-year') ?? 0);
-    const siteYearVariance = sumSq * (v('treatment-by-trial') ?? 0);
-    let newSiteNewYear: SiteYearContrast['newSiteNewYear'] = null;
-    const dfNew = Math.max(1, sites.length - 2);
-    const crit = tCritical(confidence, dfNew);
-    if (l && r.estimate !== null && r.se !== null) {
-      const sd = Math.sqrt(r.se ** 2 + siteVariance + yearVariance + siteYearVariance);
-      newSiteNewYear = { lower: r.estimate - crit * sd, upper: r.estimate + crit * sd, df: dfNew, sd };
-    }
-    const nextYearAtSite =
-      l && L.at['treatment-by-site'] >= 0
-        ? sites.map((site, s) => {
-            const estimate = contrastAtSite(L, ev, sol, s, l);
-            const predictionSe = Math.sqrt(contrastAtSiteErrorVariance(L, ev, s, l) + yearVariance + siteYearVariance);
-            // the same t as the new site's: a known site's interval must not come out wider than a
-            // new site's only because years are fewer than sites (t(years - 2) did, with 3 years)
-            return { site, pastYears: [...yearsAt[s]].sort((a, b) => a - b), estimate, predictionSe, lower: estimate - crit * predictionSe, upper: estimate + crit * predictionSe };
-          })
-        : [];
-    return { name: c.name, estimate: r.estimate, siteVariance, yearVariance, siteYearVariance, newSiteNewYear, nextYearAtSite };
-  });
-  return {
-    split,
-    siteRepeatability: siteShare === null || !(total > 0) ? null : siteShare / total,
-    sites: sites.length,
-    years: years.length,
-    contrasts: view,
-    method:
-      'new site in a new year: estimate ± t(sites - 2) sqrt(se² + sum l² (treatment-by-site + treatment-by-year + treatment-by-trial variances)); next year at a known site: the site\'s BLUP ± t(sites - 2) sqrt(its prediction-error variance + sum l² (treatment-by-year + treatment-by-trial variances)); intervals on the variances by profile likelihood when asked for (oneStage.profile: true), otherwise Wald intervals on the log variance from the observed information',
-    caution: KNOWN_SITE_CAUTION,
-  };
 }

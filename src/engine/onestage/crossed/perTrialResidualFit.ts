@@ -15,8 +15,8 @@ import { contrastVector, crossedData, CrossedDataError, type CrossedData } from 
 import { crossedLayout } from './crossedLayout.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
 import { momentStart } from './momentStart.js';
-import { solveShared, trialBlups } from './crossedPredictions.js';
-import { committeeView, type CrossedOptions, type CrossedResult } from './fitCrossed.js';
+import type { CrossedOptions } from './fitCrossed.js';
+import { crossedResult, type CrossedResult } from './crossedResult.js';
 import { evaluatePerTrial } from './perTrialResidualModel.js';
 import { perTrialSearch } from './perTrialResidualSearch.js';
 import { perTrialDerivatives } from './perTrialResidualDerivatives.js';
@@ -120,30 +120,12 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
   const variance: VarianceSummary = { residualByTrial };
   L.terms.forEach((t, k) => (variance[t] = ev.theta[k] ** 2));
 
-  const sol = solveShared(L, ev);
-  const blups = trialBlups(d, L, ev, sol, ls);
-  const trials = d.trials.map((tr, i) => ({
-    trial: tr.trial,
-    contrasts: contrasts.map((c, ci) => ({ name: c.name, blup: blups[i][ci], raw: null, rawSe: null, rawDf: null })),
-  }));
-  const view = committeeView(d.sites, d.trials, d.years, L, ev, sol, contrasts, ls, contrastReports, components, options.confidence);
-  // the variances' SEs here come from the average information, not the observed information
-  const siteYearView = { ...view, method: view.method.replace('from the observed information', 'from the average-information matrix') };
-  return {
-    minusTwoLogLik: ev.criterion,
-    logLik: -ev.criterion / 2,
+  return crossedResult({
+    d, L, ev, contrasts, ls, contrastReports, means, components, variance,
     converged: fit.converged,
     iterations: fit.iterations,
-    variance,
-    means,
-    contrasts: contrastReports,
-    covariates: [],
-    varianceComponents: components,
-    trials,
-    nObservations: d.nObservations,
-    nTrials: d.trials.length,
-    droppedPlots: d.droppedPlots,
     options: { random: [...L.terms], yearAsFixed: options.yearAsFixed, residual: 'per-trial', df, confidence: options.confidence, covariates: [] },
+    varianceSeFrom: 'the average-information matrix',
     warnings,
     run: {
       method: `REML with one residual variance per trial (not profiled); start from the common-residual fit, data scaled by its residual sd; AI-REML on all variances at once (Newton steps with the average-information matrix, analytic gradient, terms at zero held by projection, the system solved by conjugate gradients preconditioned with the terms' block, their coupling to each residual and the residuals' diagonal): ${fit.iterations} iterations, ${fit.cgIterations} conjugate-gradient steps, ${fit.evaluations} criterion evaluations; sites as blocks of an arrowhead factor, years and fixed effects in its border. ${inf.hessian ? 'Satterthwaite df from the observed Hessian (products by central differences of the analytic gradient, solved by conjugate gradients preconditioned with the average information)' : 'Satterthwaite df from the average-information matrix in place of the Hessian'}; the variances' SEs from the inverse average information${d.trials.length > EXACT_RESIDUAL_SE_MAX_TRIALS ? "; the residuals' SEs from the preconditioner's approximate inverse" : ''}`,
@@ -157,6 +139,5 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
       finalDecrement: fit.finalDecrement,
       elapsedMs: Date.now() - began,
     },
-    siteYearView,
-  };
+  });
 }

@@ -8,37 +8,10 @@
 //   -2 REML log-likelihood = (N - p) log 2 pi + log|V| + log|X'V^-1X| + r'V^-1 r.
 // The evaluation it returns has sigma2 = 1, so the common model's predictions, BLUPs and
 // committee view read it unchanged (every variance there is sigma2 theta² = v).
-import type { CrossedData, CrossedTrial } from './crossedData.js';
+import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
-import { evaluateCrossed, type CrossedEvaluation, type LayoutFactor, type TrialPieces } from './crossedLikelihood.js';
-import { choleskyInPlace, forwardSolve, forwardSolveColumns } from './denseSmall.js';
-
-/** V0_i = L L' of one trial at its own residual (absolute units), with L^-1 K, K'V0^-1 K, log|V0_i|. */
-function trialFactor(tr: CrossedTrial, m: number, residual: number, vTrial: number, vBlock: number, vTT: number): LayoutFactor | null {
-  const n = tr.y.length;
-  const h = new Float64Array(n * n);
-  for (let i = 0; i < n; i++)
-    for (let j = 0; j <= i; j++) {
-      let v = vTrial;
-      if (i === j) v += residual;
-      if (tr.block[i] >= 0 && tr.block[i] === tr.block[j]) v += vBlock;
-      if (tr.treatment[i] === tr.treatment[j]) v += vTT;
-      h[i * n + j] = v;
-    }
-  if (!choleskyInPlace(h, n)) return null;
-  let logDet = 0;
-  for (let i = 0; i < n; i++) logDet += 2 * Math.log(h[i * n + i]);
-  const lk = new Float64Array(n * m);
-  for (let i = 0; i < n; i++) {
-    lk[i * m] = 1;
-    lk[i * m + 1 + tr.treatment[i]] = 1;
-  }
-  forwardSolveColumns(h, n, lk, m);
-  const a = new Float64Array(m * m);
-  for (let i = 0; i < n; i++)
-    for (let r = 0; r < m; r++) for (let s = 0; s < m; s++) a[r * m + s] += lk[i * m + r] * lk[i * m + s];
-  return { l: h, lk, a, logDet };
-}
+import { evaluateCrossed, layoutFactor, type CrossedEvaluation, type TrialPieces } from './crossedLikelihood.js';
+import { forwardSolve } from './denseSmall.js';
 
 /** Each trial's likelihood pieces at term variances v and residuals r (absolute units). */
 export function perTrialPieces(d: CrossedData, L: CrossedLayout, v: ArrayLike<number>, r: ArrayLike<number>): TrialPieces[] | null {
@@ -47,7 +20,7 @@ export function perTrialPieces(d: CrossedData, L: CrossedLayout, v: ArrayLike<nu
   const out: TrialPieces[] = [];
   for (let i = 0; i < d.trials.length; i++) {
     const tr = d.trials[i];
-    const f = trialFactor(tr, m, r[i], g(L.at.trial), g(L.at.block), g(L.at['treatment-by-trial']));
+    const f = layoutFactor(tr, m, g(L.at.trial), g(L.at.block), g(L.at['treatment-by-trial']), r[i]);
     if (!f) return null;
     const n = tr.y.length;
     const ly = Float64Array.from(tr.y);
