@@ -5,6 +5,7 @@
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
 import { normalQuantile } from '../../stats/distributions.js';
 import type { ContrastReport, OneStageResult, VarianceComponentReport } from '../types.js';
+import { tInterval } from '../contrastInference.js';
 import type { CrossedData } from './crossedData.js';
 import type { CrossedLayout } from './crossedLayout.js';
 import type { CrossedEvaluation } from './crossedLikelihood.js';
@@ -31,6 +32,47 @@ export interface CrossedResultParts {
   readonly varianceSeFrom: string;
   readonly warnings: string[];
   readonly run: OneStageResult['run'];
+}
+
+/** How a contrast's df (and, for Kenward–Roger, its adjusted variance) are found. */
+export interface ContrastDf {
+  readonly method: 'satterthwaite' | 'kenward-roger' | 'residual';
+  readonly df: (l: Float64Array) => number;
+  readonly adjusted?: (l: Float64Array) => { variance: number; df: number } | undefined;
+}
+
+/** Each contrast's and each treatment mean's estimate, SE, df and interval from the fit's fixed effects. */
+export function fixedEffectReports(
+  ev: CrossedEvaluation,
+  L: CrossedLayout,
+  treatments: readonly string[],
+  contrasts: readonly ResolvedContrast[],
+  ls: readonly (Float64Array | null)[],
+  unit: readonly Float64Array[],
+  dfs: ContrastDf,
+  confidence: number,
+): { contrastReports: ContrastReport[]; means: OneStageResult['means'] } {
+  const report = (name: string, l: Float64Array | null): ContrastReport => {
+    if (!l) return { name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: dfs.method, seUnadjusted: null, note: 'not estimable: a treatment in the contrast has no usable plot' };
+    let estimate = 0;
+    let q = 0;
+    for (let i = 0; i < L.p; i++) {
+      estimate += l[i] * ev.beta[i];
+      for (let j = 0; j < L.p; j++) q += l[i] * ev.xhxInverse[i * L.p + j] * l[j];
+    }
+    const seUnadjusted = Math.sqrt(ev.sigma2 * q);
+    const adjusted = dfs.adjusted?.(l);
+    const se = adjusted ? Math.sqrt(adjusted.variance) : seUnadjusted;
+    const dfl = adjusted ? adjusted.df : dfs.df(l);
+    const ci = tInterval(estimate, se, dfl, confidence);
+    return { name, estimate, se, df: Number.isFinite(dfl) ? dfl : null, lower: ci.lower, upper: ci.upper, p: ci.p, dfMethod: dfs.method, seUnadjusted };
+  };
+  const contrastReports = contrasts.map((c, i) => report(c.name, ls[i]));
+  const means = treatments.map((treatment, j) => {
+    const r = report(treatment, unit[j]);
+    return { treatment, estimate: r.estimate!, se: r.se!, df: r.df, lower: r.lower, upper: r.upper };
+  });
+  return { contrastReports, means };
 }
 
 export function crossedResult(p: CrossedResultParts): CrossedResult {

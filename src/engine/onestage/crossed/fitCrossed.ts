@@ -4,14 +4,13 @@
 // the shape of the per-trial model's result, plus the committee view (siteYearView).
 import type { NetworkInput } from '../../types.js';
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
-import { tInterval } from '../contrastInference.js';
-import type { ContrastReport, OneStageHooks, VarianceComponentReport, VarianceSummary } from '../types.js';
+import type { OneStageHooks, VarianceComponentReport, VarianceSummary } from '../types.js';
 import { contrastVector, crossedData, type CrossedData } from './crossedData.js';
 import { crossedLayout } from './crossedLayout.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
 import { AT_ZERO, likelihoodRatio, profileVariance, type TermTest } from './crossedInference.js';
 import { satterthwaiteObserved } from './satterthwaiteObserved.js';
-import { crossedResult, type CrossedResult } from './crossedResult.js';
+import { crossedResult, fixedEffectReports, type CrossedResult } from './crossedResult.js';
 import type { CrossedTerm } from './terms.js';
 import { kenwardRogerOrWarn } from './crossedKenwardRoger.js';
 import { momentStart } from './momentStart.js';
@@ -65,29 +64,9 @@ export function fitCrossed(network: NetworkInput, contrasts: readonly ResolvedCo
   const sdf = df === 'satterthwaite' ? sat.df : null;
   const dfOf = (l: Float64Array): number => {
     if (df === 'residual') return d.nObservations - L.p;
-    const i = estimable.indexOf(l);
-    return sdf?.[i] ?? NaN;
+    return sdf?.[estimable.indexOf(l)] ?? NaN;
   };
-  const report = (name: string, l: Float64Array | null): ContrastReport => {
-    if (!l) return { name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: df, seUnadjusted: null, note: 'not estimable: a treatment in the contrast has no usable plot' };
-    let estimate = 0;
-    let q = 0;
-    for (let i = 0; i < L.p; i++) {
-      estimate += l[i] * ev.beta[i];
-      for (let j = 0; j < L.p; j++) q += l[i] * ev.xhxInverse[i * L.p + j] * l[j];
-    }
-    const seUnadjusted = Math.sqrt(ev.sigma2 * q);
-    const adjusted = kr?.contrast(l);
-    const se = adjusted ? Math.sqrt(adjusted.variance) : seUnadjusted;
-    const dfl = adjusted ? adjusted.df : dfOf(l);
-    const ci = tInterval(estimate, se, dfl, options.confidence);
-    return { name, estimate, se, df: Number.isFinite(dfl) ? dfl : null, lower: ci.lower, upper: ci.upper, p: ci.p, dfMethod: df, seUnadjusted };
-  };
-  const contrastReports = contrasts.map((c, i) => report(c.name, ls[i]));
-  const means = d.treatments.map((treatment, j) => {
-    const r = report(treatment, unit[j]);
-    return { treatment, estimate: r.estimate!, se: r.se!, df: r.df, lower: r.lower, upper: r.upper };
-  });
+  const { contrastReports, means } = fixedEffectReports(ev, L, d.treatments, contrasts, ls, unit, { method: df, df: dfOf, adjusted: kr ? (l) => kr.contrast(l) : undefined }, options.confidence);
 
   const varianceOf = (k: number) => ev.sigma2 * ev.theta[k] ** 2;
   const lrtOn = options.lrt ?? true;

@@ -9,14 +9,13 @@
 // (perTrialResidualSearch.ts). Estimates are reported on the data's own scale.
 import type { NetworkInput } from '../../types.js';
 import type { ResolvedContrast } from '../../contrasts/resolve.js';
-import { tInterval } from '../contrastInference.js';
-import type { ContrastReport, OneStageHooks, VarianceComponentReport, VarianceSummary } from '../types.js';
+import type { OneStageHooks, VarianceComponentReport, VarianceSummary } from '../types.js';
 import { contrastVector, crossedData, CrossedDataError, type CrossedData } from './crossedData.js';
 import { crossedLayout } from './crossedLayout.js';
 import { optimiseCrossed } from './optimiseCrossed.js';
 import { momentStart } from './momentStart.js';
 import type { CrossedOptions } from './fitCrossed.js';
-import { crossedResult, type CrossedResult } from './crossedResult.js';
+import { crossedResult, fixedEffectReports, type CrossedResult } from './crossedResult.js';
 import { evaluatePerTrial } from './perTrialResidualModel.js';
 import { perTrialSearch } from './perTrialResidualSearch.js';
 import { perTrialDerivatives } from './perTrialResidualDerivatives.js';
@@ -77,24 +76,9 @@ export function fitCrossedPerTrialResidual(network: NetworkInput, contrasts: rea
   const exactHessian = options.exactHessianMaxTrials === undefined ? d.trials.length <= EXACT_HESSIAN_MAX_TRIALS : d.trials.length <= options.exactHessianMaxTrials;
   const inf = perTrialInference(ds, L, fit.evaluation, der, freeTerm, estimable, fit.v, fit.r, exactHessian && df === 'satterthwaite');
   if (inf.hessianFallbacks > 0) warnings.push(`the observed Hessian was not positive definite along the Satterthwaite solve for ${inf.hessianFallbacks} contrast(s) or mean(s): their df use the average-information matrix instead`);
-  const report = (name: string, l: Float64Array | null): ContrastReport => {
-    if (!l) return { name, estimate: null, se: null, df: null, lower: null, upper: null, p: null, dfMethod: df, seUnadjusted: null, note: 'not estimable: a treatment in the contrast has no usable plot' };
-    let estimate = 0;
-    let q = 0;
-    for (let i = 0; i < L.p; i++) {
-      estimate += l[i] * ev.beta[i];
-      for (let j = 0; j < L.p; j++) q += l[i] * ev.xhxInverse[i * L.p + j] * l[j];
-    }
-    const se = Math.sqrt(q);
-    const dfl = df === 'residual' ? d.nObservations - L.p : (inf.df[estimable.indexOf(l)] ?? NaN);
-    const ci = tInterval(estimate, se, dfl, options.confidence);
-    return { name, estimate, se, df: Number.isFinite(dfl) ? dfl : null, lower: ci.lower, upper: ci.upper, p: ci.p, dfMethod: df, seUnadjusted: se };
-  };
-  const contrastReports = contrasts.map((c, i) => report(c.name, ls[i]));
-  const means = d.treatments.map((treatment, j) => {
-    const r = report(treatment, unit[j]);
-    return { treatment, estimate: r.estimate!, se: r.se!, df: r.df, lower: r.lower, upper: r.upper };
-  });
+  // the evaluation's residual scale is 1 here (every variance absolute), so its SEs are sqrt(l'(X'V^-1X)^-1 l)
+  const dfOf = (l: Float64Array): number => (df === 'residual' ? d.nObservations - L.p : (inf.df[estimable.indexOf(l)] ?? NaN));
+  const { contrastReports, means } = fixedEffectReports(ev, L, d.treatments, contrasts, ls, unit, { method: df, df: dfOf }, options.confidence);
 
   const lrtOn = options.lrt ?? true;
   const components: VarianceComponentReport[] = L.terms.map((name, k) => {
