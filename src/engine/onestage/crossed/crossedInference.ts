@@ -39,6 +39,22 @@ export function likelihoodRatio(d: CrossedData, L: CrossedLayout, ev: CrossedEva
 }
 
 /**
+ * -2 REML log-likelihood with variance k held at v, as a function of x = [log residual variance,
+ * the other terms' relative sds (sign ignored)] — what a profile point minimises.
+ */
+export function profileCriterion(d: CrossedData, L: CrossedLayout, k: number, v: number): (x: Float64Array) => number {
+  const others = L.terms.map((_, j) => j).filter((j) => j !== k);
+  return (x) => {
+    const s2 = Math.exp(x[0]);
+    const th = new Float64Array(L.terms.length);
+    others.forEach((j, i) => (th[j] = Math.abs(x[1 + i])));
+    th[k] = Math.sqrt(v / s2);
+    const e = evaluateCrossed(d, L, th);
+    return e ? unprofiledCriterion(e, s2, d.nObservations, L.p) : Infinity;
+  };
+}
+
+/**
  * Profile-likelihood interval for the variance of term k: the values v where the criterion,
  * minimised over everything else with the variance held at v, rises chi2_1(confidence) above
  * its minimum. The lower end is 0 when the refit without the term stays within that rise.
@@ -55,14 +71,7 @@ export function profileVariance(d: CrossedData, L: CrossedLayout, ev: CrossedEva
   };
   const profileAt = (v: number): number => {
     if (signal?.aborted) throw new Error('one-stage fit cancelled');
-    const f = (x: Float64Array): number => {
-      const s2 = Math.exp(x[0]);
-      const th = new Float64Array(L.terms.length);
-      others.forEach((j, i) => (th[j] = Math.abs(x[1 + i])));
-      th[k] = Math.sqrt(v / s2);
-      const e = evaluateCrossed(d, L, th);
-      return e ? unprofiledCriterion(e, s2, d.nObservations, L.p) : Infinity;
-    };
+    const f = profileCriterion(d, L, k, v);
     // Newton steps on the analytic derivatives first (profileNewton.ts); the simplex when they fail
     const nt = profileNewton(d, L, k, v, Math.exp(warm[0]), thetaOf(warm), AT_ZERO, signal);
     if (nt) {

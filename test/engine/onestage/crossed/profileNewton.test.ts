@@ -7,10 +7,9 @@
 import { describe, expect, it } from 'vitest';
 import { crossedData } from '../../../../src/engine/onestage/crossed/crossedData.js';
 import { crossedLayout } from '../../../../src/engine/onestage/crossed/crossedLayout.js';
-import { evaluateCrossed, unprofiledCriterion } from '../../../../src/engine/onestage/crossed/crossedLikelihood.js';
 import { optimiseCrossed } from '../../../../src/engine/onestage/crossed/optimiseCrossed.js';
 import { profileNewton } from '../../../../src/engine/onestage/crossed/profileNewton.js';
-import { AT_ZERO } from '../../../../src/engine/onestage/crossed/crossedInference.js';
+import { AT_ZERO, profileCriterion } from '../../../../src/engine/onestage/crossed/crossedInference.js';
 import { nelderMead } from '../../../../src/engine/rate/mixed/nelderMead.js';
 import type { CrossedTerm } from '../../../../src/engine/onestage/crossed/terms.js';
 import { simulateCrossed } from './support/simulateCrossed.js';
@@ -28,14 +27,7 @@ describe('profile point by Newton steps', () => {
       const vHat = ev.sigma2 * ev.theta[k] ** 2;
       const others = L.terms.map((_, j) => j).filter((j) => j !== k);
       for (const v of [vHat / 2, vHat * 2]) {
-        const f = (x: Float64Array): number => {
-          const s2 = Math.exp(x[0]);
-          const th = new Float64Array(L.terms.length);
-          others.forEach((j, i) => (th[j] = Math.abs(x[1 + i])));
-          th[k] = Math.sqrt(v / s2);
-          const e = evaluateCrossed(d, L, th);
-          return e ? unprofiledCriterion(e, s2, d.nObservations, L.p) : Infinity;
-        };
+        const f = profileCriterion(d, L, k, v);
         const nt = profileNewton(d, L, k, v, ev.sigma2, ev.theta, AT_ZERO);
         expect(nt, `${term} at ${v}`).not.toBeNull();
         const fromOptimum = nelderMead(f, [Math.log(ev.sigma2), ...others.map((j) => ev.theta[j])], { step: 0.05, fTolerance: 1e-12, xTolerance: 1e-8, maxEvaluations: 6000 });
