@@ -1,6 +1,7 @@
 // One-stage REML fit of every plot of every trial: fixed treatment means, random terms nested in
 // trial (trial, block within trial, treatment x trial), and a common or per-trial residual.
 // Pipeline: sufficient statistics -> parameter layout -> AI-REML optimisation -> inference.
+import { contrastVector } from './contrastVector.js';
 import type { NetworkInput } from '../types.js';
 import type { ResolvedContrast } from '../contrasts/resolve.js';
 import { chisqUpper } from '../stats/distributions.js';
@@ -77,7 +78,7 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
     return f < 0 || !aiInvDiag ? null : Math.sqrt(2 * aiInvDiag[f]);
   };
 
-  const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(c, stats.treatments, p) }));
+  const vectors: ContrastVector[] = contrasts.map((c) => ({ name: c.name, l: contrastVector(stats.treatments, c, p) }));
   // a covariate's slope is the contrast that picks its coefficient
   const slopes: ContrastVector[] = stats.covariates.map((cv, a) => ({ name: cv.name, l: Float64Array.from({ length: p }, (_, j) => (j === stats.treatments.length + a ? 1 : 0)) }));
   // each treatment mean is the contrast that picks its cell mean: its df and interval come the same way
@@ -144,18 +145,6 @@ export function fitOneStage(network: NetworkInput, contrasts: readonly ResolvedC
     warnings,
     run,
   };
-}
-
-/** The contrast on the fixed effects (p of them: the treatments, then covariates with coefficient 0). */
-function contrastVector(c: ResolvedContrast, treatments: readonly string[], p: number): Float64Array | null {
-  const l = new Float64Array(p);
-  for (const [code, v] of Object.entries(c.coefficients)) {
-    if (v === 0) continue;
-    const j = treatments.indexOf(code);
-    if (j < 0) return null;
-    l[j] = v / c.divisor;
-  }
-  return l;
 }
 
 function contrastInference(frame: ModelFrame, fit: OptimiseOutcome, so: SecondOrder | null, free: readonly number[], vectors: readonly ContrastVector[], options: OneStageOptions, active: ReturnType<typeof activeParameterTable>): ContrastReport[] {

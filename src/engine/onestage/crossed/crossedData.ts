@@ -3,7 +3,6 @@
 // the network cannot tell apart from another.
 import type { NetworkInput } from '../../types.js';
 import type { CrossedTerm } from './terms.js';
-import type { ResolvedContrast } from '../../contrasts/resolve.js';
 
 export class CrossedDataError extends Error {
   constructor(message: string) {
@@ -127,18 +126,4 @@ function checkIdentifiable(d: CrossedData, random: readonly CrossedTerm[], yearA
   if (d.treatments.length < 2 && (has('treatment-by-site') || has('treatment-by-year') || has('treatment-by-trial'))) throw new CrossedDataError('oneStage: a treatment-by term needs at least two treatments with data');
 }
 
-/**
- * A contrast as a vector over the model's fixed effects (the first entries are the treatments in
- * `treatments` order; `length` may add more, e.g. year effects): coefficient / divisor. Null when it
- * names a treatment with no usable plot.
- */
-export function contrastVector(treatments: readonly string[], c: ResolvedContrast, length = treatments.length): Float64Array | null {
-  const l = new Float64Array(length);
-  for (const [code, v] of Object.entries(c.coefficients)) {
-    if (v === 0) continue;
-    const j = treatments.indexOf(code);
-    if (j < 0) return null;
-    l[j] = v / c.divisor;
-  }
-  return l;
-}
+export { contrastVector } from '../contrastVector.js';
